@@ -1,0 +1,4 @@
+export * from "./auth";
+export * from "./workshop";
+export * from "./events";
+export * from "./mail";

@@ -1,0 +1,40 @@
+import { sql } from "drizzle-orm";
+import { index, integer, sqliteTable, text } from "drizzle-orm/sqlite-core";
+import { events } from "./events";
+
+/**
+ * Outgoing mail, queued in the same transaction as the event that causes it.
+ * A message's content is never changed; each delivery try is appended to mail_attempts.
+ */
+export const outbox = sqliteTable(
+  "outbox",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    eventId: integer("event_id").references(() => events.id),
+    to: text("to").notNull(),
+    subject: text("subject").notNull(),
+    text: text("text").notNull(),
+    html: text("html"),
+    createdAt: integer("created_at", { mode: "timestamp_ms" })
+      .notNull()
+      .default(sql`(unixepoch('subsec') * 1000)`),
+  },
+  (t) => [index("outbox_created_idx").on(t.createdAt)],
+);
+
+/** One row per delivery try: ok with the server's message id, or the error. */
+export const mailAttempts = sqliteTable(
+  "mail_attempts",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    outboxId: integer("outbox_id")
+      .notNull()
+      .references(() => outbox.id),
+    at: integer("at", { mode: "timestamp_ms" }).notNull(),
+    ok: integer("ok", { mode: "boolean" }).notNull(),
+    detail: text("detail").notNull(),
+  },
+  (t) => [index("mail_attempts_outbox_idx").on(t.outboxId)],
+);
+
+export type OutboxMessage = typeof outbox.$inferSelect;

@@ -1,0 +1,82 @@
+import { sql } from "drizzle-orm";
+import { check, integer, primaryKey, real, sqliteTable, text } from "drizzle-orm/sqlite-core";
+
+/** A speaker design. */
+export const models = sqliteTable(
+  "models",
+  {
+    id: text("id").primaryKey(),
+    /** Short code used inside serials (2–4 capitals or digits). */
+    code: text("code").notNull().unique(),
+    name: text("name").notNull(),
+    /** Veneer leaves one cabinet face takes, and their minimum size. */
+    leavesPerFace: integer("leaves_per_face").notNull(),
+    minLeafLengthMm: real("min_leaf_length_mm").notNull(),
+    minLeafWidthMm: real("min_leaf_width_mm").notNull(),
+    /** Finished pair response limit |L − R| in dB over [responseMinHz, responseMaxHz]. */
+    pairResponseLimitDb: real("pair_response_limit_db").notNull(),
+    responseMinHz: real("response_min_hz").notNull(),
+    responseMaxHz: real("response_max_hz").notNull(),
+    /** GTIN-14 of the packed pair. */
+    pairGtin: text("pair_gtin").notNull(),
+    active: integer("active", { mode: "boolean" }).notNull().default(true),
+  },
+  (t) => [
+    check("models_code_format", sql`${t.code} GLOB '[A-Z0-9][A-Z0-9]*' AND length(${t.code}) BETWEEN 2 AND 4`),
+    check("models_leaves_positive", sql`${t.leavesPerFace} >= 1`),
+    check("models_range", sql`${t.responseMinHz} > 0 AND ${t.responseMaxHz} > ${t.responseMinHz}`),
+    check("models_gtin_format", sql`length(${t.pairGtin}) = 14 AND ${t.pairGtin} GLOB '[0-9]*' AND ${t.pairGtin} NOT GLOB '*[^0-9]*'`),
+  ],
+);
+
+/** Drive-unit positions of a model: position code (e.g. "T"), its part type and how many units sit there. */
+export const modelPositions = sqliteTable(
+  "model_positions",
+  {
+    modelId: text("model_id")
+      .notNull()
+      .references(() => models.id, { onDelete: "cascade" }),
+    position: text("position").notNull(),
+    partType: text("part_type", { enum: ["tweeter", "midrange", "bass"] }).notNull(),
+    count: integer("count").notNull().default(1),
+  },
+  (t) => [primaryKey({ columns: [t.modelId, t.position] }), check("model_positions_count", sql`${t.count} >= 1`)],
+);
+
+/** Drive-unit mismatch limit per part type: the largest band difference allowed between left and right. */
+export const modelTolerances = sqliteTable(
+  "model_tolerances",
+  {
+    modelId: text("model_id")
+      .notNull()
+      .references(() => models.id, { onDelete: "cascade" }),
+    partType: text("part_type", { enum: ["tweeter", "midrange", "bass"] }).notNull(),
+    mismatchLimitDb: real("mismatch_limit_db").notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.modelId, t.partType] }), check("model_tolerances_positive", sql`${t.mismatchLimitDb} > 0`)],
+);
+
+/** A veneer species (pair born at the flitch) or a lacquer colour (cabinets paired at assembly). */
+export const finishes = sqliteTable("finishes", {
+  id: text("id").primaryKey(),
+  code: text("code").notNull().unique(),
+  name: text("name").notNull(),
+  kind: text("kind", { enum: ["veneer", "lacquer"] }).notNull(),
+  /** Botanical or trade name for veneer, colour reference for lacquer. */
+  detail: text("detail").notNull().default(""),
+  active: integer("active", { mode: "boolean" }).notNull().default(true),
+});
+
+export const dealers = sqliteTable("dealers", {
+  id: text("id").primaryKey(),
+  code: text("code").notNull().unique(),
+  name: text("name").notNull(),
+  city: text("city").notNull(),
+  country: text("country").notNull(),
+  email: text("email").notNull(),
+  active: integer("active", { mode: "boolean" }).notNull().default(true),
+});
+
+export type Model = typeof models.$inferSelect;
+export type Finish = typeof finishes.$inferSelect;
+export type Dealer = typeof dealers.$inferSelect;

@@ -1,0 +1,9 @@
+import { defineConfig } from "drizzle-kit";
+
+export default defineConfig({
+  dialect: "sqlite",
+  schema: "./db/schema/index.ts",
+  out: "./db/migrations",
+  dbCredentials: { url: process.env.DATABASE_URL ?? "file:./data/twinleaf.db" },
+  strict: true,
+});
