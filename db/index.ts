@@ -24,7 +24,7 @@ export function databaseUrl(): string {
 export function openClient(url = databaseUrl()): Client {
   if (url.startsWith("file:")) {
     const path = url.slice("file:".length).split("?")[0] ?? "";
-    if (path && path !== ":memory:") mkdirSync(dirname(resolve(path)), { recursive: true });
+    if (path && path !== ":memory:") mkdirSync(dirname(resolve(/*turbopackIgnore: true*/ path)), { recursive: true });
   }
   return createClient({ url, authToken: process.env.DATABASE_AUTH_TOKEN || undefined, timeout: 5000 });
 }

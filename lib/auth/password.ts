@@ -3,7 +3,7 @@ import { hash, verify } from "@node-rs/argon2";
 // argon2id with the library's defaults (m = 19456 KiB, t = 2, p = 1), the OWASP minimum.
 const OPTIONS = { algorithm: 2 /* Argon2id */ } as const;
 
-export const MIN_PASSWORD_LENGTH = 10;
+export { MIN_PASSWORD_LENGTH } from "./password-rules";
 
 export function hashPassword(password: string): Promise<string> {
   return hash(password, OPTIONS);

@@ -1,5 +1,5 @@
 import "server-only";
-import { desc, eq, inArray } from "drizzle-orm";
+import { and, desc, eq, inArray, type SQL } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { events, users } from "@/db/schema";
 
@@ -46,9 +46,15 @@ export interface EventRow {
   actorName: string | null;
 }
 
-/** The newest events, optionally only those recorded at some stations. */
-export async function recentEvents(db: DbOrTx, opts: { limit?: number; stations?: string[] } = {}): Promise<EventRow[]> {
-  const q = db
+/** The newest events, optionally only those recorded at some stations or about one subject. */
+export async function recentEvents(
+  db: DbOrTx,
+  opts: { limit?: number; stations?: string[]; subject?: { kind: string; id: string } } = {},
+): Promise<EventRow[]> {
+  const where: SQL[] = [];
+  if (opts.stations) where.push(inArray(events.station, opts.stations));
+  if (opts.subject) where.push(eq(events.subjectKind, opts.subject.kind), eq(events.subjectId, opts.subject.id));
+  return db
     .select({
       id: events.id,
       at: events.at,
@@ -63,8 +69,7 @@ export async function recentEvents(db: DbOrTx, opts: { limit?: number; stations?
     })
     .from(events)
     .leftJoin(users, eq(users.id, events.actorId))
+    .where(where.length ? and(...where) : undefined)
     .orderBy(desc(events.id))
     .limit(opts.limit ?? 50);
-  if (opts.stations && opts.stations.length > 0) return q.where(inArray(events.station, opts.stations));
-  return q;
 }

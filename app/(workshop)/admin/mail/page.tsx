@@ -1,0 +1,76 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { Badge } from "@/components/ui/badge";
+import { DataTable } from "@/components/ui/data-table";
+import { Panel, PageHeader } from "@/components/ui/panel";
+import { getDb } from "@/db";
+import { requirePage } from "@/lib/auth/guard";
+import { readMailConfig } from "@/lib/mail/config";
+import { readMailbox } from "@/lib/mail/mailbox";
+import { listOutbox } from "@/lib/mail/outbox";
+
+export const metadata: Metadata = { title: "Mail" };
+
+const when = new Intl.DateTimeFormat("en-GB", { dateStyle: "medium", timeStyle: "medium", timeZone: process.env.TZ || "UTC" });
+const TONE = { sent: "leaf", pending: "caution", failed: "danger" } as const;
+
+export default async function MailPage() {
+  await requirePage("admin.mail");
+  const config = readMailConfig();
+  const [outbox, caught] = await Promise.all([listOutbox(getDb(), { limit: 100 }), readMailbox(config.mailboxDir, { limit: 100 })]);
+  return (
+    <div className="flex flex-col gap-6">
+      <PageHeader title="Mail" lead="Every message is queued together with the event that caused it and sent by a background sender that retries, so a failed send loses nothing." />
+      <Panel title="Queued and sent">
+        <DataTable
+          caption="Outgoing mail"
+          testId="outbox-table"
+          initialSort={{ key: "queued", dir: "desc" }}
+          columns={[
+            { key: "queued", label: "Queued" },
+            { key: "to", label: "To" },
+            { key: "subject", label: "Subject" },
+            { key: "status", label: "Status" },
+            { key: "attempts", label: "Tries", numeric: true },
+            { key: "note", label: "Last problem" },
+          ]}
+          rows={outbox.map((m) => ({
+            id: String(m.id),
+            cells: {
+              queued: { value: m.createdAt.getTime(), display: when.format(m.createdAt) },
+              to: { value: m.to },
+              subject: { value: m.subject },
+              status: { value: m.status, display: <Badge tone={TONE[m.status]}>{m.status === "pending" && m.nextAttemptAt ? `retry ${when.format(m.nextAttemptAt)}` : m.status}</Badge> },
+              attempts: { value: m.attempts },
+              note: { value: m.lastError ?? "" },
+            },
+          }))}
+        />
+      </Panel>
+      <Panel title="Caught by the demo's mail server">
+        <p className="mb-4 text-ink-soft">
+          The demo runs a local stand-in SMTP server that keeps every message it receives in <code className="serial">{config.mailboxDir}</code> instead of delivering it. With a real SMTP server configured, this list stays empty.
+        </p>
+        <DataTable
+          caption="Caught mail"
+          testId="mailbox-table"
+          initialSort={{ key: "received", dir: "desc" }}
+          empty="No mail caught."
+          columns={[
+            { key: "received", label: "Received" },
+            { key: "to", label: "To" },
+            { key: "subject", label: "Subject" },
+          ]}
+          rows={caught.map((m) => ({
+            id: m.id,
+            cells: {
+              received: { value: m.receivedAt.getTime(), display: when.format(m.receivedAt) },
+              to: { value: m.to },
+              subject: { value: m.subject, display: <Link className="font-bold text-leaf-dark underline underline-offset-4" href={`/admin/mail/${encodeURIComponent(m.id)}`}>{m.subject || "(no subject)"}</Link> },
+            },
+          }))}
+        />
+      </Panel>
+    </div>
+  );
+}

@@ -1,0 +1,33 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { AreaOverview } from "@/components/shell/area-overview";
+import { buttonClasses } from "@/components/ui/button";
+import { Panel } from "@/components/ui/panel";
+import { areaByKey } from "@/lib/areas";
+import { requirePage } from "@/lib/auth/guard";
+
+export const metadata: Metadata = { title: "Administration" };
+
+const SECTIONS = [
+  { href: "/admin/users", title: "Users and roles", text: "Invite people, change what they may do, deactivate those who have left." },
+  { href: "/admin/mail", title: "Mail", text: "Every message Twinleaf queued, whether it was delivered, and the demo's caught mail." },
+  { href: "/register", title: "Models, finishes and dealers", text: "The workshop's reference data." },
+];
+
+export default async function AdminPage() {
+  await requirePage("admin.users");
+  return (
+    <AreaOverview area={areaByKey("admin")}>
+      <div className="grid gap-4 sm:grid-cols-3">
+        {SECTIONS.map((s) => (
+          <Panel key={s.href} title={s.title}>
+            <p className="text-ink-soft">{s.text}</p>
+            <Link href={s.href} className={`${buttonClasses("secondary", "sm")} mt-4`}>
+              Open
+            </Link>
+          </Panel>
+        ))}
+      </div>
+    </AreaOverview>
+  );
+}

@@ -1,0 +1,97 @@
+import { Badge } from "@/components/ui/badge";
+import { DataTable } from "@/components/ui/data-table";
+import type { Dealer, Finish } from "@/db/schema";
+import type { ModelSummary } from "@/lib/workshop/queries";
+
+const PART_LABEL: Record<string, string> = { tweeter: "tweeter", midrange: "midrange", bass: "bass" };
+
+export function ModelTable({ models, show = "all" }: { models: ModelSummary[]; show?: "all" | "veneer" | "tolerances" }) {
+  const base = [
+    { key: "code", label: "Code" },
+    { key: "name", label: "Model" },
+  ];
+  const veneer = [
+    { key: "leaves", label: "Leaves per face", numeric: true },
+    { key: "leafSize", label: "Smallest leaf (mm)", sortable: false },
+  ];
+  const tolerances = [
+    { key: "limits", label: "Drive-unit limit (dB)", sortable: false },
+    { key: "pairLimit", label: "Pair limit (dB)", numeric: true },
+    { key: "range", label: "Over (Hz)", sortable: false },
+  ];
+  const all = [{ key: "positions", label: "Drive units", sortable: false }, ...veneer, ...tolerances, { key: "gtin", label: "Pair GTIN" }];
+  const columns = [...base, ...(show === "veneer" ? veneer : show === "tolerances" ? tolerances : all)];
+  return (
+    <DataTable
+      caption="Models"
+      testId="model-table"
+      initialSort={{ key: "code", dir: "asc" }}
+      columns={columns}
+      rows={models.map((m) => ({
+        id: m.id,
+        cells: {
+          code: { value: m.code, display: <span className="serial font-bold">{m.code}</span> },
+          name: { value: m.name, display: <>{m.name}{m.active ? null : <Badge className="ml-2">retired</Badge>}</> },
+          positions: { value: null, display: m.positions.map((p) => `${p.position}: ${p.count > 1 ? `${p.count} × ` : ""}${PART_LABEL[p.partType] ?? p.partType}`).join(", ") },
+          leaves: { value: m.leavesPerFace },
+          leafSize: { value: null, display: `${m.minLeafLengthMm} × ${m.minLeafWidthMm}` },
+          limits: { value: null, display: m.tolerances.map((t) => `${t.partType} ±${t.mismatchLimitDb}`).join(", ") },
+          pairLimit: { value: m.pairResponseLimitDb, display: `±${m.pairResponseLimitDb}` },
+          range: { value: null, display: `${m.responseMinHz}–${m.responseMaxHz}` },
+          gtin: { value: m.pairGtin, display: <span className="serial">{m.pairGtin}</span> },
+        },
+      }))}
+    />
+  );
+}
+
+export function FinishTable({ finishes }: { finishes: Finish[] }) {
+  return (
+    <DataTable
+      caption="Finishes"
+      testId="finish-table"
+      columns={[
+        { key: "code", label: "Code" },
+        { key: "name", label: "Finish" },
+        { key: "kind", label: "Kind" },
+        { key: "detail", label: "Detail" },
+      ]}
+      rows={finishes.map((f) => ({
+        id: f.id,
+        cells: {
+          code: { value: f.code, display: <span className="serial">{f.code}</span> },
+          name: { value: f.name },
+          kind: { value: f.kind, display: <Badge tone={f.kind === "veneer" ? "walnut" : "info"}>{f.kind === "veneer" ? "veneer: paired at the flitch" : "lacquer: paired at assembly"}</Badge> },
+          detail: { value: f.detail, display: f.kind === "veneer" ? <i>{f.detail}</i> : f.detail },
+        },
+      }))}
+    />
+  );
+}
+
+export function DealerTable({ dealers }: { dealers: Dealer[] }) {
+  return (
+    <DataTable
+      caption="Dealers"
+      testId="dealer-table"
+      initialSort={{ key: "name", dir: "asc" }}
+      columns={[
+        { key: "code", label: "Code" },
+        { key: "name", label: "Dealer" },
+        { key: "city", label: "Town" },
+        { key: "country", label: "Country" },
+        { key: "email", label: "E-mail" },
+      ]}
+      rows={dealers.map((d) => ({
+        id: d.id,
+        cells: {
+          code: { value: d.code, display: <span className="serial">{d.code}</span> },
+          name: { value: d.name },
+          city: { value: d.city },
+          country: { value: d.country },
+          email: { value: d.email },
+        },
+      }))}
+    />
+  );
+}

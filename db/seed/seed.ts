@@ -1,0 +1,150 @@
+import { randomUUID } from "node:crypto";
+import { eq, inArray, sql } from "drizzle-orm";
+import type { Db } from "@/db";
+import { dealers, finishes, modelPositions, modelTolerances, models, userRoles, users } from "@/db/schema";
+import { hashPassword } from "@/lib/auth/password";
+import type { Role } from "@/lib/auth/roles";
+import { appendEvent } from "@/lib/events/queries";
+import { DEMO_PASSWORD, SEED_DEALERS, SEED_FINISHES, SEED_MODELS, SEED_USERS } from "./data";
+
+/**
+ * GS1 mod-10 check digit of the data digits (everything but the check digit): weights 3, 1, 3, …
+ * from the rightmost data digit; check = (10 − sum mod 10) mod 10.
+ * Kept here until the shared serials module exists.
+ */
+export function gs1CheckDigit(data: string): number {
+  if (!/^[0-9]+$/.test(data)) throw new Error(`GS1 data must be digits only: "${data}"`);
+  let sum = 0;
+  for (let i = 0; i < data.length; i++) {
+    const digit = data.charCodeAt(data.length - 1 - i) - 48;
+    sum += digit * (i % 2 === 0 ? 3 : 1);
+  }
+  return (10 - (sum % 10)) % 10;
+}
+
+export function isValidGtin14(gtin: string): boolean {
+  return /^[0-9]{14}$/.test(gtin) && gs1CheckDigit(gtin.slice(0, 13)) === Number(gtin[13]);
+}
+
+/** The database holds real users: seeding demo sign-ins with a published password would open it up. */
+export class SeedRefusedError extends Error {
+  override name = "SeedRefusedError";
+}
+
+export interface SeedCounts {
+  models: number;
+  modelPositions: number;
+  modelTolerances: number;
+  finishes: number;
+  dealers: number;
+  users: number;
+  userRoles: number;
+}
+
+export interface SeedResult {
+  /** What this run added; all zero when the demo workshop was already there. */
+  created: SeedCounts;
+  /** The demo sign-ins as they stand after the run (all take DEMO_PASSWORD unless someone changed it). */
+  users: { email: string; roles: Role[] }[];
+}
+
+const SEED_EVENT = { actorId: null, station: "seed" } as const;
+
+/**
+ * Writes the invented demo workshop. Idempotent: records are matched on their unique code or
+ * e-mail and only the missing ones are inserted; a model's positions and tolerances come with the
+ * model, so an existing model is left as it is. Refuses, writing nothing, when any non-demo user exists.
+ */
+export async function seedDemo(db: Db): Promise<SeedResult> {
+  for (const m of SEED_MODELS) {
+    if (!isValidGtin14(m.pairGtin)) throw new Error(`seed data: model ${m.code} has an invalid GTIN-14 ${m.pairGtin}`);
+  }
+  // Hashing is deliberately slow; done before the transaction so its write lock is held briefly.
+  const hashes = new Map(
+    await Promise.all(SEED_USERS.map(async (u) => [u.email, await hashPassword(DEMO_PASSWORD)] as const)),
+  );
+
+  const created: SeedCounts = { models: 0, modelPositions: 0, modelTolerances: 0, finishes: 0, dealers: 0, users: 0, userRoles: 0 };
+
+  const seededUsers = await db.transaction(async (tx) => {
+    // Checked inside the transaction so no real user can appear between the check and the writes.
+    const [real] = await tx.select({ n: sql<number>`count(*)` }).from(users).where(eq(users.demo, false));
+    if ((real?.n ?? 0) > 0) {
+      throw new SeedRefusedError(
+        `Refusing to seed the demo workshop: the database holds ${real!.n} non-demo user(s). ` +
+          "The demo seed only runs on an empty database or one that holds demo data alone.",
+      );
+    }
+
+    for (const { positions, tolerances, ...model } of SEED_MODELS) {
+      const [row] = await tx
+        .insert(models)
+        .values({ id: randomUUID(), ...model })
+        .onConflictDoNothing({ target: models.code })
+        .returning({ id: models.id });
+      if (!row) continue;
+      await tx.insert(modelPositions).values(positions.map((p) => ({ modelId: row.id, ...p })));
+      await tx.insert(modelTolerances).values(tolerances.map((t) => ({ modelId: row.id, ...t })));
+      created.models++;
+      created.modelPositions += positions.length;
+      created.modelTolerances += tolerances.length;
+      await appendEvent(tx, {
+        ...SEED_EVENT, type: "model.created", subjectKind: "model", subjectId: row.id,
+        data: { ...model, positions, tolerances },
+      });
+    }
+
+    for (const finish of SEED_FINISHES) {
+      const [row] = await tx
+        .insert(finishes)
+        .values({ id: randomUUID(), ...finish })
+        .onConflictDoNothing({ target: finishes.code })
+        .returning({ id: finishes.id });
+      if (!row) continue;
+      created.finishes++;
+      await appendEvent(tx, { ...SEED_EVENT, type: "finish.created", subjectKind: "finish", subjectId: row.id, data: { ...finish } });
+    }
+
+    for (const dealer of SEED_DEALERS) {
+      const [row] = await tx
+        .insert(dealers)
+        .values({ id: randomUUID(), ...dealer })
+        .onConflictDoNothing({ target: dealers.code })
+        .returning({ id: dealers.id });
+      if (!row) continue;
+      created.dealers++;
+      await appendEvent(tx, { ...SEED_EVENT, type: "dealer.created", subjectKind: "dealer", subjectId: row.id, data: { ...dealer } });
+    }
+
+    for (const user of SEED_USERS) {
+      const [row] = await tx
+        .insert(users)
+        .values({ id: randomUUID(), email: user.email, name: user.name, passwordHash: hashes.get(user.email)!, demo: true })
+        .onConflictDoNothing({ target: users.email })
+        .returning({ id: users.id });
+      if (!row) continue;
+      await tx.insert(userRoles).values(user.roles.map((role) => ({ userId: row.id, role })));
+      created.users++;
+      created.userRoles += user.roles.length;
+      // The hash stays out of the event log.
+      await appendEvent(tx, {
+        ...SEED_EVENT, type: "user.created", subjectKind: "user", subjectId: row.id,
+        data: { email: user.email, name: user.name, roles: user.roles, demo: true },
+      });
+    }
+
+    // Read back rather than echo the seed data: an existing demo user may hold other roles by now.
+    const emails = SEED_USERS.map((u) => u.email);
+    const rows = await tx
+      .select({ email: users.email, role: userRoles.role })
+      .from(users)
+      .leftJoin(userRoles, eq(userRoles.userId, users.id))
+      .where(inArray(users.email, emails));
+    return emails.map((email) => ({
+      email,
+      roles: rows.filter((r) => r.email === email && r.role !== null).map((r) => r.role as Role).sort(),
+    }));
+  });
+
+  return { created, users: seededUsers };
+}

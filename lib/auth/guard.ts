@@ -1,0 +1,169 @@
+import "server-only";
+// The one file of lib/auth bound to Next.js: it reads the session cookie and turns a refusal into
+// a redirect, a 403 page, a form state or a JSON answer. Everything it decides comes from lib/auth.
+import { revalidatePath } from "next/cache";
+import { cookies, headers } from "next/headers";
+import { forbidden, redirect } from "next/navigation";
+import type { Cookie } from "lucia";
+import { cache } from "react";
+import { z } from "zod";
+import { echoValues, formDataToObject, type FormState } from "@/lib/forms";
+import { AppError, forbiddenError, unauthenticated } from "./errors";
+import { SESSION_COOKIE } from "./lucia";
+import type { Permission } from "./permissions";
+import { checkSession, type AuthUser } from "./sessions";
+
+/** The signed-in user of this request (read once per request), or null. */
+export const currentUser = cache(async (): Promise<AuthUser | null> => {
+  const store = await cookies();
+  const check = await checkSession(store.get(SESSION_COOKIE)?.value);
+  if (check.cookie) {
+    try {
+      store.set(check.cookie.name, check.cookie.value, check.cookie.attributes);
+    } catch {
+      // Rendering a server component cannot set cookies; the next action or route will.
+    }
+  }
+  return check.user;
+});
+
+/** For pages: the signed-out go to sign-in; a role without the permission gets the 403 page. */
+export async function requirePage(permission: Permission): Promise<AuthUser> {
+  const user = await currentUser();
+  if (!user) redirect("/sign-in");
+  if (!user.permissions.has(permission)) forbidden();
+  return user;
+}
+
+export interface ActionResult extends FormState {
+  /** Paths to revalidate, then a path to go to, both done after the body, outside any try. */
+  revalidate?: string[];
+  redirectTo?: string;
+}
+
+type Guarded<F> = F & { permission: Permission | null };
+
+const FAILED = "Something went wrong and nothing was saved. Try again; if it keeps happening, tell an administrator.";
+
+function failure(e: unknown): FormState {
+  if (e instanceof AppError) return { ok: false, status: e.status, message: e.message, fieldErrors: e.fieldErrors };
+  console.error(e);
+  return { ok: false, status: 500, message: FAILED };
+}
+
+function makeAction<S extends z.ZodType>(
+  permission: Permission | null,
+  schema: S,
+  body: (input: z.output<S>, user: AuthUser | null) => Promise<ActionResult | void>,
+): Guarded<(prev: FormState | undefined, formData: FormData) => Promise<FormState>> {
+  const action = async (_prev: FormState | undefined, formData: FormData): Promise<FormState> => {
+    const raw = formDataToObject(formData);
+    let user: AuthUser | null = null;
+    if (permission) {
+      user = await currentUser();
+      if (!user) return { ...failure(unauthenticated()), values: echoValues(raw) };
+      if (!user.permissions.has(permission)) return { ...failure(forbiddenError()), values: echoValues(raw) };
+    }
+    const parsed = schema.safeParse(raw);
+    if (!parsed.success) {
+      return {
+        ok: false,
+        status: 400,
+        message: "Some fields need attention.",
+        fieldErrors: z.flattenError(parsed.error).fieldErrors as Record<string, string[]>,
+        values: echoValues(raw),
+      };
+    }
+    let result: ActionResult;
+    try {
+      result = (await body(parsed.data, user)) ?? { ok: true };
+    } catch (e) {
+      return { ...failure(e), values: echoValues(raw) };
+    }
+    for (const path of result.revalidate ?? []) revalidatePath(path);
+    if (result.redirectTo) redirect(result.redirectTo);
+    const { revalidate: _r, redirectTo: _d, ...state } = result;
+    return state;
+  };
+  return Object.assign(action, { permission });
+}
+
+/** A server action behind the session, a named permission and a zod schema. */
+export function guardedAction<S extends z.ZodType>(
+  permission: Permission,
+  schema: S,
+  body: (input: z.output<S>, user: AuthUser) => Promise<ActionResult | void>,
+) {
+  return makeAction(permission, schema, (input, user) => body(input, user!));
+}
+
+/** A server action that needs no session (sign-in, reset, invite acceptance). Still validated. */
+export function publicAction<S extends z.ZodType>(schema: S, body: (input: z.output<S>) => Promise<ActionResult | void>) {
+  return makeAction(null, schema, (input) => body(input));
+}
+
+type RouteContext = { params: Promise<Record<string, string | string[]>> };
+
+function json(status: number, body: unknown, init?: ResponseInit) {
+  return Response.json(body, { ...init, status });
+}
+
+/**
+ * A route handler behind the session, a named permission and zod schemas for the query string
+ * and the JSON body. Answers 401, 403 or 400 in JSON before the handler runs.
+ */
+export function guardedRoute<Q extends z.ZodType = z.ZodType<Record<string, never>>, B extends z.ZodType = z.ZodType<undefined>>(
+  permission: Permission,
+  opts: { query?: Q; body?: B },
+  handler: (args: { req: Request; user: AuthUser; query: z.output<Q>; body: z.output<B>; params: Record<string, string | string[]> }) => Promise<unknown>,
+): Guarded<(req: Request, ctx: RouteContext) => Promise<Response>> {
+  const route = async (req: Request, ctx: RouteContext): Promise<Response> => {
+    const user = await currentUser();
+    if (!user) return json(401, { error: unauthenticated().message });
+    if (!user.permissions.has(permission)) return json(403, { error: forbiddenError().message });
+    const url = new URL(req.url);
+    const query = (opts.query ?? z.object({})).safeParse(Object.fromEntries(url.searchParams));
+    if (!query.success) return json(400, { error: "The query is not valid.", fieldErrors: z.flattenError(query.error as z.ZodError).fieldErrors });
+    let bodyValue: unknown = undefined;
+    if (opts.body) {
+      try {
+        bodyValue = await req.json();
+      } catch {
+        return json(400, { error: "The body must be JSON." });
+      }
+      const parsed = opts.body.safeParse(bodyValue);
+      if (!parsed.success) return json(400, { error: "The body is not valid.", fieldErrors: z.flattenError(parsed.error).fieldErrors });
+      bodyValue = parsed.data;
+    }
+    try {
+      const out = await handler({ req, user, query: query.data as z.output<Q>, body: bodyValue as z.output<B>, params: (await ctx.params) ?? {} });
+      return out instanceof Response ? out : json(200, out);
+    } catch (e) {
+      const f = failure(e);
+      return json(f.status ?? 500, { error: f.message, fieldErrors: f.fieldErrors });
+    }
+  };
+  return Object.assign(route, { permission });
+}
+
+/** The client's address as the nearest proxy saw it: the last x-forwarded-for entry. */
+export async function clientAddress(): Promise<string> {
+  const h = await headers();
+  const forwarded = h.get("x-forwarded-for");
+  const last = forwarded?.split(",").map((s) => s.trim()).filter(Boolean).pop();
+  return last || h.get("x-real-ip") || "unknown";
+}
+
+/** The address links in e-mails point at: APP_URL, or the host this request came to. */
+export async function appBaseUrl(): Promise<string> {
+  if (process.env.APP_URL) return process.env.APP_URL.replace(/\/$/, "");
+  const h = await headers();
+  const host = h.get("x-forwarded-host") ?? h.get("host") ?? "localhost:3000";
+  const proto = h.get("x-forwarded-proto") ?? "http";
+  return `${proto}://${host}`;
+}
+
+/** Sets the session cookie after sign-in (actions only). */
+export async function setSessionCookie(cookie: Cookie) {
+  (await cookies()).set(cookie.name, cookie.value, cookie.attributes);
+}

@@ -1,0 +1,157 @@
+import "server-only";
+import { desc, eq, sql, type SQL } from "drizzle-orm";
+import { z } from "zod";
+import type { DbOrTx } from "@/db";
+import { mailAttempts, outbox } from "@/db/schema";
+
+/** Tries per message before it is given up as failed. */
+export const DEFAULT_MAX_ATTEMPTS = 8;
+export const FIRST_RETRY_MS = 30_000;
+export const MAX_RETRY_MS = 60 * 60_000;
+
+/** The wait after the n-th failed try (n ≥ 1) before try n+1: 30 s · 2^(n−1), at most one hour. */
+export function retryDelayMs(failures: number): number {
+  if (!Number.isInteger(failures) || failures < 1) throw new RangeError(`failures must be a whole number ≥ 1, got ${failures}`);
+  return Math.min(FIRST_RETRY_MS * 2 ** (failures - 1), MAX_RETRY_MS);
+}
+
+/** When the next try is due: null for a message never tried (due at once). */
+export function nextAttemptAt(failures: number, lastFailedAt: Date | null): Date | null {
+  if (failures === 0 || !lastFailedAt) return null;
+  return new Date(lastFailedAt.getTime() + retryDelayMs(failures));
+}
+
+/**
+ * retryDelayMs as an SQL expression, generated from the function itself so the sender's query
+ * and the list agree by construction. Only numbers go into the raw text.
+ */
+export function retryDelaySql(failures: SQL): SQL {
+  const whens: string[] = [];
+  for (let n = 1; retryDelayMs(n) < MAX_RETRY_MS; n++) whens.push(`WHEN ${n} THEN ${retryDelayMs(n)}`);
+  return sql`(CASE ${failures} ${sql.raw(whens.join(" "))} ELSE ${sql.raw(String(MAX_RETRY_MS))} END)`;
+}
+
+/** Per message: how many tries, how many failed, when it was sent and when it last failed. */
+export function attemptStats(db: DbOrTx) {
+  return db
+    .select({
+      outboxId: mailAttempts.outboxId,
+      attempts: sql<number>`count(*)`.as("attempts"),
+      failures: sql<number>`sum(CASE WHEN ${mailAttempts.ok} THEN 0 ELSE 1 END)`.as("failures"),
+      sentAt: sql<number | null>`min(CASE WHEN ${mailAttempts.ok} THEN ${mailAttempts.at} END)`.as("sent_at"),
+      lastFailedAt: sql<number | null>`max(CASE WHEN ${mailAttempts.ok} THEN NULL ELSE ${mailAttempts.at} END)`.as("last_failed_at"),
+    })
+    .from(mailAttempts)
+    .groupBy(mailAttempts.outboxId)
+    .as("attempt_stats");
+}
+
+const oneLine = (what: string) =>
+  z
+    .string()
+    .trim()
+    .min(1, `${what} is empty`)
+    .refine((v) => !/[\r\n]/.test(v), `${what} must be one line`);
+
+const newMail = z.object({
+  to: oneLine("the recipient"),
+  subject: oneLine("the subject"),
+  text: z.string().min(1, "the text is empty"),
+  html: z.string().nullish(),
+  eventId: z.number().int().positive().nullish(),
+});
+
+export interface NewMail {
+  to: string;
+  subject: string;
+  text: string;
+  html?: string;
+  eventId?: number | null;
+}
+
+/**
+ * Queues one message and returns its outbox id. Call it with the transaction that records the
+ * event causing the mail, so a rolled-back change sends nothing; the sender delivers it later.
+ */
+export async function queueMail(tx: DbOrTx, msg: NewMail): Promise<number> {
+  const m = newMail.parse(msg);
+  const [row] = await tx
+    .insert(outbox)
+    .values({ to: m.to, subject: m.subject, text: m.text, html: m.html ?? null, eventId: m.eventId ?? null })
+    .returning({ id: outbox.id });
+  if (!row) throw new Error("mail was not queued");
+  return row.id;
+}
+
+export type OutboxStatus = "sent" | "pending" | "failed";
+
+export interface OutboxEntry {
+  id: number;
+  eventId: number | null;
+  to: string;
+  subject: string;
+  createdAt: Date;
+  status: OutboxStatus;
+  attempts: number;
+  /** The newest failure's message; kept after a later success, as the history of the message. */
+  lastError: string | null;
+  sentAt: Date | null;
+  /** For a pending message: when the sender will try it next (null: at its next run). */
+  nextAttemptAt: Date | null;
+}
+
+export function deriveStatus(sent: boolean, failures: number, maxAttempts: number): OutboxStatus {
+  if (sent) return "sent";
+  return failures >= maxAttempts ? "failed" : "pending";
+}
+
+const toDate = (ms: number | null | undefined) => (ms === null || ms === undefined ? null : new Date(Number(ms)));
+
+/**
+ * The newest messages with their derived delivery state, in one query. The bodies are left
+ * out on purpose: invite and reset mails carry sign-in links that a list must not show.
+ */
+export async function listOutbox(
+  db: DbOrTx,
+  opts: { limit?: number; maxAttempts?: number } = {},
+): Promise<OutboxEntry[]> {
+  const maxAttempts = opts.maxAttempts ?? DEFAULT_MAX_ATTEMPTS;
+  const stats = attemptStats(db);
+  const rows = await db
+    .select({
+      id: outbox.id,
+      eventId: outbox.eventId,
+      to: outbox.to,
+      subject: outbox.subject,
+      createdAt: outbox.createdAt,
+      attempts: stats.attempts,
+      failures: stats.failures,
+      sentAt: stats.sentAt,
+      lastFailedAt: stats.lastFailedAt,
+      lastError: sql<string | null>`(SELECT ${mailAttempts.detail} FROM ${mailAttempts}
+        WHERE ${mailAttempts.outboxId} = ${outbox.id} AND NOT ${mailAttempts.ok}
+        ORDER BY ${mailAttempts.id} DESC LIMIT 1)`,
+    })
+    .from(outbox)
+    .leftJoin(stats, eq(stats.outboxId, outbox.id))
+    .orderBy(desc(outbox.id))
+    .limit(opts.limit ?? 50);
+
+  return rows.map((r) => {
+    const failures = Number(r.failures ?? 0);
+    const sentAt = toDate(r.sentAt);
+    const status = deriveStatus(sentAt !== null, failures, maxAttempts);
+    return {
+      id: r.id,
+      eventId: r.eventId,
+      to: r.to,
+      subject: r.subject,
+      createdAt: r.createdAt,
+      status,
+      attempts: Number(r.attempts ?? 0),
+      lastError: r.lastError ?? null,
+      sentAt,
+      nextAttemptAt: status === "pending" ? nextAttemptAt(failures, toDate(r.lastFailedAt)) : null,
+    };
+  });
+}

@@ -1,0 +1,140 @@
+import "server-only";
+import { and, eq, isNull, or, sql } from "drizzle-orm";
+import { getDb, type Db } from "@/db";
+import { mailAttempts, outbox } from "@/db/schema";
+import { attemptStats, DEFAULT_MAX_ATTEMPTS, retryDelaySql } from "./outbox";
+import { createMailTransport, type MailTransport } from "./transport";
+
+export interface DeliverOptions {
+  /** The clock, for tests and for replaying a schedule; attempts are stamped with it. */
+  now?: Date;
+  maxAttempts?: number;
+  /** At most this many messages per run, oldest first. */
+  batch?: number;
+  /** Sender address; by default the transport's own (createMailTransport sets MAIL_FROM). */
+  from?: string;
+}
+
+const DETAIL_MAX = 500;
+
+// What the attempt row keeps of a failure: one line, bounded. nodemailer's messages carry the
+// server's reply and a code, never the credentials.
+function describeFailure(e: unknown): string {
+  const message = e instanceof Error ? e.message : String(e);
+  const code = (e as { code?: unknown } | null)?.code;
+  const text = typeof code === "string" && !message.includes(code) ? `${code}: ${message}` : message;
+  return text.replace(/\s+/g, " ").trim().slice(0, DETAIL_MAX) || "unknown error";
+}
+
+/**
+ * Sends every message that has no successful try, has tries left and whose backoff has passed.
+ * Each try appends one mail_attempts row. No transaction is held while talking to the server:
+ * the due list is read first, and each result is written after its send returns. Delivery is
+ * therefore at-least-once: if writing the ok row fails, the message is sent again later.
+ */
+export async function deliverDue(
+  db: Db,
+  transport: MailTransport,
+  opts: DeliverOptions = {},
+): Promise<{ sent: number; failed: number }> {
+  const maxAttempts = opts.maxAttempts ?? DEFAULT_MAX_ATTEMPTS;
+  const now = opts.now ?? new Date();
+  const stats = attemptStats(db);
+  const failures = sql`coalesce(${stats.failures}, 0)`;
+
+  const due = await db
+    .select({ id: outbox.id, to: outbox.to, subject: outbox.subject, text: outbox.text, html: outbox.html })
+    .from(outbox)
+    .leftJoin(stats, eq(stats.outboxId, outbox.id))
+    .where(
+      and(
+        isNull(stats.sentAt),
+        sql`${failures} < ${maxAttempts}`,
+        or(isNull(stats.lastFailedAt), sql`${stats.lastFailedAt} + ${retryDelaySql(failures)} <= ${now.getTime()}`),
+      ),
+    )
+    .orderBy(outbox.id)
+    .limit(opts.batch ?? 50);
+
+  let sent = 0;
+  let failed = 0;
+  for (const m of due) {
+    let ok: boolean;
+    let detail: string;
+    try {
+      const info = await transport.sendMail({
+        ...(opts.from ? { from: opts.from } : {}),
+        to: m.to,
+        subject: m.subject,
+        text: m.text,
+        ...(m.html ? { html: m.html } : {}),
+      });
+      ok = true;
+      detail = info.messageId || "accepted";
+    } catch (e) {
+      ok = false;
+      detail = describeFailure(e);
+    }
+    await db.insert(mailAttempts).values({ outboxId: m.id, at: opts.now ?? new Date(), ok, detail });
+    if (ok) sent++;
+    else failed++;
+  }
+  return { sent, failed };
+}
+
+type StopSender = () => Promise<void>;
+// Kept on globalThis so a second call (or a hot reload) in the same process starts no second timer.
+const globalForSender = globalThis as unknown as { twinleafMailSender?: { stop: StopSender } };
+
+const messageOf = (e: unknown) => (e instanceof Error ? e.message : String(e));
+
+/**
+ * Runs deliverDue every intervalMs against the app's database and the configured SMTP server.
+ * The next run is scheduled only when the previous one has finished, so runs never overlap.
+ * Errors are logged and the timer keeps going. Returns a function that stops it and waits for
+ * a run in progress. Throws at once if the mail settings are not valid.
+ */
+export function startMailSender(opts: { intervalMs?: number } = {}): StopSender {
+  const existing = globalForSender.twinleafMailSender;
+  if (existing) return existing.stop;
+
+  const intervalMs = opts.intervalMs ?? 5000;
+  const transport = createMailTransport();
+  let stopped = false;
+  let timer: NodeJS.Timeout | undefined;
+  let running: Promise<void> | undefined;
+
+  const run = async () => {
+    try {
+      const { failed } = await deliverDue(getDb(), transport);
+      if (failed > 0) console.error(`mail sender: ${failed} message(s) could not be sent; they will be tried again`);
+    } catch (e) {
+      // The message only: a logged error object could carry the transport's options.
+      console.error(`mail sender: run failed: ${messageOf(e)}`);
+    }
+  };
+
+  const schedule = (delay: number) => {
+    if (stopped) return;
+    timer = setTimeout(() => {
+      running = run().finally(() => {
+        running = undefined;
+        schedule(intervalMs);
+      });
+    }, delay);
+    // The sender alone should not keep a script's process alive.
+    timer.unref();
+  };
+
+  const stop: StopSender = async () => {
+    stopped = true;
+    if (timer) clearTimeout(timer);
+    if (globalForSender.twinleafMailSender?.stop === stop) delete globalForSender.twinleafMailSender;
+    await running;
+    transport.close();
+  };
+
+  globalForSender.twinleafMailSender = { stop };
+  schedule(0);
+  return stop;
+}
