@@ -16,3 +16,8 @@ export const ROLE_LABELS: Record<Role, string> = {
 export function isRole(value: string): value is Role {
   return (ROLES as readonly string[]).includes(value);
 }
+
+/** Roles in the order the workshop's work flows (the order of ROLES), whatever order they came in. */
+export function sortRoles(roles: Iterable<Role>): Role[] {
+  return [...new Set(roles)].sort((a, b) => ROLES.indexOf(a) - ROLES.indexOf(b));
+}

@@ -5,7 +5,7 @@ import { getDb, type Db } from "@/db";
 import { userRoles } from "@/db/schema";
 import { ABSOLUTE_EXPIRY_MS, getLucia } from "./lucia";
 import { permissionsOf, type Permission } from "./permissions";
-import { isRole, type Role } from "./roles";
+import { isRole, sortRoles, type Role } from "./roles";
 
 export interface AuthUser {
   id: string;
@@ -24,7 +24,7 @@ export interface SessionCheck {
 
 export async function rolesOf(db: Db, userId: string): Promise<Role[]> {
   const rows = await db.select({ role: userRoles.role }).from(userRoles).where(eq(userRoles.userId, userId));
-  return rows.map((r) => r.role).filter(isRole);
+  return sortRoles(rows.map((r) => r.role).filter(isRole));
 }
 
 /** Creates a session for a user who has just proved who they are. */

@@ -61,7 +61,7 @@ export async function signIn(db: Db, input: { email: string; password: string; a
   await db.transaction(async (tx) => {
     await tx.insert(signInAttempts).values({ email, address, ok, at: now });
     if (ok) {
-      await appendEvent(tx, { actorId: user!.id, station: "sign-in", type: "user.signed_in", subjectKind: "user", subjectId: user!.id });
+      await appendEvent(tx, { actorId: user!.id, station: "sign-in", type: "user.signed_in", subjectKind: "user", subjectId: user!.id, data: { email } });
     }
   });
   return ok ? { ok: true, userId: user!.id } : { ok: false, reason: "invalid", message: SIGN_IN_REFUSED };

@@ -2,11 +2,17 @@
  * Sign-in throttling. Failures are counted per account (the e-mail typed, known or not, so the
  * answer never tells whether an account exists) since its last success, and per client address.
  */
-export const THROTTLE = {
+export interface ThrottlePolicy {
+  windowMs: number;
+  maxFailuresPerAccount: number;
+  maxFailuresPerAddress: number;
+}
+
+export const THROTTLE: ThrottlePolicy = {
   windowMs: 15 * 60 * 1000,
   maxFailuresPerAccount: 5,
   maxFailuresPerAddress: 20,
-} as const;
+};
 
 export interface AttemptCounts {
   /** Times of failures for this e-mail since its last success, inside the window. */
@@ -16,7 +22,7 @@ export interface AttemptCounts {
 }
 
 /** Milliseconds until the next try is allowed, or 0 when a try is allowed now. */
-export function retryAfterMs(counts: AttemptCounts, now: Date, policy = THROTTLE): number {
+export function retryAfterMs(counts: AttemptCounts, now: Date, policy: ThrottlePolicy = THROTTLE): number {
   const wait = (failures: Date[], max: number): number => {
     if (failures.length < max) return 0;
     const sorted = failures.map((d) => d.getTime()).sort((a, b) => a - b);

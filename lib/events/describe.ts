@@ -17,3 +17,10 @@ const PHRASES: Record<string, string> = {
 export function describeEvent(type: string): string {
   return PHRASES[type] ?? type;
 }
+
+/** What an event is about, in words: a code, e-mail or name it carries, else the bare id. */
+export function subjectLabel(e: { subjectKind: string; subjectId: string; data: Record<string, unknown> }): string {
+  const d = e.data;
+  const label = [d.code, d.email, d.name].find((v): v is string => typeof v === "string" && v.length > 0);
+  return `${e.subjectKind} ${label ?? e.subjectId}`;
+}

@@ -5,7 +5,7 @@ import { authTokens, sessions, userRoles, users } from "@/db/schema";
 import { AppError, isConstraintError } from "@/lib/auth/errors";
 import { hashPassword } from "@/lib/auth/password";
 import type { Role } from "@/lib/auth/roles";
-import { isRole } from "@/lib/auth/roles";
+import { isRole, sortRoles } from "@/lib/auth/roles";
 import { normaliseEmail } from "@/lib/auth/throttle";
 import { hashToken, newId, newToken } from "@/lib/auth/tokens";
 import { appendEvent } from "@/lib/events/queries";
@@ -50,7 +50,7 @@ export async function listUsers(db: DbOrTx, onlyId?: string): Promise<UserSummar
     name: r.name,
     active: r.active,
     createdAt: r.createdAt,
-    roles: (r.roles ?? "").split(",").filter(isRole).sort(),
+    roles: sortRoles((r.roles ?? "").split(",").filter(isRole)),
     status: !r.active ? "deactivated" : r.hasPassword ? "active" : "invited",
   }));
 }
@@ -136,7 +136,7 @@ export async function setRoles(db: Db, input: { userId: string; roles: Role[]; a
       type: "user.roles_changed",
       subjectKind: "user",
       subjectId: user.id,
-      data: { from: before, to: after },
+      data: { email: user.email, from: before, to: after },
       reason: input.reason ?? null,
     });
   });
@@ -160,7 +160,7 @@ export async function deactivateUser(db: Db, input: { userId: string; actor: Act
       type: "user.deactivated",
       subjectKind: "user",
       subjectId: user.id,
-      data: { sessionsEnded: ended.length },
+      data: { email: user.email, sessionsEnded: ended.length },
       reason: input.reason ?? null,
     });
   });
@@ -171,7 +171,7 @@ export async function reactivateUser(db: Db, input: { userId: string; actor: Act
     const user = await requireUser(tx, input.userId);
     if (user.active) return;
     await tx.update(users).set({ active: true }).where(eq(users.id, user.id));
-    await appendEvent(tx, { actorId: input.actor.id, station: "admin", type: "user.reactivated", subjectKind: "user", subjectId: user.id });
+    await appendEvent(tx, { actorId: input.actor.id, station: "admin", type: "user.reactivated", subjectKind: "user", subjectId: user.id, data: { email: user.email } });
   });
 }
 
@@ -211,7 +211,7 @@ async function spendToken(db: Db, token: string, purpose: "invite" | "reset", pa
     await tx.update(users).set({ passwordHash }).where(eq(users.id, found.userId));
     // A new password ends every session that the old one opened.
     await tx.delete(sessions).where(eq(sessions.userId, found.userId));
-    await appendEvent(tx, { actorId: found.userId, station: "sign-in", type: eventType, subjectKind: "user", subjectId: found.userId });
+    await appendEvent(tx, { actorId: found.userId, station: "sign-in", type: eventType, subjectKind: "user", subjectId: found.userId, data: { email: found.email } });
     return { userId: found.userId };
   });
 }
@@ -234,7 +234,7 @@ export async function requestPasswordReset(db: Db, input: { email: string; baseU
   if (!user || !user.active || !user.passwordHash) return;
   await db.transaction(async (tx) => {
     const { token } = await issueToken(tx, user.id, "reset", RESET_TTL_MINUTES * 60_000);
-    const eventId = await appendEvent(tx, { actorId: null, station: "sign-in", type: "user.reset_requested", subjectKind: "user", subjectId: user.id });
+    const eventId = await appendEvent(tx, { actorId: null, station: "sign-in", type: "user.reset_requested", subjectKind: "user", subjectId: user.id, data: { email: user.email } });
     const mail = resetMail({ name: user.name, link: `${input.baseUrl}/reset/${token}`, expiresMinutes: RESET_TTL_MINUTES });
     await queueMail(tx, { to: user.email, ...mail, eventId });
   });

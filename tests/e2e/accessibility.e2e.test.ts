@@ -1,0 +1,37 @@
+import { AxeBuilder } from "@axe-core/playwright";
+import type { Browser, Page } from "playwright-core";
+import { afterAll, beforeAll, describe, expect, test } from "vitest";
+import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser";
+
+let browser: Browser;
+beforeAll(async () => {
+  browser = await launchBrowser();
+});
+afterAll(async () => {
+  await browser?.close();
+});
+
+// WCAG 2.1 A and AA rules, as axe-core tags them.
+async function violations(page: Page) {
+  const result = await new AxeBuilder({ page }).withTags(["wcag2a", "wcag2aa", "wcag21a", "wcag21aa"]).analyze();
+  return result.violations.map((v) => `${v.id}: ${v.help} (${v.nodes.map((n) => n.target.join(" ")).join(", ")})`);
+}
+
+describe("accessibility (axe-core)", () => {
+  test("the sign-in page has no WCAG A/AA violations, also when showing errors", async () => {
+    const page = await newPage(browser);
+    await page.goto(url("/sign-in"));
+    expect(await violations(page)).toEqual([]);
+    await page.getByRole("button", { name: "Sign in" }).click();
+    await page.getByText("Enter your password.").waitFor();
+    expect(await violations(page)).toEqual([]);
+    await page.context().close();
+  });
+
+  test.each(["admin", "veneer"])("the home page of the %s user has no WCAG A/AA violations", async (role) => {
+    const page = await newPage(browser);
+    await signIn(page, demoEmail(role));
+    expect(await violations(page)).toEqual([]);
+    await page.context().close();
+  });
+});

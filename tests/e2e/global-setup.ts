@@ -1,0 +1,88 @@
+import { spawn, spawnSync, type ChildProcess } from "node:child_process";
+import { mkdtempSync } from "node:fs";
+import { createServer } from "node:net";
+import { tmpdir } from "node:os";
+import { join, resolve } from "node:path";
+import type { TestProject } from "vitest/node";
+import { openDb } from "@/db";
+import { migrateDatabase } from "@/db/migrate";
+import { seedDemo } from "@/db/seed/seed";
+import { startFakeSmtp } from "@/lib/mail/fake-smtp";
+
+declare module "vitest" {
+  export interface ProvidedContext {
+    baseUrl: string;
+    mailboxDir: string;
+    databaseUrl: string;
+  }
+}
+
+function freePort(): Promise<number> {
+  return new Promise((res, rej) => {
+    const srv = createServer();
+    srv.once("error", rej);
+    srv.listen(0, "127.0.0.1", () => {
+      const { port } = srv.address() as { port: number };
+      srv.close(() => res(port));
+    });
+  });
+}
+
+async function waitForServer(url: string, server: ChildProcess, timeoutMs = 60_000) {
+  const until = Date.now() + timeoutMs;
+  while (Date.now() < until) {
+    if (server.exitCode !== null) throw new Error(`the app exited with ${server.exitCode} before it answered`);
+    try {
+      const res = await fetch(url, { redirect: "manual" });
+      if (res.status < 500) return;
+    } catch {
+      // not listening yet
+    }
+    await new Promise((r) => setTimeout(r, 250));
+  }
+  throw new Error(`the app did not answer at ${url} within ${timeoutMs} ms`);
+}
+
+export default async function setup(project: TestProject) {
+  const dir = mkdtempSync(join(tmpdir(), "twinleaf-e2e-"));
+  const databaseUrl = `file:${join(dir, "e2e.db")}`;
+  const mailboxDir = join(dir, "mailbox");
+
+  await migrateDatabase(databaseUrl);
+  const { client, db } = openDb(databaseUrl);
+  await seedDemo(db);
+  client.close();
+
+  const next = resolve("node_modules/.bin/next");
+  if (process.env.E2E_SKIP_BUILD !== "1") {
+    const build = spawnSync(next, ["build"], { stdio: ["ignore", "ignore", "inherit"], env: { ...process.env, NODE_ENV: "production" } });
+    if (build.status !== 0) throw new Error(`next build failed with status ${build.status}`);
+  }
+
+  const smtp = await startFakeSmtp({ port: 0, dir: mailboxDir });
+  const port = await freePort();
+  const baseUrl = `http://127.0.0.1:${port}`;
+  const server = spawn(next, ["start", "-p", String(port), "-H", "127.0.0.1"], {
+    stdio: ["ignore", "ignore", "inherit"],
+    env: {
+      ...process.env,
+      NODE_ENV: "production",
+      DATABASE_URL: databaseUrl,
+      SMTP_HOST: "127.0.0.1",
+      SMTP_PORT: String(smtp.port),
+      MAILBOX_DIR: mailboxDir,
+      APP_URL: baseUrl,
+      MAIL_SEND_INTERVAL_MS: "300",
+    },
+  });
+  await waitForServer(`${baseUrl}/sign-in`, server);
+
+  project.provide("baseUrl", baseUrl);
+  project.provide("mailboxDir", mailboxDir);
+  project.provide("databaseUrl", databaseUrl);
+
+  return async () => {
+    server.kill("SIGTERM");
+    await smtp.close();
+  };
+}

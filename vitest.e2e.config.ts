@@ -1,0 +1,20 @@
+import { fileURLToPath } from "node:url";
+import { defineConfig } from "vitest/config";
+
+// End-to-end: one production build served on a free port, driven by Debian's Chromium.
+export default defineConfig({
+  resolve: {
+    alias: {
+      "@/": fileURLToPath(new URL(".", import.meta.url)),
+      "server-only": fileURLToPath(new URL("./tests/stubs/server-only.ts", import.meta.url)),
+    },
+  },
+  test: {
+    name: "e2e",
+    include: ["tests/e2e/**/*.e2e.test.ts"],
+    globalSetup: ["tests/e2e/global-setup.ts"],
+    fileParallelism: false,
+    testTimeout: 60_000,
+    hookTimeout: 240_000,
+  },
+});
