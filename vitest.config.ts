@@ -10,6 +10,9 @@ const alias = {
 export default defineConfig({
   resolve: { alias },
   test: {
+    // The JSON report is what .ci/run counts for its closing line.
+    reporters: ["default", "json"],
+    outputFile: { json: ".tmp/test-results/unit-integration.json" },
     projects: [
       { resolve: { alias }, test: { name: "unit", include: ["tests/unit/**/*.test.ts"], environment: "node" } },
       {

@@ -11,6 +11,8 @@ export default defineConfig({
   },
   test: {
     name: "e2e",
+    reporters: ["default", "json"],
+    outputFile: { json: ".tmp/test-results/e2e.json" },
     include: ["tests/e2e/**/*.e2e.test.ts"],
     globalSetup: ["tests/e2e/global-setup.ts"],
     fileParallelism: false,

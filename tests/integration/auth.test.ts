@@ -1,6 +1,6 @@
 import { mkdtempSync } from "node:fs";
 import { join } from "node:path";
-import { and, eq, sql } from "drizzle-orm";
+import { and, eq, sql, type SQL } from "drizzle-orm";
 import type { SQLiteTable } from "drizzle-orm/sqlite-core";
 import { beforeAll, describe, expect, onTestFinished, test } from "vitest";
 import { getDb } from "@/db";
@@ -60,7 +60,7 @@ async function makeUser(name: string, opts: { roles?: Role[]; password?: string 
   return { id, email, name };
 }
 
-async function count(table: SQLiteTable, where?: ReturnType<typeof eq>) {
+async function count(table: SQLiteTable, where?: SQL) {
   const [row] = await db().select({ n: sql<number>`count(*)` }).from(table).where(where);
   return Number(row?.n ?? -1);
 }
@@ -432,12 +432,16 @@ describe("the last active administrator", () => {
   test("an invited admin who has not yet chosen a password does not count", async () => {
     // Such an admin cannot sign in (the admin list shows them as "invited"), and their link
     // expires after 72 hours: letting the only signed-in admin step down could leave nobody able to administer.
-    await inviteUser(db(), { email: "pending.admin@workshop.twinleaf.test", name: "Pending Admin", roles: ["admin"], actor: admin, baseUrl: BASE_URL });
+    const { userId: pending } = await inviteUser(db(), {
+      email: "pending.admin@workshop.twinleaf.test", name: "Pending Admin", roles: ["admin"], actor: admin, baseUrl: BASE_URL,
+    });
     const outcome = await setRoles(db(), { userId: admin.id, roles: ["quality"], actor: qualityDemo }).then(
       () => "allowed",
       (e: unknown) => (e instanceof AppError ? e.status : String(e)),
     );
-    if (outcome === "allowed") await setRoles(db(), { userId: admin.id, roles: ["admin"], actor: qualityDemo }); // restore for later tests
+    // Put things back either way, so the next test starts with the demo admin as the only one.
+    if (outcome === "allowed") await setRoles(db(), { userId: admin.id, roles: ["admin"], actor: qualityDemo });
+    await deactivateUser(db(), { userId: pending, actor: admin });
     expect(outcome).toBe(409);
   });
 

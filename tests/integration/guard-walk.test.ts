@@ -1,0 +1,284 @@
+/**
+ * Walks every server action and route handler under app/ against every role. Everything is
+ * derived from the files and the permission map, so an action or route added later is walked
+ * without touching this test; only the public actions are named, on purpose, below.
+ */
+import { readdirSync, readFileSync } from "node:fs";
+import { join, relative, sep } from "node:path";
+import { fileURLToPath } from "node:url";
+import { sql } from "drizzle-orm";
+import { beforeAll, describe, expect, test, vi } from "vitest";
+import { getDb } from "@/db";
+import { seedDemo } from "@/db/seed/seed";
+import { PERMISSIONS, ROLE_PERMISSIONS, type Permission } from "@/lib/auth/permissions";
+import { ROLES, type Role } from "@/lib/auth/roles";
+import { startSession } from "@/lib/auth/sessions";
+import type { FormState } from "@/lib/forms";
+
+// What the mocked request carries: the session of the user under test, and the cookies set.
+const request = vi.hoisted(() => {
+  class RedirectSignal extends Error {
+    constructor(public readonly to: string) {
+      super(`redirect to ${to}`);
+    }
+  }
+  class ForbiddenSignal extends Error {
+    constructor() {
+      super("forbidden");
+    }
+  }
+  return { sessionId: null as string | null, cookieSets: [] as { name: string; value: string }[], RedirectSignal, ForbiddenSignal };
+});
+
+vi.mock("next/headers", async () => {
+  const { SESSION_COOKIE } = await import("@/lib/auth/lucia-cookie");
+  return {
+    cookies: async () => ({
+      get: (name: string) => (name === SESSION_COOKIE && request.sessionId ? { name, value: request.sessionId } : undefined),
+      set: (nameOrCookie: string | { name: string; value: string }, value?: string) => {
+        const c = typeof nameOrCookie === "string" ? { name: nameOrCookie, value: value ?? "" } : nameOrCookie;
+        request.cookieSets.push({ name: c.name, value: c.value });
+      },
+    }),
+    headers: async () => new Headers({ host: "localhost:3000" }),
+  };
+});
+vi.mock("next/cache", () => ({ revalidatePath: () => {}, revalidateTag: () => {} }));
+vi.mock("next/navigation", () => ({
+  redirect: (to: string) => {
+    throw new request.RedirectSignal(to);
+  },
+  forbidden: () => {
+    throw new request.ForbiddenSignal();
+  },
+  notFound: () => {
+    throw new Error("notFound() called");
+  },
+}));
+
+/** The actions that need no session, as "file#export". Anything else without a permission fails. */
+const PUBLIC = new Set([
+  "app/(auth)/sign-in/actions.ts#signInAction",
+  "app/(auth)/reset/actions.ts#requestResetAction",
+  "app/(auth)/reset/actions.ts#resetPasswordAction",
+  "app/(auth)/invite/[token]/actions.ts#acceptInviteAction",
+  "app/(workshop)/sign-out.ts#signOutAction",
+]);
+
+const HTTP_METHODS = new Set(["GET", "HEAD", "POST", "PUT", "PATCH", "DELETE", "OPTIONS"]);
+
+// ---- discovery -------------------------------------------------------------------------------
+
+const ROOT = fileURLToPath(new URL("../../", import.meta.url));
+const APP = join(ROOT, "app");
+const toPosix = (p: string) => p.split(sep).join("/");
+
+const sourceFiles = (readdirSync(APP, { recursive: true }) as string[])
+  .map((f) => toPosix(relative(ROOT, join(APP, f))))
+  .filter((f) => /\.(ts|tsx|js|jsx|mjs)$/.test(f))
+  .sort();
+
+const USE_SERVER = /^\s*["']use server["'];?\s*$/;
+const firstLine = (f: string) => readFileSync(join(ROOT, f), "utf8").split(/\r?\n/, 1)[0] ?? "";
+const actionFiles = sourceFiles.filter((f) => USE_SERVER.test(firstLine(f)));
+const routeFiles = sourceFiles.filter((f) => /(^|\/)route\.(ts|js)$/.test(f));
+
+/** The URL path of a route file, with a probe value for each dynamic segment. */
+function routeTarget(file: string) {
+  const segments = file.replace(/^app\//, "").split("/").slice(0, -1);
+  const params: Record<string, string | string[]> = {};
+  const path = segments
+    .filter((s) => !/^\(.*\)$/.test(s) && !s.startsWith("@")) // route groups and slots are not in the URL
+    .map((s) => {
+      const m = /^\[{1,2}(\.\.\.)?([^\]]+)\]{1,2}$/.exec(s);
+      if (!m) return s;
+      params[m[2]!] = m[1] ? ["walk-probe"] : "walk-probe";
+      return "walk-probe";
+    });
+  return { url: `http://localhost:3000/${path.join("/")}`, params };
+}
+
+type Guarded = ((...args: never[]) => Promise<unknown>) & { permission?: Permission | null };
+
+interface Entry {
+  id: string;
+  kind: "action" | "route";
+  fn: Guarded;
+  exported: unknown;
+  method?: string;
+  url?: string;
+  params?: Record<string, string | string[]>;
+}
+
+const entries: Entry[] = [];
+/** Exports that can be neither walked nor called: a non-function from a "use server" file, an unknown route export. */
+const strayExports: string[] = [];
+
+for (const file of actionFiles) {
+  const mod = (await import(/* @vite-ignore */ join(ROOT, file))) as Record<string, unknown>;
+  for (const [name, value] of Object.entries(mod)) {
+    if (typeof value !== "function") strayExports.push(`${file}#${name}`);
+    else entries.push({ id: `${file}#${name}`, kind: "action", fn: value as Guarded, exported: value });
+  }
+}
+for (const file of routeFiles) {
+  const mod = (await import(/* @vite-ignore */ join(ROOT, file))) as Record<string, unknown>;
+  for (const [name, value] of Object.entries(mod)) {
+    if (typeof value !== "function") continue; // route segment config such as `dynamic`
+    if (!HTTP_METHODS.has(name)) {
+      strayExports.push(`${file}#${name}`);
+      continue;
+    }
+    entries.push({ id: `${file}#${name}`, kind: "route", fn: value as Guarded, exported: value, method: name, ...routeTarget(file) });
+  }
+}
+
+const permissionOf = (e: Entry) => e.fn.permission;
+const guarded = entries.filter((e) => typeof permissionOf(e) === "string");
+const holds = (role: Role, p: Permission | null | undefined) => p === null || (p !== undefined && ROLE_PERMISSIONS[role].includes(p));
+
+// ---- calling ---------------------------------------------------------------------------------
+
+interface Outcome {
+  status: number;
+  /** The form state or the JSON body, for messages. */
+  body: unknown;
+  redirectedTo?: string;
+}
+
+async function call(e: Entry): Promise<Outcome> {
+  if (e.kind === "action") {
+    try {
+      const state = (await (e.fn as unknown as (prev: FormState | undefined, fd: FormData) => Promise<FormState>)(undefined, new FormData()));
+      return { status: state.status ?? (state.ok ? 200 : 0), body: state };
+    } catch (err) {
+      // redirect() after a successful body: the guard was passed.
+      if (err instanceof request.RedirectSignal) return { status: 303, body: null, redirectedTo: err.to };
+      throw err;
+    }
+  }
+  const res = await (e.fn as unknown as (req: Request, ctx: { params: Promise<Record<string, string | string[]>> }) => Promise<Response>)(
+    new Request(e.url!, { method: e.method }),
+    { params: Promise.resolve(e.params ?? {}) },
+  );
+  const text = await res.text();
+  let body: unknown = text;
+  try {
+    body = JSON.parse(text);
+  } catch {
+    // not JSON: kept as text for the message
+  }
+  return { status: res.status, body };
+}
+
+/** Every row of every table: a refused call must leave the database exactly as it was. */
+async function snapshot(): Promise<Record<string, unknown[]>> {
+  const db = getDb();
+  const tables = await db.all<{ name: string }>(
+    sql`SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' AND name NOT LIKE '__drizzle%' ORDER BY name`,
+  );
+  const out: Record<string, unknown[]> = {};
+  for (const { name } of tables) out[name] = await db.all(sql`SELECT * FROM ${sql.identifier(name)} ORDER BY rowid`);
+  return out;
+}
+
+// ---- the walk --------------------------------------------------------------------------------
+
+const userIdByRole = new Map<Role, string>();
+
+beforeAll(async () => {
+  const { users: demo } = await seedDemo(getDb());
+  const rows = await getDb().all<{ id: string; email: string }>(sql`SELECT id, email FROM users`);
+  for (const role of ROLES) {
+    // seedDemo makes one demo user per role holding exactly that role.
+    const email = `${role}@demo.twinleaf.test`;
+    expect(demo.find((u) => u.email === email)?.roles).toEqual([role]);
+    const id = rows.find((r) => r.email === email)?.id;
+    if (!id) throw new Error(`no demo user for ${role}`);
+    userIdByRole.set(role, id);
+  }
+});
+
+/** Signs the role's demo user in with a session of its own (sign-out ends the one it is given). */
+async function signInAs(role: Role | null) {
+  request.cookieSets = [];
+  request.sessionId = role ? (await startSession(userIdByRole.get(role)!, getDb())).session.id : null;
+}
+
+describe("discovery", () => {
+  test("finds the server actions and route handlers, and every public allow-list entry", () => {
+    expect(entries.filter((e) => e.kind === "action").length).toBeGreaterThan(0);
+    expect(entries.filter((e) => e.kind === "route").length).toBeGreaterThan(0);
+    // A stale entry would hide nothing today, but would let a renamed action slip through later.
+    const ids = new Set(entries.map((e) => e.id));
+    for (const id of PUBLIC) expect(ids, id).toContain(id);
+  });
+
+  test("every export of a \"use server\" file is an action, and a route file exports only HTTP methods", () => {
+    expect(strayExports).toEqual([]);
+  });
+
+  test("no \"use server\" directive hides inside another file, where the walk would not see it", () => {
+    const inline = sourceFiles.filter((f) => {
+      const lines = readFileSync(join(ROOT, f), "utf8").split(/\r?\n/);
+      return lines.slice(1).some((l) => USE_SERVER.test(l));
+    });
+    expect(inline).toEqual([]);
+  });
+});
+
+describe.each(entries.map((e) => [e.id, e] as const))("%s", (_id, entry) => {
+  test("names its permission: one from the map, or null and allow-listed as public", () => {
+    expect(Object.hasOwn(entry.fn, "permission"), "made with guardedAction, publicAction or guardedRoute").toBe(true);
+    const p = permissionOf(entry);
+    if (p === null) {
+      expect(PUBLIC, "a public action must be on the allow-list").toContain(entry.id);
+    } else {
+      expect(PERMISSIONS).toContain(p);
+      expect(PUBLIC.has(entry.id), "an allow-listed action must be public").toBe(false);
+    }
+  });
+
+  test.each([...ROLES])("as %s", async (role) => {
+    const permission = permissionOf(entry);
+    await signInAs(role);
+    if (holds(role, permission)) {
+      const out = await call(entry);
+      // Past the guard: an empty form may well be answered 400, but never 401 or 403.
+      expect([401, 403], JSON.stringify(out.body)).not.toContain(out.status);
+      return;
+    }
+    const before = await snapshot();
+    const out = await call(entry);
+    expect(out.status, JSON.stringify(out.body)).toBe(403);
+    if (entry.kind === "action") expect(out.body).toMatchObject({ ok: false, status: 403 });
+    else expect(out.body).toMatchObject({ error: expect.any(String) });
+    expect(await snapshot()).toEqual(before);
+  });
+});
+
+describe("without a session", () => {
+  test.each(guarded.map((e) => [e.id, e] as const))("%s answers 401 and changes nothing", async (_id, entry) => {
+    await signInAs(null);
+    const before = await snapshot();
+    const out = await call(entry);
+    expect(out.status, JSON.stringify(out.body)).toBe(401);
+    expect(await snapshot()).toEqual(before);
+  });
+
+  test.each(guarded.map((e) => [e.id, e] as const))("%s answers 401 to an unknown session id and clears the cookie", async (_id, entry) => {
+    await signInAs(null);
+    request.sessionId = "walk-no-such-session";
+    const before = await snapshot();
+    const out = await call(entry);
+    expect(out.status, JSON.stringify(out.body)).toBe(401);
+    expect(request.cookieSets).toContainEqual({ name: "twinleaf_session", value: "" });
+    expect(await snapshot()).toEqual(before);
+  });
+
+  test.each(entries.filter((e) => permissionOf(e) === null).map((e) => [e.id, e] as const))("public %s is reachable signed out", async (_id, entry) => {
+    await signInAs(null);
+    const out = await call(entry);
+    expect([401, 403], JSON.stringify(out.body)).not.toContain(out.status);
+  });
+});
