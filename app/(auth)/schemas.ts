@@ -20,7 +20,13 @@ export const newPasswordSchema = z
   })
   .refine((v) => v.password === v.confirm, { path: ["confirm"], message: "The two passwords differ." });
 
-/** Only a path inside Twinleaf may follow sign-in. */
+/**
+ * Only a path inside Twinleaf may follow sign-in. Browsers drop tabs and newlines and read "\\" as
+ * "/" when parsing a URL, so a path holding any of them is refused outright.
+ */
 export function safeNext(next: string | undefined): string {
-  return next && next.startsWith("/") && !next.startsWith("//") && !next.startsWith("/\\") ? next : "/";
+  if (!next || !next.startsWith("/") || /[\u0000-\u001f\u007f\\]/.test(next)) return "/";
+  const base = "http://twinleaf.invalid";
+  const parsed = new URL(next, base);
+  return parsed.origin === base && !next.startsWith("//") ? `${parsed.pathname}${parsed.search}${parsed.hash}` : "/";
 }

@@ -5,6 +5,7 @@ import type { ModelSummary } from "@/lib/workshop/queries";
 
 const PART_LABEL: Record<string, string> = { tweeter: "tweeter", midrange: "midrange", bass: "bass" };
 
+/** Models, with the columns a station needs: veneer (leaf needs), tolerances (matching), or all. */
 export function ModelTable({ models, show = "all" }: { models: ModelSummary[]; show?: "all" | "veneer" | "tolerances" }) {
   const base = [
     { key: "code", label: "Code" },
@@ -15,12 +16,12 @@ export function ModelTable({ models, show = "all" }: { models: ModelSummary[]; s
     { key: "leafSize", label: "Smallest leaf (mm)", sortable: false },
   ];
   const tolerances = [
-    { key: "limits", label: "Drive-unit limit (dB)", sortable: false },
-    { key: "pairLimit", label: "Pair limit (dB)", numeric: true },
-    { key: "range", label: "Over (Hz)", sortable: false },
+    { key: "limits", label: "Drive-unit limit", sortable: false },
+    { key: "pairLimit", label: "Finished pair limit", numeric: true },
   ];
-  const all = [{ key: "positions", label: "Drive units", sortable: false }, ...veneer, ...tolerances, { key: "gtin", label: "Pair GTIN" }];
-  const columns = [...base, ...(show === "veneer" ? veneer : show === "tolerances" ? tolerances : all)];
+  const units = { key: "positions", label: "Drive units", sortable: false };
+  const gtin = { key: "gtin", label: "Pair GTIN" };
+  const columns = [...base, ...(show === "veneer" ? veneer : show === "tolerances" ? [units, ...tolerances] : [units, ...veneer, ...tolerances, gtin])];
   return (
     <DataTable
       caption="Models"
@@ -32,13 +33,38 @@ export function ModelTable({ models, show = "all" }: { models: ModelSummary[]; s
         cells: {
           code: { value: m.code, display: <span className="serial font-bold">{m.code}</span> },
           name: { value: m.name, display: <>{m.name}{m.active ? null : <Badge className="ml-2">retired</Badge>}</> },
-          positions: { value: null, display: m.positions.map((p) => `${p.position}: ${p.count > 1 ? `${p.count} × ` : ""}${PART_LABEL[p.partType] ?? p.partType}`).join(", ") },
+          positions: {
+            value: null,
+            display: (
+              <span className="whitespace-nowrap" title={m.positions.map((p) => `${p.position}: ${p.count} × ${PART_LABEL[p.partType] ?? p.partType}`).join(", ")}>
+                {m.positions.map((p) => p.position).join(" · ")}
+              </span>
+            ),
+          },
           leaves: { value: m.leavesPerFace },
-          leafSize: { value: null, display: `${m.minLeafLengthMm} × ${m.minLeafWidthMm}` },
-          limits: { value: null, display: m.tolerances.map((t) => `${t.partType} ±${t.mismatchLimitDb}`).join(", ") },
-          pairLimit: { value: m.pairResponseLimitDb, display: `±${m.pairResponseLimitDb}` },
-          range: { value: null, display: `${m.responseMinHz}–${m.responseMaxHz}` },
-          gtin: { value: m.pairGtin, display: <span className="serial">{m.pairGtin}</span> },
+          leafSize: { value: null, display: <span className="whitespace-nowrap">{m.minLeafLengthMm} × {m.minLeafWidthMm}</span> },
+          limits: {
+            value: null,
+            display: (
+              <ul className="text-sm">
+                {m.tolerances.map((t) => (
+                  <li key={t.partType} className="whitespace-nowrap">
+                    {PART_LABEL[t.partType] ?? t.partType} ±{t.mismatchLimitDb} dB
+                  </li>
+                ))}
+              </ul>
+            ),
+          },
+          pairLimit: {
+            value: m.pairResponseLimitDb,
+            display: (
+              <span className="text-sm">
+                <span className="whitespace-nowrap">±{m.pairResponseLimitDb} dB</span>{" "}
+                <span className="whitespace-nowrap text-ink-soft">{m.responseMinHz}–{m.responseMaxHz} Hz</span>
+              </span>
+            ),
+          },
+          gtin: { value: m.pairGtin, display: <span className="serial text-sm">{m.pairGtin}</span> },
         },
       }))}
     />

@@ -1,5 +1,5 @@
 import "server-only";
-import { and, asc, eq, gt, isNull, sql } from "drizzle-orm";
+import { and, asc, eq, gt, isNotNull, isNull, sql } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db";
 import { authTokens, sessions, userRoles, users } from "@/db/schema";
 import { AppError, isConstraintError } from "@/lib/auth/errors";
@@ -64,7 +64,8 @@ async function countActiveAdmins(db: DbOrTx, exceptUserId?: string): Promise<num
     .select({ n: sql<number>`count(*)` })
     .from(users)
     .innerJoin(userRoles, and(eq(userRoles.userId, users.id), eq(userRoles.role, "admin")))
-    .where(exceptUserId ? and(eq(users.active, true), sql`${users.id} <> ${exceptUserId}`) : eq(users.active, true));
+    // An invited admin who has not yet chosen a password cannot administer, so does not count.
+    .where(and(eq(users.active, true), isNotNull(users.passwordHash), exceptUserId ? sql`${users.id} <> ${exceptUserId}` : undefined));
   return Number(row?.n ?? 0);
 }
 

@@ -239,7 +239,8 @@ describe.each(entries.map((e) => [e.id, e] as const))("%s", (_id, entry) => {
     }
   });
 
-  test.each([...ROLES])("as %s", async (role) => {
+  const cases = ROLES.map((role) => [role, holds(role, permissionOf(entry)) ? "passes the guard" : "refused with 403, nothing written"] as const);
+  test.each(cases)("as %s: %s", async (role) => {
     const permission = permissionOf(entry);
     await signInAs(role);
     if (holds(role, permission)) {
