@@ -7,11 +7,10 @@ import { getDb } from "@/db";
 import { AREAS } from "@/lib/areas";
 import { requirePage } from "@/lib/auth/guard";
 import { recentEvents } from "@/lib/events/queries";
+import { formatDay } from "@/lib/format";
 import { listUsers } from "@/lib/users/queries";
 
 export const metadata: Metadata = { title: "Today" };
-
-const today = new Intl.DateTimeFormat("en-GB", { weekday: "long", day: "numeric", month: "long", year: "numeric", timeZone: process.env.TZ || "UTC" });
 
 /** What waits for me today: my areas, and what was last recorded at their stations. */
 export default async function TodayPage() {
@@ -25,7 +24,7 @@ export default async function TodayPage() {
 
   return (
     <div className="flex flex-col gap-6" data-testid="today">
-      <PageHeader title={`Hello, ${user.name.split(" ")[0]}`} lead={today.format(new Date())} />
+      <PageHeader title={`Hello, ${user.name.split(" ")[0]}`} lead={formatDay(new Date())} />
       {mine.length === 0 ? (
         <Panel>
           <p>Your account has no roles yet, so there is no station work for you. You can still read the register. An administrator can give you roles.</p>

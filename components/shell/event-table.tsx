@@ -1,8 +1,8 @@
 import { DataTable } from "@/components/ui/data-table";
 import { describeEvent, subjectLabel } from "@/lib/events/describe";
 import type { EventRow } from "@/lib/events/queries";
+import { formatWhen } from "@/lib/format";
 
-const when = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", hour: "2-digit", minute: "2-digit", timeZone: process.env.TZ || "UTC" });
 
 /** The event log as a sortable table: when, who, where, what and why. */
 export function EventTable({ events, caption, empty = "No events recorded here yet." }: { events: EventRow[]; caption: string; empty?: string }) {
@@ -23,7 +23,7 @@ export function EventTable({ events, caption, empty = "No events recorded here y
       rows={events.map((e) => ({
         id: String(e.id),
         cells: {
-          at: { value: e.at.getTime(), display: <time className="whitespace-nowrap" dateTime={e.at.toISOString()}>{when.format(e.at)}</time> },
+          at: { value: e.at.getTime(), display: <time className="whitespace-nowrap" dateTime={e.at.toISOString()}>{formatWhen(e.at)}</time> },
           who: { value: e.actorName ?? "Twinleaf" },
           station: { value: e.station },
           what: { value: describeEvent(e.type), display: <span title={e.type}>{describeEvent(e.type)}{e.correctsId ? ` (corrects #${e.correctsId})` : ""}</span> },

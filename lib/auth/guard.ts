@@ -11,7 +11,7 @@ import { echoValues, formDataToObject, type FormState } from "@/lib/forms";
 import { AppError, forbiddenError, unauthenticated } from "./errors";
 import { SESSION_COOKIE } from "./lucia";
 import type { Permission } from "./permissions";
-import { checkSession, type AuthUser } from "./sessions";
+import { checkSession, startSession, type AuthUser } from "./sessions";
 
 /** The signed-in user of this request (read once per request), or null. */
 export const currentUser = cache(async (): Promise<AuthUser | null> => {
@@ -163,7 +163,13 @@ export async function appBaseUrl(): Promise<string> {
   return `${proto}://${host}`;
 }
 
-/** Sets the session cookie after sign-in (actions only). */
+/** Sets or clears the session cookie (actions and route handlers only). */
 export async function setSessionCookie(cookie: Cookie) {
   (await cookies()).set(cookie.name, cookie.value, cookie.attributes);
+}
+
+/** Opens a session for a user who has just proved who they are, and sets its cookie. */
+export async function signInAs(userId: string) {
+  const { cookie } = await startSession(userId);
+  await setSessionCookie(cookie);
 }

@@ -1,7 +1,6 @@
 "use server";
 import { getDb } from "@/db";
-import { appBaseUrl, publicAction, setSessionCookie } from "@/lib/auth/guard";
-import { startSession } from "@/lib/auth/sessions";
+import { appBaseUrl, publicAction, signInAs } from "@/lib/auth/guard";
 import { requestPasswordReset, resetPassword } from "@/lib/users/queries";
 import { newPasswordSchema, resetRequestSchema } from "../schemas";
 
@@ -14,7 +13,6 @@ export const requestResetAction = publicAction(resetRequestSchema, async (input)
 export const resetPasswordAction = publicAction(newPasswordSchema, async (input) => {
   const db = getDb();
   const { userId } = await resetPassword(db, { token: input.token, password: input.password });
-  const { cookie } = await startSession(userId, db);
-  await setSessionCookie(cookie);
+  await signInAs(userId);
   return { ok: true, redirectTo: "/" };
 });

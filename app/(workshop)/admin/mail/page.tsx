@@ -8,10 +8,10 @@ import { requirePage } from "@/lib/auth/guard";
 import { readMailConfig } from "@/lib/mail/config";
 import { readMailbox } from "@/lib/mail/mailbox";
 import { listOutbox } from "@/lib/mail/outbox";
+import { formatWhenExact } from "@/lib/format";
 
 export const metadata: Metadata = { title: "Mail" };
 
-const when = new Intl.DateTimeFormat("en-GB", { dateStyle: "medium", timeStyle: "medium", timeZone: process.env.TZ || "UTC" });
 const TONE = { sent: "leaf", pending: "caution", failed: "danger" } as const;
 
 export default async function MailPage() {
@@ -37,10 +37,10 @@ export default async function MailPage() {
           rows={outbox.map((m) => ({
             id: String(m.id),
             cells: {
-              queued: { value: m.createdAt.getTime(), display: when.format(m.createdAt) },
+              queued: { value: m.createdAt.getTime(), display: formatWhenExact(m.createdAt) },
               to: { value: m.to },
               subject: { value: m.subject },
-              status: { value: m.status, display: <Badge tone={TONE[m.status]}>{m.status === "pending" && m.nextAttemptAt ? `retry ${when.format(m.nextAttemptAt)}` : m.status}</Badge> },
+              status: { value: m.status, display: <Badge tone={TONE[m.status]}>{m.status === "pending" && m.nextAttemptAt ? `retry ${formatWhenExact(m.nextAttemptAt)}` : m.status}</Badge> },
               attempts: { value: m.attempts },
               note: { value: m.lastError ?? "" },
             },
@@ -64,7 +64,7 @@ export default async function MailPage() {
           rows={caught.map((m) => ({
             id: m.id,
             cells: {
-              received: { value: m.receivedAt.getTime(), display: when.format(m.receivedAt) },
+              received: { value: m.receivedAt.getTime(), display: formatWhenExact(m.receivedAt) },
               to: { value: m.to },
               subject: { value: m.subject, display: <Link className="font-bold text-leaf-dark underline underline-offset-4" href={`/admin/mail/${encodeURIComponent(m.id)}`}>{m.subject || "(no subject)"}</Link> },
             },

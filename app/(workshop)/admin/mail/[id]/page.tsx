@@ -1,7 +1,7 @@
 import type { Metadata } from "next";
-import Link from "next/link";
 import { notFound } from "next/navigation";
 import { Fragment } from "react";
+import { BackLink } from "@/components/ui/back-link";
 import { Panel, PageHeader } from "@/components/ui/panel";
 import { requirePage } from "@/lib/auth/guard";
 import { readMailConfig } from "@/lib/mail/config";
@@ -34,11 +34,7 @@ export default async function CaughtMessagePage({ params }: { params: Promise<{ 
   if (!message) notFound();
   return (
     <div className="flex flex-col gap-6">
-      <p>
-        <Link href="/admin/mail" className="font-bold text-leaf-dark underline underline-offset-4">
-          ← All mail
-        </Link>
-      </p>
+      <BackLink href="/admin/mail">All mail</BackLink>
       <PageHeader title={message.subject || "(no subject)"} lead={`From ${message.from} to ${message.to}`} />
       <Panel>
         <Linkified text={message.text} />

@@ -1,7 +1,7 @@
 import type { Metadata } from "next";
-import Link from "next/link";
 import { notFound } from "next/navigation";
 import { EventTable } from "@/components/shell/event-table";
+import { BackLink } from "@/components/ui/back-link";
 import { Badge } from "@/components/ui/badge";
 import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
@@ -21,11 +21,7 @@ export default async function UserPage({ params }: { params: Promise<{ id: strin
   const events = await recentEvents(db, { subject: { kind: "user", id: user.id }, limit: 50 });
   return (
     <div className="flex flex-col gap-6">
-      <p>
-        <Link href="/admin/users" className="font-bold text-leaf-dark underline underline-offset-4">
-          ← All users
-        </Link>
-      </p>
+      <BackLink href="/admin/users">All users</BackLink>
       <PageHeader title={user.name} lead={user.email} actions={<Badge tone={user.status === "active" ? "leaf" : user.status === "invited" ? "info" : "neutral"}>{user.status}</Badge>} />
       <Panel title="Roles">
         <RolesForm userId={user.id} roles={user.roles} />
