@@ -85,18 +85,21 @@ export function CheckboxGroup({
   options,
   defaultValues = [],
   errors,
+  columns = 4,
 }: {
   legend: ReactNode;
   name: string;
   options: { value: string; label: string }[];
   defaultValues?: readonly string[];
   errors?: string[];
+  /** Columns on wider screens; two fit a dialog. */
+  columns?: 2 | 4;
 }) {
   const id = useId();
   return (
     <fieldset className="flex flex-col gap-2" aria-describedby={errors?.length ? `${id}-error` : undefined}>
       <legend className="mb-1 font-bold">{legend}</legend>
-      <div className="grid grid-cols-2 gap-2 sm:grid-cols-4">
+      <div className={cx("grid grid-cols-2 gap-2", columns === 4 && "sm:grid-cols-4")}>
         {options.map((o) => (
           <label key={o.value} className="flex min-h-12 cursor-pointer items-center gap-3 rounded-lg border border-line bg-surface px-3 has-checked:border-leaf has-checked:bg-leaf-soft">
             <input type="checkbox" name={name} value={o.value} defaultChecked={defaultValues.includes(o.value)} className="size-5 accent-leaf" />

@@ -8,7 +8,7 @@ import { requirePage } from "@/lib/auth/guard";
 import { readMailConfig } from "@/lib/mail/config";
 import { readMailbox } from "@/lib/mail/mailbox";
 import { listOutbox } from "@/lib/mail/outbox";
-import { formatWhenExact } from "@/lib/format";
+import { formatWhen, formatWhenExact } from "@/lib/format";
 
 export const metadata: Metadata = { title: "Mail" };
 
@@ -37,7 +37,7 @@ export default async function MailPage() {
           rows={outbox.map((m) => ({
             id: String(m.id),
             cells: {
-              queued: { value: m.createdAt.getTime(), display: formatWhenExact(m.createdAt) },
+              queued: { value: m.createdAt.getTime(), display: <span className="whitespace-nowrap">{formatWhen(m.createdAt)}</span> },
               to: { value: m.to },
               subject: { value: m.subject },
               status: { value: m.status, display: <Badge tone={TONE[m.status]}>{m.status === "pending" && m.nextAttemptAt ? `retry ${formatWhenExact(m.nextAttemptAt)}` : m.status}</Badge> },

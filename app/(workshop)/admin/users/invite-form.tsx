@@ -29,7 +29,7 @@ export function InviteDialog() {
         {!state.ok && state.message ? <Notice tone="danger">{state.message}</Notice> : null}
         <TextField label="Name" name="name" autoComplete="off" defaultValue={state.ok ? "" : v("name")} errors={state.fieldErrors?.name} required />
         <TextField label="E-mail" name="email" type="email" autoComplete="off" defaultValue={state.ok ? "" : v("email")} errors={state.fieldErrors?.email} required />
-        <CheckboxGroup legend="Roles" name="roles" options={roleOptions} defaultValues={roles} errors={state.fieldErrors?.roles} />
+        <CheckboxGroup legend="Roles" name="roles" options={roleOptions} defaultValues={roles} errors={state.fieldErrors?.roles} columns={2} />
         <SubmitButton pendingLabel="Sending…">Send invitation</SubmitButton>
       </form>
     </Dialog>

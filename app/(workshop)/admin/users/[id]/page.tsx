@@ -23,7 +23,7 @@ export default async function UserPage({ params }: { params: Promise<{ id: strin
     <div className="flex flex-col gap-6">
       <BackLink href="/admin/users">All users</BackLink>
       <PageHeader title={user.name} lead={user.email} actions={<Badge tone={user.status === "active" ? "leaf" : user.status === "invited" ? "info" : "neutral"}>{user.status}</Badge>} />
-      <Panel title="Roles">
+      <Panel title="What this person may do">
         <RolesForm userId={user.id} roles={user.roles} />
       </Panel>
       <Panel title="Access">

@@ -28,7 +28,7 @@ export function RolesForm({ userId, roles }: { userId: string; roles: Role[] }) 
       {!state.ok && state.message ? <Notice tone="danger" testId="roles-error">{state.message}</Notice> : null}
       <input type="hidden" name="userId" value={userId} />
       {/* Keyed on the saved roles so the boxes show what was stored after each save. */}
-      <CheckboxGroup key={roles.join()} legend="Roles" name="roles" options={roleOptions} defaultValues={roles} errors={state.fieldErrors?.roles} />
+      <CheckboxGroup key={roles.join()} legend="Roles held" name="roles" options={roleOptions} defaultValues={roles} errors={state.fieldErrors?.roles} />
       <TextField label="Why (optional)" name="reason" hint="Kept with the change in the event log." errors={state.fieldErrors?.reason} />
       <div>
         <SubmitButton pendingLabel="Saving…">Save roles</SubmitButton>
