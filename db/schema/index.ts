@@ -2,3 +2,4 @@ export * from "./auth";
 export * from "./workshop";
 export * from "./events";
 export * from "./mail";
+export * from "./genealogy";

@@ -1,0 +1,133 @@
+import { sql } from "drizzle-orm";
+import { check, index, integer, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
+import { events } from "./events";
+import { dealers, finishes, models } from "./workshop";
+
+/** Every kind of thing the register follows. Serialised kinds carry a MOD 37-2 checked serial. */
+export const ITEM_KINDS = [
+  "flitch",
+  "leaf",
+  "cabinet",
+  "drive_unit",
+  "crossover",
+  "component_lot",
+  "speaker",
+  "pair",
+  "carton",
+  "shipment",
+] as const;
+export type ItemKind = (typeof ITEM_KINDS)[number];
+
+/** Kinds that name a quantity rather than one physical part: they may sit in many parents at once. */
+export const SHARED_KINDS: readonly ItemKind[] = ["component_lot"];
+
+/**
+ * One physical thing (or one lot of them) with its identity: a serial for serialised kinds, a lot
+ * code for lots, a flitch code or flitch/leaf number for veneer.
+ */
+export const items = sqliteTable(
+  "items",
+  {
+    id: text("id").primaryKey(),
+    kind: text("kind", { enum: ITEM_KINDS }).notNull(),
+    /** Serial, lot code or veneer reference, unique across the register. */
+    identity: text("identity").notNull().unique(),
+    modelId: text("model_id").references(() => models.id),
+    finishId: text("finish_id").references(() => finishes.id),
+    /** tweeter | midrange | bass for drive units; the component type (capacitor, inductor…) for lots. */
+    partType: text("part_type"),
+    /** Current state (in_stock, fitted, built, packed, shipped, returned, failed, scrapped…); every change is an event. */
+    state: text("state").notNull(),
+    /** For shipments: the dealer it went to. */
+    dealerId: text("dealer_id").references(() => dealers.id),
+    /** Supplier, maker's serial, side (L/R) and other facts of this kind. */
+    attrs: text("attrs", { mode: "json" }).$type<Record<string, unknown>>().notNull().default({}),
+    createdAt: integer("created_at", { mode: "timestamp_ms" })
+      .notNull()
+      .default(sql`(unixepoch('subsec') * 1000)`),
+    createdEventId: integer("created_event_id").references(() => events.id),
+  },
+  (t) => [index("items_kind_idx").on(t.kind, t.createdAt), index("items_model_idx").on(t.modelId)],
+);
+
+/**
+ * "Child sits in parent at position P" from startedAt until endedAt. A link is appended when a
+ * part is fitted; removal writes endedAt (once, by trigger) and never deletes it, so every past
+ * state of the register can be read back.
+ */
+export const links = sqliteTable(
+  "links",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    parentId: text("parent_id")
+      .notNull()
+      .references(() => items.id),
+    childId: text("child_id")
+      .notNull()
+      .references(() => items.id),
+    position: text("position").notNull(),
+    /** True for a lot (many parents at once); set from the child's kind and checked by trigger. */
+    shared: integer("shared", { mode: "boolean" }).notNull().default(false),
+    startedAt: integer("started_at", { mode: "timestamp_ms" }).notNull(),
+    endedAt: integer("ended_at", { mode: "timestamp_ms" }),
+    fitEventId: integer("fit_event_id")
+      .notNull()
+      .references(() => events.id),
+    removeEventId: integer("remove_event_id").references(() => events.id),
+  },
+  (t) => [
+    // A physical part sits in at most one parent at a time…
+    uniqueIndex("links_one_parent").on(t.childId).where(sql`${t.endedAt} IS NULL AND ${t.shared} = 0`),
+    // …and a position of a parent holds one thing at a time (lots excepted: a crossover holds several).
+    uniqueIndex("links_one_per_position").on(t.parentId, t.position).where(sql`${t.endedAt} IS NULL AND ${t.shared} = 0`),
+    index("links_parent_idx").on(t.parentId, t.startedAt),
+    index("links_child_idx").on(t.childId, t.startedAt),
+    check("links_not_self", sql`${t.parentId} <> ${t.childId}`),
+    check("links_end_after_start", sql`${t.endedAt} IS NULL OR ${t.endedAt} >= ${t.startedAt}`),
+    check("links_end_has_event", sql`(${t.endedAt} IS NULL) = (${t.removeEventId} IS NULL)`),
+  ],
+);
+
+/** Per-kind, per-year serial sequences; the allocator takes the next number inside the transaction. */
+export const serialSequences = sqliteTable(
+  "serial_sequences",
+  {
+    kind: text("kind").notNull(),
+    year: integer("year").notNull(),
+    last: integer("last").notNull(),
+  },
+  (t) => [uniqueIndex("serial_sequences_pk").on(t.kind, t.year)],
+);
+
+/** People who own a pair (for the service desk). */
+export const owners = sqliteTable("owners", {
+  id: text("id").primaryKey(),
+  name: text("name").notNull(),
+  email: text("email"),
+  town: text("town").notNull(),
+  country: text("country").notNull(),
+  createdAt: integer("created_at", { mode: "timestamp_ms" })
+    .notNull()
+    .default(sql`(unixepoch('subsec') * 1000)`),
+});
+
+/** An owner registered as holding an item (usually a pair) from a date; appended, never edited. */
+export const ownerships = sqliteTable(
+  "ownerships",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    ownerId: text("owner_id")
+      .notNull()
+      .references(() => owners.id),
+    itemId: text("item_id")
+      .notNull()
+      .references(() => items.id),
+    since: integer("since", { mode: "timestamp_ms" }).notNull(),
+    eventId: integer("event_id").references(() => events.id),
+  },
+  (t) => [index("ownerships_item_idx").on(t.itemId), index("ownerships_owner_idx").on(t.ownerId)],
+);
+
+export type Item = typeof items.$inferSelect;
+export type Link = typeof links.$inferSelect;
+export type Owner = typeof owners.$inferSelect;
