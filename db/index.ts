@@ -1,3 +1,4 @@
+import { AsyncLocalStorage } from "node:async_hooks";
 import { mkdirSync } from "node:fs";
 import { dirname, resolve } from "node:path";
 import { createClient, type Client } from "@libsql/client";
@@ -29,9 +30,29 @@ export function openClient(url = databaseUrl()): Client {
   return createClient({ url, authToken: process.env.DATABASE_AUTH_TOKEN || undefined, timeout: 5000 });
 }
 
+/**
+ * SQLite's busy wait is synchronous: if one request's transaction is open (waiting on an await)
+ * and another request in the same process starts writing on a second pooled connection, the
+ * second blocks the event loop, the first can never finish, and both stall until the timeout.
+ * So writes in one process take turns through this lock; between processes the busy timeout
+ * does the waiting. Re-entering from inside the lock runs at once.
+ */
+const lockHeld = new AsyncLocalStorage<boolean>();
+let lockTail: Promise<unknown> = Promise.resolve();
+
+export function withWriteLock<T>(fn: () => Promise<T>): Promise<T> {
+  if (lockHeld.getStore()) return fn();
+  const run = lockTail.then(() => lockHeld.run(true, fn));
+  lockTail = run.catch(() => undefined);
+  return run;
+}
+
 export function openDb(url = databaseUrl()): { client: Client; db: Db } {
   const client = openClient(url);
-  return { client, db: drizzle(client, { schema }) };
+  const db = drizzle(client, { schema });
+  const transaction = db.transaction.bind(db);
+  db.transaction = ((fn, config) => withWriteLock(() => transaction(fn, config))) as Db["transaction"];
+  return { client, db };
 }
 
 // One client per server process (kept across hot reloads in development).

@@ -2,6 +2,7 @@ import type { ReactNode } from "react";
 import { redirect } from "next/navigation";
 import { Wordmark } from "@/components/brand";
 import { NavLinks } from "@/components/shell/nav-links";
+import { SearchBox } from "@/components/shell/search-box";
 import { SignOutButton } from "./sign-out-button";
 import { AREAS } from "@/lib/areas";
 import { currentUser } from "@/lib/auth/guard";
@@ -23,8 +24,9 @@ export default async function WorkshopLayout({ children }: { children: ReactNode
         </nav>
       </aside>
       <div className="flex min-w-0 flex-1 flex-col">
-        <header className="flex flex-wrap items-center justify-end gap-3 border-b border-line bg-surface/70 px-6 py-3">
-          <div className="text-right">
+        <header className="flex flex-wrap items-center justify-between gap-3 border-b border-line bg-surface/70 px-6 py-3">
+          <SearchBox />
+          <div className="ml-auto text-right">
             <p className="font-bold" data-testid="user-name">{user.name}</p>
             <p className="text-sm text-ink-soft" data-testid="user-roles">
               {user.roles.length ? user.roles.map((r) => ROLE_LABELS[r]).join(" · ") : "No roles yet"}

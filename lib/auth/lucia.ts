@@ -1,7 +1,7 @@
 import "server-only";
 import { DrizzleSQLiteAdapter } from "@lucia-auth/adapter-drizzle";
 import { Lucia, TimeSpan } from "lucia";
-import { getDb, type Db } from "@/db";
+import { getDb, withWriteLock, type Db } from "@/db";
 import { sessions, users } from "@/db/schema";
 
 /** A session ends after this long without use (Lucia extends it while in use)… */
@@ -12,8 +12,17 @@ export const ABSOLUTE_EXPIRY_MS = 7 * 24 * 60 * 60 * 1000;
 export { SESSION_COOKIE } from "./lucia-cookie";
 import { SESSION_COOKIE } from "./lucia-cookie";
 
+/** Lucia's adapter with its writes taking turns through the process's write lock (see db/index.ts). */
+class LockedAdapter extends DrizzleSQLiteAdapter {
+  override setSession: DrizzleSQLiteAdapter["setSession"] = (s) => withWriteLock(() => super.setSession(s));
+  override deleteSession: DrizzleSQLiteAdapter["deleteSession"] = (id) => withWriteLock(() => super.deleteSession(id));
+  override deleteUserSessions: DrizzleSQLiteAdapter["deleteUserSessions"] = (id) => withWriteLock(() => super.deleteUserSessions(id));
+  override updateSessionExpiration: DrizzleSQLiteAdapter["updateSessionExpiration"] = (id, at) => withWriteLock(() => super.updateSessionExpiration(id, at));
+  override deleteExpiredSessions: DrizzleSQLiteAdapter["deleteExpiredSessions"] = () => withWriteLock(() => super.deleteExpiredSessions());
+}
+
 function createLucia(db: Db) {
-  return new Lucia(new DrizzleSQLiteAdapter(db, sessions, users), {
+  return new Lucia(new LockedAdapter(db, sessions, users), {
     sessionExpiresIn: IDLE_EXPIRY,
     sessionCookie: {
       name: SESSION_COOKIE,

@@ -12,6 +12,11 @@ export interface NewEvent {
   data?: Record<string, unknown>;
   reason?: string | null;
   correctsId?: number | null;
+  /**
+   * When it happened, for importing history only (the demo seed back-dates its invented years).
+   * Everything recorded through the application takes the database's own clock.
+   */
+  at?: Date;
 }
 
 /** Appends one event and returns its id. Call it inside the transaction that makes the change. */
@@ -27,6 +32,7 @@ export async function appendEvent(db: DbOrTx, event: NewEvent): Promise<number> 
       data: event.data ?? {},
       reason: event.reason ?? null,
       correctsId: event.correctsId ?? null,
+      ...(event.at ? { at: event.at } : {}),
     })
     .returning({ id: events.id });
   if (!row) throw new Error("event was not written");
@@ -49,11 +55,12 @@ export interface EventRow {
 /** The newest events, optionally only those recorded at some stations or about one subject. */
 export async function recentEvents(
   db: DbOrTx,
-  opts: { limit?: number; stations?: string[]; subject?: { kind: string; id: string } } = {},
+  opts: { limit?: number; stations?: string[]; subject?: { kind: string; id: string }; subjects?: { kind: string; ids: string[] } } = {},
 ): Promise<EventRow[]> {
   const where: SQL[] = [];
   if (opts.stations) where.push(inArray(events.station, opts.stations));
   if (opts.subject) where.push(eq(events.subjectKind, opts.subject.kind), eq(events.subjectId, opts.subject.id));
+  if (opts.subjects) where.push(eq(events.subjectKind, opts.subjects.kind), inArray(events.subjectId, opts.subjects.ids));
   return db
     .select({
       id: events.id,

@@ -1,6 +1,6 @@
 import "server-only";
 import { and, eq, isNull, or, sql } from "drizzle-orm";
-import { getDb, type Db } from "@/db";
+import { getDb, withWriteLock, type Db } from "@/db";
 import { mailAttempts, outbox } from "@/db/schema";
 import { attemptStats, DEFAULT_MAX_ATTEMPTS, retryDelaySql } from "./outbox";
 import { createMailTransport, type MailTransport } from "./transport";
@@ -75,7 +75,7 @@ export async function deliverDue(
       ok = false;
       detail = describeFailure(e);
     }
-    await db.insert(mailAttempts).values({ outboxId: m.id, at: opts.now ?? new Date(), ok, detail });
+    await withWriteLock(() => db.insert(mailAttempts).values({ outboxId: m.id, at: opts.now ?? new Date(), ok, detail }));
     if (ok) sent++;
     else failed++;
   }

@@ -1,0 +1,141 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { notFound } from "next/navigation";
+import { EventTable } from "@/components/shell/event-table";
+import { MomentSwitch } from "@/components/register/moment-switch";
+import { PairHalves } from "@/components/register/pair-halves";
+import { TraceTreePicture } from "@/components/register/trace-tree";
+import { Badge } from "@/components/ui/badge";
+import { BackLink } from "@/components/ui/back-link";
+import { DataTable } from "@/components/ui/data-table";
+import { Notice } from "@/components/ui/notice";
+import { Panel, PageHeader } from "@/components/ui/panel";
+import { getDb } from "@/db";
+import { requirePage } from "@/lib/auth/guard";
+import { recentEvents } from "@/lib/events/queries";
+import { formatDay, formatWhen } from "@/lib/format";
+import { momentParam, resolveMoment } from "@/lib/genealogy/moment";
+import { KIND_LABEL } from "@/lib/genealogy/kinds";
+import { itemDetails } from "@/lib/genealogy/queries";
+import { toTree, traceBackward, traceForward } from "@/lib/genealogy/trace";
+import { itemHref } from "@/lib/search/search";
+
+export async function generateMetadata({ params }: { params: Promise<{ identity: string }> }): Promise<Metadata> {
+  return { title: decodeURIComponent((await params).identity) };
+}
+
+
+export default async function ItemPage({ params, searchParams }: { params: Promise<{ identity: string }>; searchParams: Promise<{ at?: string }> }) {
+  await requirePage("register.read");
+  const db = getDb();
+  const identity = decodeURIComponent((await params).identity);
+  const found = await itemDetails(db, identity);
+  if (!found) notFound();
+  const { item, model, finish, dealer, parents, shippedAt } = found;
+
+  const atParam = momentParam.safeParse((await searchParams).at ?? "now");
+  const at = atParam.success ? atParam.data : "now";
+  const { moment, label, note } = resolveMoment(at, shippedAt);
+  const [inside, holders, everInside] = await Promise.all([
+    traceBackward(db, item.id, moment),
+    traceForward(db, item.id, moment.mode === "ever" ? { mode: "now" } : moment),
+    traceBackward(db, item.id, { mode: "ever" }),
+  ]);
+  const tree = toTree(inside);
+  const events = await recentEvents(db, { subjects: { kind: "item", ids: [item.id, ...everInside.filter((n) => n.depth === 1).map((n) => n.id)] }, limit: 200 });
+  const shipments = holders.filter((h) => h.kind === "shipment");
+
+  return (
+    <div className="flex flex-col gap-6" data-testid="item-page">
+      <BackLink href="/register">Register</BackLink>
+      <PageHeader
+        title={<span className="serial" data-testid="item-identity">{item.identity}</span>}
+        lead={[KIND_LABEL[item.kind] ?? item.kind, model?.name, finish?.name, item.partType].filter(Boolean).join(" · ")}
+        actions={<Badge tone={item.state === "failed" || item.state === "scrapped" ? "danger" : item.state === "shipped" ? "leaf" : "info"}>{item.state.replace(/_/g, " ")}</Badge>}
+      />
+
+      <div className="grid gap-4 md:grid-cols-3">
+        <Panel title="Where it is now">
+          {parents.length === 0 ? (
+            <p className="text-ink-soft">{item.kind === "shipment" && dealer ? `Shipped to ${dealer.name}, ${dealer.city}.` : "Not inside anything."}</p>
+          ) : (
+            <ul className="flex flex-col gap-1" data-testid="current-parents">
+              {parents.map((p) => (
+                <li key={`${p.id}-${p.position}`}>
+                  In <Link className="serial font-bold text-leaf-dark underline" href={itemHref(p.identity)}>{p.identity}</Link> at {p.position}
+                  <span className="text-sm text-ink-soft"> since {formatDay(p.since)}</span>
+                </li>
+              ))}
+            </ul>
+          )}
+        </Panel>
+        <Panel title="Shipped">
+          {shippedAt ? (
+            <p>
+              {formatDay(shippedAt)}
+              {shipments.length ? (
+                <>
+                  {" "}
+                  in {shipments.map((s) => <Link key={s.id} className="serial text-leaf-dark underline" href={itemHref(s.identity)}>{s.identity}</Link>)}
+                </>
+              ) : null}
+            </p>
+          ) : (
+            <p className="text-ink-soft">Not shipped.</p>
+          )}
+        </Panel>
+        <Panel title="Created">
+          <p>{formatDay(item.createdAt)}</p>
+        </Panel>
+      </div>
+
+      <Panel title="Inside it" actions={<MomentSwitch current={at} hasShipped={Boolean(shippedAt)} />}>
+        <p className="mb-3 text-ink-soft" data-testid="moment-label">Shown {label}.</p>
+        {note ? <Notice tone="info" className="mb-3">{note}</Notice> : null}
+        {atParam.success ? null : <Notice tone="danger" className="mb-3">{atParam.error.issues[0]?.message}</Notice>}
+        {item.kind === "pair" && tree ? <PairHalves tree={tree} /> : null}
+        {tree && tree.children.length ? (
+          <TraceTreePicture tree={tree} />
+        ) : (
+          <p className="text-ink-soft">Nothing sits inside it {label === "now" ? "now" : label}.</p>
+        )}
+        <p className="mt-3 text-sm">
+          <a className="font-bold text-leaf-dark underline" href={`/api/v1/items/${encodeURIComponent(item.identity)}/trace?direction=backward&asOf=${encodeURIComponent(at)}`}>Trace as JSON</a>
+          {" · "}
+          <a className="font-bold text-leaf-dark underline" href={`/api/v1/items/${encodeURIComponent(item.identity)}/epcis`}>Events as EPCIS 2.0 JSON</a>
+        </p>
+      </Panel>
+
+      <Panel title="What holds it">
+        <DataTable
+          caption="Everything that holds this item"
+          testId="holders-table"
+          empty="Nothing holds it."
+          columns={[
+            { key: "identity", label: "Serial" },
+            { key: "kind", label: "Kind" },
+            { key: "position", label: "Holds it via" },
+            { key: "state", label: "State" },
+          ]}
+          rows={holders
+            .filter((h) => h.depth > 0)
+            .map((h) => ({
+              id: h.id,
+              cells: {
+                identity: { value: h.identity, display: <Link className="serial font-bold text-leaf-dark underline" href={itemHref(h.identity)}>{h.identity}</Link> },
+                kind: { value: KIND_LABEL[h.kind] ?? h.kind },
+                position: { value: h.position ?? "", display: `${h.position ?? ""} (${h.depth} up)` },
+                state: { value: h.state.replace(/_/g, " ") },
+              },
+            }))}
+        />
+      </Panel>
+
+      <Panel title="History">
+        <p className="mb-3 text-sm text-ink-soft">Events about this item and the parts fitted directly into it, newest first. {events.length >= 200 ? "Showing the latest 200." : ""}</p>
+        <EventTable events={events} caption={`Events of ${item.identity}`} />
+        <p className="mt-2 text-sm text-ink-soft">Times in UTC. Latest: {events[0] ? formatWhen(events[0].at) : "none"}.</p>
+      </Panel>
+    </div>
+  );
+}

@@ -1,0 +1,44 @@
+import Link from "next/link";
+import type { TraceTree } from "@/lib/genealogy/trace";
+import { itemHref } from "@/lib/search/search";
+
+function Parts({ node }: { node: TraceTree }) {
+  if (!node.children.length) return null;
+  return (
+    <ul className="ml-4 border-l border-line pl-3">
+      {node.children.map((c) => (
+        <li key={`${c.id}-${c.linkId}`} className="py-0.5">
+          <span className="inline-block min-w-10 text-sm font-bold text-ink-soft">{c.position}</span>{" "}
+          <Link href={itemHref(c.identity)} className="serial text-sm text-leaf-dark underline">
+            {c.identity}
+          </Link>
+          <Parts node={c} />
+        </li>
+      ))}
+    </ul>
+  );
+}
+
+/** A pair's two speakers side by side, left and right, each with the parts inside it. */
+export function PairHalves({ tree }: { tree: TraceTree }) {
+  const sides = ["L", "R"].map((side) => tree.children.find((c) => c.position === side));
+  return (
+    <div className="mb-4 grid gap-4 md:grid-cols-2" data-testid="pair-halves">
+      {sides.map((s, i) => (
+        <div key={i} className="rounded-lg border border-line bg-paper p-3">
+          <p className="font-bold">{i === 0 ? "Left" : "Right"}</p>
+          {s ? (
+            <>
+              <Link href={itemHref(s.identity)} className="serial font-bold text-leaf-dark underline">
+                {s.identity}
+              </Link>
+              <Parts node={s} />
+            </>
+          ) : (
+            <p className="text-ink-soft">No speaker at this side.</p>
+          )}
+        </div>
+      ))}
+    </div>
+  );
+}

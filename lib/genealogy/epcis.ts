@@ -1,0 +1,359 @@
+import "server-only";
+import { and, asc, eq, inArray } from "drizzle-orm";
+import type { DbOrTx } from "@/db";
+import { events, items, models, type ItemKind } from "@/db/schema";
+import { AppError } from "@/lib/auth/errors";
+import { traceBackward } from "./trace";
+
+/**
+ * A serial's history as a GS1 EPCIS 2.0 JSON-LD document (EPCIS 2.0 §7 / CBV 2.0 vocabulary).
+ * Fits and removals become AggregationEvents (a part stays identifiable and removable inside its
+ * parent); everything else an ObjectEvent. Facts EPCIS has no field for go into extension fields
+ * of our own namespace "tw", declared in @context so a JSON-LD reader can expand them.
+ */
+
+export const EPCIS_CONTEXT = "https://ref.gs1.org/standards/epcis/2.0.0/epcis-context.jsonld";
+const TZ = "+00:00"; // event times are written in UTC
+
+/** One row of the event log, as much of it as the export needs. */
+export interface EpcisSourceEvent {
+  id: number;
+  at: Date;
+  station: string;
+  type: string;
+  subjectId: string;
+  data: Record<string, unknown>;
+  reason: string | null;
+  correctsId: number | null;
+}
+
+/** What naming an item needs: its kind and identity, and for a pair or carton its model's GTIN. */
+export interface EpcisItem {
+  id: string;
+  kind: ItemKind;
+  identity: string;
+  pairGtin: string | null;
+}
+
+type Ext = { [key: `tw:${string}`]: unknown };
+
+export type EpcisErrorDeclaration = {
+  declarationTime: string;
+  reason: "did_not_occur" | "incorrect_data";
+  correctiveEventIDs?: string[];
+} & Ext;
+
+export interface EpcisSensorReport {
+  type: string;
+  value?: number;
+  stringValue?: string;
+  booleanValue?: boolean;
+  uom?: string;
+  [key: `tw:${string}`]: unknown;
+}
+
+export type EpcisEvent = {
+  type: "ObjectEvent" | "AggregationEvent";
+  eventID: string;
+  eventTime: string;
+  eventTimeZoneOffset: string;
+  action: "ADD" | "OBSERVE" | "DELETE";
+  epcList?: string[];
+  parentID?: string;
+  childEPCs?: string[];
+  bizStep?: string;
+  disposition?: string;
+  readPoint?: { id: string };
+  bizLocation?: { id: string };
+  sensorElementList?: { sensorReport: EpcisSensorReport[] }[];
+  errorDeclaration?: EpcisErrorDeclaration;
+} & Ext;
+
+export interface EpcisDocument {
+  "@context": [string, { tw: string }];
+  type: "EPCISDocument";
+  schemaVersion: "2.0";
+  creationDate: string;
+  epcisBody: { eventList: EpcisEvent[] };
+}
+
+export interface EpcisOptions {
+  baseUri: string;
+}
+
+const trimBase = (baseUri: string) => baseUri.replace(/\/+$/, "");
+
+/**
+ * A pair or carton with its model's GTIN is named by a GS1 Digital Link URI (GTIN + serial, the
+ * same key its carton label carries); everything else by a URI under our own address.
+ */
+export function itemUri(item: Pick<EpcisItem, "kind" | "identity" | "pairGtin">, baseUri: string): string {
+  if ((item.kind === "pair" || item.kind === "carton") && item.pairGtin && /^\d{14}$/.test(item.pairGtin)) {
+    return `https://id.gs1.org/01/${item.pairGtin}/21/${encodeURIComponent(item.identity)}`;
+  }
+  return identityUri(item.identity, baseUri);
+}
+
+const identityUri = (identity: string, baseUri: string) => `${trimBase(baseUri)}/id/${encodeURIComponent(identity)}`;
+export const eventUri = (id: number, baseUri: string) => `${trimBase(baseUri)}/events/${id}`;
+const stationUri = (station: string, baseUri: string) => `${trimBase(baseUri)}/stations/${encodeURIComponent(station)}`;
+
+/**
+ * UN/CEFACT Recommendation 20 codes (the schema wants 2–3 capitals or digits) and, where the
+ * quantity is one of GS1's measurement types, that type. Units outside the table keep their
+ * own text in tw:unit; dB and % have no GS1 quantity type and get our own type URI.
+ */
+const UNITS: Record<string, { uom: string; type?: string }> = {
+  Hz: { uom: "HTZ", type: "gs1:Frequency" },
+  kHz: { uom: "KHZ", type: "gs1:Frequency" },
+  ohm: { uom: "OHM", type: "gs1:Resistance" },
+  "Ω": { uom: "OHM", type: "gs1:Resistance" },
+  F: { uom: "FAR", type: "gs1:Capacitance" },
+  uF: { uom: "4O", type: "gs1:Capacitance" },
+  "µF": { uom: "4O", type: "gs1:Capacitance" },
+  nF: { uom: "C41", type: "gs1:Capacitance" },
+  pF: { uom: "4T", type: "gs1:Capacitance" },
+  H: { uom: "81", type: "gs1:Inductance" },
+  mH: { uom: "C14", type: "gs1:Inductance" },
+  uH: { uom: "B90", type: "gs1:Inductance" },
+  "µH": { uom: "B90", type: "gs1:Inductance" },
+  V: { uom: "VLT", type: "gs1:Voltage" },
+  W: { uom: "WTT", type: "gs1:Power" },
+  mm: { uom: "MMT", type: "gs1:Length" },
+  cm: { uom: "CMT", type: "gs1:Length" },
+  m: { uom: "MTR", type: "gs1:Length" },
+  g: { uom: "GRM", type: "gs1:Mass" },
+  kg: { uom: "KGM", type: "gs1:Mass" },
+  L: { uom: "LTR", type: "gs1:Volume" },
+  N: { uom: "NEW", type: "gs1:Force" },
+  kPa: { uom: "KPA", type: "gs1:Pressure" },
+  bar: { uom: "BAR", type: "gs1:Pressure" },
+  "°C": { uom: "CEL", type: "gs1:Temperature" },
+  degC: { uom: "CEL", type: "gs1:Temperature" },
+  s: { uom: "SEC", type: "gs1:Time" },
+  min: { uom: "MIN", type: "gs1:Time" },
+  h: { uom: "HUR", type: "gs1:Time" },
+  dB: { uom: "2N" },
+  "%": { uom: "P1" },
+};
+
+function sensorReport(data: Record<string, unknown>, baseUri: string): EpcisSensorReport {
+  const name = typeof data.name === "string" && data.name ? data.name : "reading";
+  const unit = typeof data.unit === "string" ? data.unit : null;
+  const known = unit ? UNITS[unit] : undefined;
+  const report: EpcisSensorReport = {
+    type: known?.type ?? `${trimBase(baseUri)}/readings/${encodeURIComponent(name)}`,
+    "tw:name": name,
+  };
+  const v = data.value;
+  if (typeof v === "number" && Number.isFinite(v)) report.value = v;
+  else if (typeof v === "boolean") report.booleanValue = v;
+  else if (v !== undefined && v !== null) report.stringValue = String(v);
+  if (known) report.uom = known.uom;
+  else if (unit) report["tw:unit"] = unit;
+  return report;
+}
+
+/** CBV 2.0 dispositions for the register's states where one clearly says the same thing. */
+const STATE_DISPOSITION: Record<string, string> = {
+  shipped: "in_transit",
+  returned: "returned",
+  scrapped: "destroyed",
+};
+
+const rest = (data: Record<string, unknown>, drop: string[]) => {
+  const out = Object.fromEntries(Object.entries(data).filter(([k]) => !drop.includes(k)));
+  return Object.keys(out).length ? out : undefined;
+};
+
+/** Maps one register event to its EPCIS event (without any error declaration). */
+function toEpcisEvent(e: EpcisSourceEvent, itemsById: ReadonlyMap<string, EpcisItem>, baseUri: string): EpcisEvent {
+  const d = e.data ?? {};
+  const str = (k: string) => (typeof d[k] === "string" ? (d[k] as string) : null);
+  const uriOf = (id: string | null, identity: string | null) => {
+    const item = id ? itemsById.get(id) : undefined;
+    if (item) return itemUri(item, baseUri);
+    return identityUri(identity ?? id ?? "unknown", baseUri);
+  };
+  const subject = uriOf(e.subjectId, str("identity") ?? str("child"));
+  const where = { id: stationUri(e.station, baseUri) };
+  const base = {
+    eventID: eventUri(e.id, baseUri),
+    eventTime: e.at.toISOString(),
+    eventTimeZoneOffset: TZ,
+  };
+  const tail: Ext = { "tw:eventType": e.type };
+  if (e.reason) tail["tw:reason"] = e.reason;
+  if (e.correctsId !== null) tail["tw:corrects"] = eventUri(e.correctsId, baseUri);
+
+  switch (e.type) {
+    case "link.fitted":
+    case "link.removed": {
+      const fitted = e.type === "link.fitted";
+      return {
+        type: "AggregationEvent",
+        ...base,
+        action: fitted ? "ADD" : "DELETE",
+        parentID: uriOf(str("parentId"), str("parent")),
+        childEPCs: [subject],
+        // CBV 2.0 bizSteps: removal at the service desk is part of a repair; elsewhere a single
+        // part taken out of its assembly is "removing" ("disassembling" breaks down the whole).
+        bizStep: fitted ? "assembling" : e.station === "service" ? "repairing" : "removing",
+        ...(fitted ? { disposition: "in_progress" } : {}),
+        readPoint: where,
+        bizLocation: where,
+        ...(str("position") ? { "tw:position": str("position") } : {}),
+        ...tail,
+      };
+    }
+    case "item.created":
+      return {
+        type: "ObjectEvent",
+        ...base,
+        action: "ADD",
+        epcList: [subject],
+        bizStep: "commissioning",
+        disposition: "active",
+        readPoint: where,
+        bizLocation: where,
+        ...(str("kind") ? { "tw:kind": str("kind") } : {}),
+        ...(str("state") ? { "tw:state": str("state") } : {}),
+        ...tail,
+      };
+    case "item.state_changed": {
+      const to = str("to");
+      const disposition = to ? STATE_DISPOSITION[to] : undefined;
+      return {
+        type: "ObjectEvent",
+        ...base,
+        action: "OBSERVE",
+        epcList: [subject],
+        ...(disposition ? { disposition } : {}),
+        readPoint: where,
+        bizLocation: where,
+        ...(str("from") ? { "tw:stateFrom": str("from") } : {}),
+        ...(to ? { "tw:stateTo": to } : {}),
+        ...tail,
+      };
+    }
+    case "reading.recorded": {
+      const details = rest(d, ["name", "value", "unit"]);
+      return {
+        type: "ObjectEvent",
+        ...base,
+        action: "OBSERVE",
+        epcList: [subject],
+        bizStep: "inspecting",
+        readPoint: where,
+        bizLocation: where,
+        sensorElementList: [{ sensorReport: [sensorReport(d, baseUri)] }],
+        ...(details ? { "tw:details": details } : {}),
+        ...tail,
+      };
+    }
+    case "label.printed":
+      // CBV "encoding": writing an item's identifier into a data carrier, i.e. printing its label.
+      return {
+        type: "ObjectEvent",
+        ...base,
+        action: "OBSERVE",
+        epcList: [subject],
+        bizStep: "encoding",
+        disposition: "encoded",
+        readPoint: where,
+        bizLocation: where,
+        ...(Object.keys(d).length ? { "tw:details": d } : {}),
+        ...tail,
+      };
+    default:
+      return {
+        type: "ObjectEvent",
+        ...base,
+        action: "OBSERVE",
+        epcList: [subject],
+        readPoint: where,
+        bizLocation: where,
+        ...(Object.keys(d).length ? { "tw:details": d } : {}),
+        ...tail,
+      };
+  }
+}
+
+/**
+ * Maps register events (oldest first) to EPCIS events. A correction is answered the EPCIS 2.0
+ * way: a copy of the original event, same eventID and eventTime, carrying an
+ * errorDeclaration that names the correcting event, placed at the correction's time and followed
+ * by the correcting event itself. Events are never changed, so neither is the original's entry.
+ */
+export function toEpcisEvents(
+  source: readonly EpcisSourceEvent[],
+  itemsById: ReadonlyMap<string, EpcisItem>,
+  opts: EpcisOptions,
+): EpcisEvent[] {
+  const mapped = new Map<number, EpcisEvent>();
+  const out: EpcisEvent[] = [];
+  for (const e of source) {
+    const event = toEpcisEvent(e, itemsById, opts.baseUri);
+    const original = e.correctsId !== null ? mapped.get(e.correctsId) : undefined;
+    if (original) {
+      const errorDeclaration: EpcisErrorDeclaration = {
+        declarationTime: e.at.toISOString(),
+        reason: "incorrect_data",
+        correctiveEventIDs: [event.eventID],
+        ...(e.reason ? { "tw:reason": e.reason } : {}),
+      };
+      out.push({ ...original, errorDeclaration });
+    }
+    mapped.set(e.id, event);
+    out.push(event);
+  }
+  return out;
+}
+
+/** Wraps events in an EPCIS 2.0 document with our extension namespace declared. */
+export function epcisDocument(eventList: EpcisEvent[], opts: EpcisOptions & { now?: Date }): EpcisDocument {
+  return {
+    "@context": [EPCIS_CONTEXT, { tw: `${trimBase(opts.baseUri)}/ns#` }],
+    type: "EPCISDocument",
+    schemaVersion: "2.0",
+    creationDate: (opts.now ?? new Date()).toISOString(),
+    epcisBody: { eventList },
+  };
+}
+
+/**
+ * Every event about an item and about everything that was ever inside it (a replaced part's
+ * history stays in the record), as one EPCIS 2.0 document, oldest first.
+ */
+export async function epcisDocumentForItem(db: DbOrTx, itemId: string, opts: EpcisOptions & { now?: Date }): Promise<EpcisDocument> {
+  const nodes = await traceBackward(db, itemId, { mode: "ever" });
+  if (nodes.length === 0) throw new AppError(404, "No item with that id.");
+  const ids = [...new Set(nodes.map((n) => n.id))];
+
+  const rows = await db
+    .select({
+      id: events.id,
+      at: events.at,
+      station: events.station,
+      type: events.type,
+      subjectId: events.subjectId,
+      data: events.data,
+      reason: events.reason,
+      correctsId: events.correctsId,
+    })
+    .from(events)
+    .where(and(eq(events.subjectKind, "item"), inArray(events.subjectId, ids)))
+    .orderBy(asc(events.at), asc(events.id));
+
+  // Link events may name a holder outside the trace (the carton or shipment holding the root).
+  const wanted = new Set(ids);
+  for (const r of rows) if (typeof r.data?.parentId === "string") wanted.add(r.data.parentId);
+  const named = await db
+    .select({ id: items.id, kind: items.kind, identity: items.identity, pairGtin: models.pairGtin })
+    .from(items)
+    .leftJoin(models, eq(models.id, items.modelId))
+    .where(inArray(items.id, [...wanted]));
+
+  const itemsById = new Map(named.map((i) => [i.id, i]));
+  return epcisDocument(toEpcisEvents(rows, itemsById, opts), opts);
+}

@@ -1,0 +1,13 @@
+/** How each kind of item is named on screen. */
+export const KIND_LABEL: Record<string, string> = {
+  flitch: "Flitch",
+  leaf: "Veneer leaf",
+  cabinet: "Cabinet",
+  drive_unit: "Drive unit",
+  crossover: "Crossover",
+  component_lot: "Component lot",
+  speaker: "Speaker",
+  pair: "Pair",
+  carton: "Carton",
+  shipment: "Shipment",
+};

@@ -1,0 +1,155 @@
+import "server-only";
+import { sql } from "drizzle-orm";
+import type { DbOrTx } from "@/db";
+import type { ItemKind } from "@/db/schema";
+
+/**
+ * Which moment a trace describes: the register now, as it stood at a date, or everything that
+ * was ever linked (history, for the service desk: every part that ever went into a serial).
+ */
+export type TraceMoment = { mode: "now" } | { mode: "at"; at: Date } | { mode: "ever" };
+
+export interface TraceNode {
+  id: string;
+  kind: ItemKind;
+  identity: string;
+  state: string;
+  partType: string | null;
+  modelId: string | null;
+  finishId: string | null;
+  dealerId: string | null;
+  attrs: Record<string, unknown>;
+  /** The item this one was reached from (its parent going backward, its child going forward). */
+  via: string | null;
+  position: string | null;
+  depth: number;
+  linkId: number | null;
+  startedAt: Date | null;
+  endedAt: Date | null;
+}
+
+// A guard against a damaged graph: the code refuses cycles, and no real assembly is this deep.
+const MAX_DEPTH = 24;
+
+function momentFilter(m: TraceMoment) {
+  if (m.mode === "now") return sql`l.ended_at IS NULL`;
+  if (m.mode === "at") return sql`l.started_at <= ${m.at.getTime()} AND (l.ended_at IS NULL OR l.ended_at > ${m.at.getTime()})`;
+  return sql`1 = 1`;
+}
+
+type Row = {
+  id: string; kind: ItemKind; identity: string; state: string; part_type: string | null; model_id: string | null;
+  finish_id: string | null; dealer_id: string | null; attrs: string; via: string | null; position: string | null;
+  depth: number; link_id: number | null; started_at: number | null; ended_at: number | null;
+};
+
+const toNode = (r: Row): TraceNode => ({
+  id: r.id,
+  kind: r.kind,
+  identity: r.identity,
+  state: r.state,
+  partType: r.part_type,
+  modelId: r.model_id,
+  finishId: r.finish_id,
+  dealerId: r.dealer_id,
+  attrs: typeof r.attrs === "string" ? (JSON.parse(r.attrs) as Record<string, unknown>) : {},
+  via: r.via,
+  position: r.position,
+  depth: Number(r.depth),
+  linkId: r.link_id === null ? null : Number(r.link_id),
+  startedAt: r.started_at === null ? null : new Date(Number(r.started_at)),
+  endedAt: r.ended_at === null ? null : new Date(Number(r.ended_at)),
+});
+
+/** Everything inside an item at a moment, the item itself first (depth 0). One recursive query. */
+export async function traceBackward(db: DbOrTx, rootId: string, moment: TraceMoment = { mode: "now" }): Promise<TraceNode[]> {
+  const rows = await db.all<Row>(sql`
+    WITH RECURSIVE down(id, via, position, depth, link_id, started_at, ended_at) AS (
+      SELECT ${rootId}, NULL, NULL, 0, NULL, NULL, NULL
+      UNION ALL
+      SELECT l.child_id, l.parent_id, l.position, down.depth + 1, l.id, l.started_at, l.ended_at
+      FROM links l JOIN down ON l.parent_id = down.id
+      WHERE ${momentFilter(moment)} AND down.depth < ${MAX_DEPTH}
+    )
+    SELECT i.id, i.kind, i.identity, i.state, i.part_type, i.model_id, i.finish_id, i.dealer_id, i.attrs,
+           down.via, down.position, down.depth, down.link_id, down.started_at, down.ended_at
+    FROM down JOIN items i ON i.id = down.id
+    ORDER BY down.depth, down.via, down.position, down.started_at`);
+  return rows.map(toNode);
+}
+
+/**
+ * Everything that holds an item at a moment (parents, their parents… up to shipments), the item
+ * itself first. Each holder appears once, at the shortest path. One recursive query.
+ */
+export async function traceForward(db: DbOrTx, rootId: string, moment: TraceMoment = { mode: "now" }): Promise<TraceNode[]> {
+  const rows = await db.all<Row>(sql`
+    WITH RECURSIVE up(id, via, position, depth, link_id, started_at, ended_at) AS (
+      SELECT ${rootId}, NULL, NULL, 0, NULL, NULL, NULL
+      UNION ALL
+      SELECT l.parent_id, l.child_id, l.position, up.depth + 1, l.id, l.started_at, l.ended_at
+      FROM links l JOIN up ON l.child_id = up.id
+      WHERE ${momentFilter(moment)} AND up.depth < ${MAX_DEPTH}
+    ),
+    first AS (
+      SELECT id, via, position, depth, link_id, started_at, ended_at,
+             row_number() OVER (PARTITION BY id ORDER BY depth, started_at) AS rn
+      FROM up
+    )
+    SELECT i.id, i.kind, i.identity, i.state, i.part_type, i.model_id, i.finish_id, i.dealer_id, i.attrs,
+           first.via, first.position, first.depth, first.link_id, first.started_at, first.ended_at
+    FROM first JOIN items i ON i.id = first.id
+    WHERE first.rn = 1
+    ORDER BY first.depth, i.kind, i.identity`);
+  return rows.map(toNode);
+}
+
+/**
+ * When the item left the workshop as built: the first time it (or anything holding it) was put
+ * into a shipment. Null while it has never shipped.
+ */
+export async function shippedAt(db: DbOrTx, itemId: string): Promise<Date | null> {
+  const rows = await db.all<{ at: number | null }>(sql`
+    WITH RECURSIVE up(id, depth) AS (
+      SELECT ${itemId}, 0
+      UNION
+      SELECT l.parent_id, up.depth + 1 FROM links l JOIN up ON l.child_id = up.id WHERE up.depth < ${MAX_DEPTH}
+    )
+    SELECT min(l.started_at) AS at
+    FROM links l JOIN up ON l.child_id = up.id JOIN items p ON p.id = l.parent_id
+    WHERE p.kind = 'shipment'`);
+  const at = rows[0]?.at;
+  return at === null || at === undefined ? null : new Date(Number(at));
+}
+
+/** The holder of an item now (its open link to a parent), if any. */
+export async function currentParent(db: DbOrTx, itemId: string) {
+  const rows = await db.all<{ id: string; identity: string; kind: ItemKind; position: string; started_at: number }>(sql`
+    SELECT p.id, p.identity, p.kind, l.position, l.started_at
+    FROM links l JOIN items p ON p.id = l.parent_id
+    WHERE l.child_id = ${itemId} AND l.ended_at IS NULL
+    ORDER BY l.started_at`);
+  return rows.map((r) => ({ id: r.id, identity: r.identity, kind: r.kind, position: r.position, since: new Date(Number(r.started_at)) }));
+}
+
+export interface TraceTree extends TraceNode {
+  children: TraceTree[];
+}
+
+/** Arranges a trace as a tree (by `via`), for pictures; in history mode a part can show under several holders. */
+export function toTree(nodes: TraceNode[]): TraceTree | null {
+  const root = nodes.find((n) => n.depth === 0);
+  if (!root) return null;
+  const byVia = new Map<string, TraceNode[]>();
+  for (const n of nodes) {
+    if (n.depth === 0 || !n.via) continue;
+    const list = byVia.get(n.via) ?? [];
+    list.push(n);
+    byVia.set(n.via, list);
+  }
+  const build = (n: TraceNode, seen: Set<string>): TraceTree => {
+    const next = new Set(seen).add(n.id);
+    return { ...n, children: (byVia.get(n.id) ?? []).filter((c) => !next.has(c.id)).map((c) => build(c, next)) };
+  };
+  return build(root, new Set());
+}

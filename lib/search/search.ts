@@ -1,0 +1,90 @@
+import "server-only";
+import Fuse from "fuse.js";
+import { inArray, sql } from "drizzle-orm";
+import type { DbOrTx } from "@/db";
+import { dealers, items, owners } from "@/db/schema";
+import { nearMisses, normaliseScan, parseSerial } from "@/lib/serials";
+
+export type SearchHit =
+  | { type: "item"; id: string; identity: string; kind: string; state: string; href: string }
+  | { type: "dealer"; id: string; name: string; detail: string; href: string }
+  | { type: "owner"; id: string; name: string; detail: string; href: string };
+
+export interface SearchAnswer {
+  query: string;
+  /** The one item whose identity is exactly what was typed or scanned. */
+  exact: SearchHit | null;
+  /** For a serial whose check character does not fit: existing serials one slip away. */
+  didYouMean: SearchHit[];
+  fuzzy: SearchHit[];
+}
+
+export const itemHref = (identity: string) => `/register/items/${encodeURIComponent(identity)}`;
+
+const itemHit = (r: { id: string; identity: string; kind: string; state: string }): SearchHit => ({ type: "item", ...r, href: itemHref(r.identity) });
+
+type Doc = { key: string; text: string; hit: SearchHit };
+
+// The fuzzy index is rebuilt only when the register has grown or changed shape; the freshness
+// check is one cheap aggregate query.
+let cached: { stamp: string; fuse: Fuse<Doc> } | null = null;
+
+async function fuzzyIndex(db: DbOrTx): Promise<Fuse<Doc>> {
+  const [stamp] = await db.all<{ s: string }>(sql`
+    SELECT (SELECT count(*) || ':' || coalesce(max(rowid), 0) FROM items) || '/' ||
+           (SELECT count(*) FROM dealers) || '/' || (SELECT count(*) FROM owners) AS s`);
+  if (cached && cached.stamp === stamp?.s) return cached.fuse;
+  const [itemRows, dealerRows, ownerRows] = await Promise.all([
+    // Leaves are found through their flitch; every other kind is searchable by identity.
+    db.select({ id: items.id, identity: items.identity, kind: items.kind, state: items.state }).from(items).where(sql`${items.kind} <> 'leaf'`),
+    db.select().from(dealers),
+    db.select().from(owners),
+  ]);
+  const docs: Doc[] = [
+    ...itemRows.map((r) => ({ key: r.identity, text: r.identity.replace(/-/g, " "), hit: itemHit(r) })),
+    ...dealerRows.map((d) => ({
+      key: d.name,
+      text: `${d.code} ${d.city}`,
+      hit: { type: "dealer" as const, id: d.id, name: d.name, detail: `${d.city}, ${d.country}`, href: `/register/dealers/${d.code}` },
+    })),
+    ...ownerRows.map((o) => ({
+      key: o.name,
+      text: `${o.town} ${o.email ?? ""}`,
+      hit: { type: "owner" as const, id: o.id, name: o.name, detail: `${o.town}, ${o.country}`, href: `/register/owners/${o.id}` },
+    })),
+  ];
+  const fuse = new Fuse(docs, { keys: [{ name: "key", weight: 3 }, { name: "text", weight: 1 }], threshold: 0.35, ignoreLocation: true, minMatchCharLength: 2 });
+  cached = { stamp: stamp?.s ?? "", fuse };
+  return fuse;
+}
+
+/** One box for scans and typing: exact serial, then "did you mean" for a check-character slip, then fuzzy. */
+export async function search(db: DbOrTx, raw: string, limit = 10): Promise<SearchAnswer> {
+  const query = normaliseScan(raw);
+  const answer: SearchAnswer = { query, exact: null, didYouMean: [], fuzzy: [] };
+  if (!query) return answer;
+
+  const parsed = parseSerial(query);
+  const candidates = [...new Set([query, parsed?.canonical].filter((v): v is string => Boolean(v)))];
+  const found = await db.select({ id: items.id, identity: items.identity, kind: items.kind, state: items.state }).from(items).where(inArray(items.identity, candidates)).limit(1);
+  if (found[0]) {
+    answer.exact = itemHit(found[0]);
+    return answer;
+  }
+
+  if (parsed && !parsed.valid) {
+    const near = nearMisses(parsed.canonical);
+    if (near.length) {
+      const rows = await db.select({ id: items.id, identity: items.identity, kind: items.kind, state: items.state }).from(items).where(inArray(items.identity, near));
+      answer.didYouMean = rows.map(itemHit);
+    }
+  }
+
+  const fuse = await fuzzyIndex(db);
+  answer.fuzzy = fuse
+    .search(query, { limit: limit + answer.didYouMean.length })
+    .map((r) => r.item.hit)
+    .filter((h) => !answer.didYouMean.some((d) => d.id === h.id))
+    .slice(0, limit);
+  return answer;
+}

@@ -1,0 +1,147 @@
+import { sql } from "drizzle-orm";
+import { beforeAll, describe, expect, test } from "vitest";
+import { getDb } from "@/db";
+import { links, type Item } from "@/db/schema";
+import { AppError } from "@/lib/auth/errors";
+import { createItem, fit, removeFrom } from "@/lib/genealogy/graph";
+import { shippedAt, toTree, traceBackward, traceForward } from "@/lib/genealogy/trace";
+import { failureText } from "./helpers";
+
+const by = (at: string, station = "assembly") => ({ actorId: null, station, at: new Date(at) });
+const db = () => getDb();
+
+// A small invented register: one pair, two speakers, a shared capacitor lot in both crossovers,
+// shipped; later a tweeter replaced at the service desk.
+let pair: Item, left: Item, right: Item, tweeterL: Item, tweeterR: Item, spare: Item, xoL: Item, xoR: Item, lot: Item, carton: Item, shipment: Item;
+
+async function make(kind: Item["kind"], identity: string, state = "fitted") {
+  return db().transaction((tx) => createItem(tx, { kind, identity, state }, by("2025-01-01T08:00:00Z")));
+}
+
+beforeAll(async () => {
+  pair = await make("pair", "P-T-1");
+  left = await make("speaker", "S-T-L");
+  right = await make("speaker", "S-T-R");
+  tweeterL = await make("drive_unit", "D-T-1");
+  tweeterR = await make("drive_unit", "D-T-2");
+  spare = await make("drive_unit", "D-T-3", "in_stock");
+  xoL = await make("crossover", "X-T-1");
+  xoR = await make("crossover", "X-T-2");
+  lot = await make("component_lot", "LOT-CAP-1");
+  carton = await make("carton", "K-T-1");
+  shipment = await make("shipment", "H-T-1", "shipped");
+  await db().transaction(async (tx) => {
+    await fit(tx, { parent: left, child: tweeterL, position: "T" }, by("2025-02-01T10:00:00Z"));
+    await fit(tx, { parent: right, child: tweeterR, position: "T" }, by("2025-02-01T10:05:00Z"));
+    await fit(tx, { parent: left, child: xoL, position: "XO" }, by("2025-02-01T10:10:00Z"));
+    await fit(tx, { parent: right, child: xoR, position: "XO" }, by("2025-02-01T10:15:00Z"));
+    await fit(tx, { parent: xoL, child: lot, position: "C1" }, by("2025-01-20T09:00:00Z"));
+    await fit(tx, { parent: xoR, child: lot, position: "C1" }, by("2025-01-20T09:05:00Z"));
+    await fit(tx, { parent: pair, child: left, position: "L" }, by("2025-02-02T09:00:00Z"));
+    await fit(tx, { parent: pair, child: right, position: "R" }, by("2025-02-02T09:00:00Z"));
+    await fit(tx, { parent: carton, child: pair, position: "PAIR" }, by("2025-02-10T09:00:00Z", "packing"));
+    await fit(tx, { parent: shipment, child: carton, position: "1" }, by("2025-02-11T09:00:00Z", "packing"));
+  });
+  await db().transaction(async (tx) => {
+    await removeFrom(tx, { parent: left, child: tweeterL }, { ...by("2026-03-01T12:00:00Z", "service"), reason: "no output above 3 kHz" });
+    await fit(tx, { parent: left, child: spare, position: "T" }, by("2026-03-01T12:05:00Z", "service"));
+  });
+});
+
+const ids = (nodes: { identity: string }[]) => nodes.map((n) => n.identity).sort();
+
+describe("trace backward", () => {
+  test("now: the replacement tweeter, not the failed one", async () => {
+    const nodes = await traceBackward(db(), pair.id, { mode: "now" });
+    expect(ids(nodes)).toEqual(["D-T-2", "D-T-3", "LOT-CAP-1", "LOT-CAP-1", "P-T-1", "S-T-L", "S-T-R", "X-T-1", "X-T-2"]);
+    expect(nodes[0]!.identity).toBe("P-T-1");
+  });
+
+  test("as built (when it shipped): the original tweeter", async () => {
+    const shipped = await shippedAt(db(), pair.id);
+    expect(shipped?.toISOString()).toBe("2025-02-11T09:00:00.000Z");
+    const nodes = await traceBackward(db(), pair.id, { mode: "at", at: shipped! });
+    expect(ids(nodes)).toContain("D-T-1");
+    expect(ids(nodes)).not.toContain("D-T-3");
+  });
+
+  test("as of a date before the speakers were paired: the pair was empty", async () => {
+    const nodes = await traceBackward(db(), pair.id, { mode: "at", at: new Date("2025-02-01T23:00:00Z") });
+    expect(ids(nodes)).toEqual(["P-T-1"]);
+  });
+
+  test("ever: both tweeters, the removed one marked ended; the tree puts them under the left speaker", async () => {
+    const nodes = await traceBackward(db(), pair.id, { mode: "ever" });
+    const removed = nodes.find((n) => n.identity === "D-T-1");
+    expect(removed?.endedAt?.toISOString()).toBe("2026-03-01T12:00:00.000Z");
+    const tree = toTree(nodes)!;
+    const leftNode = tree.children.find((c) => c.position === "L")!;
+    expect(leftNode.children.filter((c) => c.position === "T").map((c) => c.identity).sort()).toEqual(["D-T-1", "D-T-3"]);
+  });
+});
+
+describe("trace forward", () => {
+  test("a lot reaches both crossovers, both speakers, the pair, the carton and the shipment once each", async () => {
+    const nodes = await traceForward(db(), lot.id, { mode: "now" });
+    expect(ids(nodes)).toEqual(["H-T-1", "K-T-1", "LOT-CAP-1", "P-T-1", "S-T-L", "S-T-R", "X-T-1", "X-T-2"]);
+  });
+
+  test("the failed tweeter was in the shipped pair as of shipping, and in nothing now", async () => {
+    expect(ids(await traceForward(db(), tweeterL.id, { mode: "now" }))).toEqual(["D-T-1"]);
+    const then = await traceForward(db(), tweeterL.id, { mode: "at", at: new Date("2025-06-01T00:00:00Z") });
+    expect(ids(then)).toEqual(["D-T-1", "H-T-1", "K-T-1", "P-T-1", "S-T-L"]);
+  });
+});
+
+describe("the graph's guarantees", () => {
+  test("a part cannot sit in two parents at once (schema index), and the message names where it is", async () => {
+    const other = await make("speaker", "S-T-X");
+    const err = await db().transaction((tx) => fit(tx, { parent: other, child: tweeterR, position: "T" }, by("2026-04-01T00:00:00Z"))).catch((e) => e);
+    expect(err).toBeInstanceOf(AppError);
+    expect((err as AppError).message).toBe("D-T-2 already sits in S-T-R at T.");
+  });
+
+  test("two fits of the same part at the same moment: exactly one succeeds", async () => {
+    const a = await make("speaker", "S-T-A");
+    const b = await make("speaker", "S-T-B");
+    const unit = await make("drive_unit", "D-T-9", "in_stock");
+    const results = await Promise.allSettled(
+      [a, b].map((parent) => db().transaction((tx) => fit(tx, { parent, child: unit, position: "T" }, by("2026-04-02T00:00:00Z")))),
+    );
+    expect(results.filter((r) => r.status === "fulfilled")).toHaveLength(1);
+    expect(results.filter((r) => r.status === "rejected")).toHaveLength(1);
+  });
+
+  test("a lot may sit in many crossovers at once", async () => {
+    const xo = await make("crossover", "X-T-3");
+    await db().transaction((tx) => fit(tx, { parent: xo, child: lot, position: "C1" }, by("2026-04-03T00:00:00Z")));
+    expect(ids(await traceForward(db(), lot.id))).toContain("X-T-3");
+  });
+
+  test("a link that would make a loop is refused", async () => {
+    const err = await db().transaction((tx) => fit(tx, { parent: tweeterR, child: pair, position: "X" }, by("2026-04-04T00:00:00Z"))).catch((e) => e);
+    expect(err).toBeInstanceOf(AppError);
+    expect((err as AppError).message).toMatch(/loop/);
+    const self = await db().transaction((tx) => fit(tx, { parent: pair, child: pair, position: "X" }, by("2026-04-04T00:00:00Z"))).catch((e) => e);
+    expect((self as AppError).message).toMatch(/itself/);
+  });
+
+  test("the shared flag cannot be forged to put a drive unit in two parents", async () => {
+    const text = await failureText(() =>
+      db().run(sql`INSERT INTO links (parent_id, child_id, position, shared, started_at, fit_event_id)
+                   VALUES (${xoR.id}, ${tweeterR.id}, 'Z', 1, 0, (SELECT max(id) FROM events))`),
+    );
+    expect(text).toMatch(/shared must be true exactly when the child is a lot/);
+  });
+
+  test("links are history: never deleted, and an ended link cannot be changed", async () => {
+    expect(await failureText(() => db().delete(links).where(sql`1 = 1`))).toMatch(/links are history/);
+    expect(await failureText(() => db().run(sql`UPDATE links SET ended_at = ended_at + 1 WHERE ended_at IS NOT NULL`))).toMatch(/links are history/);
+    expect(await failureText(() => db().run(sql`UPDATE links SET position = 'Q' WHERE ended_at IS NULL`))).toMatch(/links are history/);
+  });
+
+  test("removing a part that is not there is refused", async () => {
+    const err = await db().transaction((tx) => removeFrom(tx, { parent: left, child: tweeterL }, { ...by("2026-05-01T00:00:00Z", "service"), reason: "again" })).catch((e) => e);
+    expect((err as AppError).status).toBe(409);
+  });
+});
