@@ -26,7 +26,7 @@ export function EventTable({ events, caption, empty = "No events recorded here y
           at: { value: e.at.getTime(), display: <time className="whitespace-nowrap" dateTime={e.at.toISOString()}>{formatWhen(e.at)}</time> },
           who: { value: e.actorName ?? "Twinleaf" },
           station: { value: e.station },
-          what: { value: describeEvent(e.type), display: <span title={e.type}>{describeEvent(e.type)}{e.correctsId ? ` (corrects #${e.correctsId})` : ""}</span> },
+          what: { value: describeEvent(e.type, e.data), display: <span title={e.type}>{describeEvent(e.type, e.data)}{e.correctsId ? ` (corrects #${e.correctsId})` : ""}</span> },
           about: { value: subjectLabel(e), display: <span className="text-sm" title={e.subjectId}>{subjectLabel(e)}</span> },
           why: { value: e.reason ?? "" },
         },

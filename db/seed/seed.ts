@@ -6,6 +6,7 @@ import { hashPassword } from "@/lib/auth/password";
 import type { Role } from "@/lib/auth/roles";
 import { appendEvent } from "@/lib/events/queries";
 import { DEMO_PASSWORD, SEED_DEALERS, SEED_FINISHES, SEED_MODELS, SEED_USERS } from "./data";
+import { seedHistory } from "./history";
 
 /**
  * GS1 mod-10 check digit of the data digits (everything but the check digit): weights 3, 1, 3, …
@@ -39,6 +40,8 @@ export interface SeedCounts {
   dealers: number;
   users: number;
   userRoles: number;
+  /** Pairs of the invented production history (zero once any pair exists). */
+  pairs: number;
 }
 
 export interface SeedResult {
@@ -55,7 +58,7 @@ const SEED_EVENT = { actorId: null, station: "seed" } as const;
  * e-mail and only the missing ones are inserted; a model's positions and tolerances come with the
  * model, so an existing model is left as it is. Refuses, writing nothing, when any non-demo user exists.
  */
-export async function seedDemo(db: Db): Promise<SeedResult> {
+export async function seedDemo(db: Db, options: { history?: boolean } = {}): Promise<SeedResult> {
   for (const m of SEED_MODELS) {
     if (!isValidGtin14(m.pairGtin)) throw new Error(`seed data: model ${m.code} has an invalid GTIN-14 ${m.pairGtin}`);
   }
@@ -64,7 +67,7 @@ export async function seedDemo(db: Db): Promise<SeedResult> {
     await Promise.all(SEED_USERS.map(async (u) => [u.email, await hashPassword(DEMO_PASSWORD)] as const)),
   );
 
-  const created: SeedCounts = { models: 0, modelPositions: 0, modelTolerances: 0, finishes: 0, dealers: 0, users: 0, userRoles: 0 };
+  const created: SeedCounts = { models: 0, modelPositions: 0, modelTolerances: 0, finishes: 0, dealers: 0, users: 0, userRoles: 0, pairs: 0 };
 
   const seededUsers = await db.transaction(async (tx) => {
     // Checked inside the transaction so no real user can appear between the check and the writes.
@@ -145,6 +148,10 @@ export async function seedDemo(db: Db): Promise<SeedResult> {
       roles: rows.filter((r) => r.email === email && r.role !== null).map((r) => r.role as Role).sort(),
     }));
   });
+
+  // The production history, after the reference data has committed: its own transactions, one
+  // per month, so no single write lock is held for long. `history: false` seeds the reference alone.
+  if (options.history !== false) created.pairs = (await seedHistory(db)).pairs;
 
   return { created, users: seededUsers };
 }

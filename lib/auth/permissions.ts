@@ -3,6 +3,7 @@ import type { Role } from "./roles";
 /** Everything a guarded page, action or route may ask for. */
 export const PERMISSIONS = [
   "register.read",
+  "labels.print",
   "veneer.work",
   "cabinet.work",
   "lab.work",
@@ -18,13 +19,13 @@ export type Permission = (typeof PERMISSIONS)[number];
 
 /** The one permission map: role → what it may do. Every signed-in user may search and read traces. */
 export const ROLE_PERMISSIONS: Record<Role, readonly Permission[]> = {
-  veneer: ["register.read", "veneer.work"],
-  cabinet: ["register.read", "cabinet.work"],
-  lab: ["register.read", "lab.work"],
-  assembly: ["register.read", "assembly.work"],
-  packing: ["register.read", "packing.work"],
-  service: ["register.read", "service.work"],
-  quality: ["register.read", "quality.work"],
+  veneer: ["register.read", "labels.print", "veneer.work"],
+  cabinet: ["register.read", "labels.print", "cabinet.work"],
+  lab: ["register.read", "labels.print", "lab.work"],
+  assembly: ["register.read", "labels.print", "assembly.work"],
+  packing: ["register.read", "labels.print", "packing.work"],
+  service: ["register.read", "labels.print", "service.work"],
+  quality: ["register.read", "labels.print", "quality.work"],
   admin: ["register.read", "admin.users", "admin.reference", "admin.mail"],
 };
 

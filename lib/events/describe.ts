@@ -12,15 +12,26 @@ const PHRASES: Record<string, string> = {
   "model.created": "registered a model",
   "finish.created": "registered a finish",
   "dealer.created": "registered a dealer",
+  "item.created": "registered",
+  "item.state_changed": "changed state",
+  "link.fitted": "fitted",
+  "link.removed": "removed",
+  "label.printed": "printed a label",
 };
 
-export function describeEvent(type: string): string {
-  return PHRASES[type] ?? type;
+export function describeEvent(type: string, data: Record<string, unknown> = {}): string {
+  const phrase = PHRASES[type] ?? type;
+  const s = (k: string) => (typeof data[k] === "string" ? (data[k] as string) : "");
+  if (type === "link.fitted") return `fitted into ${s("parent")} at ${s("position")}`;
+  if (type === "link.removed") return `removed from ${s("parent")} at ${s("position")}`;
+  if (type === "item.state_changed") return `${s("from").replace(/_/g, " ")} → ${s("to").replace(/_/g, " ")}`;
+  if (type === "label.printed") return data.reprint ? "reprinted a label" : phrase;
+  return phrase;
 }
 
 /** What an event is about, in words: a code, e-mail or name it carries, else the bare id. */
 export function subjectLabel(e: { subjectKind: string; subjectId: string; data: Record<string, unknown> }): string {
   const d = e.data;
-  const label = [d.code, d.email, d.name].find((v): v is string => typeof v === "string" && v.length > 0);
+  const label = [d.identity, d.child, d.code, d.email, d.name].find((v): v is string => typeof v === "string" && v.length > 0);
   return `${e.subjectKind} ${label ?? e.subjectId}`;
 }

@@ -74,17 +74,25 @@ export function renderBarcode(opts: BarcodeOptions & { format: "png" }): Promise
 export function renderBarcode(opts: BarcodeOptions & { format: "svg" }): string;
 export function renderBarcode(opts: BarcodeOptions): Promise<Buffer> | string;
 export function renderBarcode(opts: BarcodeOptions): Promise<Buffer> | string {
-  const bwip = bwipOptions(opts);
   if (opts.format === "svg") {
+    const bwip = bwipOptions(opts);
     try {
       return toSVG(bwip);
     } catch (e) {
       throw toLabelError(opts, e);
     }
   }
-  return toBuffer(bwip).catch((e: unknown) => {
+  return renderPng(opts);
+}
+
+// Async throughout, so every PNG failure arrives as a rejection, never a synchronous throw.
+async function renderPng(opts: BarcodeOptions): Promise<Buffer> {
+  const bwip = bwipOptions(opts);
+  try {
+    return await toBuffer(bwip);
+  } catch (e) {
     throw toLabelError(opts, e);
-  });
+  }
 }
 
 /**

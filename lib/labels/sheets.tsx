@@ -37,11 +37,10 @@ const MONO_ADVANCE = 0.6;
 /**
  * Printed module size, snapped to whole printer dots so every bar of one width prints the same
  * number of dots (a module of 1.5 dots alternates between 1 and 2, and scanners miss). Linear:
- * at most 0.38 mm (3 dots at 203 dpi), at least 0.165 mm and 2 dots (2 dots at 300 dpi). 2D: 0.25
- * to 0.75 mm. Common practice for small labels, no published source.
+ * at most 0.38 mm (3 dots at 203 dpi), at least 0.165 mm and 2 dots (2 dots at 300 dpi). 2D: at
+ * least 0.25 mm, at most the layout's `matrixX`. Common practice for small labels, no published source.
  */
 const X_LINEAR = { max: 0.38, min: 0.165 };
-const X_MATRIX = { max: 0.75, min: 0.25 };
 const MIN_DOTS = 2;
 
 interface Geometry {
@@ -57,8 +56,9 @@ interface Geometry {
   hriPt: number;
   maxLines: number;
   barHeightMm: number;
-  /** Largest side of a 2D symbol. */
+  /** Largest side of a 2D symbol, and its largest module. */
   matrixMm: number;
+  matrixX: number;
   /** Printer resolution assumed when none is given: office lasers for sheets, thermal printers for rolls. */
   dpi: number;
   label: string;
@@ -79,6 +79,7 @@ const GEOMETRY: Record<SheetLayout, Geometry> = {
     maxLines: 2,
     barHeightMm: 9,
     matrixMm: 23,
+    matrixX: 0.75,
     dpi: 600,
     label: "70 × 37 mm label",
   },
@@ -95,6 +96,7 @@ const GEOMETRY: Record<SheetLayout, Geometry> = {
     maxLines: 2,
     barHeightMm: 14,
     matrixMm: 36,
+    matrixX: 1,
     dpi: 203,
     label: "100 × 50 mm label",
   },
@@ -233,7 +235,7 @@ async function prepare(spec: LabelSpec, g: Geometry, dpi: number): Promise<Prepa
   }
 
   const high = geo.modulesHigh ?? geo.modulesWide;
-  const k = dotsPerModule(Math.max(geo.modulesWide, high), g.matrixMm, X_MATRIX, dpi);
+  const k = dotsPerModule(Math.max(geo.modulesWide, high), g.matrixMm, { max: g.matrixX, min: 0.25 }, dpi);
   if (k === null) {
     throw new LabelError(`${where}: the data is too long for a 2D code on a ${g.label}. Shorten the text.`);
   }
@@ -259,7 +261,7 @@ function Label({ label, g }: { label: PreparedLabel; g: Geometry }) {
     return (
       <View style={{ flexDirection: "column", height: "100%" }}>
         <Heading spec={spec} g={g} widthPt={contentW} />
-        <View style={{ marginTop: "auto", alignItems: "center" }}>
+        <View style={{ marginTop: "auto", paddingTop: mm(1), alignItems: "center" }}>
           {image}
           {barcode.hri && (
             <Text
@@ -279,34 +281,43 @@ function Label({ label, g }: { label: PreparedLabel; g: Geometry }) {
   }
 
   const gap = mm(3);
+  // An explicit width: a flex child's text would otherwise lay out at the cell's full width and run off it.
+  const textW = contentW - barcode.widthPt - gap;
   return (
     <View style={{ flexDirection: "row", height: "100%", alignItems: "center" }}>
       {image}
-      <View style={{ marginLeft: gap, flexGrow: 1, flexShrink: 1, height: "100%" }}>
-        <Heading spec={spec} g={g} widthPt={contentW - barcode.widthPt - gap} />
+      <View style={{ marginLeft: gap, width: textW, height: "100%" }}>
+        <Heading spec={spec} g={g} widthPt={textW} />
       </View>
     </View>
   );
 }
 
 function Heading({ spec, g, widthPt }: { spec: LabelSpec; g: Geometry; widthPt: number }) {
-  const lines = (spec.lines ?? []).filter((l) => l.trim() !== "").join("  ·  ");
+  // A no-break space ties each dot to the item before it, so no wrapped line starts with one.
+  const lines = (spec.lines ?? [])
+    .filter((l) => l.trim() !== "")
+    .map((l) => l.replace(/ ·/g, "\u00a0·"))
+    .join("\u00a0· ");
   return (
     <View>
-      <Text style={{ fontSize: g.titlePt, fontWeight: 700 }} maxLines={1}>
+      <Text style={{ fontSize: g.titlePt, fontWeight: 700, maxLines: 1, textOverflow: "ellipsis" }}>
         {spec.title}
       </Text>
       <View style={{ borderBottomWidth: 0.6, borderBottomColor: LEAF, marginTop: 1.5, marginBottom: 2.5 }} />
-      <Text
-        style={{ fontFamily: MONO_FONT, fontWeight: 600, fontSize: fitMono(spec.serial, widthPt, g.serialPt) }}
-        maxLines={1}
-      >
+      <Text style={{ fontFamily: MONO_FONT, fontWeight: 600, fontSize: fitMono(spec.serial, widthPt, g.serialPt) }}>
         {spec.serial}
       </Text>
       {lines !== "" && (
         <Text
-          style={{ fontSize: g.linePt, color: SOFT_INK, marginTop: 2, lineHeight: 1.25 }}
-          maxLines={g.maxLines}
+          style={{
+            fontSize: g.linePt,
+            color: SOFT_INK,
+            marginTop: 2,
+            lineHeight: 1.25,
+            maxLines: g.maxLines,
+            textOverflow: "ellipsis",
+          }}
         >
           {lines}
         </Text>

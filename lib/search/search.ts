@@ -3,7 +3,7 @@ import Fuse from "fuse.js";
 import { inArray, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { dealers, items, owners } from "@/db/schema";
-import { nearMisses, normaliseScan, parseSerial } from "@/lib/serials";
+import { nearMisses, normaliseScan, serialReadings } from "@/lib/serials";
 
 export type SearchHit =
   | { type: "item"; id: string; identity: string; kind: string; state: string; href: string }
@@ -64,18 +64,21 @@ export async function search(db: DbOrTx, raw: string, limit = 10): Promise<Searc
   const answer: SearchAnswer = { query, exact: null, didYouMean: [], fuzzy: [] };
   if (!query) return answer;
 
-  const parsed = parseSerial(query);
-  const candidates = [...new Set([query, parsed?.canonical].filter((v): v is string => Boolean(v)))];
-  const found = await db.select({ id: items.id, identity: items.identity, kind: items.kind, state: items.state }).from(items).where(inArray(items.identity, candidates)).limit(1);
+  // Typed without separators a serial can be read more than one way: try every reading.
+  const readings = serialReadings(query);
+  const candidates = [...new Set([query, ...readings.map((r) => r.canonical)])];
+  const columns = { id: items.id, identity: items.identity, kind: items.kind, state: items.state };
+  const found = await db.select(columns).from(items).where(inArray(items.identity, candidates)).limit(1);
   if (found[0]) {
     answer.exact = itemHit(found[0]);
     return answer;
   }
 
-  if (parsed && !parsed.valid) {
-    const near = nearMisses(parsed.canonical);
+  // A check character that does not fit (or an O typed for a 0): the serials one slip away.
+  if (!readings.some((r) => r.valid)) {
+    const near = [...new Set([...readings.flatMap((r) => nearMisses(r.canonical)), ...nearMisses(query)])];
     if (near.length) {
-      const rows = await db.select({ id: items.id, identity: items.identity, kind: items.kind, state: items.state }).from(items).where(inArray(items.identity, near));
+      const rows = await db.select(columns).from(items).where(inArray(items.identity, near));
       answer.didYouMean = rows.map(itemHit);
     }
   }

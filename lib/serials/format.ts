@@ -124,31 +124,48 @@ export function readCompact(compact: string, codeLength: number): ParsedSerial |
   return readParts(parts, true);
 }
 
-const SEPARATORS = /[\s-]+/;
+/** `text` normalised and cut at its separators (hyphens, spaces), with where the cuts fell in the joined characters. */
+export function splitAtSeparators(text: string): { parts: string[]; compact: string; cuts: number[] } {
+  const parts = normaliseScan(text).split(/[\s-]+/).filter(Boolean);
+  const cuts: number[] = [];
+  let at = 0;
+  for (const part of parts.slice(0, -1)) cuts.push((at += part.length));
+  return { parts, compact: parts.join(""), cuts };
+}
 
 /**
- * Every well-shaped reading of `text`, best first. Typed with separators there is one; without,
- * the variable-length code makes several possible: readings whose check fits come first, then
- * the one with the 5-digit sequence. The check covers the body without hyphens, so it cannot
- * tell the readings of one string apart; a caller that can should look each up.
+ * The code lengths (4, 3, 2) under which `compact` has a 5–9 character sequence and every cut
+ * the person typed falls between two fields: a missing separator is forgiven, one inside a
+ * field is not.
+ */
+export function codeLengthsFitting(compact: string, cuts: number[]): number[] {
+  const lengths: number[] = [];
+  for (let codeLength = 4; codeLength >= 2; codeLength--) {
+    const seqLength = compact.length - 4 - codeLength;
+    if (seqLength < SEQ_MIN_WIDTH || seqLength > 9) continue;
+    const bounds = [1, 1 + codeLength, 3 + codeLength, compact.length - 1];
+    if (cuts.every((c) => bounds.includes(c))) lengths.push(codeLength);
+  }
+  return lengths;
+}
+
+/**
+ * Every well-shaped reading of `text`, best first. Typed with all four separators there is one;
+ * with fewer, the variable-length code can allow several: readings whose check fits come first,
+ * then the narrowest sequence (a 5-digit one). The check covers the body without hyphens, so it
+ * cannot tell the readings of one string apart; a caller that can should look each up.
  */
 export function serialReadings(text: string): ParsedSerial[] {
-  const t = normaliseScan(text);
-  if (!t) return [];
-  const parts = t.split(SEPARATORS).filter(Boolean);
+  const { parts, compact, cuts } = splitAtSeparators(text);
   if (parts.length === 5) {
     const [letter, code, yy, seq, check] = parts as [string, string, string, string, string];
     const reading = readParts({ letter, code, yy, seq, check }, false);
     if (reading) return [reading];
   }
-  // Separators missing or misplaced: read the characters alone.
-  const compact = parts.join("");
-  const readings: ParsedSerial[] = [];
-  for (let codeLength = 4; codeLength >= 2; codeLength--) {
-    const reading = readCompact(compact, codeLength);
-    if (reading) readings.push(reading);
-  }
-  // Stable sort: longest code (narrowest sequence) first among equals.
+  const readings = codeLengthsFitting(compact, cuts)
+    .map((codeLength) => readCompact(compact, codeLength))
+    .filter((r): r is ParsedSerial => r !== null);
+  // Stable sort: among equals the longest code (narrowest sequence) stays first.
   return readings.sort((a, b) => Number(b.valid) - Number(a.valid));
 }
 

@@ -4,7 +4,7 @@
  * back to it here; the caller keeps the candidates that exist in the register.
  */
 import { MOD37_ALPHABET } from "./iso7064";
-import { normaliseScan, readCompact } from "./format";
+import { codeLengthsFitting, readCompact, splitAtSeparators } from "./format";
 
 const M = 37;
 const mod = (n: number) => ((n % M) + M) % M;
@@ -28,7 +28,7 @@ interface Layout {
  * in the right class (an O for a 0 is exactly the slip to repair).
  */
 function layouts(text: string): Layout[] {
-  const parts = normaliseScan(text).split(/[\s-]+/).filter(Boolean);
+  const { parts, compact, cuts } = splitAtSeparators(text);
   if (parts.length === 0 || !parts.every((p) => /^[0-9A-Z*]+$/.test(p))) return [];
   if (parts.length === 5) {
     const [letter, code, yy, seq, check] = parts as [string, string, string, string, string];
@@ -38,13 +38,7 @@ function layouts(text: string): Layout[] {
       return [{ compact: letter + code + yy + padded + check, codeLength: code.length }];
     }
   }
-  const compact = parts.join("");
-  const found: Layout[] = [];
-  for (let codeLength = 4; codeLength >= 2; codeLength--) {
-    const seqLength = compact.length - 4 - codeLength;
-    if (seqLength >= 5 && seqLength <= 9) found.push({ compact, codeLength });
-  }
-  return found;
+  return codeLengthsFitting(compact, cuts).map((codeLength) => ({ compact, codeLength }));
 }
 
 /**

@@ -37,7 +37,7 @@ let qualityDemo: { id: string; name: string };
 
 beforeAll(async () => {
   // The seed refuses once non-demo users exist, so it runs before any test adds its own.
-  await seedDemo(db());
+  await seedDemo(db(), { history: false });
   admin = await byEmail("admin@demo.twinleaf.test");
   qualityDemo = await byEmail("quality@demo.twinleaf.test");
 });
@@ -218,7 +218,7 @@ describe("sessions", () => {
     const check = await checkSession(session.id, db());
     expect(check.session?.id).toBe(session.id);
     expect(check.user).toMatchObject({ id: u.id, email: u.email, name: u.name, roles: ["lab"] });
-    expect([...check.user!.permissions].sort()).toEqual(["lab.work", "register.read"]);
+    expect([...check.user!.permissions].sort()).toEqual(["lab.work", "labels.print", "register.read"]);
   });
 
   test("a role change shows on the next check, with no new sign-in", async () => {
@@ -227,7 +227,7 @@ describe("sessions", () => {
     await setRoles(db(), { userId: u.id, roles: ["quality"], actor: admin });
     const check = await checkSession(session.id, db());
     expect(check.user?.roles).toEqual(["quality"]);
-    expect([...check.user!.permissions].sort()).toEqual(["quality.work", "register.read"]);
+    expect([...check.user!.permissions].sort()).toEqual(["labels.print", "quality.work", "register.read"]);
     expect(await eventsOf(u.id, "user.roles_changed")).toMatchObject([{ data: { from: ["lab"], to: ["quality"] }, actorId: admin.id }]);
   });
 

@@ -187,7 +187,7 @@ async function snapshot(): Promise<Record<string, unknown[]>> {
 const userIdByRole = new Map<Role, string>();
 
 beforeAll(async () => {
-  const { users: demo } = await seedDemo(getDb());
+  const { users: demo } = await seedDemo(getDb(), { history: false });
   const rows = await getDb().all<{ id: string; email: string }>(sql`SELECT id, email FROM users`);
   for (const role of ROLES) {
     // seedDemo makes one demo user per role holding exactly that role.

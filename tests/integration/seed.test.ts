@@ -40,13 +40,13 @@ describe("the demo seed", () => {
   // These three share the file's database and run in order: empty → seeded → seeded again.
   test("seeding an empty database creates one demo user per role whose password verifies", async () => {
     const db = getDb();
-    const { created, users: signIns } = await seedDemo(db);
+    const { created, users: signIns } = await seedDemo(db, { history: false });
 
     const positions = SEED_MODELS.reduce((n, m) => n + m.positions.length, 0);
     const tolerances = SEED_MODELS.reduce((n, m) => n + m.tolerances.length, 0);
     expect(created).toEqual({
       models: SEED_MODELS.length, modelPositions: positions, modelTolerances: tolerances,
-      finishes: SEED_FINISHES.length, dealers: SEED_DEALERS.length, users: ROLES.length, userRoles: ROLES.length,
+      finishes: SEED_FINISHES.length, dealers: SEED_DEALERS.length, users: ROLES.length, userRoles: ROLES.length, pairs: 0,
     });
     // One event per created record, from the seed station and no actor.
     const seedEvents = await db.select().from(events);
@@ -76,7 +76,7 @@ describe("the demo seed", () => {
   test("a second run adds nothing", async () => {
     const db = getDb();
     const before = await tableCounts(db);
-    const { created, users: signIns } = await seedDemo(db);
+    const { created, users: signIns } = await seedDemo(db, { history: false });
     expect(Object.values(created).every((n) => n === 0)).toBe(true);
     expect(await tableCounts(db)).toEqual(before);
     expect(signIns).toHaveLength(ROLES.length);
@@ -86,7 +86,7 @@ describe("the demo seed", () => {
     const db = getDb();
     const before = await tableCounts(db);
     await db.delete(dealers).where(eq(dealers.code, SEED_DEALERS[0]!.code));
-    const { created } = await seedDemo(db);
+    const { created } = await seedDemo(db, { history: false });
     expect(created).toMatchObject({ dealers: 1, models: 0, finishes: 0, users: 0 });
     expect(await tableCounts(db)).toEqual({ ...before, events: before.events + 1 });
   });
@@ -98,8 +98,8 @@ describe("the demo seed", () => {
     await db.insert(users).values({ id: "real-1", email: "someone@workshop.test", name: "Real Person", demo: false });
     const before = await tableCounts(db);
 
-    await expect(seedDemo(db)).rejects.toBeInstanceOf(SeedRefusedError);
-    expect(await failureText(() => seedDemo(db))).toMatch(/non-demo user/);
+    await expect(seedDemo(db, { history: false })).rejects.toBeInstanceOf(SeedRefusedError);
+    expect(await failureText(() => seedDemo(db, { history: false }))).toMatch(/non-demo user/);
     expect(await tableCounts(db)).toEqual(before);
     expect(before).toMatchObject({ users: 1, models: 0, events: 0 });
   });

@@ -4,6 +4,7 @@ import { notFound } from "next/navigation";
 import { EventTable } from "@/components/shell/event-table";
 import { MomentSwitch } from "@/components/register/moment-switch";
 import { PairHalves } from "@/components/register/pair-halves";
+import { PrintLabels } from "@/components/register/print-labels";
 import { TraceTreePicture } from "@/components/register/trace-tree";
 import { Badge } from "@/components/ui/badge";
 import { BackLink } from "@/components/ui/back-link";
@@ -26,7 +27,7 @@ export async function generateMetadata({ params }: { params: Promise<{ identity:
 
 
 export default async function ItemPage({ params, searchParams }: { params: Promise<{ identity: string }>; searchParams: Promise<{ at?: string }> }) {
-  await requirePage("register.read");
+  const user = await requirePage("register.read");
   const db = getDb();
   const identity = decodeURIComponent((await params).identity);
   const found = await itemDetails(db, identity);
@@ -130,6 +131,16 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
             }))}
         />
       </Panel>
+
+      {user.permissions.has("labels.print") ? (
+        <Panel title="Label">
+          <div className="mb-4 flex items-center gap-4">
+            {/* eslint-disable-next-line @next/next/no-img-element -- a generated barcode, not a photo */}
+            <img src={`/api/v1/items/${encodeURIComponent(item.identity)}/barcode?format=svg`} alt={`Barcode of ${item.identity}`} className="h-20 w-auto bg-white p-2" />
+          </div>
+          <PrintLabels identities={[item.identity]} station={user.roles.find((r) => r !== "admin") ?? "labels"} />
+        </Panel>
+      ) : null}
 
       <Panel title="History">
         <p className="mb-3 text-sm text-ink-soft">Events about this item and the parts fitted directly into it, newest first. {events.length >= 200 ? "Showing the latest 200." : ""}</p>

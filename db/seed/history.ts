@@ -1,0 +1,769 @@
+/**
+ * Two invented years of production for the demo workshop: flitches and leaves, cabinets, drive
+ * units, crossovers and their component lots, speakers, pairs, cartons, shipments, a few owners
+ * and one repair. Everything is planned first in memory from a seeded PRNG (so a given `now` and
+ * `seed` always give the same register), then written through the genealogy functions with every
+ * step back-dated, one transaction per calendar month. Demo data only: no test of the computation
+ * may rely on it.
+ */
+import { randomUUID } from "node:crypto";
+import { eq } from "drizzle-orm";
+import type { Db, Tx } from "@/db";
+import { dealers, finishes, items, modelPositions, models, owners, ownerships, users, type Item } from "@/db/schema";
+import { appendEvent } from "@/lib/events/queries";
+import { changeState, createItem, fit, removeFrom, type NewItem, type Recorder } from "@/lib/genealogy/graph";
+import { allocateSerial } from "@/lib/serials/allocator";
+import { leafIdentity, PART_TYPE_CODES, type PartType, type SerialKind } from "@/lib/serials/format";
+
+export interface HistoryCounts {
+  pairs: number;
+  shippedPairs: number;
+  /** Pairs built but not yet shipped (in assembly, awaiting test, tested, packed). */
+  pairsInWorkshop: number;
+  shipments: number;
+  items: number;
+  owners: number;
+  ownerships: number;
+}
+
+const NONE: HistoryCounts = { pairs: 0, shippedPairs: 0, pairsInWorkshop: 0, shipments: 0, items: 0, owners: 0, ownerships: 0 };
+
+export const DEFAULT_HISTORY_SEED = 0x7a11ea5;
+
+const MIN = 60_000;
+const HOUR = 60 * MIN;
+const DAY = 24 * HOUR;
+/** Months of history by default: two years, enough for a tweeter to fail a year after shipping. */
+const DEFAULT_MONTHS = 24;
+/** Pairs started per month (inclusive range); kept small so the demo seeds in a few seconds. */
+const PAIRS_PER_MONTH: [number, number] = [3, 5];
+/** Lots of crossover components are bought about quarterly. */
+const LOT_PERIOD_DAYS = 91;
+/** Each dealer gets a consolidated shipment every four weeks, the dealers about a week apart. */
+const SHIP_CADENCE_DAYS = 28;
+
+// ---- invented suppliers and people ---------------------------------------------------------------
+
+const VENEER_SUPPLIERS = ["Ashgrove Veneer Merchants", "Haldenwald Furniere", "Tallowcreek Timber"] as const;
+const TWEETER_MAKER = { name: "Corvane Acoustique", prefix: "CV" } as const;
+const CONE_MAKER = { name: "Varnholt Elektroakustik", prefix: "VH" } as const;
+const COMPONENT_SUPPLIERS = { capacitor: "Brennholm Passives", inductor: "Quillfield Windings", resistor: "Brennholm Passives" } as const;
+
+type ComponentType = keyof typeof COMPONENT_SUPPLIERS;
+const COMPONENT_CODES: Record<ComponentType, string> = { capacitor: "CAP", inductor: "IND", resistor: "RES" };
+
+/** The lots bought each period, one per component value; the letter tells apart the lots of one month. */
+const LOT_VALUES: { type: ComponentType; letter: string; value: string }[] = [
+  { type: "capacitor", letter: "A", value: "4.7 µF 400 V polypropylene" },
+  { type: "capacitor", letter: "B", value: "10 µF 250 V polypropylene" },
+  { type: "capacitor", letter: "C", value: "22 µF 100 V polypropylene" },
+  { type: "inductor", letter: "A", value: "0.33 mH air core, 0.45 Ω" },
+  { type: "inductor", letter: "B", value: "1.5 mH air core, 0.60 Ω" },
+  { type: "inductor", letter: "C", value: "2.7 mH foil core, 0.35 Ω" },
+  { type: "inductor", letter: "D", value: "4.7 mH foil core, 0.40 Ω" },
+  { type: "resistor", letter: "A", value: "2.2 Ω 10 W wirewound" },
+  { type: "resistor", letter: "B", value: "3.3 Ω 10 W wirewound" },
+  { type: "resistor", letter: "C", value: "6.8 Ω 10 W wirewound" },
+];
+const lotKeyOf = (gen: number, type: ComponentType, letter: string) => `lot:${gen}:${type}:${letter}`;
+
+/**
+ * Which lot value sits at each reference designator of a model's crossover. The 4.7 µF tweeter
+ * capacitor is common to all three, so one lot of it ends up in every crossover of its quarter.
+ */
+const CROSSOVER_BOM: Record<string, [position: string, type: ComponentType, letter: string][]> = {
+  PW2: [["C1", "capacitor", "A"], ["C2", "capacitor", "B"], ["L1", "inductor", "A"], ["L2", "inductor", "B"], ["R1", "resistor", "A"], ["R2", "resistor", "C"]],
+  SL3: [["C1", "capacitor", "A"], ["C2", "capacitor", "C"], ["L1", "inductor", "A"], ["L2", "inductor", "C"], ["R1", "resistor", "A"], ["R2", "resistor", "B"]],
+  TB3: [["C1", "capacitor", "A"], ["C2", "capacitor", "C"], ["L1", "inductor", "A"], ["L2", "inductor", "D"], ["R1", "resistor", "A"], ["R2", "resistor", "B"]],
+};
+const DEFAULT_BOM = CROSSOVER_BOM.PW2!;
+
+const MODEL_WEIGHTS: Record<string, number> = { PW2: 45, SL3: 35, TB3: 20 };
+const FINISH_WEIGHTS: Record<string, number> = { WAL: 30, OAK: 20, CHY: 12, SYC: 8, LSL: 16, LCH: 14 };
+const DEALER_WEIGHTS: Record<string, number> = { MLR: 32, KHS: 30, SNV: 22, BLS: 16 };
+
+/** Invented owners; towns are invented too. Matched to pairs sold by a dealer in their country. */
+const OWNERS: { name: string; email: string; town: string; country: string; pairs: number }[] = [
+  { name: "Edwin Marlowe-Pike", email: "edwin.marlowe-pike@post.test", town: "Thistlecombe", country: "GB", pairs: 2 },
+  { name: "Harriet Quenneville", email: "h.quenneville@mail.test", town: "Pellingford", country: "GB", pairs: 1 },
+  { name: "Callum Ardrossey", email: "callum@ardrossey.test", town: "Merrowby", country: "GB", pairs: 1 },
+  { name: "Ines Vautrin", email: "ines.vautrin@courriel.test", town: "Montcellier-la-Haute", country: "FR", pairs: 1 },
+  { name: "Mathilde Roussel-Garnier", email: "m.roussel-garnier@courriel.test", town: "Vaudrey-sur-Lenne", country: "FR", pairs: 2 },
+  { name: "Clara Weidenfeld", email: "clara.weidenfeld@post.test", town: "Brunnwiesen", country: "DE", pairs: 1 },
+  { name: "Lukas Treuhaft", email: "lukas.treuhaft@mail.test", town: "Haselstedt", country: "DE", pairs: 2 },
+  { name: "Birte Ahlgren-Voss", email: "birte.ahlgren-voss@post.test", town: "Kestelbrück", country: "DE", pairs: 1 },
+  { name: "Henrik Solbakk", email: "henrik.solbakk@epost.test", town: "Brattvik", country: "NO", pairs: 1 },
+  { name: "Ingrid Tveitmoen", email: "ingrid.tveitmoen@epost.test", town: "Eikelund", country: "NO", pairs: 1 },
+];
+
+const FAILURE_REASON = "no output above 3 kHz";
+
+// ---- seeded randomness ---------------------------------------------------------------------------
+
+/** mulberry32: small, fast and good enough for invented data; the same seed gives the same history. */
+class Rng {
+  private a: number;
+  constructor(seed: number) {
+    this.a = seed >>> 0;
+  }
+  float(): number {
+    this.a = (this.a + 0x6d2b79f5) >>> 0;
+    let t = this.a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  }
+  /** Integer in [lo, hi]. */
+  int(lo: number, hi: number): number {
+    return lo + Math.floor(this.float() * (hi - lo + 1));
+  }
+  chance(p: number): boolean {
+    return this.float() < p;
+  }
+  pick<T>(xs: readonly T[]): T {
+    return xs[Math.floor(this.float() * xs.length)]!;
+  }
+  weighted<T>(xs: readonly T[], weight: (x: T) => number): T {
+    const total = xs.reduce((s, x) => s + weight(x), 0);
+    let r = this.float() * total;
+    for (const x of xs) {
+      r -= weight(x);
+      if (r < 0) return x;
+    }
+    return xs[xs.length - 1]!;
+  }
+}
+
+// ---- dates ---------------------------------------------------------------------------------------
+
+const plus = (d: Date, ms: number) => new Date(d.getTime() + ms);
+
+/**
+ * `days` after `d` (before it when negative), at `hour` UTC, moved off a weekend: the workshop
+ * works Monday to Friday. A step planned back from a later one moves to the Friday before, so
+ * it cannot overtake the step it prepares.
+ */
+function workday(d: Date, days: number, hour: number): Date {
+  const out = new Date(d.getTime() + days * DAY);
+  out.setUTCHours(hour, 0, 0, 0);
+  const dow = out.getUTCDay();
+  if (dow === 6) out.setUTCDate(out.getUTCDate() + (days < 0 ? -1 : 2));
+  if (dow === 0) out.setUTCDate(out.getUTCDate() + (days < 0 ? -2 : 1));
+  return out;
+}
+
+const monthKey = (d: Date) => `${d.getUTCFullYear()}-${String(d.getUTCMonth() + 1).padStart(2, "0")}`;
+const yymm = (d: Date) => `${String(d.getUTCFullYear() % 100).padStart(2, "0")}${String(d.getUTCMonth() + 1).padStart(2, "0")}`;
+
+// ---- the plan: dated operations on keyed items ---------------------------------------------------
+
+type Role = "veneer" | "cabinet" | "lab" | "assembly" | "packing" | "service";
+interface By {
+  role: Role;
+  station: string;
+}
+
+type IdentitySpec = { serial: { kind: SerialKind; code: string } } | { leafOf: string; leafNo: number } | { fixed: string };
+interface ItemSpec extends Omit<NewItem, "identity"> {
+  identity: IdentitySpec;
+}
+
+interface RunContext {
+  tx: Tx;
+  items: Map<string, Item>;
+  /** Event ids an operation leaves for a later one (the correction names the event it corrects). */
+  notes: Map<string, number>;
+  counts: { owners: number; ownerships: number };
+  recorder(by: By, at: Date): Recorder;
+}
+
+interface Op {
+  at: Date;
+  order: number;
+  run(ctx: RunContext): Promise<void>;
+}
+
+class Plan {
+  readonly ops: Op[] = [];
+  private order = 0;
+  /** The makers' own running numbers, per plan so every run starts from the same ones. */
+  readonly makerSerials = { tweeter: 418_230, cone: 2_207_514 };
+  /** When each period's component lots arrive. */
+  readonly lotReceipts: Date[] = [];
+
+  add(at: Date, run: Op["run"]): void {
+    this.ops.push({ at, order: this.order++, run });
+  }
+
+  create(key: string, at: Date, by: By, spec: ItemSpec): void {
+    this.add(at, async (ctx) => {
+      const { identity, ...rest } = spec;
+      let id: string;
+      if ("serial" in identity) id = await allocateSerial(ctx.tx, { ...identity.serial, year: at.getUTCFullYear() });
+      else if ("leafOf" in identity) id = leafIdentity(get(ctx, identity.leafOf).identity, identity.leafNo);
+      else id = identity.fixed;
+      ctx.items.set(key, await createItem(ctx.tx, { ...rest, identity: id }, ctx.recorder(by, at)));
+    });
+  }
+
+  fit(at: Date, by: By, parent: string, child: string, position: string, data?: Record<string, unknown>): void {
+    this.add(at, async (ctx) => {
+      await fit(ctx.tx, { parent: get(ctx, parent), child: get(ctx, child), position, data }, ctx.recorder(by, at));
+    });
+  }
+
+  state(at: Date, by: By, key: string, state: string): void {
+    this.add(at, async (ctx) => changeState(ctx.tx, get(ctx, key), state, ctx.recorder(by, at)));
+  }
+}
+
+function get(ctx: RunContext, key: string): Item {
+  const item = ctx.items.get(key);
+  // A plan bug, not a user error: every operation is dated after the ones it depends on.
+  if (!item) throw new Error(`history seed: ${key} used before it was created`);
+  return item;
+}
+
+// ---- reference data ------------------------------------------------------------------------------
+
+interface RefModel {
+  id: string;
+  code: string;
+  leavesPerFace: number;
+  minLeafLengthMm: number;
+  minLeafWidthMm: number;
+  pairGtin: string;
+  positions: { position: string; partType: PartType }[];
+}
+interface Reference {
+  models: RefModel[];
+  finishes: { id: string; code: string; name: string; kind: "veneer" | "lacquer" }[];
+  dealers: { id: string; code: string; country: string }[];
+  actors: Map<Role, string>;
+}
+
+async function loadReference(db: Db): Promise<Reference | null> {
+  const modelRows = await db.select().from(models).where(eq(models.active, true)).orderBy(models.code);
+  const positionRows = await db.select().from(modelPositions).orderBy(modelPositions.position);
+  const finishRows = await db.select().from(finishes).where(eq(finishes.active, true)).orderBy(finishes.code);
+  const dealerRows = await db.select().from(dealers).where(eq(dealers.active, true)).orderBy(dealers.code);
+  const userRows = await db.select({ id: users.id, email: users.email }).from(users).where(eq(users.demo, true));
+  if (modelRows.length === 0 || finishRows.length === 0 || dealerRows.length === 0) return null;
+
+  const actors = new Map<Role, string>();
+  for (const role of ["veneer", "cabinet", "lab", "assembly", "packing", "service"] as const) {
+    const u = userRows.find((r) => r.email === `${role}@demo.twinleaf.test`);
+    if (u) actors.set(role, u.id);
+  }
+  return {
+    models: modelRows.map((m) => ({
+      id: m.id,
+      code: m.code,
+      leavesPerFace: m.leavesPerFace,
+      minLeafLengthMm: m.minLeafLengthMm,
+      minLeafWidthMm: m.minLeafWidthMm,
+      pairGtin: m.pairGtin,
+      // A position with count n holds n units: P1..Pn.
+      positions: positionRows
+        .filter((p) => p.modelId === m.id)
+        .flatMap((p) =>
+          p.count === 1 ? [{ position: p.position, partType: p.partType }] : Array.from({ length: p.count }, (_, i) => ({ position: `${p.position}${i + 1}`, partType: p.partType })),
+        ),
+    })),
+    finishes: finishRows.map((f) => ({ id: f.id, code: f.code, name: f.name, kind: f.kind })),
+    dealers: dealerRows.map((d) => ({ id: d.id, code: d.code, country: d.country })),
+    actors,
+  };
+}
+
+// ---- planning ------------------------------------------------------------------------------------
+
+interface Timeline {
+  press: Date;
+  cure: Date;
+  finished: Date;
+  unitsIn: Date;
+  crossoverBuilt: Date;
+  assembly: Date;
+  built: Date;
+  tested: Date;
+  packed: Date;
+}
+
+interface PairPlan {
+  key: string;
+  window: number;
+  model: RefModel;
+  finish: Reference["finishes"][number];
+  dealer: Reference["dealers"][number];
+  t: Timeline;
+  /** Set when its shipment date falls before `now`. */
+  shippedAt?: Date;
+  /** Drive-unit keys by side and position, for the repair. */
+  units: Record<"L" | "R", Record<string, string>>;
+}
+
+const VENEER: By = { role: "veneer", station: "veneer" };
+const at = (role: Role, station: string): By => ({ role, station });
+
+function timeline(rng: Rng, press: Date, lacquer: boolean): Timeline {
+  // Trimming, bracing, sanding and the coats before flatting; lacquer colours take more coats.
+  const cure = workday(press, lacquer ? rng.int(6, 9) : rng.int(4, 7), 15);
+  // About two weeks of curing, then flatting, polishing and the hand finish.
+  const finished = workday(cure, 14 + rng.int(2, 4), 16);
+  const assembly = workday(finished, rng.int(1, 6), 9);
+  const unitsIn = new Date(Math.max(press.getTime() + DAY, workday(assembly, -rng.int(4, 18), 11).getTime()));
+  const crossoverBuilt = new Date(Math.max(unitsIn.getTime() + HOUR, workday(assembly, -rng.int(2, 8), 14).getTime()));
+  const built = workday(assembly, 1, 16);
+  const tested = workday(built, rng.int(1, 3), 11);
+  const packed = workday(tested, rng.int(1, 3), 14);
+  return { press, cure, finished, unitsIn, crossoverBuilt, assembly, built, tested, packed };
+}
+
+function shiftTimeline(t: Timeline, ms: number): Timeline {
+  return Object.fromEntries(Object.entries(t).map(([k, d]) => [k, plus(d, ms)])) as unknown as Timeline;
+}
+
+interface Planned {
+  plan: Plan;
+  pairs: PairPlan[];
+}
+
+function planHistory(ref: Reference, now: Date, seed: number, months: number): Planned {
+  const rng = new Rng(seed);
+  const plan = new Plan();
+  const start = plus(now, -months * 30.4 * DAY);
+  const windowMs = (now.getTime() - start.getTime()) / months;
+  const weight = (table: Record<string, number>) => (x: { code: string }) => table[x.code] ?? 5;
+
+  // Pairs and their timelines.
+  const pairs: PairPlan[] = [];
+  for (let w = 0; w < months; w++) {
+    const n = rng.int(...PAIRS_PER_MONTH);
+    const starts = Array.from({ length: n }, () => plus(start, w * windowMs + rng.float() * windowMs)).sort((a, b) => a.getTime() - b.getTime());
+    for (const s of starts) {
+      const model = rng.weighted(ref.models, weight(MODEL_WEIGHTS));
+      const finish = rng.weighted(ref.finishes, weight(FINISH_WEIGHTS));
+      const dealer = rng.weighted(ref.dealers, weight(DEALER_WEIGHTS));
+      const press = workday(s, 0, 8 + rng.int(0, 3));
+      pairs.push({ key: `pair:${pairs.length}`, window: w, model, finish, dealer, t: timeline(rng, press, finish.kind === "lacquer"), units: { L: {}, R: {} } });
+    }
+  }
+
+  // Pin a few of the last pairs to moments just before `now`, so the workshop always shows one
+  // pair at each late step whatever the random draw: in assembly, awaiting test, tested, packed.
+  // Each is shifted whole so its earlier steps keep their order; the steps after `now` are set
+  // explicitly because weekends make the planned gaps uneven.
+  const h = (hours: number) => plus(now, hours * HOUR);
+  const anchors: ((t: Timeline) => Timeline)[] = [
+    (t) => ({ ...shiftTimeline(t, h(-4).getTime() - t.assembly.getTime()), built: h(20), tested: h(44), packed: h(68) }),
+    (t) => ({ ...shiftTimeline(t, h(-40).getTime() - t.assembly.getTime()), built: h(-12), tested: h(24), packed: h(48) }),
+    (t) => ({ ...shiftTimeline(t, h(-20).getTime() - t.tested.getTime()), packed: h(24) }),
+    (t) => shiftTimeline(t, h(-48).getTime() - t.packed.getTime()),
+  ];
+  // Taken from the two months before the last, so the last month's own pairs stay at the press.
+  const late = pairs.filter((p) => p.window >= months - 3 && p.window <= months - 2).slice(-anchors.length);
+  late.forEach((p, i) => (p.t = anchors[i]!(p.t)));
+
+  // Shipping: the first consolidated shipment of the pair's dealer after it was packed.
+  const dealerIndex = new Map(ref.dealers.map((d, i) => [d.id, i]));
+  const shipments = new Map<string, { dealer: PairPlan["dealer"]; at: Date; pairs: PairPlan[] }>();
+  for (const p of pairs) {
+    // Every dealer's day is a weekday, afternoon, at least five days back (the cadence keeps the
+    // weekday), so a pair packed in the last two days is always still waiting.
+    const base = workday(now, -(5 + 6 * (dealerIndex.get(p.dealer.id)! % 4)), 15).getTime();
+    const cadence = SHIP_CADENCE_DAYS * DAY;
+    let ship = base - Math.floor((base - p.t.packed.getTime()) / cadence) * cadence;
+    if (ship - p.t.packed.getTime() < 12 * HOUR) ship += cadence;
+    if (ship > now.getTime()) continue;
+    p.shippedAt = new Date(ship);
+    const key = `${p.dealer.id}:${ship}`;
+    const group = shipments.get(key) ?? { dealer: p.dealer, at: p.shippedAt, pairs: [] };
+    group.pairs.push(p);
+    shipments.set(key, group);
+  }
+
+  planLots(plan, rng, start, now);
+  planFlitches(plan, rng, ref, pairs);
+  for (const p of pairs) planPair(plan, rng, p);
+  planShipments(plan, [...shipments.values()]);
+  const repaired = planRepair(plan, rng, pairs, now);
+  planStock(plan, rng, ref, now);
+  planOwners(plan, rng, pairs, repaired, now);
+  return { plan, pairs };
+}
+
+/** The newest period whose lots had arrived (all of them, hence the hour's margin) by `d`. */
+function lotGeneration(plan: Plan, d: Date): number {
+  let g = 0;
+  while (g + 1 < plan.lotReceipts.length && plus(plan.lotReceipts[g + 1]!, HOUR) <= d) g++;
+  return g;
+}
+
+function planLots(plan: Plan, rng: Rng, start: Date, now: Date) {
+  const lab = at("lab", "lab");
+  // The first lots arrive before the first crossover of the history is built.
+  const first = plus(start, -20 * DAY);
+  for (let g = 0; ; g++) {
+    const received = workday(first, g * LOT_PERIOD_DAYS, 10);
+    if (received > now) break;
+    plan.lotReceipts.push(received);
+    for (const lot of LOT_VALUES) {
+      const key = lotKeyOf(g, lot.type, lot.letter);
+      plan.create(key, plus(received, rng.int(0, 30) * MIN), lab, {
+        kind: "component_lot",
+        partType: lot.type,
+        state: "in_stock",
+        identity: { fixed: `LOT-${COMPONENT_CODES[lot.type]}-${yymm(received)}-${lot.letter}` },
+        attrs: { supplier: COMPONENT_SUPPLIERS[lot.type], value: lot.value },
+      });
+      // Used up once the next period's lot arrives.
+      const next = workday(first, (g + 1) * LOT_PERIOD_DAYS, 12);
+      if (next <= now) plan.state(next, lab, key, "used_up");
+    }
+  }
+}
+
+function planFlitches(plan: Plan, rng: Rng, ref: Reference, pairs: PairPlan[]) {
+  // One flitch per species and month serves that month's veneered pairs in pressing order.
+  const groups = new Map<string, PairPlan[]>();
+  for (const p of pairs) {
+    if (p.finish.kind !== "veneer") continue;
+    const key = `${p.finish.code}:${p.window}`;
+    groups.set(key, [...(groups.get(key) ?? []), p]);
+  }
+  const press = at("cabinet", "press");
+  for (const [groupKey, group] of groups) {
+    group.sort((a, b) => a.t.press.getTime() - b.t.press.getTime());
+    const finish = group[0]!.finish;
+    const flitchKey = `flitch:${groupKey}`;
+    const received = workday(group[0]!.t.press, -rng.int(8, 20), 10);
+    const lengthMm = Math.max(...group.map((p) => p.model.minLeafLengthMm)) + rng.int(20, 140);
+    const widthMm = Math.max(...group.map((p) => p.model.minLeafWidthMm)) + rng.int(12, 60);
+    plan.create(flitchKey, received, VENEER, {
+      kind: "flitch",
+      finishId: finish.id,
+      state: "received",
+      identity: { serial: { kind: "flitch", code: finish.code } },
+      attrs: {
+        species: finish.name,
+        supplier: rng.pick(VENEER_SUPPLIERS),
+        logReference: `LOG-${rng.int(1000, 9899)}-${rng.pick(["A", "B", "C"])}`,
+        leafThicknessMm: 0.6,
+      },
+    });
+
+    // Leaf numbers: each pair takes a run of 2k, sometimes with a reserve leaf after it for repairs.
+    let next = 1;
+    const runs: { pair: PairPlan; leaves: number[]; reserve?: number }[] = [];
+    for (const p of group) {
+      const leaves = Array.from({ length: 2 * p.model.leavesPerFace }, (_, i) => next + i);
+      next += leaves.length;
+      const reserve = rng.chance(0.4) ? next++ : undefined;
+      runs.push({ pair: p, leaves, reserve });
+    }
+    const leftovers = Array.from({ length: rng.int(1, 3) }, () => next++);
+    const recorded = plus(received, DAY);
+    for (let n = 1; n < next; n++) {
+      plan.create(`${flitchKey}:leaf:${n}`, plus(recorded, n * MIN), VENEER, {
+        kind: "leaf",
+        finishId: finish.id,
+        state: "available",
+        identity: { leafOf: flitchKey, leafNo: n },
+        attrs: { seq: n, lengthMm: lengthMm + rng.int(-4, 4), widthMm: widthMm + rng.int(-6, 6) },
+      });
+    }
+
+    for (const { pair, leaves, reserve } of runs) {
+      // Allocation is confirmed the day before pressing.
+      const allocated = plus(pair.t.press, -18 * HOUR);
+      if (reserve !== undefined) plan.state(allocated, VENEER, `${flitchKey}:leaf:${reserve}`, "spare");
+      // Left face the odd leaves of the run, right face the even ones turned over: the bookmatch.
+      leaves.forEach((n, i) => {
+        const side = i % 2 === 0 ? "L" : "R";
+        const when = plus(pair.t.press, (30 + i) * MIN);
+        plan.fit(when, press, `${pair.key}:cab:${side}`, `${flitchKey}:leaf:${n}`, `F${Math.floor(i / 2) + 1}`, side === "R" ? { orientation: "turned" } : undefined);
+        plan.state(when, press, `${flitchKey}:leaf:${n}`, "used");
+      });
+    }
+    const last = group[group.length - 1]!;
+    for (const n of leftovers) plan.state(plus(last.t.press, 2 * HOUR), VENEER, `${flitchKey}:leaf:${n}`, "spare");
+  }
+}
+
+function planPair(plan: Plan, rng: Rng, p: PairPlan) {
+  const { t, model } = p;
+  const lab = at("lab", "lab");
+  const assembly = at("assembly", "assembly");
+  const cabinetStation = p.finish.kind === "veneer" ? "press" : "lacquer";
+  const sides = ["L", "R"] as const;
+
+  for (const side of sides) {
+    const cab = `${p.key}:cab:${side}`;
+    plan.create(cab, plus(t.press, (side === "L" ? 0 : 1) * MIN), at("cabinet", cabinetStation), {
+      kind: "cabinet",
+      modelId: model.id,
+      finishId: p.finish.id,
+      state: "in_progress",
+      identity: { serial: { kind: "cabinet", code: model.code } },
+      attrs: { side },
+    });
+    plan.state(t.cure, at("cabinet", "cure"), cab, "curing");
+    plan.state(t.finished, at("cabinet", "finish"), cab, "finished");
+  }
+
+  // Drive units arrive measured and matched at the lab, left and right together.
+  let minute = 0;
+  for (const { position, partType } of model.positions) {
+    for (const side of sides) {
+      const key = `${p.key}:du:${side}:${position}`;
+      p.units[side][position] = key;
+      plan.create(key, plus(t.unitsIn, minute++ * MIN), lab, driveUnit(plan, rng, model, partType));
+    }
+  }
+
+  const gen = lotGeneration(plan, t.crossoverBuilt);
+  for (const side of sides) {
+    const xo = `${p.key}:xo:${side}`;
+    const built = plus(t.crossoverBuilt, (side === "L" ? 0 : 20) * MIN);
+    plan.create(xo, built, assembly, { kind: "crossover", modelId: model.id, state: "in_stock", identity: { serial: { kind: "crossover", code: model.code } } });
+    for (const [position, type, letter] of CROSSOVER_BOM[model.code] ?? DEFAULT_BOM) {
+      plan.fit(plus(built, MIN), assembly, xo, lotKeyOf(gen, type, letter), position);
+    }
+  }
+
+  for (const side of sides) {
+    const spk = `${p.key}:spk:${side}`;
+    const begun = plus(t.assembly, (side === "L" ? 0 : 45) * MIN);
+    plan.create(spk, begun, assembly, {
+      kind: "speaker",
+      modelId: model.id,
+      finishId: p.finish.id,
+      state: "in_assembly",
+      identity: { serial: { kind: "speaker", code: model.code } },
+      attrs: { side },
+    });
+    const step = plus(begun, MIN);
+    plan.fit(step, assembly, spk, `${p.key}:cab:${side}`, "CAB");
+    for (const { position } of model.positions) {
+      plan.fit(step, assembly, spk, p.units[side][position]!, position);
+      plan.state(step, assembly, p.units[side][position]!, "fitted");
+    }
+    plan.fit(step, assembly, spk, `${p.key}:xo:${side}`, "XO");
+    plan.state(step, assembly, `${p.key}:xo:${side}`, "fitted");
+    plan.state(t.built, assembly, spk, "built");
+  }
+
+  const paired = plus(t.assembly, 2 * HOUR);
+  plan.create(p.key, paired, assembly, {
+    kind: "pair",
+    modelId: model.id,
+    finishId: p.finish.id,
+    state: "in_assembly",
+    identity: { serial: { kind: "pair", code: model.code } },
+  });
+  for (const side of sides) plan.fit(plus(paired, MIN), assembly, p.key, `${p.key}:spk:${side}`, side);
+  plan.state(t.built, assembly, p.key, "awaiting_test");
+  plan.state(t.tested, lab, p.key, "tested");
+
+  const packing = at("packing", "packing");
+  const carton = `${p.key}:carton`;
+  plan.create(carton, t.packed, packing, {
+    kind: "carton",
+    modelId: model.id,
+    state: "packed",
+    identity: { serial: { kind: "carton", code: model.code } },
+    attrs: { gtin: model.pairGtin },
+  });
+  plan.fit(plus(t.packed, MIN), packing, carton, p.key, "PAIR");
+  plan.state(plus(t.packed, MIN), packing, p.key, "packed");
+}
+
+function driveUnit(plan: Plan, rng: Rng, model: RefModel, partType: PartType): ItemSpec {
+  const tweeter = partType === "tweeter";
+  const maker = tweeter ? TWEETER_MAKER : CONE_MAKER;
+  const counter = tweeter ? "tweeter" : "cone";
+  // Units reach the lab sorted by the maker's own measurements, so their numbers have gaps.
+  const makerSerials = plan.makerSerials;
+  makerSerials[counter] += rng.int(1, 37);
+  return {
+    kind: "drive_unit",
+    modelId: model.id,
+    partType,
+    state: "in_stock",
+    identity: { serial: { kind: "drive_unit", code: PART_TYPE_CODES[partType] } },
+    attrs: { maker: maker.name, makerSerial: `${maker.prefix}${makerSerials[counter]}` },
+  };
+}
+
+function planShipments(plan: Plan, groups: { dealer: PairPlan["dealer"]; at: Date; pairs: PairPlan[] }[]) {
+  const packing = at("packing", "packing");
+  groups.sort((a, b) => a.at.getTime() - b.at.getTime());
+  groups.forEach((g, i) => {
+    const key = `shipment:${i}`;
+    plan.create(key, g.at, packing, {
+      kind: "shipment",
+      dealerId: g.dealer.id,
+      state: "shipped",
+      identity: { serial: { kind: "shipment", code: g.dealer.code } },
+    });
+    g.pairs.forEach((p, n) => {
+      const when = plus(g.at, (n + 1) * MIN);
+      plan.fit(when, packing, key, `${p.key}:carton`, String(n + 1));
+      plan.state(when, packing, `${p.key}:carton`, "shipped");
+      plan.state(when, packing, p.key, "shipped");
+    });
+  });
+}
+
+/** A tweeter that went silent about a year after shipping, replaced from stock by the service desk. */
+function planRepair(plan: Plan, rng: Rng, pairs: PairPlan[], now: Date): PairPlan | null {
+  const candidates = pairs.filter((p) => p.shippedAt && p.shippedAt.getTime() < now.getTime() - 420 * DAY && p.units.L.T);
+  if (candidates.length === 0) return null;
+  const p = rng.pick(candidates);
+  const side = rng.pick(["L", "R"] as const);
+  const service = at("service", "service");
+  const spk = `${p.key}:spk:${side}`;
+  const failed = p.units[side].T!;
+  const returned = workday(p.shippedAt!, rng.int(330, 380), 10);
+  const repaired = workday(returned, 3, 14);
+
+  const stock = `${p.key}:replacement:T`;
+  plan.create(stock, workday(returned, -rng.int(40, 90), 11), at("lab", "lab"), driveUnit(plan, rng, p.model, "tweeter"));
+
+  plan.state(returned, service, spk, "returned");
+  plan.add(repaired, async (ctx) => {
+    const by = ctx.recorder(service, repaired);
+    const speaker = get(ctx, spk);
+    const old = get(ctx, failed);
+    const removal = await removeFrom(ctx.tx, { parent: speaker, child: old }, { ...by, reason: FAILURE_REASON });
+    ctx.notes.set("repair.removal", removal.eventId);
+    await changeState(ctx.tx, old, "failed", by);
+    const replacement = get(ctx, stock);
+    await fit(ctx.tx, { parent: speaker, child: replacement, position: "T", data: { replaces: old.identity } }, by);
+    await changeState(ctx.tx, replacement, "fitted", by);
+  });
+  plan.state(plus(repaired, DAY), service, spk, "repaired");
+
+  // The bench found more than the first note said: a correction names the event it corrects.
+  const corrected = workday(repaired, 6, 9);
+  if (corrected <= now) {
+    plan.add(corrected, async (ctx) => {
+      await appendEvent(ctx.tx, {
+        actorId: ctx.recorder(service, corrected).actorId,
+        station: "service",
+        type: "event.corrected",
+        subjectKind: "item",
+        subjectId: get(ctx, failed).id,
+        correctsId: ctx.notes.get("repair.removal")!,
+        reason: "Bench measurement added: the voice coil is open circuit, so the removal note was incomplete.",
+        data: { identity: get(ctx, failed).identity, field: "reason", from: FAILURE_REASON, to: `${FAILURE_REASON}; voice coil open circuit` },
+        at: corrected,
+      });
+    });
+  }
+  return p;
+}
+
+/** Spare units the service desk can choose a replacement from. */
+function planStock(plan: Plan, rng: Rng, ref: Reference, now: Date) {
+  const lab = at("lab", "lab");
+  let n = 0;
+  for (const model of ref.models) {
+    const types = [...new Set(model.positions.map((p) => p.partType))];
+    for (const partType of types) {
+      const count = partType === "tweeter" ? 3 : 2;
+      for (let i = 0; i < count; i++) {
+        plan.create(`stock:${n++}`, workday(now, -rng.int(10, 240), 11), lab, driveUnit(plan, rng, model, partType));
+      }
+    }
+  }
+}
+
+function planOwners(plan: Plan, rng: Rng, pairs: PairPlan[], repaired: PairPlan | null, now: Date) {
+  const service = at("service", "service");
+  const taken = new Set<string>();
+  const registered = (p: PairPlan) => workday(p.shippedAt!, rng.int(14, 75), 10);
+  // The repaired pair's owner is the one the service desk writes to, so it must have one.
+  const pool = pairs.filter((p) => p.shippedAt && p.shippedAt.getTime() < now.getTime() - 90 * DAY);
+  for (const owner of OWNERS) {
+    const mine: PairPlan[] = [];
+    if (repaired && !taken.has(repaired.key) && repaired.dealer.country === owner.country) mine.push(repaired);
+    const rest = pool.filter((p) => p.dealer.country === owner.country && !taken.has(p.key) && p !== repaired);
+    while (mine.length < owner.pairs && rest.length > 0) mine.push(rest.splice(rng.int(0, rest.length - 1), 1)[0]!);
+    if (mine.length === 0) continue;
+    for (const p of mine) taken.add(p.key);
+
+    const id = randomUUID();
+    const dated = mine.map((p) => ({ p, since: registered(p) })).sort((a, b) => a.since.getTime() - b.since.getTime());
+    plan.add(dated[0]!.since, async (ctx) => {
+      await ctx.tx.insert(owners).values({ id, name: owner.name, email: owner.email, town: owner.town, country: owner.country, createdAt: dated[0]!.since });
+      ctx.counts.owners++;
+    });
+    for (const { p, since } of dated) {
+      plan.add(plus(since, MIN), async (ctx) => {
+        const pair = get(ctx, p.key);
+        const eventId = await appendEvent(ctx.tx, {
+          actorId: ctx.recorder(service, since).actorId,
+          station: "service",
+          type: "ownership.registered",
+          subjectKind: "item",
+          subjectId: pair.id,
+          data: { identity: pair.identity, ownerId: id },
+          at: since,
+        });
+        await ctx.tx.insert(ownerships).values({ ownerId: id, itemId: pair.id, since, eventId });
+        ctx.counts.ownerships++;
+      });
+    }
+  }
+}
+
+// ---- writing -------------------------------------------------------------------------------------
+
+/**
+ * Seeds the invented production history ending at `now`. Skips entirely when the register already
+ * holds a pair (a second run, or a workshop that has started recording its own). `months` shortens
+ * it for tests; the repair needs more than a year and a half to appear.
+ */
+export async function seedHistory(db: Db, options: { now?: Date; seed?: number; months?: number } = {}): Promise<HistoryCounts> {
+  const [existing] = await db.select({ id: items.id }).from(items).where(eq(items.kind, "pair")).limit(1);
+  if (existing) return NONE;
+  const ref = await loadReference(db);
+  if (!ref) return NONE;
+
+  const now = options.now ?? new Date();
+  const { plan, pairs } = planHistory(ref, now, options.seed ?? DEFAULT_HISTORY_SEED, options.months ?? DEFAULT_MONTHS);
+  // Stable sort: operations at one instant keep the order they were planned in.
+  const ops = plan.ops.filter((op) => op.at <= now).sort((a, b) => a.at.getTime() - b.at.getTime() || a.order - b.order);
+
+  const byMonth = new Map<string, Op[]>();
+  for (const op of ops) {
+    const key = monthKey(op.at);
+    const list = byMonth.get(key);
+    if (list) list.push(op);
+    else byMonth.set(key, [op]);
+  }
+
+  const created = new Map<string, Item>();
+  const notes = new Map<string, number>();
+  const counts = { owners: 0, ownerships: 0 };
+  const recorder = (by: By, when: Date): Recorder => ({ actorId: ref.actors.get(by.role) ?? null, station: by.station, at: when });
+  for (const monthOps of byMonth.values()) {
+    await db.transaction(async (tx) => {
+      const ctx: RunContext = { tx, items: created, notes, counts, recorder };
+      for (const op of monthOps) await op.run(ctx);
+    });
+  }
+
+  const pairItems = pairs.map((p) => created.get(p.key)).filter((i): i is Item => i !== undefined);
+  return {
+    pairs: pairItems.length,
+    shippedPairs: pairItems.filter((i) => i.state === "shipped").length,
+    pairsInWorkshop: pairItems.filter((i) => i.state !== "shipped").length,
+    shipments: [...created.values()].filter((i) => i.kind === "shipment").length,
+    items: created.size,
+    owners: counts.owners,
+    ownerships: counts.ownerships,
+  };
+}
