@@ -57,7 +57,7 @@ export function TraceTreePicture({ tree, height = 520 }: { tree: TraceTree; heig
         data={data}
         orientation="horizontal"
         collapsible
-        initialDepth={2}
+        initialDepth={1}
         nodeSize={{ x: 250, y: 46 }}
         separation={{ siblings: 1, nonSiblings: 1.3 }}
         translate={{ x: 40, y: height / 2 }}

@@ -7,24 +7,13 @@ import type { Role } from "@/lib/auth/roles";
 import { appendEvent } from "@/lib/events/queries";
 import { DEMO_PASSWORD, SEED_DEALERS, SEED_FINISHES, SEED_MODELS, SEED_USERS } from "./data";
 import { seedHistory } from "./history";
+import { gs1CheckDigit, isValidGtin } from "@/lib/serials";
 
-/**
- * GS1 mod-10 check digit of the data digits (everything but the check digit): weights 3, 1, 3, …
- * from the rightmost data digit; check = (10 − sum mod 10) mod 10.
- * Kept here until the shared serials module exists.
- */
-export function gs1CheckDigit(data: string): number {
-  if (!/^[0-9]+$/.test(data)) throw new Error(`GS1 data must be digits only: "${data}"`);
-  let sum = 0;
-  for (let i = 0; i < data.length; i++) {
-    const digit = data.charCodeAt(data.length - 1 - i) - 48;
-    sum += digit * (i % 2 === 0 ? 3 : 1);
-  }
-  return (10 - (sum % 10)) % 10;
-}
+export { gs1CheckDigit };
 
+/** The seed's GTINs are checked with the register's own GS1 code (tested against GS1's examples in lib/serials). */
 export function isValidGtin14(gtin: string): boolean {
-  return /^[0-9]{14}$/.test(gtin) && gs1CheckDigit(gtin.slice(0, 13)) === Number(gtin[13]);
+  return gtin.length === 14 && isValidGtin(gtin);
 }
 
 /** The database holds real users: seeding demo sign-ins with a published password would open it up. */

@@ -17,6 +17,8 @@ const PHRASES: Record<string, string> = {
   "link.fitted": "fitted",
   "link.removed": "removed",
   "label.printed": "printed a label",
+  "ownership.registered": "registered the owner",
+  "event.corrected": "corrected an earlier record",
 };
 
 export function describeEvent(type: string, data: Record<string, unknown> = {}): string {
