@@ -49,12 +49,12 @@ describe("search and trace in the register", () => {
   });
 
   test("a serial with one character slipped is answered with the serial it could have been", async () => {
-    // Change one body character so the check character no longer fits (ISO/IEC 7064 catches every single substitution).
-    const body = repair.pair.replace(/-/g, "").slice(0, -1);
-    const i = body.length - 2;
-    const wrongDigit = body[i] === "7" ? "8" : "7";
-    const mistyped = repair.pair.replace(new RegExp(`${body[i]}(-[^-]+)$`), `${wrongDigit}$1`);
-    expect(mod37_2Check(mistyped.replace(/-/g, "").slice(0, -1))).not.toBe(mistyped.slice(-1));
+    // Change the last digit of the sequence; ISO/IEC 7064 MOD 37-2 catches every single substitution.
+    const parts = repair.pair.split("-");
+    const seq = parts[3]!;
+    parts[3] = seq.slice(0, -1) + String((Number(seq.slice(-1)) + 1) % 10);
+    const mistyped = parts.join("-");
+    expect(mod37_2Check(parts.slice(0, -1).join(""))).not.toBe(parts.at(-1));
     await typeInSearch(mistyped);
     const options = page.getByTestId("search-option").and(page.locator('[data-group="Did you mean"]'));
     await expect(options.first().textContent()).resolves.toContain(repair.pair);
@@ -93,5 +93,30 @@ describe("search and trace in the register", () => {
     const res = await page.request.get(url(`/api/v1/items/${encodeURIComponent(repair.pair)}/trace?asOf=yesterday-ish`));
     expect(res.status()).toBe(400);
     expect((await res.json()).fieldErrors.asOf[0]).toMatch(/Use now, built, ever, or a date/);
+  });
+
+  test("a label prints as a PDF, its barcode serves as PNG, and a second print is recorded as a reprint", async () => {
+    const png = await page.request.get(url(`/api/v1/items/${encodeURIComponent(repair.pair)}/barcode?format=png`));
+    expect(png.headers()["content-type"]).toBe("image/png");
+    expect((await png.body()).subarray(1, 4).toString()).toBe("PNG");
+    for (let i = 0; i < 2; i++) {
+      const pdf = await page.request.post(url("/api/v1/labels"), { data: { identities: [repair.pair], layout: "thermal-100x50", printerDpi: 300, station: "service" } });
+      expect(pdf.status()).toBe(200);
+      expect((await pdf.body()).subarray(0, 5).toString()).toBe("%PDF-");
+    }
+    const events = await (await page.request.get(url("/api/v1/events?limit=5&station=service"))).json();
+    const prints = events.events.filter((e: { type: string; data: { identity?: string } }) => e.type === "label.printed" && e.data.identity === repair.pair);
+    expect(prints.map((e: { data: { reprint: boolean } }) => e.data.reprint)).toEqual([true, false]);
+  });
+
+  test("bad label requests write nothing and say why", async () => {
+    const before = (await (await page.request.get(url("/api/v1/events?limit=1"))).json()).events[0].id;
+    const unknown = await page.request.post(url("/api/v1/labels"), { data: { identities: ["P-NOPE-26-00001-X"], layout: "a4-3x8" } });
+    expect(unknown.status()).toBe(404);
+    expect((await unknown.json()).error).toContain("P-NOPE-26-00001-X");
+    const badLayout = await page.request.post(url("/api/v1/labels"), { data: { identities: [repair.pair], layout: "postcard" } });
+    expect(badLayout.status()).toBe(400);
+    const after = (await (await page.request.get(url("/api/v1/events?limit=1"))).json()).events[0].id;
+    expect(after).toBe(before);
   });
 });
