@@ -3,15 +3,19 @@
  * in a temporary database, then times the genealogy traces of lib/genealogy/trace.ts against it.
  * Run with `npm run bench:trace`; never part of `npm test`. The last line printed is one JSON object.
  *
- *   --plans   print EXPLAIN QUERY PLAN of both trace queries even when every target is met
+ *   --plans   run the diagnosis (query plans and the labelled prototypes) even when every target is met
  *   --keep    keep the temporary database (its path is printed) for poking at afterwards
  */
+import { spawn } from "node:child_process";
 import { mkdtempSync, rmSync, statSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { performance } from "node:perf_hooks";
+import { createInterface } from "node:readline";
+import { fileURLToPath } from "node:url";
 import type { InStatement, InValue } from "@libsql/client";
 import { type SQL, sql } from "drizzle-orm";
+import { SQLiteAsyncDialect } from "drizzle-orm/sqlite-core";
 import { type Db, openClient, openDb } from "@/db";
 import { migrateDatabase } from "@/db/migrate";
 import { SEED_DEALERS, SEED_FINISHES, SEED_MODELS } from "@/db/seed/data";
@@ -349,26 +353,33 @@ async function naiveBackward(db: Db, rootId: string): Promise<number> {
 
 const TARGET_BACKWARD_P95 = 5;
 const TARGET_FORWARD_P95 = 100;
+// The library's forward trace runs in a child process that is killed after this long: a plan
+// that scans the whole register per trace must not hold the benchmark for ten minutes.
+const FORWARD_BUDGET_MS = 40_000;
+const FORWARD_WARM_UP = 5;
+const FORWARD_SAMPLES = 40;
 
-/** Nearest-rank percentile. */
+/** Nearest-rank percentile; NaN for no samples. */
 function percentile(samples: number[], q: number): number {
+  if (samples.length === 0) return Number.NaN;
   const sorted = [...samples].sort((a, b) => a - b);
   return sorted[Math.max(0, Math.ceil(q * sorted.length) - 1)]!;
 }
 
-async function sample(label: string, warmUp: number, n: number, run: (i: number) => Promise<unknown>): Promise<number[]> {
+async function sample<T>(label: string, warmUp: number, n: number, run: (i: number) => Promise<T>): Promise<{ ms: number[]; last: T }> {
   for (let i = 0; i < warmUp; i++) await run(i);
-  const out: number[] = [];
+  const ms: number[] = [];
+  let last: T | undefined;
   for (let i = 0; i < n; i++) {
     const t = performance.now();
-    await run(i);
-    out.push(performance.now() - t);
+    last = await run(i);
+    ms.push(performance.now() - t);
   }
   console.log(`  ${label}: ${n} samples after ${warmUp} warm-up runs`);
-  return out;
+  return { ms, last: last as T };
 }
 
-/** A Db that remembers the last SQL handed to `db.all`, so the plan shown is the library's own query. */
+/** A Db that remembers the last SQL handed to `db.all`, so plans and prototypes start from the library's own query. */
 function recordingDb(db: Db): { db: Db; last: () => SQL } {
   let last: SQL | undefined;
   const proxy = new Proxy(db, {
@@ -389,42 +400,239 @@ function recordingDb(db: Db): { db: Db; last: () => SQL } {
   };
 }
 
+const dialect = new SQLiteAsyncDialect();
+
+/** The text of a recorded query with its values bound back in, as a drizzle SQL object. */
+function rebind(text: string, params: unknown[]): SQL {
+  const parts = text.split("?");
+  if (parts.length !== params.length + 1) throw new Error("bench: a recorded query has a literal '?'");
+  return sql.join(parts.flatMap((p, i) => (i < params.length ? [sql.raw(p), sql`${params[i]}`] : [sql.raw(p)])));
+}
+
 async function queryPlan(db: Db, query: SQL): Promise<string[]> {
   const rows = await db.all<{ id: number; parent: number; detail: string }>(sql`EXPLAIN QUERY PLAN ${query}`);
   const depth = new Map<number, number>([[0, 0]]);
   return rows.map((r) => {
     const d = (depth.get(Number(r.parent)) ?? 0) + 1;
     depth.set(Number(r.id), d);
-    return `${"  ".repeat(d)}${r.detail}`;
+    return `    ${"  ".repeat(d)}${r.detail}`;
   });
 }
 
-const ms = (v: number) => `${v.toFixed(2)} ms`;
+/** Distinct serialised holders (every kind but lots) above the root of a forward trace, by kind. */
+function serialsOf(nodes: TraceNode[]): { total: number; byKind: Record<string, number> } {
+  const seen = new Map<string, string>();
+  for (const n of nodes) if (n.depth > 0 && n.kind !== "component_lot") seen.set(n.id, n.kind);
+  const byKind: Record<string, number> = {};
+  for (const kind of seen.values()) byKind[kind] = (byKind[kind] ?? 0) + 1;
+  return { total: seen.size, byKind };
+}
+
+/** The same register fact asked independently of trace.ts: every distinct open holder above an item. */
+async function holdersCounted(db: Db, rootId: string): Promise<number> {
+  const [row] = await db.all<{ n: number }>(sql`
+    WITH RECURSIVE up(id) AS (
+      SELECT ${rootId}
+      UNION
+      SELECT l.parent_id FROM links l JOIN up ON l.child_id = up.id WHERE l.ended_at IS NULL
+    )
+    SELECT count(*) AS n FROM up CROSS JOIN items i ON i.id = up.id WHERE up.id <> ${rootId} AND i.kind <> 'component_lot'`);
+  return Number(row?.n ?? 0);
+}
+
+/** The child process of the library's forward trace: prints one line a sample, the reach first. */
+async function forwardChild(url: string, lotId: string) {
+  const { client, db } = openDb(url);
+  for (let i = 0; i < FORWARD_WARM_UP + FORWARD_SAMPLES; i++) {
+    const t = performance.now();
+    const nodes = await traceForward(db, lotId, { mode: "now" });
+    const elapsed = performance.now() - t;
+    if (i === 0) process.stdout.write(`reach ${JSON.stringify(serialsOf(nodes))}\n`);
+    if (i >= FORWARD_WARM_UP) process.stdout.write(`sample ${elapsed}\n`);
+  }
+  client.close();
+}
+
+interface ChildForward {
+  ms: number[];
+  reach: { total: number; byKind: Record<string, number> } | null;
+  killed: boolean;
+}
+
+async function forwardInChild(url: string, lotId: string): Promise<ChildForward> {
+  const script = fileURLToPath(import.meta.url);
+  const child = spawn(process.execPath, [...process.execArgv, script, "--forward-child", url, lotId], { stdio: ["ignore", "pipe", "inherit"] });
+  const out: ChildForward = { ms: [], reach: null, killed: false };
+  const timer = setTimeout(() => {
+    out.killed = true;
+    child.kill("SIGKILL");
+  }, FORWARD_BUDGET_MS);
+  const lines = createInterface({ input: child.stdout });
+  lines.on("line", (line) => {
+    const [tag, rest = ""] = line.split(/ (.*)/s);
+    if (tag === "reach") out.reach = JSON.parse(rest) as ChildForward["reach"];
+    else if (tag === "sample") out.ms.push(Number(rest));
+  });
+  const code = await new Promise<number | null>((resolve) => child.on("exit", (c) => resolve(c)));
+  clearTimeout(timer);
+  if (!out.killed && code !== 0) throw new Error(`bench: the forward-trace child exited with ${code}`);
+  console.log(
+    out.killed
+      ? `  forward trace of the big lot: stopped after ${(FORWARD_BUDGET_MS / 1000).toFixed(0)} s with ${out.ms.length} samples`
+      : `  forward trace of the big lot: ${out.ms.length} samples after ${FORWARD_WARM_UP} warm-up runs (own process)`,
+  );
+  return out;
+}
+
+// ---------------------------------------------------------------------------------------------
+// PROTOTYPES — not the library's code. Each starts from the SQL that trace.ts itself sent (as
+// recorded) and changes one thing, to show what a change in lib/ or db/ would buy.
+// ---------------------------------------------------------------------------------------------
+
+type TraceRow = {
+  id: string; kind: TraceNode["kind"]; identity: string; state: string; part_type: string | null; model_id: string | null; finish_id: string | null;
+  dealer_id: string | null; attrs: string; via: string | null; position: string | null; depth: number; link_id: number | null; started_at: number | null; ended_at: number | null;
+};
+
+// The same mapping as trace.ts's (private) toNode, so the prototypes pay the same JS costs.
+const rowToNode = (r: TraceRow): TraceNode => ({
+  id: r.id, kind: r.kind, identity: r.identity, state: r.state, partType: r.part_type, modelId: r.model_id, finishId: r.finish_id, dealerId: r.dealer_id,
+  attrs: typeof r.attrs === "string" ? (JSON.parse(r.attrs) as Record<string, unknown>) : {},
+  via: r.via, position: r.position, depth: Number(r.depth), linkId: r.link_id === null ? null : Number(r.link_id),
+  startedAt: r.started_at === null ? null : new Date(Number(r.started_at)), endedAt: r.ended_at === null ? null : new Date(Number(r.ended_at)),
+});
+
+const LIB_JOIN = "FROM first JOIN items i ON i.id = first.id";
+const FINAL_SELECT = "SELECT i.id, i.kind, i.identity";
+
+/** Prototype A: the library's forward query with `CROSS JOIN`, which makes SQLite keep `first` as the outer loop. */
+function crossJoinQuery(text: string): string | null {
+  return text.includes(LIB_JOIN) ? text.replace(LIB_JOIN, "FROM first CROSS JOIN items i ON i.id = first.id") : null;
+}
+
+/** Prototype B: A, and the whole answer as one JSON value, so the driver converts one value instead of 15 a node. */
+function jsonQuery(text: string): string | null {
+  const a = crossJoinQuery(text);
+  const at = a?.lastIndexOf(FINAL_SELECT) ?? -1;
+  if (!a || at < 0) return null;
+  return `${a.slice(0, at)}SELECT json_group_array(json_array(i.id, i.kind, i.identity, i.state, i.part_type, i.model_id, i.finish_id, i.dealer_id, json(i.attrs),
+      first.via, first.position, first.depth, first.link_id, first.started_at, first.ended_at) ORDER BY first.depth, i.kind, i.identity) AS nodes
+    FROM first CROSS JOIN items i ON i.id = first.id
+    WHERE first.rn = 1`;
+}
+
+type JsonNode = [string, TraceNode["kind"], string, string, string | null, string | null, string | null, string | null, Record<string, unknown>, string | null, string | null, number, number | null, number | null, number | null];
+const jsonToNodes = (text: string): TraceNode[] =>
+  (JSON.parse(text) as JsonNode[]).map((r) => ({
+    id: r[0], kind: r[1], identity: r[2], state: r[3], partType: r[4], modelId: r[5], finishId: r[6], dealerId: r[7], attrs: r[8] ?? {},
+    via: r[9], position: r[10], depth: r[11], linkId: r[12], startedAt: r[13] === null ? null : new Date(r[13]), endedAt: r[14] === null ? null : new Date(r[14]),
+  }));
+
+// Prototype C: a covering partial index for the upward step of a "now" trace (open links only,
+// every column the step reads), so the step never visits the links table itself.
+const COVERING_INDEX = "CREATE INDEX bench_links_open_by_child ON links (child_id, parent_id, position, started_at, ended_at) WHERE ended_at IS NULL";
+
+const sameTrace = (a: TraceNode[], b: TraceNode[]) =>
+  a.length === b.length && a.every((n, i) => n.id === b[i]!.id && n.via === b[i]!.via && n.depth === b[i]!.depth && n.linkId === b[i]!.linkId);
+
+interface ProtoResult { label: string; p50: number; p95: number; samples: number; nodes: number; note: string }
+
+/**
+ * Schema changes go through a connection of their own: the measuring connection keeps its
+ * statements prepared, and SQLite refuses to drop an index under them (SQLITE_LOCKED).
+ */
+async function ddl(url: string, statement: string) {
+  const client = openClient(url);
+  try {
+    await client.execute(statement);
+  } finally {
+    client.close();
+  }
+}
+
+async function prototypes(url: string, db: Db, forwardText: string, forwardParams: unknown[], bigLotId: string, unitId: string, unitTrace: TraceNode[]): Promise<ProtoResult[]> {
+  const out: ProtoResult[] = [];
+  const forParams = (params: unknown[], id: string) => params.map((p) => (p === bigLotId ? id : p));
+  const a = crossJoinQuery(forwardText);
+  const b = jsonQuery(forwardText);
+  if (!a || !b) {
+    console.log("  the library's forward query no longer has the shape the prototypes edit; prototypes skipped");
+    return out;
+  }
+  const runA = async (id: string) => (await db.all<TraceRow>(rebind(a, forParams(forwardParams, id)))).map(rowToNode);
+  const runB = async (id: string) => {
+    const [row] = await db.all<{ nodes: string }>(rebind(b, forParams(forwardParams, id)));
+    return jsonToNodes(row?.nodes ?? "[]");
+  };
+
+  // Each prototype must give the library's answer, or its timing proves nothing.
+  if (!sameTrace(await runA(unitId), unitTrace) || !sameTrace(await runB(unitId), unitTrace)) throw new Error("bench: a prototype's trace of a drive unit differs from the library's");
+  const aBig = await runA(bigLotId);
+  if (!sameTrace(await runB(bigLotId), aBig)) throw new Error("bench: prototypes A and B disagree on the big lot");
+
+  const record = (label: string, s: { ms: number[]; last: TraceNode[] }, note: string) =>
+    out.push({ label, p50: percentile(s.ms, 0.5), p95: percentile(s.ms, 0.95), samples: s.ms.length, nodes: s.last.length, note });
+
+  record("A  CROSS JOIN items", await sample("prototype A (CROSS JOIN), big lot", FORWARD_WARM_UP, FORWARD_SAMPLES, () => runA(bigLotId)), "one word in trace.ts");
+  record("A  CROSS JOIN items, drive unit", await sample("prototype A (CROSS JOIN), drive unit", 5, 40, () => runA(unitId)), "");
+  record("B  A + answer as one JSON value", await sample("prototype B (CROSS JOIN + JSON), big lot", FORWARD_WARM_UP, FORWARD_SAMPLES, () => runB(bigLotId)), "final SELECT in trace.ts");
+
+  await ddl(url, COVERING_INDEX);
+  const plan = (await queryPlan(db, rebind(b, forwardParams))).join("\n");
+  record("C  B + covering partial index", await sample("prototype C (B + covering index), big lot", FORWARD_WARM_UP, FORWARD_SAMPLES, () => runB(bigLotId)),
+    plan.includes("bench_links_open_by_child") ? "new migration" : "index NOT used by the plan");
+  await ddl(url, "DROP INDEX bench_links_open_by_child");
+
+  // Prototype D: the library's query untouched, after ANALYZE has given the planner row counts.
+  await ddl(url, "ANALYZE");
+  const planD = (await queryPlan(db, rebind(forwardText, forwardParams))).join("\n");
+  if (/SCAN i\b/.test(planD)) {
+    console.log("  prototype D (ANALYZE): the plan still scans items; not timed");
+  } else {
+    const lib = async (id: string) => traceForward(db, id, { mode: "now" });
+    record("D  library query after ANALYZE", await sample("prototype D (library query after ANALYZE), big lot", FORWARD_WARM_UP, FORWARD_SAMPLES, () => lib(bigLotId)), "needs stats kept fresh");
+  }
+  return out;
+}
+
+const ms = (v: number) => (Number.isNaN(v) ? "—" : `${v.toFixed(2)} ms`);
 const round2 = (v: number) => Math.round(v * 100) / 100;
+const count = (n: number) => n.toLocaleString("en");
+
+function printTable(rows: string[][]) {
+  const widths = rows[0]!.map((_, c) => Math.max(...rows.map((r) => (r[c] ?? "").length)));
+  for (const r of rows) console.log(r.map((cell, c) => (c === 1 ? cell.padStart(widths[c]!) : cell.padEnd(widths[c]!))).join("  ").trimEnd());
+}
 
 async function main() {
-  const args = new Set(process.argv.slice(2));
+  const argv = process.argv.slice(2);
+  if (argv[0] === "--forward-child") return forwardChild(argv[1]!, argv[2]!);
+  const args = new Set(argv);
   const dir = mkdtempSync(join(tmpdir(), "twinleaf-bench-"));
   const file = join(dir, "register.db");
   const url = `file:${file}`;
+  let cleaned = false;
   const cleanUp = () => {
+    if (cleaned) return;
+    cleaned = true;
     if (args.has("--keep")) console.log(`kept ${file}`);
     else rmSync(dir, { recursive: true, force: true });
   };
-  process.once("SIGINT", () => {
-    cleanUp();
-    process.exit(130);
-  });
+  for (const signal of ["SIGINT", "SIGTERM"] as const) {
+    process.once(signal, () => {
+      cleanUp();
+      process.exit(130);
+    });
+  }
 
   try {
-    console.log(`twinleaf trace benchmark — ${PAIRS.toLocaleString("en")} pairs over ${YEARS} years in ${file}`);
+    console.log(`twinleaf trace benchmark — ${count(PAIRS)} pairs over ${YEARS} years in ${file}`);
     await migrateDatabase(url);
     console.log("building the register:");
     const built = await buildRegister(url);
-    const mb = (statSync(file).size / 1048576).toFixed(0);
     console.log(
-      `built ${built.links.toLocaleString("en")} links and ${built.items.toLocaleString("en")} items (${built.repairs} repairs) ` +
-        `in ${built.seconds.toFixed(1)} s; database ${mb} MB`,
+      `built ${count(built.links)} links and ${count(built.items)} items (${built.repairs} repairs) ` +
+        `in ${built.seconds.toFixed(1)} s; database ${(statSync(file).size / 1048576).toFixed(0)} MB`,
     );
 
     // Measured through the app's own client settings (openDb), not the build's tuned connection.
@@ -435,57 +643,84 @@ async function main() {
     const target = (i: number) => targets[i % targets.length]!;
 
     // The naive loop must find what the recursive query finds, or its timing means nothing.
-    const check = target(0);
-    const expected = (await traceBackward(db, check, { mode: "now" })).length;
-    const naiveFound = await naiveBackward(db, check);
+    const expected = (await traceBackward(db, target(0), { mode: "now" })).length;
+    const naiveFound = await naiveBackward(db, target(0));
     if (naiveFound !== expected) throw new Error(`bench: naive trace found ${naiveFound} nodes, traceBackward ${expected}`);
 
     console.log("measuring:");
     const backward = await sample("backward trace of a pair", 30, 300, (i) => traceBackward(rec.db, target(i + 30), { mode: "now" }));
     const backwardQuery = rec.last();
-    const forward = await sample("forward trace of the big lot", 5, 40, () => traceForward(rec.db, built.bigLotId, { mode: "now" }));
-    const forwardQuery = rec.last();
     const naive = await sample("naive backward trace (one query a parent)", 30, 300, (i) => naiveBackward(db, target(i + 60)));
-
-    const reached: TraceNode[] = await traceForward(db, built.bigLotId, { mode: "now" });
-    const serials = new Set(reached.filter((n) => n.depth > 0 && n.kind !== "component_lot").map((n) => n.id));
-    const byKind = new Map<string, number>();
-    for (const n of reached) if (serials.has(n.id)) byKind.set(n.kind, (byKind.get(n.kind) ?? 0) + 1);
-    const backwardNodes = (await traceBackward(db, target(1), { mode: "now" })).length;
+    const forward = await forwardInChild(url, built.bigLotId);
 
     const result = {
       links: built.links,
-      backward_p50_ms: round2(percentile(backward, 0.5)),
-      backward_p95_ms: round2(percentile(backward, 0.95)),
-      forward_p95_ms: round2(percentile(forward, 0.95)),
-      forward_serials: serials.size,
-      naive_backward_p95_ms: round2(percentile(naive, 0.95)),
+      backward_p50_ms: round2(percentile(backward.ms, 0.5)),
+      backward_p95_ms: round2(percentile(backward.ms, 0.95)),
+      // null, not a made-up number, when the library's trace could not be timed within the budget
+      forward_p95_ms: forward.ms.length > 0 ? round2(percentile(forward.ms, 0.95)) : null,
+      forward_serials: 0,
+      naive_backward_p95_ms: round2(percentile(naive.ms, 0.95)),
     };
     const backwardOk = result.backward_p95_ms <= TARGET_BACKWARD_P95;
-    const forwardOk = result.forward_p95_ms <= TARGET_FORWARD_P95;
+    const forwardOk = result.forward_p95_ms !== null && result.forward_p95_ms <= TARGET_FORWARD_P95;
     const verdict = (ok: boolean) => (ok ? "met" : "MISSED");
 
-    const rows: [string, string, string][] = [
-      ["links in the register", built.links.toLocaleString("en"), ""],
-      ["build time", `${built.seconds.toFixed(1)} s`, ""],
-      [`backward trace of a pair (${backwardNodes} nodes), p50`, ms(result.backward_p50_ms), ""],
-      ["backward trace of a pair, p95", ms(result.backward_p95_ms), `≤ ${TARGET_BACKWARD_P95} ms: ${verdict(backwardOk)}`],
-      [`forward trace of ${built.bigLotIdentity}, p50`, ms(percentile(forward, 0.5)), ""],
-      [`forward trace of ${built.bigLotIdentity}, p95`, ms(result.forward_p95_ms), `≤ ${TARGET_FORWARD_P95} ms: ${verdict(forwardOk)}`],
-      ["serialised items above the big lot", result.forward_serials.toLocaleString("en"), [...byKind].map(([k, v]) => `${k} ${v}`).join(", ")],
-      ["naive backward trace (a query a parent), p50", ms(percentile(naive, 0.5)), ""],
-      ["naive backward trace (a query a parent), p95", ms(result.naive_backward_p95_ms), `${(result.naive_backward_p95_ms / result.backward_p95_ms).toFixed(1)}× the recursive query`],
-    ];
-    const w0 = Math.max(...rows.map((r) => r[0].length));
-    const w1 = Math.max(...rows.map((r) => r[1].length));
+    // The reach of the big lot, asked a second way; the trace's own count must agree with it.
+    const counted = await holdersCounted(db, built.bigLotId);
+    let reachNote: string;
+    if (forward.reach) {
+      if (forward.reach.total !== counted) throw new Error(`bench: traceForward reached ${forward.reach.total} serials, the register holds ${counted}`);
+      result.forward_serials = forward.reach.total;
+      reachNote = Object.entries(forward.reach.byKind).map(([k, v]) => `${k} ${count(v)}`).join(", ");
+    } else {
+      result.forward_serials = counted;
+      reachNote = "counted by a separate query: traceForward did not finish one run";
+    }
+
+    const forwardCell = forward.ms.length > 0 ? ms(percentile(forward.ms, 0.95)) : `> ${(FORWARD_BUDGET_MS / 1000).toFixed(0)} s`;
+    const forwardNote =
+      forward.ms.length >= 30 ? `≤ ${TARGET_FORWARD_P95} ms: ${verdict(forwardOk)}`
+      : forward.ms.length > 0 ? `≤ ${TARGET_FORWARD_P95} ms: MISSED (only ${forward.ms.length} samples in ${FORWARD_BUDGET_MS / 1000} s)`
+      : `≤ ${TARGET_FORWARD_P95} ms: MISSED (not one run finished in ${FORWARD_BUDGET_MS / 1000} s; stopped)`;
     console.log("");
-    for (const [a, b, c] of rows) console.log(`${a.padEnd(w0)}  ${b.padStart(w1)}  ${c}`);
+    printTable([
+      ["measure", "value", "target / note"],
+      ["links in the register", count(built.links), `${count(built.items)} items, ${count(built.pairIds.length)} pairs, ${built.repairs} repairs`],
+      ["build time", `${built.seconds.toFixed(1)} s`, ""],
+      [`backward trace of a pair (${expected} nodes), p50`, ms(result.backward_p50_ms), `${backward.ms.length} samples`],
+      ["backward trace of a pair, p95", ms(result.backward_p95_ms), `≤ ${TARGET_BACKWARD_P95} ms: ${verdict(backwardOk)}`],
+      [`forward trace of ${built.bigLotIdentity}, p50`, ms(percentile(forward.ms, 0.5)), `${forward.ms.length} samples`],
+      [`forward trace of ${built.bigLotIdentity}, p95`, forwardCell, forwardNote],
+      ["serialised items above the big lot", count(result.forward_serials), reachNote],
+      ["naive backward trace (a query a parent), p50", ms(percentile(naive.ms, 0.5)), ""],
+      ["naive backward trace (a query a parent), p95", ms(result.naive_backward_p95_ms), `${(result.naive_backward_p95_ms / result.backward_p95_ms).toFixed(1)}× the recursive query`],
+    ]);
 
     if (!backwardOk || !forwardOk || args.has("--plans")) {
-      console.log("\nquery plan, traceBackward:");
+      console.log("\ndiagnosis:");
+      // Record the library's forward query on a small target: its SQL is the same for any root.
+      const [unitRow] = await db.all<{ id: string }>(sql`SELECT child_id AS id FROM links WHERE parent_id = ${target(3)} AND position = 'L'`);
+      const [duRow] = await db.all<{ id: string }>(sql`SELECT child_id AS id FROM links WHERE parent_id = ${unitRow!.id} AND position = 'T' AND ended_at IS NULL`);
+      const unitId = duRow!.id;
+      const unit = await sample("library forward trace of a drive unit", 1, 10, () => traceForward(rec.db, unitId, { mode: "now" }));
+      const forwardSql = dialect.sqlToQuery(rec.last());
+      const forwardText = forwardSql.sql;
+      const forwardParams = forwardSql.params.map((p) => (p === unitId ? built.bigLotId : p));
+      console.log("  query plan, traceBackward:");
       for (const line of await queryPlan(db, backwardQuery)) console.log(line);
-      console.log("query plan, traceForward:");
-      for (const line of await queryPlan(db, forwardQuery)) console.log(line);
+      console.log("  query plan, traceForward:");
+      for (const line of await queryPlan(db, rebind(forwardText, forwardParams))) console.log(line);
+
+      console.log("  PROTOTYPES (bench-only changes, not the library's code):");
+      const protos = await prototypes(url, db, forwardText, forwardParams, built.bigLotId, unitId, unit.last);
+      console.log("");
+      printTable([
+        ["forward trace", "p50", "p95", "nodes", "change"],
+        [`library, drive unit (${unit.last.length} nodes)`, ms(percentile(unit.ms, 0.5)), ms(percentile(unit.ms, 0.95)), String(unit.last.length), "as is"],
+        [`library, ${built.bigLotIdentity}`, ms(percentile(forward.ms, 0.5)), forwardCell, forward.reach ? "" : "—", "as is"],
+        ...protos.map((p) => [p.label + (p.label.includes("drive unit") ? "" : `, ${built.bigLotIdentity}`), ms(p.p50), ms(p.p95), count(p.nodes), p.note]),
+      ].map((r) => [r[0]!, r[1]!, r[2]!, r[3]!, r[4]!]));
     }
     client.close();
     console.log(JSON.stringify(result));

@@ -26,7 +26,7 @@ export const AREAS: Area[] = [
     label: "Register",
     permission: "register.read",
     stations: [],
-    summary: "The workshop's models, finishes and dealers, and later every serial and its trace.",
+    summary: "Every pair and part the workshop has built, with its trace, and the models, finishes and dealers they belong to.",
     cautions: [],
   },
   {

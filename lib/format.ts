@@ -11,3 +11,7 @@ export const formatWhen = (d: Date) => short.format(d);
 export const formatWhenExact = (d: Date) => full.format(d);
 /** "Tuesday, 1 December 2026". */
 export const formatDay = (d: Date) => day.format(d);
+
+const date = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", year: "numeric", timeZone: zone() });
+/** "16 Jul 2025": dates in tables. */
+export const formatDate = (d: Date) => date.format(d);

@@ -1,3 +1,4 @@
+import Link from "next/link";
 import { Badge } from "@/components/ui/badge";
 import { DataTable } from "@/components/ui/data-table";
 import type { Dealer, Finish } from "@/db/schema";
@@ -112,7 +113,7 @@ export function DealerTable({ dealers }: { dealers: Dealer[] }) {
         id: d.id,
         cells: {
           code: { value: d.code, display: <span className="serial">{d.code}</span> },
-          name: { value: d.name },
+          name: { value: d.name, display: <Link className="font-bold text-leaf-dark underline underline-offset-4" href={`/register/dealers/${d.code}`}>{d.name}</Link> },
           city: { value: d.city },
           country: { value: d.country },
           email: { value: d.email },

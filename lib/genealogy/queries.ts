@@ -1,7 +1,7 @@
 import "server-only";
-import { eq } from "drizzle-orm";
+import { eq, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
-import { dealers, finishes, items, models } from "@/db/schema";
+import { dealers, finishes, items, models, owners, ownerships } from "@/db/schema";
 import { currentParent, shippedAt } from "./trace";
 
 /** An item with what names it: model, finish, dealer, where it sits now and when it shipped. */
@@ -20,3 +20,40 @@ export async function itemDetails(db: DbOrTx, identity: string) {
 }
 
 export type ItemDetails = NonNullable<Awaited<ReturnType<typeof itemDetails>>>;
+
+/** A dealer and every shipment sent to them, with how many cartons each held. */
+export async function dealerWithShipments(db: DbOrTx, code: string) {
+  const [dealer] = await db.select().from(dealers).where(eq(dealers.code, code)).limit(1);
+  if (!dealer) return null;
+  const shipments = await db.all<{ id: string; identity: string; state: string; created_at: number; cartons: number }>(sql`
+    SELECT s.id, s.identity, s.state, s.created_at,
+           (SELECT count(*) FROM links l WHERE l.parent_id = s.id AND l.ended_at IS NULL) AS cartons
+    FROM items s WHERE s.kind = 'shipment' AND s.dealer_id = ${dealer.id}
+    ORDER BY s.created_at DESC`);
+  return { dealer, shipments: shipments.map((s) => ({ ...s, createdAt: new Date(Number(s.created_at)), cartons: Number(s.cartons) })) };
+}
+
+/** An owner and what they have been registered as holding. */
+export async function ownerWithItems(db: DbOrTx, id: string) {
+  const [owner] = await db.select().from(owners).where(eq(owners.id, id)).limit(1);
+  if (!owner) return null;
+  const held = await db
+    .select({ identity: items.identity, kind: items.kind, state: items.state, since: ownerships.since })
+    .from(ownerships)
+    .innerJoin(items, eq(items.id, ownerships.itemId))
+    .where(eq(ownerships.ownerId, id))
+    .orderBy(ownerships.since);
+  return { owner, held };
+}
+
+/** The newest pairs with their model and finish, for the register's front page. */
+export async function recentPairs(db: DbOrTx, limit = 100) {
+  return db
+    .select({ id: items.id, identity: items.identity, state: items.state, createdAt: items.createdAt, model: models.name, finish: finishes.name })
+    .from(items)
+    .leftJoin(models, eq(models.id, items.modelId))
+    .leftJoin(finishes, eq(finishes.id, items.finishId))
+    .where(eq(items.kind, "pair"))
+    .orderBy(sql`${items.createdAt} DESC`)
+    .limit(limit);
+}

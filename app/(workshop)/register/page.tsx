@@ -5,17 +5,47 @@ import { getDb } from "@/db";
 import { areaByKey } from "@/lib/areas";
 import { requirePage } from "@/lib/auth/guard";
 import { listDealers, listFinishes, listModels } from "@/lib/workshop/queries";
+import { recentPairs } from "@/lib/genealogy/queries";
+import { formatDate } from "@/lib/format";
+import { itemHref } from "@/lib/search/search";
+import { DataTable } from "@/components/ui/data-table";
+import Link from "next/link";
 
 export const metadata: Metadata = { title: "Register" };
 
 export default async function RegisterPage() {
   await requirePage("register.read");
   const db = getDb();
-  const [models, finishes, dealers] = await Promise.all([listModels(db), listFinishes(db), listDealers(db)]);
+  const [models, finishes, dealers, pairs] = await Promise.all([listModels(db), listFinishes(db), listDealers(db), recentPairs(db)]);
   const area = areaByKey("register");
   return (
     <div className="flex flex-col gap-6" data-testid="area-register">
       <PageHeader title={area.label} lead={area.summary} />
+      <Panel title="Latest pairs">
+        <p className="mb-3 text-ink-soft">Search any serial with the box at the top, or scan its label.</p>
+        <DataTable
+          caption="Latest pairs"
+          testId="pair-table"
+          initialSort={{ key: "created", dir: "desc" }}
+          columns={[
+            { key: "identity", label: "Pair" },
+            { key: "model", label: "Model" },
+            { key: "finish", label: "Finish" },
+            { key: "created", label: "Begun" },
+            { key: "state", label: "State" },
+          ]}
+          rows={pairs.map((p) => ({
+            id: p.id,
+            cells: {
+              identity: { value: p.identity, display: <Link className="serial font-bold text-leaf-dark underline" href={itemHref(p.identity)}>{p.identity}</Link> },
+              model: { value: p.model ?? "" },
+              finish: { value: p.finish ?? "" },
+              created: { value: p.createdAt.getTime(), display: formatDate(p.createdAt) },
+              state: { value: p.state.replace(/_/g, " ") },
+            },
+          }))}
+        />
+      </Panel>
       <Panel title="Models">
         <ModelTable models={models} />
       </Panel>

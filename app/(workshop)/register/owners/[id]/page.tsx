@@ -1,0 +1,48 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { notFound } from "next/navigation";
+import { BackLink } from "@/components/ui/back-link";
+import { DataTable } from "@/components/ui/data-table";
+import { Panel, PageHeader } from "@/components/ui/panel";
+import { getDb } from "@/db";
+import { requirePage } from "@/lib/auth/guard";
+import { formatDate } from "@/lib/format";
+import { KIND_LABEL } from "@/lib/genealogy/kinds";
+import { ownerWithItems } from "@/lib/genealogy/queries";
+import { itemHref } from "@/lib/search/search";
+
+export const metadata: Metadata = { title: "Owner" };
+
+export default async function OwnerPage({ params }: { params: Promise<{ id: string }> }) {
+  await requirePage("register.read");
+  const found = await ownerWithItems(getDb(), (await params).id);
+  if (!found) notFound();
+  const { owner, held } = found;
+  return (
+    <div className="flex flex-col gap-6" data-testid="owner-page">
+      <BackLink href="/register">Register</BackLink>
+      <PageHeader title={owner.name} lead={[`${owner.town}, ${owner.country}`, owner.email].filter(Boolean).join(" · ")} />
+      <Panel title="Registered as owning">
+        <DataTable
+          caption={`What ${owner.name} owns`}
+          empty="Nothing registered."
+          columns={[
+            { key: "identity", label: "Serial" },
+            { key: "kind", label: "Kind" },
+            { key: "since", label: "Since" },
+            { key: "state", label: "State" },
+          ]}
+          rows={held.map((h) => ({
+            id: h.identity,
+            cells: {
+              identity: { value: h.identity, display: <Link className="serial font-bold text-leaf-dark underline" href={itemHref(h.identity)}>{h.identity}</Link> },
+              kind: { value: KIND_LABEL[h.kind] ?? h.kind },
+              since: { value: h.since.getTime(), display: formatDate(h.since) },
+              state: { value: h.state.replace(/_/g, " ") },
+            },
+          }))}
+        />
+      </Panel>
+    </div>
+  );
+}
