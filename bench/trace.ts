@@ -3,12 +3,12 @@
  * in a temporary database, then times the genealogy traces of lib/genealogy/trace.ts against it.
  * Run with `npm run bench:trace`; never part of `npm test`. The last line printed is one JSON object.
  *
- *   --plans   run the diagnosis (query plans and the labelled prototypes) even when every target is met
+ *   --plans   print the query plans even when every target is met
  *   --keep    keep the temporary database (its path is printed) for poking at afterwards
  */
 import { spawn } from "node:child_process";
 import { mkdtempSync, rmSync, statSync } from "node:fs";
-import { tmpdir } from "node:os";
+import { loadavg, tmpdir } from "node:os";
 import { join } from "node:path";
 import { performance } from "node:perf_hooks";
 import { createInterface } from "node:readline";
@@ -97,7 +97,7 @@ const yearOf = (ms: number) => new Date(ms).getUTCFullYear();
 // ---------------------------------------------------------------------------------------------
 
 const ITEM_COLS = ["id", "kind", "identity", "model_id", "finish_id", "part_type", "state", "dealer_id", "attrs", "created_at"];
-const LINK_COLS = ["parent_id", "child_id", "position", "shared", "started_at", "ended_at", "fit_event_id", "remove_event_id"];
+const LINK_COLS = ["parent_id", "parent_kind", "parent_identity", "child_id", "position", "shared", "started_at", "ended_at", "fit_event_id", "remove_event_id"];
 const ROWS_PER_INSERT = 500; // 5,000 bound values at most, far below SQLite's limit of 32,766
 
 function multiRowInserts(table: string, cols: string[], rows: InValue[][]): InStatement[] {
@@ -181,6 +181,8 @@ async function buildRegister(url: string): Promise<Built> {
   let linkCount = 0;
   let flitch = { code: "", finishId: "", nextLeaf: LEAVES_PER_FLITCH };
   let shipmentId = "";
+  // Each link carries its parent's kind and identity (lib/genealogy/graph.ts copies them at fitting).
+  const parentCopy = new Map<string, [string, string]>();
 
   for (let year = 0; year < YEARS; year++) {
     const ty = performance.now();
@@ -188,10 +190,12 @@ async function buildRegister(url: string): Promise<Built> {
     const links: InValue[][] = [];
     const item = (id: string, kind: string, identity: string, state: string, at: number, o: { model?: string | null; finish?: string | null; part?: string | null; dealer?: string | null; attrs?: object } = {}) => {
       items.push([id, kind, identity, o.model ?? null, o.finish ?? null, o.part ?? null, state, o.dealer ?? null, JSON.stringify(o.attrs ?? {}), Math.round(at)]);
+      parentCopy.set(id, [kind, identity]);
       return id;
     };
     const link = (parent: string, child: string, position: string, at: number, shared = 0, endedAt: number | null = null) => {
-      links.push([parent, child, position, shared, Math.round(at), endedAt === null ? null : Math.round(endedAt), benchEvent, endedAt === null ? null : benchEvent]);
+      const [parentKind, parentIdentity] = parentCopy.get(parent)!;
+      links.push([parent, parentKind, parentIdentity, child, position, shared, Math.round(at), endedAt === null ? null : Math.round(endedAt), benchEvent, endedAt === null ? null : benchEvent]);
     };
     const yyyy = 2005 + year;
     const yearStart = Date.UTC(yyyy, 0, 1);
@@ -420,7 +424,7 @@ async function queryPlan(db: Db, query: SQL): Promise<string[]> {
 }
 
 /** Distinct serialised holders (every kind but lots) above the root of a forward trace, by kind. */
-function serialsOf(nodes: TraceNode[]): { total: number; byKind: Record<string, number> } {
+function serialsOf(nodes: { id: string; kind: string; depth: number }[]): { total: number; byKind: Record<string, number> } {
   const seen = new Map<string, string>();
   for (const n of nodes) if (n.depth > 0 && n.kind !== "component_lot") seen.set(n.id, n.kind);
   const byKind: Record<string, number> = {};
@@ -484,117 +488,6 @@ async function forwardInChild(url: string, lotId: string): Promise<ChildForward>
   return out;
 }
 
-// ---------------------------------------------------------------------------------------------
-// PROTOTYPES — not the library's code. Each starts from the SQL that trace.ts itself sent (as
-// recorded) and changes one thing, to show what a change in lib/ or db/ would buy.
-// ---------------------------------------------------------------------------------------------
-
-type TraceRow = {
-  id: string; kind: TraceNode["kind"]; identity: string; state: string; part_type: string | null; model_id: string | null; finish_id: string | null;
-  dealer_id: string | null; attrs: string; via: string | null; position: string | null; depth: number; link_id: number | null; started_at: number | null; ended_at: number | null;
-};
-
-// The same mapping as trace.ts's (private) toNode, so the prototypes pay the same JS costs.
-const rowToNode = (r: TraceRow): TraceNode => ({
-  id: r.id, kind: r.kind, identity: r.identity, state: r.state, partType: r.part_type, modelId: r.model_id, finishId: r.finish_id, dealerId: r.dealer_id,
-  attrs: typeof r.attrs === "string" ? (JSON.parse(r.attrs) as Record<string, unknown>) : {},
-  via: r.via, position: r.position, depth: Number(r.depth), linkId: r.link_id === null ? null : Number(r.link_id),
-  startedAt: r.started_at === null ? null : new Date(Number(r.started_at)), endedAt: r.ended_at === null ? null : new Date(Number(r.ended_at)),
-});
-
-const LIB_JOIN = "FROM first JOIN items i ON i.id = first.id";
-const FINAL_SELECT = "SELECT i.id, i.kind, i.identity";
-
-/** Prototype A: the library's forward query with `CROSS JOIN`, which makes SQLite keep `first` as the outer loop. */
-function crossJoinQuery(text: string): string | null {
-  return text.includes(LIB_JOIN) ? text.replace(LIB_JOIN, "FROM first CROSS JOIN items i ON i.id = first.id") : null;
-}
-
-/** Prototype B: A, and the whole answer as one JSON value, so the driver converts one value instead of 15 a node. */
-function jsonQuery(text: string): string | null {
-  const a = crossJoinQuery(text);
-  const at = a?.lastIndexOf(FINAL_SELECT) ?? -1;
-  if (!a || at < 0) return null;
-  return `${a.slice(0, at)}SELECT json_group_array(json_array(i.id, i.kind, i.identity, i.state, i.part_type, i.model_id, i.finish_id, i.dealer_id, json(i.attrs),
-      first.via, first.position, first.depth, first.link_id, first.started_at, first.ended_at) ORDER BY first.depth, i.kind, i.identity) AS nodes
-    FROM first CROSS JOIN items i ON i.id = first.id
-    WHERE first.rn = 1`;
-}
-
-type JsonNode = [string, TraceNode["kind"], string, string, string | null, string | null, string | null, string | null, Record<string, unknown>, string | null, string | null, number, number | null, number | null, number | null];
-const jsonToNodes = (text: string): TraceNode[] =>
-  (JSON.parse(text) as JsonNode[]).map((r) => ({
-    id: r[0], kind: r[1], identity: r[2], state: r[3], partType: r[4], modelId: r[5], finishId: r[6], dealerId: r[7], attrs: r[8] ?? {},
-    via: r[9], position: r[10], depth: r[11], linkId: r[12], startedAt: r[13] === null ? null : new Date(r[13]), endedAt: r[14] === null ? null : new Date(r[14]),
-  }));
-
-// Prototype C: a covering partial index for the upward step of a "now" trace (open links only,
-// every column the step reads), so the step never visits the links table itself.
-const COVERING_INDEX = "CREATE INDEX bench_links_open_by_child ON links (child_id, parent_id, position, started_at, ended_at) WHERE ended_at IS NULL";
-
-const sameTrace = (a: TraceNode[], b: TraceNode[]) =>
-  a.length === b.length && a.every((n, i) => n.id === b[i]!.id && n.via === b[i]!.via && n.depth === b[i]!.depth && n.linkId === b[i]!.linkId);
-
-interface ProtoResult { label: string; p50: number; p95: number; samples: number; nodes: number; note: string }
-
-/**
- * Schema changes go through a connection of their own: the measuring connection keeps its
- * statements prepared, and SQLite refuses to drop an index under them (SQLITE_LOCKED).
- */
-async function ddl(url: string, statement: string) {
-  const client = openClient(url);
-  try {
-    await client.execute(statement);
-  } finally {
-    client.close();
-  }
-}
-
-async function prototypes(url: string, db: Db, forwardText: string, forwardParams: unknown[], bigLotId: string, unitId: string, unitTrace: TraceNode[]): Promise<ProtoResult[]> {
-  const out: ProtoResult[] = [];
-  const forParams = (params: unknown[], id: string) => params.map((p) => (p === bigLotId ? id : p));
-  const a = crossJoinQuery(forwardText);
-  const b = jsonQuery(forwardText);
-  if (!a || !b) {
-    console.log("  the library's forward query no longer has the shape the prototypes edit; prototypes skipped");
-    return out;
-  }
-  const runA = async (id: string) => (await db.all<TraceRow>(rebind(a, forParams(forwardParams, id)))).map(rowToNode);
-  const runB = async (id: string) => {
-    const [row] = await db.all<{ nodes: string }>(rebind(b, forParams(forwardParams, id)));
-    return jsonToNodes(row?.nodes ?? "[]");
-  };
-
-  // Each prototype must give the library's answer, or its timing proves nothing.
-  if (!sameTrace(await runA(unitId), unitTrace) || !sameTrace(await runB(unitId), unitTrace)) throw new Error("bench: a prototype's trace of a drive unit differs from the library's");
-  const aBig = await runA(bigLotId);
-  if (!sameTrace(await runB(bigLotId), aBig)) throw new Error("bench: prototypes A and B disagree on the big lot");
-
-  const record = (label: string, s: { ms: number[]; last: TraceNode[] }, note: string) =>
-    out.push({ label, p50: percentile(s.ms, 0.5), p95: percentile(s.ms, 0.95), samples: s.ms.length, nodes: s.last.length, note });
-
-  record("A  CROSS JOIN items", await sample("prototype A (CROSS JOIN), big lot", FORWARD_WARM_UP, FORWARD_SAMPLES, () => runA(bigLotId)), "one word in trace.ts");
-  record("A  CROSS JOIN items, drive unit", await sample("prototype A (CROSS JOIN), drive unit", 5, 40, () => runA(unitId)), "");
-  record("B  A + answer as one JSON value", await sample("prototype B (CROSS JOIN + JSON), big lot", FORWARD_WARM_UP, FORWARD_SAMPLES, () => runB(bigLotId)), "final SELECT in trace.ts");
-
-  await ddl(url, COVERING_INDEX);
-  const plan = (await queryPlan(db, rebind(b, forwardParams))).join("\n");
-  record("C  B + covering partial index", await sample("prototype C (B + covering index), big lot", FORWARD_WARM_UP, FORWARD_SAMPLES, () => runB(bigLotId)),
-    plan.includes("bench_links_open_by_child") ? "new migration" : "index NOT used by the plan");
-  await ddl(url, "DROP INDEX bench_links_open_by_child");
-
-  // Prototype D: the library's query untouched, after ANALYZE has given the planner row counts.
-  await ddl(url, "ANALYZE");
-  const planD = (await queryPlan(db, rebind(forwardText, forwardParams))).join("\n");
-  if (/SCAN i\b/.test(planD)) {
-    console.log("  prototype D (ANALYZE): the plan still scans items; not timed");
-  } else {
-    const lib = async (id: string) => traceForward(db, id, { mode: "now" });
-    record("D  library query after ANALYZE", await sample("prototype D (library query after ANALYZE), big lot", FORWARD_WARM_UP, FORWARD_SAMPLES, () => lib(bigLotId)), "needs stats kept fresh");
-  }
-  return out;
-}
-
 const ms = (v: number) => (Number.isNaN(v) ? "—" : `${v.toFixed(2)} ms`);
 const round2 = (v: number) => Math.round(v * 100) / 100;
 const count = (n: number) => n.toLocaleString("en");
@@ -647,7 +540,8 @@ async function main() {
     const naiveFound = await naiveBackward(db, target(0));
     if (naiveFound !== expected) throw new Error(`bench: naive trace found ${naiveFound} nodes, traceBackward ${expected}`);
 
-    console.log("measuring:");
+    // Other work on this shared machine shows up in the figures; say how busy it was.
+    console.log(`measuring (load average ${loadavg().map((l) => l.toFixed(2)).join(" ")}):`);
     const backward = await sample("backward trace of a pair", 30, 300, (i) => traceBackward(rec.db, target(i + 30), { mode: "now" }));
     const backwardQuery = rec.last();
     const naive = await sample("naive backward trace (one query a parent)", 30, 300, (i) => naiveBackward(db, target(i + 60)));
@@ -712,15 +606,12 @@ async function main() {
       console.log("  query plan, traceForward:");
       for (const line of await queryPlan(db, rebind(forwardText, forwardParams))) console.log(line);
 
-      console.log("  PROTOTYPES (bench-only changes, not the library's code):");
-      const protos = await prototypes(url, db, forwardText, forwardParams, built.bigLotId, unitId, unit.last);
       console.log("");
       printTable([
-        ["forward trace", "p50", "p95", "nodes", "change"],
-        [`library, drive unit (${unit.last.length} nodes)`, ms(percentile(unit.ms, 0.5)), ms(percentile(unit.ms, 0.95)), String(unit.last.length), "as is"],
-        [`library, ${built.bigLotIdentity}`, ms(percentile(forward.ms, 0.5)), forwardCell, forward.reach ? "" : "—", "as is"],
-        ...protos.map((p) => [p.label + (p.label.includes("drive unit") ? "" : `, ${built.bigLotIdentity}`), ms(p.p50), ms(p.p95), count(p.nodes), p.note]),
-      ].map((r) => [r[0]!, r[1]!, r[2]!, r[3]!, r[4]!]));
+        ["forward trace", "p50", "p95", "nodes"],
+        [`library, drive unit (${unit.last.length} nodes)`, ms(percentile(unit.ms, 0.5)), ms(percentile(unit.ms, 0.95)), String(unit.last.length)],
+        [`library, ${built.bigLotIdentity}`, ms(percentile(forward.ms, 0.5)), forwardCell, forward.reach ? String(forward.reach.total) : "—"],
+      ]);
     }
     client.close();
     console.log(JSON.stringify(result));

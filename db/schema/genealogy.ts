@@ -66,6 +66,12 @@ export const links = sqliteTable(
       .notNull()
       .references(() => items.id),
     position: text("position").notNull(),
+    /**
+     * The parent's kind and identity, copied at fitting (a trigger checks them; identities never
+     * change), so a forward trace reads holders from one covering index without visiting items.
+     */
+    parentKind: text("parent_kind"),
+    parentIdentity: text("parent_identity"),
     /** True for a lot (many parents at once); set from the child's kind and checked by trigger. */
     shared: integer("shared", { mode: "boolean" }).notNull().default(false),
     startedAt: integer("started_at", { mode: "timestamp_ms" }).notNull(),
@@ -82,6 +88,8 @@ export const links = sqliteTable(
     uniqueIndex("links_one_per_position").on(t.parentId, t.position).where(sql`${t.endedAt} IS NULL AND ${t.shared} = 0`),
     index("links_parent_idx").on(t.parentId, t.startedAt),
     index("links_child_idx").on(t.childId, t.startedAt),
+    // Covers the forward trace "now": child → parent with the parent's kind and identity.
+    index("links_open_holders").on(t.childId, t.parentId, t.parentKind, t.parentIdentity).where(sql`${t.endedAt} IS NULL`),
     check("links_not_self", sql`${t.parentId} <> ${t.childId}`),
     check("links_end_after_start", sql`${t.endedAt} IS NULL OR ${t.endedAt} >= ${t.startedAt}`),
     check("links_end_has_event", sql`(${t.endedAt} IS NULL) = (${t.removeEventId} IS NULL)`),

@@ -102,7 +102,16 @@ export async function fit(
   try {
     const [row] = await tx
       .insert(links)
-      .values({ parentId: parent.id, childId: child.id, position, shared: SHARED_KINDS.includes(child.kind), startedAt: at, fitEventId: eventId })
+      .values({
+        parentId: parent.id,
+        parentKind: parent.kind,
+        parentIdentity: parent.identity,
+        childId: child.id,
+        position,
+        shared: SHARED_KINDS.includes(child.kind),
+        startedAt: at,
+        fitEventId: eventId,
+      })
       .returning({ id: links.id });
     return { linkId: row!.id, eventId };
   } catch (e) {

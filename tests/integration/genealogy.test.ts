@@ -128,10 +128,20 @@ describe("the graph's guarantees", () => {
 
   test("the shared flag cannot be forged to put a drive unit in two parents", async () => {
     const text = await failureText(() =>
-      db().run(sql`INSERT INTO links (parent_id, child_id, position, shared, started_at, fit_event_id)
-                   VALUES (${xoR.id}, ${tweeterR.id}, 'Z', 1, 0, (SELECT max(id) FROM events))`),
+      db().run(sql`INSERT INTO links (parent_id, parent_kind, parent_identity, child_id, position, shared, started_at, fit_event_id)
+                   VALUES (${xoR.id}, 'crossover', 'X-T-2', ${tweeterR.id}, 'Z', 1, 0, (SELECT max(id) FROM events))`),
     );
     expect(text).toMatch(/shared must be true exactly when the child is a lot/);
+  });
+
+  test("a link's copy of its parent's kind and identity must be the parent's own, and identities never change", async () => {
+    const forged = await failureText(() =>
+      db().run(sql`INSERT INTO links (parent_id, parent_kind, parent_identity, child_id, position, shared, started_at, fit_event_id)
+                   VALUES (${xoR.id}, 'shipment', 'H-ELSEWHERE', ${lot.id}, 'C9', 1, 0, (SELECT max(id) FROM events))`),
+    );
+    expect(forged).toMatch(/parent item's own/);
+    expect(await failureText(() => db().run(sql`UPDATE items SET identity = 'P-T-9' WHERE id = ${pair.id}`))).toMatch(/never change/);
+    expect(await failureText(() => db().run(sql`UPDATE items SET kind = 'carton' WHERE id = ${pair.id}`))).toMatch(/never change/);
   });
 
   test("links are history: never deleted, and an ended link cannot be changed", async () => {

@@ -115,8 +115,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
           columns={[
             { key: "identity", label: "Serial" },
             { key: "kind", label: "Kind" },
-            { key: "position", label: "Holds it via" },
-            { key: "state", label: "State" },
+            { key: "depth", label: "Levels up", numeric: true },
           ]}
           rows={holders
             .filter((h) => h.depth > 0)
@@ -125,8 +124,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
               cells: {
                 identity: { value: h.identity, display: <Link className="serial font-bold text-leaf-dark underline" href={itemHref(h.identity)}>{h.identity}</Link> },
                 kind: { value: KIND_LABEL[h.kind] ?? h.kind },
-                position: { value: h.position ?? "", display: `${h.position ?? ""} (${h.depth} up)` },
-                state: { value: h.state.replace(/_/g, " ") },
+                depth: { value: h.depth },
               },
             }))}
         />

@@ -19,12 +19,8 @@ export const GET = guardedRoute("register.read", { query }, async ({ params, que
   const found = await itemDetails(db, identity);
   if (!found) throw new AppError(404, "No item with that serial.");
   const { moment, label, note } = resolveMoment(query.asOf, found.shippedAt);
-  const nodes = query.direction === "backward" ? await traceBackward(db, found.item.id, moment) : await traceForward(db, found.item.id, moment);
-  return {
-    identity,
-    direction: query.direction,
-    moment: label,
-    ...(note ? { note } : {}),
-    ...(query.shape === "tree" ? { tree: toTree(nodes) } : { nodes }),
-  };
+  const head = { identity, direction: query.direction, moment: label, ...(note ? { note } : {}) };
+  if (query.direction === "forward") return { ...head, nodes: await traceForward(db, found.item.id, moment) };
+  const nodes = await traceBackward(db, found.item.id, moment);
+  return { ...head, ...(query.shape === "tree" ? { tree: toTree(nodes) } : { nodes }) };
 });
