@@ -1,5 +1,5 @@
 import { sql } from "drizzle-orm";
-import { check, index, integer, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
+import { check, index, integer, primaryKey, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
 import { events } from "./events";
 import { dealers, finishes, models } from "./workshop";
 
@@ -93,6 +93,31 @@ export const links = sqliteTable(
     check("links_not_self", sql`${t.parentId} <> ${t.childId}`),
     check("links_end_after_start", sql`${t.endedAt} IS NULL OR ${t.endedAt} >= ${t.startedAt}`),
     check("links_end_has_event", sql`(${t.endedAt} IS NULL) = (${t.removeEventId} IS NULL)`),
+  ],
+);
+
+/**
+ * Who holds what now, kept by `fit` and `removeFrom` in the same transaction as the link: one row
+ * per (item, holder above it) with the number of link paths between them (a lot reaches a pair
+ * through both speakers' crossovers). It is an index of the open links, derived and rebuilt from
+ * them, not a record: rows come and go as parts are fitted and removed. It lets a recall of a lot
+ * held by thousands of serials read one index range instead of walking the graph.
+ */
+export const holdings = sqliteTable(
+  "holdings",
+  {
+    itemId: text("item_id").notNull(),
+    holderId: text("holder_id").notNull(),
+    holderKind: text("holder_kind").notNull(),
+    holderIdentity: text("holder_identity").notNull(),
+    paths: integer("paths").notNull(),
+  },
+  (t) => [
+    primaryKey({ columns: [t.itemId, t.holderId] }),
+    index("holdings_holder_idx").on(t.holderId),
+    // Removal counts a row down to zero, then deletes the zeros through this small index.
+    index("holdings_spent_idx").on(t.itemId).where(sql`${t.paths} = 0`),
+    check("holdings_paths_not_negative", sql`${t.paths} >= 0`),
   ],
 );
 

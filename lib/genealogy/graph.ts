@@ -5,6 +5,7 @@ import { items, links, SHARED_KINDS, type Item, type ItemKind } from "@/db/schem
 import { AppError, isConstraintError } from "@/lib/auth/errors";
 import { newId } from "@/lib/auth/tokens";
 import { appendEvent } from "@/lib/events/queries";
+import { addHoldings, removeHoldings } from "./holdings";
 
 /** Who records a change and where; every change of the graph is an event. */
 export interface Recorder {
@@ -113,6 +114,7 @@ export async function fit(
         fitEventId: eventId,
       })
       .returning({ id: links.id });
+    await addHoldings(tx, parent, child);
     return { linkId: row!.id, eventId };
   } catch (e) {
     if (isConstraintError(e, "UNIQUE")) {
@@ -156,6 +158,7 @@ export async function removeFrom(
     at: by.at,
   });
   await tx.update(links).set({ endedAt: at, removeEventId: eventId }).where(eq(links.id, open.id));
+  await removeHoldings(tx, input.parent, input.child);
   return { linkId: open.id, eventId };
 }
 

@@ -82,39 +82,42 @@ export interface HolderNode {
   id: string;
   kind: ItemKind;
   identity: string;
-  /** How many links up from the traced item (1: it sits directly inside). */
-  depth: number;
 }
+
+// Holders are listed from the nearest kind outwards.
+const HOLDER_ORDER: Record<string, number> = {
+  flitch: 0, leaf: 1, component_lot: 2, drive_unit: 3, crossover: 4, cabinet: 5, speaker: 6, pair: 7, carton: 8, shipment: 9,
+};
 
 /**
  * Everything that holds an item at a moment (its parents, theirs… up to shipments), the item
- * itself first at depth 0, each holder once. One recursive query over the links alone: a link
- * carries its parent's kind and identity, and for "now" a covering partial index holds exactly
- * the open links, so a lot recall touching thousands of serials never visits the items table.
- * The answer comes back as one JSON value rather than thousands of rows.
+ * itself first, each holder once. "Now" reads the holdings index, kept by fit and removeFrom, in
+ * one indexed query, so recalling a lot held by thousands of serials is one range read. Another
+ * moment walks the links in one recursive query: a link carries its parent's kind and identity,
+ * so the walk never visits the items table. Either answer comes back as one JSON value.
  */
 export async function traceForward(db: DbOrTx, rootId: string, moment: TraceMoment = { mode: "now" }): Promise<HolderNode[]> {
-  const from = moment.mode === "now" ? sql`links l INDEXED BY links_open_holders` : sql`links l`;
   const [root] = await db.all<{ kind: ItemKind; identity: string }>(sql`SELECT kind, identity FROM items WHERE id = ${rootId}`);
   if (!root) return [];
-  const [row] = await db.all<{ j: string | null }>(sql`
-    WITH RECURSIVE up(id, kind, identity, depth) AS (
-      SELECT ${rootId}, ${root.kind}, ${root.identity}, 0
-      UNION
-      SELECT l.parent_id, l.parent_kind, l.parent_identity, up.depth + 1
-      FROM ${from} JOIN up ON l.child_id = up.id
-      WHERE ${momentFilter(moment)} AND up.depth < ${MAX_DEPTH}
-    )
-    SELECT json_group_array(json_array(id, kind, identity, depth)) AS j FROM up`);
-  const seen = new Map<string, HolderNode>();
-  for (const [id, kind, identity, depth] of JSON.parse(row?.j ?? "[]") as [string, ItemKind, string, number][]) {
-    // A holder reached along paths of different lengths is kept once, at the shortest.
-    const known = seen.get(id);
-    if (!known || depth < known.depth) seen.set(id, { id, kind, identity, depth });
-  }
+  const [row] =
+    moment.mode === "now"
+      ? await db.all<{ j: string | null }>(sql`
+          SELECT json_group_array(json_array(holder_id, holder_kind, holder_identity)) AS j
+          FROM holdings WHERE item_id = ${rootId}`)
+      : await db.all<{ j: string | null }>(sql`
+          WITH RECURSIVE up(id, kind, identity, depth) AS (
+            SELECT ${rootId}, ${root.kind}, ${root.identity}, 0
+            UNION
+            SELECT l.parent_id, l.parent_kind, l.parent_identity, up.depth + 1
+            FROM links l JOIN up ON l.child_id = up.id
+            WHERE ${momentFilter(moment)} AND up.depth < ${MAX_DEPTH}
+          )
+          SELECT json_group_array(json_array(id, kind, identity)) AS j FROM (SELECT DISTINCT id, kind, identity FROM up WHERE depth > 0)`);
+  const holders = (JSON.parse(row?.j ?? "[]") as [string, ItemKind, string][]).map(([id, kind, identity]) => ({ id, kind, identity }));
   // Plain code-unit order: identities are ASCII, and localeCompare is far slower on a lot recall.
   const cmp = (x: string, y: string) => (x < y ? -1 : x > y ? 1 : 0);
-  return [...seen.values()].sort((a, b) => a.depth - b.depth || cmp(a.kind, b.kind) || cmp(a.identity, b.identity));
+  holders.sort((a, b) => (HOLDER_ORDER[a.kind] ?? 99) - (HOLDER_ORDER[b.kind] ?? 99) || cmp(a.identity, b.identity));
+  return [{ id: rootId, kind: root.kind, identity: root.identity }, ...holders];
 }
 
 /**

@@ -155,3 +155,40 @@ describe("the graph's guarantees", () => {
     expect((err as AppError).status).toBe(409);
   });
 });
+
+describe("the holdings index", () => {
+  // Recomputed from the links alone with one recursive query (a path a row), independently of
+  // the bookkeeping in fit/removeFrom.
+  const recomputed = () =>
+    db().all<{ item_id: string; holder_id: string; paths: number }>(sql`
+      WITH RECURSIVE up(item_id, holder_id) AS (
+        SELECT child_id, parent_id FROM links WHERE ended_at IS NULL
+        UNION ALL
+        SELECT up.item_id, l.parent_id FROM up JOIN links l ON l.child_id = up.holder_id AND l.ended_at IS NULL
+      )
+      SELECT item_id, holder_id, count(*) AS paths FROM up GROUP BY item_id, holder_id ORDER BY item_id, holder_id`);
+  const kept = () => db().all<{ item_id: string; holder_id: string; paths: number }>(sql`SELECT item_id, holder_id, paths FROM holdings ORDER BY item_id, holder_id`);
+
+  test("after every fit and removal above, it equals the open links' paths, counted", async () => {
+    expect(await kept()).toEqual(await recomputed());
+  });
+
+  test("a lot reaches the pair through both speakers: two paths; removing one speaker leaves one", async () => {
+    const [row] = await db().all<{ paths: number }>(sql`SELECT paths FROM holdings WHERE item_id = ${lot.id} AND holder_id = ${pair.id}`);
+    expect(row?.paths).toBe(2);
+    await db().transaction((tx) => removeFrom(tx, { parent: pair, child: right }, { ...by("2026-06-01T00:00:00Z", "service"), reason: "speaker back for inspection" }));
+    const [after] = await db().all<{ paths: number }>(sql`SELECT paths FROM holdings WHERE item_id = ${lot.id} AND holder_id = ${pair.id}`);
+    expect(after?.paths).toBe(1);
+    expect(await kept()).toEqual(await recomputed());
+    expect(ids(await traceForward(db(), tweeterR.id))).toEqual(["D-T-2", "S-T-R"]);
+    await db().transaction((tx) => fit(tx, { parent: pair, child: right, position: "R" }, by("2026-06-02T00:00:00Z", "service")));
+    expect(await kept()).toEqual(await recomputed());
+    expect(ids(await traceForward(db(), tweeterR.id))).toEqual(["D-T-2", "H-T-1", "K-T-1", "P-T-1", "S-T-R"]);
+  });
+
+  test("the forward trace now (from holdings) and as of this moment (walking links) agree", async () => {
+    const now = await traceForward(db(), lot.id, { mode: "now" });
+    const atNow = await traceForward(db(), lot.id, { mode: "at", at: new Date("2100-01-01T00:00:00Z") });
+    expect(now).toEqual(atNow);
+  });
+});

@@ -178,7 +178,11 @@ async function snapshot(): Promise<Record<string, unknown[]>> {
     sql`SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' AND name NOT LIKE '__drizzle%' ORDER BY name`,
   );
   const out: Record<string, unknown[]> = {};
-  for (const { name } of tables) out[name] = await db.all(sql`SELECT * FROM ${sql.identifier(name)} ORDER BY rowid`);
+  // Ordered by every column, which also works for WITHOUT ROWID tables (holdings).
+  for (const { name } of tables) {
+    const cols = await db.all<{ name: string }>(sql`SELECT name FROM pragma_table_info(${name})`);
+    out[name] = await db.all(sql`SELECT * FROM ${sql.identifier(name)} ORDER BY ${sql.join(cols.map((c) => sql.identifier(c.name)), sql`, `)}`);
+  }
   return out;
 }
 

@@ -115,16 +115,14 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
           columns={[
             { key: "identity", label: "Serial" },
             { key: "kind", label: "Kind" },
-            { key: "depth", label: "Levels up", numeric: true },
           ]}
           rows={holders
-            .filter((h) => h.depth > 0)
+            .filter((h) => h.id !== item.id)
             .map((h) => ({
               id: h.id,
               cells: {
                 identity: { value: h.identity, display: <Link className="serial font-bold text-leaf-dark underline" href={itemHref(h.identity)}>{h.identity}</Link> },
                 kind: { value: KIND_LABEL[h.kind] ?? h.kind },
-                depth: { value: h.depth },
               },
             }))}
         />
