@@ -57,3 +57,13 @@ export async function recentPairs(db: DbOrTx, limit = 100) {
     .orderBy(sql`${items.createdAt} DESC`)
     .limit(limit);
 }
+
+/** The dealers that shipments went to: the last step of a forward trace. */
+export async function dealersOf(db: DbOrTx, shipmentIds: string[]) {
+  if (shipmentIds.length === 0) return [];
+  return db.all<{ id: string; code: string; name: string; city: string; country: string; shipments: number }>(sql`
+    SELECT d.id, d.code, d.name, d.city, d.country, count(*) AS shipments
+    FROM items s JOIN dealers d ON d.id = s.dealer_id
+    WHERE s.id IN (SELECT value FROM json_each(${JSON.stringify(shipmentIds)}))
+    GROUP BY d.id ORDER BY d.name`);
+}

@@ -17,7 +17,7 @@ import { recentEvents } from "@/lib/events/queries";
 import { formatDay, formatWhen } from "@/lib/format";
 import { momentParam, resolveMoment } from "@/lib/genealogy/moment";
 import { KIND_LABEL } from "@/lib/genealogy/kinds";
-import { itemDetails } from "@/lib/genealogy/queries";
+import { dealersOf, itemDetails } from "@/lib/genealogy/queries";
 import { toTree, traceBackward, traceForward } from "@/lib/genealogy/trace";
 import { itemHref } from "@/lib/search/search";
 
@@ -25,6 +25,27 @@ export async function generateMetadata({ params }: { params: Promise<{ identity:
   return { title: decodeURIComponent((await params).identity) };
 }
 
+
+// Lots are held by thousands: the cards show a few and say how many more.
+const SHOW = 5;
+
+function HolderSummary({ holders }: { holders: { kind: string }[] }) {
+  if (holders.length === 0) return null;
+  const counts = new Map<string, number>();
+  for (const h of holders) counts.set(h.kind, (counts.get(h.kind) ?? 0) + 1);
+  const max = Math.max(...counts.values());
+  return (
+    <div className="mb-4 flex flex-col gap-1" data-testid="holder-summary">
+      {[...counts].map(([kind, n]) => (
+        <div key={kind} className="flex items-center gap-3">
+          <span className="w-32 text-sm font-bold">{KIND_LABEL[kind] ?? kind}</span>
+          <span className="h-4 rounded bg-leaf" style={{ width: `${Math.max(2, (n / max) * 60)}%` }} aria-hidden="true" />
+          <span className="text-sm tabular-nums">{n.toLocaleString("en")}</span>
+        </div>
+      ))}
+    </div>
+  );
+}
 
 export default async function ItemPage({ params, searchParams }: { params: Promise<{ identity: string }>; searchParams: Promise<{ at?: string }> }) {
   const user = await requirePage("register.read");
@@ -45,6 +66,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
   const tree = toTree(inside);
   const events = await recentEvents(db, { subjects: { kind: "item", ids: [item.id, ...everInside.filter((n) => n.depth === 1).map((n) => n.id)] }, limit: 200 });
   const shipments = holders.filter((h) => h.kind === "shipment");
+  const reachedDealers = await dealersOf(db, shipments.map((s) => s.id));
 
   return (
     <div className="flex flex-col gap-6" data-testid="item-page">
@@ -61,12 +83,13 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
             <p className="text-ink-soft">{item.kind === "shipment" && dealer ? `Shipped to ${dealer.name}, ${dealer.city}.` : "Not inside anything."}</p>
           ) : (
             <ul className="flex flex-col gap-1" data-testid="current-parents">
-              {parents.map((p) => (
+              {parents.slice(0, SHOW).map((p) => (
                 <li key={`${p.id}-${p.position}`}>
                   In <Link className="serial font-bold text-leaf-dark underline" href={itemHref(p.identity)}>{p.identity}</Link> at {p.position}
                   <span className="text-sm text-ink-soft"> since {formatDay(p.since)}</span>
                 </li>
               ))}
+              {parents.length > SHOW ? <li className="text-ink-soft">and {parents.length - SHOW} more: see what holds it, below.</li> : null}
             </ul>
           )}
         </Panel>
@@ -77,7 +100,14 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
               {shipments.length ? (
                 <>
                   {" "}
-                  in {shipments.map((s) => <Link key={s.id} className="serial text-leaf-dark underline" href={itemHref(s.identity)}>{s.identity}</Link>)}
+                  in{" "}
+                  {shipments.slice(0, SHOW).map((s, i) => (
+                    <span key={s.id}>
+                      {i ? ", " : ""}
+                      <Link className="serial text-leaf-dark underline" href={itemHref(s.identity)}>{s.identity}</Link>
+                    </span>
+                  ))}
+                  {shipments.length > SHOW ? ` and ${shipments.length - SHOW} more` : ""}
                 </>
               ) : null}
             </p>
@@ -108,6 +138,21 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
       </Panel>
 
       <Panel title="What holds it">
+        <HolderSummary holders={holders.filter((h) => h.id !== item.id)} />
+        {reachedDealers.length ? (
+          <p className="mb-4" data-testid="reached-dealers">
+            Shipped to{" "}
+            {reachedDealers.map((d, i) => (
+              <span key={d.id}>
+                {i ? ", " : ""}
+                <Link className="font-bold text-leaf-dark underline" href={`/register/dealers/${d.code}`}>{d.name}</Link> ({d.city}, {Number(d.shipments)} shipment{Number(d.shipments) === 1 ? "" : "s"})
+              </span>
+            ))}
+            .
+          </p>
+        ) : null}
+        <details open={holders.length <= 41} className="group">
+          <summary className="mb-3 cursor-pointer font-bold text-leaf-dark">Every holder ({holders.length - 1})</summary>
         <DataTable
           caption="Everything that holds this item"
           testId="holders-table"
@@ -126,6 +171,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
               },
             }))}
         />
+        </details>
       </Panel>
 
       {user.permissions.has("labels.print") ? (

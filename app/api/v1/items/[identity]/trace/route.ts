@@ -3,7 +3,7 @@ import { getDb } from "@/db";
 import { AppError } from "@/lib/auth/errors";
 import { guardedRoute } from "@/lib/auth/guard";
 import { momentParam, resolveMoment } from "@/lib/genealogy/moment";
-import { itemDetails } from "@/lib/genealogy/queries";
+import { dealersOf, itemDetails } from "@/lib/genealogy/queries";
 import { toTree, traceBackward, traceForward } from "@/lib/genealogy/trace";
 
 const query = z.object({
@@ -20,7 +20,11 @@ export const GET = guardedRoute("register.read", { query }, async ({ params, que
   if (!found) throw new AppError(404, "No item with that serial.");
   const { moment, label, note } = resolveMoment(query.asOf, found.shippedAt);
   const head = { identity, direction: query.direction, moment: label, ...(note ? { note } : {}) };
-  if (query.direction === "forward") return { ...head, nodes: await traceForward(db, found.item.id, moment) };
+  if (query.direction === "forward") {
+    const nodes = await traceForward(db, found.item.id, moment);
+    const dealers = await dealersOf(db, nodes.filter((n) => n.kind === "shipment").map((n) => n.id));
+    return { ...head, nodes, dealers };
+  }
   const nodes = await traceBackward(db, found.item.id, moment);
   return { ...head, ...(query.shape === "tree" ? { tree: toTree(nodes) } : { nodes }) };
 });
