@@ -4,7 +4,7 @@ import { defineConfig } from "vitest/config";
 const root = fileURLToPath(new URL(".", import.meta.url));
 const alias = {
   "@/": root,
-  "server-only": fileURLToPath(new URL("./tests/stubs/server-only.ts", import.meta.url)),
+  "server-only": fileURLToPath(new URL("./tests/setup/server-only.ts", import.meta.url)),
 };
 
 export default defineConfig({

@@ -6,7 +6,7 @@ export default defineConfig({
   resolve: {
     alias: {
       "@/": fileURLToPath(new URL(".", import.meta.url)),
-      "server-only": fileURLToPath(new URL("./tests/stubs/server-only.ts", import.meta.url)),
+      "server-only": fileURLToPath(new URL("./tests/setup/server-only.ts", import.meta.url)),
     },
   },
   test: {

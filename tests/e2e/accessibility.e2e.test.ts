@@ -1,7 +1,7 @@
 import { AxeBuilder } from "@axe-core/playwright";
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser";
+import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser-helpers";
 
 let browser: Browser;
 beforeAll(async () => {

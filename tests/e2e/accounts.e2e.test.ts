@@ -1,6 +1,6 @@
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { demoEmail, launchBrowser, linkIn, newPage, signIn, url, waitForMail } from "./browser";
+import { demoEmail, launchBrowser, linkIn, newPage, signIn, url, waitForMail } from "./browser-helpers";
 
 let browser: Browser;
 let admin: Page;

@@ -1,6 +1,6 @@
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser";
+import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser-helpers";
 
 let browser: Browser;
 beforeAll(async () => {

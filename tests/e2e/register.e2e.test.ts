@@ -3,7 +3,7 @@ import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, inject, test } from "vitest";
 import { openDb } from "@/db";
 import { mod37_2Check } from "@/lib/serials";
-import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser";
+import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser-helpers";
 
 let browser: Browser;
 let page: Page;

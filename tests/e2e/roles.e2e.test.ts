@@ -3,7 +3,7 @@ import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import { AREAS } from "@/lib/areas";
 import { ROLE_PERMISSIONS } from "@/lib/auth/permissions";
 import { ROLES, type Role } from "@/lib/auth/roles";
-import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser";
+import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser-helpers";
 
 let browser: Browser;
 const pages = new Map<Role, Page>();
