@@ -60,6 +60,19 @@ describe("search and trace in the register", () => {
     await expect(options.first().textContent()).resolves.toContain(repair.pair);
   });
 
+  test("the results are reached with the keyboard: arrow down to a result, Enter opens it", async () => {
+    await typeInSearch("Merow Lane");
+    await page.getByTestId("search-option").first().waitFor();
+    const box = page.getByTestId("search-input");
+    await box.press("ArrowDown");
+    await box.press("ArrowUp");
+    const active = page.locator('[data-testid="search-option"][aria-selected="true"]');
+    await expect(active.textContent()).resolves.toContain("Merrow Lane");
+    await box.press("Enter");
+    await page.getByTestId("dealer-page").waitFor();
+    expect(new URL(page.url()).pathname).toMatch(/^\/register\/dealers\//);
+  });
+
   test("anything else is searched fuzzily, dealers included", async () => {
     await typeInSearch("Merow Lane");
     await expect(page.getByTestId("search-option").first().textContent()).resolves.toContain("Merrow Lane");
