@@ -12,9 +12,11 @@ export const metadata: Metadata = { title: "Assembly" };
 export default async function Page() {
   await requirePage("assembly.work");
   const models = await listModels(getDb());
-  return <AreaOverview area={areaByKey("assembly")}>
+  return (
+    <AreaOverview area={areaByKey("assembly")}>
       <Panel title="Models and their drive-unit positions">
         <ModelTable models={models} />
       </Panel>
-    </AreaOverview>;
+    </AreaOverview>
+  );
 }

@@ -12,9 +12,11 @@ export const metadata: Metadata = { title: "Dispatch" };
 export default async function Page() {
   await requirePage("packing.work");
   const dealers = await listDealers(getDb());
-  return <AreaOverview area={areaByKey("packing")}>
+  return (
+    <AreaOverview area={areaByKey("packing")}>
       <Panel title="Dealers we ship to">
         <DealerTable dealers={dealers} />
       </Panel>
-    </AreaOverview>;
+    </AreaOverview>
+  );
 }

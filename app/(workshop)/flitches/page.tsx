@@ -13,12 +13,14 @@ export default async function Page() {
   await requirePage("veneer.work");
   const db = getDb();
   const [models, finishes] = await Promise.all([listModels(db), listFinishes(db)]);
-  return <AreaOverview area={areaByKey("veneer")}>
+  return (
+    <AreaOverview area={areaByKey("veneer")}>
       <Panel title="Leaves each model takes">
         <ModelTable models={models} show="veneer" />
       </Panel>
       <Panel title="Veneer species">
         <FinishTable finishes={finishes.filter((f) => f.kind === "veneer")} />
       </Panel>
-    </AreaOverview>;
+    </AreaOverview>
+  );
 }

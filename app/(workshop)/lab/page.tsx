@@ -12,9 +12,11 @@ export const metadata: Metadata = { title: "Lab" };
 export default async function Page() {
   await requirePage("lab.work");
   const models = await listModels(getDb());
-  return <AreaOverview area={areaByKey("lab")}>
+  return (
+    <AreaOverview area={areaByKey("lab")}>
       <Panel title="Matching limits per model">
         <ModelTable models={models} show="tolerances" />
       </Panel>
-    </AreaOverview>;
+    </AreaOverview>
+  );
 }

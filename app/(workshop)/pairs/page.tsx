@@ -12,9 +12,11 @@ export const metadata: Metadata = { title: "Cabinet shop" };
 export default async function Page() {
   await requirePage("cabinet.work");
   const models = await listModels(getDb());
-  return <AreaOverview area={areaByKey("cabinet")}>
+  return (
+    <AreaOverview area={areaByKey("cabinet")}>
       <Panel title="Models built here">
         <ModelTable models={models} show="veneer" />
       </Panel>
-    </AreaOverview>;
+    </AreaOverview>
+  );
 }
