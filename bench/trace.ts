@@ -21,7 +21,7 @@ import { SQLiteAsyncDialect } from "drizzle-orm/sqlite-core";
 import { type Db, openClient, openDb } from "@/db";
 import { migrateDatabase } from "@/db/migrate";
 import { SEED_DEALERS, SEED_FINISHES, SEED_MODELS } from "@/db/seed/data";
-import { traceBackward, traceForward, type TraceNode } from "@/lib/genealogy/trace";
+import { traceBackward, traceForward } from "@/lib/genealogy/trace";
 
 // ---------------------------------------------------------------------------------------------
 // Shape of the synthetic register

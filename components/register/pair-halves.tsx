@@ -1,6 +1,5 @@
-import Link from "next/link";
 import type { TraceTree } from "@/lib/genealogy/trace";
-import { itemHref } from "@/lib/search/search";
+import { SerialLink } from "./serial-link";
 
 function Parts({ node }: { node: TraceTree }) {
   if (!node.children.length) return null;
@@ -9,9 +8,7 @@ function Parts({ node }: { node: TraceTree }) {
       {node.children.map((c) => (
         <li key={`${c.id}-${c.linkId}`} className="py-0.5">
           <span className="inline-block min-w-10 text-sm font-bold text-ink-soft">{c.position}</span>{" "}
-          <Link href={itemHref(c.identity)} className="serial text-sm text-leaf-dark underline">
-            {c.identity}
-          </Link>
+          <SerialLink identity={c.identity} bold={false} className="text-sm" />
           <Parts node={c} />
         </li>
       ))}
@@ -29,9 +26,7 @@ export function PairHalves({ tree }: { tree: TraceTree }) {
           <p className="font-bold">{i === 0 ? "Left" : "Right"}</p>
           {s ? (
             <>
-              <Link href={itemHref(s.identity)} className="serial font-bold text-leaf-dark underline">
-                {s.identity}
-              </Link>
+              <SerialLink identity={s.identity} />
               <Parts node={s} />
             </>
           ) : (

@@ -2,6 +2,7 @@
 import { useRouter } from "next/navigation";
 import { useMemo } from "react";
 import Tree, { type CustomNodeElementProps, type RawNodeDatum } from "react-d3-tree";
+import { itemHref, stateLabel } from "@/lib/genealogy/kinds";
 import type { TraceTree } from "@/lib/genealogy/trace";
 
 const KIND_COLOUR: Record<string, string> = {
@@ -12,7 +13,7 @@ const KIND_COLOUR: Record<string, string> = {
 function toDatum(n: TraceTree): RawNodeDatum {
   return {
     name: n.identity,
-    attributes: { kind: n.kind.replace(/_/g, " "), position: n.position ?? "", ended: n.endedAt ? "removed" : "" },
+    attributes: { kind: stateLabel(n.kind), position: n.position ?? "", ended: n.endedAt ? "removed" : "" },
     children: n.children.map(toDatum),
   };
 }
@@ -41,7 +42,7 @@ export function TraceTreePicture({ tree, height = 520 }: { tree: TraceTree; heig
           y={-4}
           style={{ fontFamily: "var(--font-serial)", fontSize: 13, fill: removed ? "#a0372a" : "#1d2326", cursor: "pointer", textDecoration: removed ? "line-through" : undefined }}
           strokeWidth={0}
-          onClick={() => router.push(`/register/items/${encodeURIComponent(nodeDatum.name)}`)}
+          onClick={() => router.push(itemHref(nodeDatum.name))}
         >
           {nodeDatum.name}
         </text>

@@ -384,7 +384,7 @@ function planHistory(ref: Reference, now: Date, seed: number, months: number): P
   }
 
   planLots(plan, rng, start, now);
-  planFlitches(plan, rng, ref, pairs);
+  planFlitches(plan, rng, pairs);
   for (const p of pairs) planPair(plan, rng, p);
   planShipments(plan, [...shipments.values()]);
   const repaired = planRepair(plan, rng, pairs, now);
@@ -424,7 +424,7 @@ function planLots(plan: Plan, rng: Rng, start: Date, now: Date) {
   }
 }
 
-function planFlitches(plan: Plan, rng: Rng, ref: Reference, pairs: PairPlan[]) {
+function planFlitches(plan: Plan, rng: Rng, pairs: PairPlan[]) {
   // One flitch per species and month serves that month's veneered pairs in pressing order.
   const groups = new Map<string, PairPlan[]>();
   for (const p of pairs) {

@@ -1,3 +1,5 @@
+import { stateLabel } from "@/lib/genealogy/kinds";
+
 /** A short human sentence for an event type; unknown types show as they are. */
 const PHRASES: Record<string, string> = {
   "user.signed_in": "signed in",
@@ -26,7 +28,7 @@ export function describeEvent(type: string, data: Record<string, unknown> = {}):
   const s = (k: string) => (typeof data[k] === "string" ? (data[k] as string) : "");
   if (type === "link.fitted") return `fitted into ${s("parent")} at ${s("position")}`;
   if (type === "link.removed") return `removed from ${s("parent")} at ${s("position")}`;
-  if (type === "item.state_changed") return `${s("from").replace(/_/g, " ")} → ${s("to").replace(/_/g, " ")}`;
+  if (type === "item.state_changed") return `${stateLabel(s("from"))} → ${stateLabel(s("to"))}`;
   if (type === "label.printed") return data.reprint ? "reprinted a label" : phrase;
   return phrase;
 }

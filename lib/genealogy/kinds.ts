@@ -11,3 +11,9 @@ export const KIND_LABEL: Record<string, string> = {
   carton: "Carton",
   shipment: "Shipment",
 };
+
+/** An item's page. */
+export const itemHref = (identity: string) => `/register/items/${encodeURIComponent(identity)}`;
+
+/** A state as people read it: "in_assembly" → "in assembly". */
+export const stateLabel = (state: string) => state.replace(/_/g, " ");

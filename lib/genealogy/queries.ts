@@ -1,19 +1,25 @@
 import "server-only";
-import { eq, sql } from "drizzle-orm";
+import { eq, inArray, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { dealers, finishes, items, models, owners, ownerships } from "@/db/schema";
 import { currentParent, shippedAt } from "./trace";
 
-/** An item with what names it: model, finish, dealer, where it sits now and when it shipped. */
-export async function itemDetails(db: DbOrTx, identity: string) {
-  const [row] = await db
+/** Items with what names them (model, finish, dealer), in one query: what a label prints. */
+export function itemsWithNames(db: DbOrTx, identities: string[]) {
+  return db
     .select({ item: items, model: models, finish: finishes, dealer: dealers })
     .from(items)
     .leftJoin(models, eq(models.id, items.modelId))
     .leftJoin(finishes, eq(finishes.id, items.finishId))
     .leftJoin(dealers, eq(dealers.id, items.dealerId))
-    .where(eq(items.identity, identity))
-    .limit(1);
+    .where(inArray(items.identity, identities));
+}
+
+export type ItemWithNames = Awaited<ReturnType<typeof itemsWithNames>>[number];
+
+/** An item with what names it, where it sits now and when it shipped. */
+export async function itemDetails(db: DbOrTx, identity: string) {
+  const [row] = await itemsWithNames(db, [identity]);
   if (!row) return null;
   const [parents, shipped] = await Promise.all([currentParent(db, row.item.id), shippedAt(db, row.item.id)]);
   return { ...row, parents, shippedAt: shipped };

@@ -1,5 +1,6 @@
+import { AppError } from "@/lib/auth/errors";
 import { cartonElementString } from "@/lib/serials";
-import type { ItemDetails } from "@/lib/genealogy/queries";
+import type { ItemWithNames } from "@/lib/genealogy/queries";
 import { KIND_LABEL } from "@/lib/genealogy/kinds";
 import type { Symbology } from "./barcodes";
 import type { LabelSpec } from "./sheets";
@@ -18,15 +19,19 @@ export function defaultSymbology(kind: string): Symbology {
 }
 
 /** What the barcode of an item encodes for a symbology: the serial, or for GS1-128 the carton's element string. */
-export function barcodeText(details: ItemDetails, symbology: Symbology, baseUrl: string): string {
+export function barcodeText(details: ItemWithNames, symbology: Symbology, baseUrl: string): string {
   const { item, model } = details;
   if (symbology === "qrcode") return `${baseUrl}/register/items/${encodeURIComponent(item.identity)}`;
   if (symbology !== "gs1-128") return item.identity;
-  if (item.kind !== "carton" || !model) throw new Error("GS1-128 labels are for cartons of a model with a GTIN.");
-  return cartonElementString({ gtin: model.pairGtin, serial: item.identity, productionDate: item.createdAt }).bwipText;
+  if (item.kind !== "carton" || !model) throw new AppError(400, "GS1-128 labels are for cartons of a model with a GTIN.");
+  try {
+    return cartonElementString({ gtin: model.pairGtin, serial: item.identity, productionDate: item.createdAt }).bwipText;
+  } catch (e) {
+    throw new AppError(400, (e as Error).message);
+  }
 }
 
-export function labelSpecFor(details: ItemDetails, symbology: Symbology, baseUrl: string): LabelSpec {
+export function labelSpecFor(details: ItemWithNames, symbology: Symbology, baseUrl: string): LabelSpec {
   const { item, model, finish, dealer } = details;
   const side = typeof item.attrs.side === "string" ? SIDE[item.attrs.side] : undefined;
   const title = [KIND_LABEL[item.kind] ?? item.kind, side, item.partType].filter(Boolean).join(" · ");

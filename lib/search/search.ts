@@ -3,6 +3,7 @@ import Fuse from "fuse.js";
 import { inArray, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { dealers, items, owners } from "@/db/schema";
+import { itemHref } from "@/lib/genealogy/kinds";
 import { nearMisses, normaliseScan, serialReadings } from "@/lib/serials";
 
 export type SearchHit =
@@ -19,7 +20,6 @@ export interface SearchAnswer {
   fuzzy: SearchHit[];
 }
 
-export const itemHref = (identity: string) => `/register/items/${encodeURIComponent(identity)}`;
 
 const itemHit = (r: { id: string; identity: string; kind: string; state: string }): SearchHit => ({ type: "item", ...r, href: itemHref(r.identity) });
 

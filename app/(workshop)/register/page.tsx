@@ -7,9 +7,9 @@ import { requirePage } from "@/lib/auth/guard";
 import { listDealers, listFinishes, listModels } from "@/lib/workshop/queries";
 import { recentPairs } from "@/lib/genealogy/queries";
 import { formatDate } from "@/lib/format";
-import { itemHref } from "@/lib/search/search";
+import { SerialLink } from "@/components/register/serial-link";
+import { stateLabel } from "@/lib/genealogy/kinds";
 import { DataTable } from "@/components/ui/data-table";
-import Link from "next/link";
 
 export const metadata: Metadata = { title: "Register" };
 
@@ -37,11 +37,11 @@ export default async function RegisterPage() {
           rows={pairs.map((p) => ({
             id: p.id,
             cells: {
-              identity: { value: p.identity, display: <Link className="serial font-bold text-leaf-dark underline" href={itemHref(p.identity)}>{p.identity}</Link> },
+              identity: { value: p.identity, display: <SerialLink identity={p.identity} /> },
               model: { value: p.model ?? "" },
               finish: { value: p.finish ?? "" },
               created: { value: p.createdAt.getTime(), display: formatDate(p.createdAt) },
-              state: { value: p.state.replace(/_/g, " ") },
+              state: { value: stateLabel(p.state) },
             },
           }))}
         />

@@ -2,7 +2,7 @@ import { z } from "zod";
 import { getDb } from "@/db";
 import { AppError } from "@/lib/auth/errors";
 import { appBaseUrl, guardedRoute } from "@/lib/auth/guard";
-import { itemDetails } from "@/lib/genealogy/queries";
+import { itemsWithNames } from "@/lib/genealogy/queries";
 import { SYMBOLOGIES, type Symbology } from "@/lib/labels/barcodes";
 import { defaultSymbology, labelSpecFor } from "@/lib/labels/for-item";
 import { recordLabelPrints } from "@/lib/labels/queries";
@@ -25,16 +25,12 @@ const labelRequest = z.object({
 export const POST = guardedRoute("labels.print", { body: labelRequest }, async ({ body, user }) => {
   const db = getDb();
   const baseUrl = await appBaseUrl();
-  const found = await Promise.all(body.identities.map((identity) => itemDetails(db, identity)));
-  const missing = body.identities.filter((_, i) => !found[i]);
+  const rows = new Map((await itemsWithNames(db, body.identities)).map((r) => [r.item.identity, r]));
+  const missing = body.identities.filter((identity) => !rows.has(identity));
   if (missing.length) throw new AppError(404, `Not registered: ${missing.join(", ")}.`);
-  const details = found.map((d) => d!);
-  let specs;
-  try {
-    specs = details.map((d) => labelSpecFor(d, body.symbology ?? defaultSymbology(d.item.kind), baseUrl));
-  } catch (e) {
-    throw e instanceof AppError ? e : new AppError(400, (e as Error).message);
-  }
+  // In the order asked for (a sheet prints left to right, top to bottom).
+  const details = body.identities.map((identity) => rows.get(identity)!);
+  const specs = details.map((d) => labelSpecFor(d, body.symbology ?? defaultSymbology(d.item.kind), baseUrl));
   const pdf = await renderLabelSheet(specs, body.layout, { startAt: body.startAt, ...(body.printerDpi ? { printerDpi: body.printerDpi } : {}) });
   await recordLabelPrints(db, {
     items: details.map((d, i) => ({ id: d.item.id, identity: d.item.identity, symbology: specs[i]!.barcode.symbology })),

@@ -1,5 +1,4 @@
 import type { Metadata } from "next";
-import Link from "next/link";
 import { notFound } from "next/navigation";
 import { BackLink } from "@/components/ui/back-link";
 import { Badge } from "@/components/ui/badge";
@@ -9,7 +8,8 @@ import { getDb } from "@/db";
 import { requirePage } from "@/lib/auth/guard";
 import { formatDate } from "@/lib/format";
 import { dealerWithShipments } from "@/lib/genealogy/queries";
-import { itemHref } from "@/lib/search/search";
+import { SerialLink } from "@/components/register/serial-link";
+import { stateLabel } from "@/lib/genealogy/kinds";
 
 export const metadata: Metadata = { title: "Dealer" };
 
@@ -36,10 +36,10 @@ export default async function DealerPage({ params }: { params: Promise<{ code: s
           rows={shipments.map((s) => ({
             id: s.id,
             cells: {
-              identity: { value: s.identity, display: <Link className="serial font-bold text-leaf-dark underline" href={itemHref(s.identity)}>{s.identity}</Link> },
+              identity: { value: s.identity, display: <SerialLink identity={s.identity} /> },
               date: { value: s.createdAt.getTime(), display: formatDate(s.createdAt) },
               cartons: { value: s.cartons },
-              state: { value: s.state.replace(/_/g, " ") },
+              state: { value: stateLabel(s.state) },
             },
           }))}
         />

@@ -4,6 +4,7 @@ import { notFound } from "next/navigation";
 import { EventTable } from "@/components/shell/event-table";
 import { MomentSwitch } from "@/components/register/moment-switch";
 import { PairHalves } from "@/components/register/pair-halves";
+import { SerialLink } from "@/components/register/serial-link";
 import { PrintLabels } from "@/components/register/print-labels";
 import { TraceTreePicture } from "@/components/register/trace-tree";
 import { Badge } from "@/components/ui/badge";
@@ -16,10 +17,9 @@ import { requirePage } from "@/lib/auth/guard";
 import { recentEvents } from "@/lib/events/queries";
 import { formatDay, formatWhen } from "@/lib/format";
 import { momentParam, resolveMoment } from "@/lib/genealogy/moment";
-import { KIND_LABEL } from "@/lib/genealogy/kinds";
+import { KIND_LABEL, stateLabel } from "@/lib/genealogy/kinds";
 import { dealersOf, itemDetails } from "@/lib/genealogy/queries";
 import { toTree, traceBackward, traceForward } from "@/lib/genealogy/trace";
-import { itemHref } from "@/lib/search/search";
 
 export async function generateMetadata({ params }: { params: Promise<{ identity: string }> }): Promise<Metadata> {
   return { title: decodeURIComponent((await params).identity) };
@@ -61,10 +61,11 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
   const [inside, holders, everInside] = await Promise.all([
     traceBackward(db, item.id, moment),
     traceForward(db, item.id, moment.mode === "ever" ? { mode: "now" } : moment),
-    traceBackward(db, item.id, { mode: "ever" }),
+    // The history lists events of every part ever fitted directly, whatever the moment shown.
+    moment.mode === "ever" ? null : traceBackward(db, item.id, { mode: "ever" }),
   ]);
   const tree = toTree(inside);
-  const events = await recentEvents(db, { subjects: { kind: "item", ids: [item.id, ...everInside.filter((n) => n.depth === 1).map((n) => n.id)] }, limit: 200 });
+  const events = await recentEvents(db, { subjects: { kind: "item", ids: [item.id, ...(everInside ?? inside).filter((n) => n.depth === 1).map((n) => n.id)] }, limit: 200 });
   const shipments = holders.filter((h) => h.kind === "shipment");
   const reachedDealers = await dealersOf(db, shipments.map((s) => s.id));
 
@@ -74,7 +75,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
       <PageHeader
         title={<span className="serial" data-testid="item-identity">{item.identity}</span>}
         lead={[KIND_LABEL[item.kind] ?? item.kind, model?.name, finish?.name, item.partType].filter(Boolean).join(" · ")}
-        actions={<Badge tone={item.state === "failed" || item.state === "scrapped" ? "danger" : item.state === "shipped" ? "leaf" : "info"}>{item.state.replace(/_/g, " ")}</Badge>}
+        actions={<Badge tone={item.state === "failed" || item.state === "scrapped" ? "danger" : item.state === "shipped" ? "leaf" : "info"}>{stateLabel(item.state)}</Badge>}
       />
 
       <div className="grid gap-4 md:grid-cols-3">
@@ -85,7 +86,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
             <ul className="flex flex-col gap-1" data-testid="current-parents">
               {parents.slice(0, SHOW).map((p) => (
                 <li key={`${p.id}-${p.position}`}>
-                  In <Link className="serial font-bold text-leaf-dark underline" href={itemHref(p.identity)}>{p.identity}</Link> at {p.position}
+                  In <SerialLink identity={p.identity} /> at {p.position}
                   <span className="text-sm text-ink-soft"> since {formatDay(p.since)}</span>
                 </li>
               ))}
@@ -104,7 +105,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
                   {shipments.slice(0, SHOW).map((s, i) => (
                     <span key={s.id}>
                       {i ? ", " : ""}
-                      <Link className="serial text-leaf-dark underline" href={itemHref(s.identity)}>{s.identity}</Link>
+                      <SerialLink identity={s.identity} bold={false} />
                     </span>
                   ))}
                   {shipments.length > SHOW ? ` and ${shipments.length - SHOW} more` : ""}
@@ -166,7 +167,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
             .map((h) => ({
               id: h.id,
               cells: {
-                identity: { value: h.identity, display: <Link className="serial font-bold text-leaf-dark underline" href={itemHref(h.identity)}>{h.identity}</Link> },
+                identity: { value: h.identity, display: <SerialLink identity={h.identity} /> },
                 kind: { value: KIND_LABEL[h.kind] ?? h.kind },
               },
             }))}

@@ -1,5 +1,4 @@
 import type { Metadata } from "next";
-import Link from "next/link";
 import { notFound } from "next/navigation";
 import { BackLink } from "@/components/ui/back-link";
 import { DataTable } from "@/components/ui/data-table";
@@ -7,9 +6,9 @@ import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
 import { requirePage } from "@/lib/auth/guard";
 import { formatDate } from "@/lib/format";
-import { KIND_LABEL } from "@/lib/genealogy/kinds";
 import { ownerWithItems } from "@/lib/genealogy/queries";
-import { itemHref } from "@/lib/search/search";
+import { SerialLink } from "@/components/register/serial-link";
+import { KIND_LABEL, stateLabel } from "@/lib/genealogy/kinds";
 
 export const metadata: Metadata = { title: "Owner" };
 
@@ -35,10 +34,10 @@ export default async function OwnerPage({ params }: { params: Promise<{ id: stri
           rows={held.map((h) => ({
             id: h.identity,
             cells: {
-              identity: { value: h.identity, display: <Link className="serial font-bold text-leaf-dark underline" href={itemHref(h.identity)}>{h.identity}</Link> },
+              identity: { value: h.identity, display: <SerialLink identity={h.identity} /> },
               kind: { value: KIND_LABEL[h.kind] ?? h.kind },
               since: { value: h.since.getTime(), display: formatDate(h.since) },
-              state: { value: h.state.replace(/_/g, " ") },
+              state: { value: stateLabel(h.state) },
             },
           }))}
         />

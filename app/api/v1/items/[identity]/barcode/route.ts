@@ -2,7 +2,7 @@ import { z } from "zod";
 import { getDb } from "@/db";
 import { AppError } from "@/lib/auth/errors";
 import { appBaseUrl, guardedRoute } from "@/lib/auth/guard";
-import { itemDetails } from "@/lib/genealogy/queries";
+import { itemsWithNames } from "@/lib/genealogy/queries";
 import { renderBarcode, SYMBOLOGIES } from "@/lib/labels/barcodes";
 import { barcodeText, defaultSymbology } from "@/lib/labels/for-item";
 
@@ -14,15 +14,10 @@ const query = z.object({
 /** An item's barcode as PNG or SVG (viewing only; printing a label is POST /api/v1/labels and is recorded). */
 export const GET = guardedRoute("register.read", { query }, async ({ params, query }) => {
   const identity = decodeURIComponent(String(params.identity ?? ""));
-  const details = await itemDetails(getDb(), identity);
+  const [details] = await itemsWithNames(getDb(), [identity]);
   if (!details) throw new AppError(404, "No item with that serial.");
   const symbology = (query.symbology ?? defaultSymbology(details.item.kind)) as (typeof SYMBOLOGIES)[number];
-  let text: string;
-  try {
-    text = barcodeText(details, symbology, await appBaseUrl());
-  } catch (e) {
-    throw e instanceof AppError ? e : new AppError(400, (e as Error).message);
-  }
+  const text = barcodeText(details, symbology, await appBaseUrl());
   const headers = { "cache-control": "private, max-age=300", "x-content-type-options": "nosniff" };
   if (query.format === "svg") {
     return new Response(renderBarcode({ symbology, text, format: "svg" }), { headers: { ...headers, "content-type": "image/svg+xml" } });

@@ -1,0 +1,12 @@
+import Link from "next/link";
+import { cx } from "@/components/ui/cx";
+import { itemHref } from "@/lib/genealogy/kinds";
+
+/** A serial in the monospaced face, linking to its item page. */
+export function SerialLink({ identity, bold = true, className }: { identity: string; bold?: boolean; className?: string }) {
+  return (
+    <Link href={itemHref(identity)} className={cx("serial text-leaf-dark underline", bold && "font-bold", className)}>
+      {identity}
+    </Link>
+  );
+}
