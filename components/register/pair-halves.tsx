@@ -16,9 +16,12 @@ function Parts({ node }: { node: TraceTree }) {
   );
 }
 
-/** A pair's two speakers side by side, left and right, each with the parts inside it. */
+/**
+ * A pair's two halves side by side, left and right, each with the parts inside it: its speakers
+ * once assembled, its two cabinets (positions CAB-L and CAB-R) before that.
+ */
 export function PairHalves({ tree }: { tree: TraceTree }) {
-  const sides = ["L", "R"].map((side) => tree.children.find((c) => c.position === side));
+  const sides = ["L", "R"].map((side) => tree.children.find((c) => c.position === side) ?? tree.children.find((c) => c.position === `CAB-${side}`));
   return (
     <div className="mb-4 grid gap-4 md:grid-cols-2" data-testid="pair-halves">
       {sides.map((s, i) => (
@@ -30,7 +33,7 @@ export function PairHalves({ tree }: { tree: TraceTree }) {
               <Parts node={s} />
             </>
           ) : (
-            <p className="text-ink-soft">No speaker at this side.</p>
+            <p className="text-ink-soft">Nothing at this side: the pair is one short.</p>
           )}
         </div>
       ))}

@@ -3,9 +3,9 @@ import { cx } from "@/components/ui/cx";
 import { itemHref } from "@/lib/genealogy/kinds";
 
 /** A serial in the monospaced face, linking to its item page. */
-export function SerialLink({ identity, bold = true, className }: { identity: string; bold?: boolean; className?: string }) {
+export function SerialLink({ identity, bold = true, className, href }: { identity: string; bold?: boolean; className?: string; href?: string }) {
   return (
-    <Link href={itemHref(identity)} className={cx("serial text-leaf-dark underline", bold && "font-bold", className)}>
+    <Link href={href ?? itemHref(identity)} className={cx("serial whitespace-nowrap text-leaf-dark underline", bold && "font-bold", className)}>
       {identity}
     </Link>
   );

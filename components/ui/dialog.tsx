@@ -4,8 +4,10 @@ import type { ReactNode } from "react";
 import { buttonClasses, type ButtonVariant } from "./button";
 
 /** A modal dialog (Radix: focus trap, Escape, labelled by its title). */
-export function Dialog({ trigger, triggerVariant = "secondary", title, description, children, open, onOpenChange }: {
+export function Dialog({ trigger, triggerLabel, triggerVariant = "secondary", title, description, children, open, onOpenChange }: {
   trigger?: ReactNode;
+  /** The trigger's accessible name when its text alone is ambiguous (one of many rows). */
+  triggerLabel?: string;
   triggerVariant?: ButtonVariant;
   title: ReactNode;
   description?: ReactNode;
@@ -15,7 +17,7 @@ export function Dialog({ trigger, triggerVariant = "secondary", title, descripti
 }) {
   return (
     <RadixDialog.Root open={open} onOpenChange={onOpenChange}>
-      {trigger ? <RadixDialog.Trigger className={buttonClasses(triggerVariant, "sm")}>{trigger}</RadixDialog.Trigger> : null}
+      {trigger ? <RadixDialog.Trigger className={buttonClasses(triggerVariant, "sm")} aria-label={triggerLabel}>{trigger}</RadixDialog.Trigger> : null}
       <RadixDialog.Portal>
         <RadixDialog.Overlay className="fixed inset-0 z-40 bg-ink/40" />
         <RadixDialog.Content className="fixed left-1/2 top-1/2 z-50 max-h-[90vh] w-[min(36rem,92vw)] -translate-x-1/2 -translate-y-1/2 overflow-y-auto rounded-xl border border-line bg-surface p-6 shadow-xl">

@@ -3,3 +3,5 @@ export * from "./workshop";
 export * from "./events";
 export * from "./mail";
 export * from "./genealogy";
+export * from "./veneer";
+export * from "./uploads";

@@ -9,7 +9,7 @@
 import { randomUUID } from "node:crypto";
 import { eq } from "drizzle-orm";
 import type { Db, Tx } from "@/db";
-import { dealers, finishes, items, modelPositions, models, owners, ownerships, users, type Item } from "@/db/schema";
+import { dealers, finishes, flitches, items, leafAllocations, leafDefects, modelPositions, models, owners, ownerships, users, veneerLeaves, type Item } from "@/db/schema";
 import { appendEvent } from "@/lib/events/queries";
 import { changeState, createItem, fit, removeFrom, type NewItem, type Recorder } from "@/lib/genealogy/graph";
 import { allocateSerial } from "@/lib/serials/allocator";
@@ -18,7 +18,7 @@ import { leafIdentity, PART_TYPE_CODES, type PartType, type SerialKind } from "@
 export interface HistoryCounts {
   pairs: number;
   shippedPairs: number;
-  /** Pairs built but not yet shipped (in assembly, awaiting test, tested, packed). */
+  /** Pairs not yet shipped: veneered pairs in production since their leaves were confirmed, and pairs in assembly, awaiting test, tested or packed. */
   pairsInWorkshop: number;
   shipments: number;
   items: number;
@@ -389,6 +389,7 @@ function planHistory(ref: Reference, now: Date, seed: number, months: number): P
   planShipments(plan, [...shipments.values()]);
   const repaired = planRepair(plan, rng, pairs, now);
   planStock(plan, rng, ref, now);
+  planFreshFlitch(plan, rng, ref, now);
   planOwners(plan, rng, pairs, repaired, now);
   return { plan, pairs };
 }
@@ -440,17 +441,14 @@ function planFlitches(plan: Plan, rng: Rng, pairs: PairPlan[]) {
     const received = workday(group[0]!.t.press, -rng.int(8, 20), 10);
     const lengthMm = Math.max(...group.map((p) => p.model.minLeafLengthMm)) + rng.int(20, 140);
     const widthMm = Math.max(...group.map((p) => p.model.minLeafWidthMm)) + rng.int(12, 60);
+    const supplier = rng.pick(VENEER_SUPPLIERS);
+    const logReference = `LOG-${rng.int(1000, 9899)}-${rng.pick(["A", "B", "C"])}`;
     plan.create(flitchKey, received, VENEER, {
       kind: "flitch",
       finishId: finish.id,
       state: "received",
       identity: { serial: { kind: "flitch", code: finish.code } },
-      attrs: {
-        species: finish.name,
-        supplier: rng.pick(VENEER_SUPPLIERS),
-        logReference: `LOG-${rng.int(1000, 9899)}-${rng.pick(["A", "B", "C"])}`,
-        leafThicknessMm: 0.6,
-      },
+      attrs: { species: finish.name, supplier, logReference, leafThicknessMm: 0.6 },
     });
 
     // Leaf numbers: each pair takes a run of 2k, sometimes with a reserve leaf after it for repairs.
@@ -462,32 +460,118 @@ function planFlitches(plan: Plan, rng: Rng, pairs: PairPlan[]) {
       const reserve = rng.chance(0.4) ? next++ : undefined;
       runs.push({ pair: p, leaves, reserve });
     }
-    const leftovers = Array.from({ length: rng.int(1, 3) }, () => next++);
+    const leafCount = next - 1 + rng.int(1, 3);
     const recorded = plus(received, DAY);
-    for (let n = 1; n < next; n++) {
-      plan.create(`${flitchKey}:leaf:${n}`, plus(recorded, n * MIN), VENEER, {
-        kind: "leaf",
-        finishId: finish.id,
-        state: "available",
-        identity: { leafOf: flitchKey, leafNo: n },
-        attrs: { seq: n, lengthMm: lengthMm + rng.int(-4, 4), widthMm: widthMm + rng.int(-6, 6) },
+    plan.add(plus(received, MIN), async (ctx) => {
+      const flitch = get(ctx, flitchKey);
+      const by = ctx.recorder(VENEER, plus(received, MIN));
+      const eventId = await appendEvent(ctx.tx, {
+        actorId: by.actorId,
+        station: VENEER.station,
+        type: "flitch.received",
+        subjectKind: "item",
+        subjectId: flitch.id,
+        data: { identity: flitch.identity, species: finish.name, supplier, logReference, leafCount },
+        at: by.at,
+      });
+      await ctx.tx.insert(flitches).values({ itemId: flitch.id, finishId: finish.id, logReference, supplier, receivedOn: received.toISOString().slice(0, 10), leafThicknessMm: 0.6, leafCount, eventId });
+    });
+    for (let n = 1; n <= leafCount; n++) {
+      const key = `${flitchKey}:leaf:${n}`;
+      const size = { lengthMm: lengthMm + rng.int(-4, 4), widthMm: widthMm + rng.int(-6, 6) };
+      plan.create(key, plus(recorded, n * MIN), VENEER, { kind: "leaf", finishId: finish.id, state: "available", identity: { leafOf: flitchKey, leafNo: n }, attrs: { seq: n } });
+      plan.add(plus(recorded, n * MIN), async (ctx) => {
+        await ctx.tx.insert(veneerLeaves).values({ itemId: get(ctx, key).id, flitchId: get(ctx, flitchKey).id, seq: n, ...size, usable: true });
       });
     }
 
     for (const { pair, leaves, reserve } of runs) {
-      // Allocation is confirmed the day before pressing.
+      // The run is confirmed the day before pressing: the pair and its two cabinets are born with
+      // their leaves, the left face as cut and the right face turned over (the bookmatch).
       const allocated = plus(pair.t.press, -18 * HOUR);
-      if (reserve !== undefined) plan.state(allocated, VENEER, `${flitchKey}:leaf:${reserve}`, "spare");
-      // Left face the odd leaves of the run, right face the even ones turned over: the bookmatch.
+      const model = pair.model;
+      plan.create(pair.key, allocated, VENEER, { kind: "pair", modelId: model.id, finishId: finish.id, state: "in_production", identity: { serial: { kind: "pair", code: model.code } } });
+      for (const side of SIDES) {
+        const cab = `${pair.key}:cab:${side}`;
+        plan.create(cab, plus(allocated, MIN), VENEER, { kind: "cabinet", modelId: model.id, finishId: finish.id, state: "in_progress", identity: { serial: { kind: "cabinet", code: model.code } }, attrs: { side } });
+        plan.fit(plus(allocated, 2 * MIN), VENEER, pair.key, cab, `CAB-${side}`);
+      }
+      const when = plus(allocated, 3 * MIN);
       leaves.forEach((n, i) => {
         const side = i % 2 === 0 ? "L" : "R";
-        const when = plus(pair.t.press, (30 + i) * MIN);
-        plan.fit(when, press, `${pair.key}:cab:${side}`, `${flitchKey}:leaf:${n}`, `F${Math.floor(i / 2) + 1}`, side === "R" ? { orientation: "turned" } : undefined);
-        plan.state(when, press, `${flitchKey}:leaf:${n}`, "used");
+        plan.fit(when, VENEER, `${pair.key}:cab:${side}`, `${flitchKey}:leaf:${n}`, `F${Math.floor(i / 2) + 1}`, { orientation: side === "R" ? "turned" : "as_cut" });
+        plan.state(when, VENEER, `${flitchKey}:leaf:${n}`, "used");
+      });
+      if (reserve !== undefined) plan.state(when, VENEER, `${flitchKey}:leaf:${reserve}`, "reserved");
+      plan.add(when, async (ctx) => {
+        const by = ctx.recorder(VENEER, when);
+        const pairItem = get(ctx, pair.key);
+        const cabinets = { L: get(ctx, `${pair.key}:cab:L`), R: get(ctx, `${pair.key}:cab:R`) };
+        const eventId = await appendEvent(ctx.tx, {
+          actorId: by.actorId,
+          station: VENEER.station,
+          type: "veneer.run_confirmed",
+          subjectKind: "item",
+          subjectId: pairItem.id,
+          data: { pair: pairItem.identity, flitch: get(ctx, flitchKey).identity, left: leaves.filter((_, i) => i % 2 === 0), right: leaves.filter((_, i) => i % 2 === 1), reserve: reserve === undefined ? [] : [reserve], leftCabinet: cabinets.L.identity, rightCabinet: cabinets.R.identity },
+          at: when,
+        });
+        const rows = leaves.map((n, i) => {
+          const side = i % 2 === 0 ? "L" : "R";
+          return { leafId: get(ctx, `${flitchKey}:leaf:${n}`).id, pairId: pairItem.id, role: "face" as const, cabinetId: cabinets[side].id, position: `F${Math.floor(i / 2) + 1}`, orientation: side === "R" ? ("turned" as const) : ("as_cut" as const), startedAt: when, eventId };
+        });
+        if (reserve !== undefined) rows.push({ leafId: get(ctx, `${flitchKey}:leaf:${reserve}`).id, pairId: pairItem.id, role: "reserve" as never, cabinetId: null as never, position: null as never, orientation: null as never, startedAt: when, eventId });
+        await ctx.tx.insert(leafAllocations).values(rows);
       });
     }
-    const last = group[group.length - 1]!;
-    for (const n of leftovers) plan.state(plus(last.t.press, 2 * HOUR), VENEER, `${flitchKey}:leaf:${n}`, "spare");
+  }
+}
+
+const SIDES = ["L", "R"] as const;
+
+/**
+ * A flitch received two days ago, measured, with a split leaf and a knot noted, and not yet
+ * planned: the veneer room's next job when the demo opens.
+ */
+function planFreshFlitch(plan: Plan, rng: Rng, ref: Reference, now: Date) {
+  const finish = ref.finishes.find((f) => f.kind === "veneer");
+  if (!finish) return;
+  const model = [...ref.models].sort((a, b) => a.leavesPerFace - b.leavesPerFace)[0]!;
+  const key = "flitch:fresh";
+  const received = workday(now, -2, 10);
+  const leafCount = 24;
+  const supplier = rng.pick(VENEER_SUPPLIERS);
+  const logReference = `LOG-${rng.int(1000, 9899)}-${rng.pick(["A", "B", "C"])}`;
+  plan.create(key, received, VENEER, { kind: "flitch", finishId: finish.id, state: "received", identity: { serial: { kind: "flitch", code: finish.code } }, attrs: { species: finish.name, supplier, logReference, leafThicknessMm: 0.6 } });
+  plan.add(plus(received, MIN), async (ctx) => {
+    const flitch = get(ctx, key);
+    const by = ctx.recorder(VENEER, plus(received, MIN));
+    const eventId = await appendEvent(ctx.tx, { actorId: by.actorId, station: VENEER.station, type: "flitch.received", subjectKind: "item", subjectId: flitch.id, data: { identity: flitch.identity, species: finish.name, supplier, logReference, leafCount }, at: by.at });
+    await ctx.tx.insert(flitches).values({ itemId: flitch.id, finishId: finish.id, logReference, supplier, receivedOn: received.toISOString().slice(0, 10), leafThicknessMm: 0.6, leafCount, eventId });
+  });
+  const lengthMm = model.minLeafLengthMm + rng.int(30, 90);
+  const widthMm = model.minLeafWidthMm + rng.int(15, 40);
+  // Leaf 9 is split along its length; leaf 16 has a small knot near its butt end that trims off.
+  const defects: Record<number, { kind: "split" | "knot"; note: string; positionMm: number | null; usable: boolean }> = {
+    9: { kind: "split", note: "runs most of the leaf", positionMm: null, usable: false },
+    16: { kind: "knot", note: "small, near the butt end", positionMm: 12, usable: true },
+  };
+  for (let n = 1; n <= leafCount; n++) {
+    const leafKey = `${key}:leaf:${n}`;
+    const when = plus(received, (60 + n) * MIN);
+    // The last leaves of a flitch taper: the final two are short for this model.
+    const size = { lengthMm: n > leafCount - 2 ? model.minLeafLengthMm - rng.int(20, 60) : lengthMm + rng.int(-4, 4), widthMm: widthMm + rng.int(-6, 6) };
+    plan.create(leafKey, when, VENEER, { kind: "leaf", finishId: finish.id, state: "available", identity: { leafOf: key, leafNo: n }, attrs: { seq: n } });
+    plan.add(when, async (ctx) => {
+      const leaf = get(ctx, leafKey);
+      const defect = defects[n];
+      await ctx.tx.insert(veneerLeaves).values({ itemId: leaf.id, flitchId: get(ctx, key).id, seq: n, ...size, usable: defect ? defect.usable : true });
+      if (defect) {
+        const by = ctx.recorder(VENEER, when);
+        const eventId = await appendEvent(ctx.tx, { actorId: by.actorId, station: VENEER.station, type: "leaf.defect_noted", subjectKind: "item", subjectId: leaf.id, data: { identity: leaf.identity, seq: n, kind: defect.kind, note: defect.note, positionMm: defect.positionMm }, at: when });
+        await ctx.tx.insert(leafDefects).values({ leafId: leaf.id, kind: defect.kind, note: defect.note, positionMm: defect.positionMm, eventId });
+      }
+    });
   }
 }
 
@@ -498,8 +582,15 @@ function planPair(plan: Plan, rng: Rng, p: PairPlan) {
   const cabinetStation = p.finish.kind === "veneer" ? "press" : "lacquer";
   const sides = ["L", "R"] as const;
 
+  const veneered = p.finish.kind === "veneer";
   for (const side of sides) {
     const cab = `${p.key}:cab:${side}`;
+    if (veneered) {
+      plan.state(t.press, at("cabinet", cabinetStation), cab, "pressed");
+      plan.state(t.cure, at("cabinet", "cure"), cab, "curing");
+      plan.state(t.finished, at("cabinet", "finish"), cab, "finished");
+      continue;
+    }
     plan.create(cab, plus(t.press, (side === "L" ? 0 : 1) * MIN), at("cabinet", cabinetStation), {
       kind: "cabinet",
       modelId: model.id,
@@ -544,6 +635,13 @@ function planPair(plan: Plan, rng: Rng, p: PairPlan) {
       attrs: { side },
     });
     const step = plus(begun, MIN);
+    if (veneered) {
+      // The cabinet leaves the pair's hold to become part of its speaker.
+      plan.add(step, async (ctx) => {
+        const by = ctx.recorder(assembly, step);
+        await removeFrom(ctx.tx, { parent: get(ctx, p.key), child: get(ctx, `${p.key}:cab:${side}`) }, { ...by, reason: "built into its speaker" });
+      });
+    }
     plan.fit(step, assembly, spk, `${p.key}:cab:${side}`, "CAB");
     for (const { position } of model.positions) {
       plan.fit(step, assembly, spk, p.units[side][position]!, position);
@@ -555,13 +653,16 @@ function planPair(plan: Plan, rng: Rng, p: PairPlan) {
   }
 
   const paired = plus(t.assembly, 2 * HOUR);
-  plan.create(p.key, paired, assembly, {
-    kind: "pair",
-    modelId: model.id,
-    finishId: p.finish.id,
-    state: "in_assembly",
-    identity: { serial: { kind: "pair", code: model.code } },
-  });
+  if (veneered) plan.state(t.assembly, assembly, p.key, "in_assembly");
+  else {
+    plan.create(p.key, paired, assembly, {
+      kind: "pair",
+      modelId: model.id,
+      finishId: p.finish.id,
+      state: "in_assembly",
+      identity: { serial: { kind: "pair", code: model.code } },
+    });
+  }
   for (const side of sides) plan.fit(plus(paired, MIN), assembly, p.key, `${p.key}:spk:${side}`, side);
   plan.state(t.built, assembly, p.key, "awaiting_test");
   plan.state(t.tested, lab, p.key, "tested");

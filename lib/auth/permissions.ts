@@ -6,6 +6,7 @@ export const PERMISSIONS = [
   "labels.print",
   "veneer.work",
   "cabinet.work",
+  "cabinet.batch",
   "lab.work",
   "assembly.work",
   "packing.work",
@@ -19,8 +20,8 @@ export type Permission = (typeof PERMISSIONS)[number];
 
 /** The one permission map: role → what it may do. Every signed-in user may search and read traces. */
 export const ROLE_PERMISSIONS: Record<Role, readonly Permission[]> = {
-  veneer: ["register.read", "labels.print", "veneer.work"],
-  cabinet: ["register.read", "labels.print", "cabinet.work"],
+  veneer: ["register.read", "labels.print", "veneer.work", "cabinet.batch"],
+  cabinet: ["register.read", "labels.print", "cabinet.work", "cabinet.batch"],
   lab: ["register.read", "labels.print", "lab.work"],
   assembly: ["register.read", "labels.print", "assembly.work"],
   packing: ["register.read", "labels.print", "packing.work"],

@@ -21,6 +21,15 @@ const PHRASES: Record<string, string> = {
   "label.printed": "printed a label",
   "ownership.registered": "registered the owner",
   "event.corrected": "corrected an earlier record",
+  "flitch.received": "received a flitch",
+  "leaf.measured": "recorded a leaf",
+  "leaf.defect_noted": "noted a defect",
+  "leaf.defect_cleared": "cleared a defect",
+  "veneer.run_confirmed": "confirmed a bookmatched run",
+  "veneer.reserve_released": "re-veneered a face from the reserve",
+  "veneer.reserve_returned": "returned a reserve leaf",
+  "cabinet.batch_started": "started a batch of lacquer cabinets",
+  "upload.stored": "added a photo",
 };
 
 export function describeEvent(type: string, data: Record<string, unknown> = {}): string {
@@ -29,6 +38,9 @@ export function describeEvent(type: string, data: Record<string, unknown> = {}):
   if (type === "link.fitted") return `fitted into ${s("parent")} at ${s("position")}`;
   if (type === "link.removed") return `removed from ${s("parent")} at ${s("position")}`;
   if (type === "item.state_changed") return `${stateLabel(s("from"))} → ${stateLabel(s("to"))}`;
+  if (type === "leaf.defect_noted") return `noted a defect: ${s("kind")}${s("note") ? ` (${s("note")})` : ""}`;
+  if (type === "veneer.run_confirmed") return `confirmed a run for ${s("pair")}: left ${String(data.left ?? "")}, right ${String(data.right ?? "")} turned${Array.isArray(data.reserve) && data.reserve.length ? `, reserve ${String(data.reserve)}` : ""}`;
+  if (type === "veneer.reserve_released") return `re-veneered ${s("cabinet")} at ${s("position")} with ${s("leaf")} (replacing ${s("replaces")})`;
   if (type === "label.printed") return data.reprint ? "reprinted a label" : phrase;
   return phrase;
 }

@@ -92,3 +92,39 @@ export function planYield(leaves: PlanLeaf[], plan: FlitchPlan): { leavesUsed: n
   const total = area(leaves.map((l) => l.seq));
   return { leavesUsed: all.length, faceLeaves: face.length, areaShare: total > 0 ? area(all) / total : 0 };
 }
+
+/**
+ * Why a proposed run breaks the rules, or [] when it keeps them: 2k consecutive leaves with the
+ * left face on the 1st, 3rd… and the right face on the 2nd, 4th…, then the reserve right after,
+ * every one of them good. The server checks what a browser sends against this before writing.
+ */
+export function checkRun(leaves: PlanLeaf[], spec: PlanSpec, run: PlanRun): string[] {
+  checkSpec(spec);
+  const k = spec.leavesPerFace;
+  const problems: string[] = [];
+  if (run.left.length !== k || run.right.length !== k) problems.push(`A face takes ${k} leaves; this run has ${run.left.length} left and ${run.right.length} right.`);
+  if (run.reserve.length !== spec.reservePerPair) problems.push(`A pair holds ${spec.reservePerPair} reserve leaves; this run has ${run.reserve.length}.`);
+  if (problems.length) return problems;
+  const start = run.left[0]!;
+  const expected = Array.from({ length: 2 * k + spec.reservePerPair }, (_, i) => start + i);
+  const actual = [...run.left.flatMap((l, i) => [l, run.right[i]!]), ...run.reserve];
+  if (actual.some((s, i) => s !== expected[i])) {
+    problems.push(`Leaves ${actual.join(", ")} are not ${expected.join(", ")}: a run takes consecutive leaves, left and right alternating, then its reserve.`);
+    return problems;
+  }
+  const bySeq = new Map(leaves.map((l) => [l.seq, l]));
+  for (const seq of expected) {
+    const leaf = bySeq.get(seq);
+    if (!leaf) problems.push(`Leaf ${seq} is not free in this flitch.`);
+    else if (!leaf.usable) problems.push(`Leaf ${seq} is not usable.`);
+    else if (leaf.lengthMm < spec.minLengthMm || leaf.widthMm < spec.minWidthMm) {
+      problems.push(`Leaf ${seq} (${leaf.lengthMm} × ${leaf.widthMm} mm) is smaller than ${spec.minLengthMm} × ${spec.minWidthMm} mm.`);
+    }
+  }
+  return problems;
+}
+
+/** "leaf 5" or "leaves 5, 6": leaf numbers as a phrase. */
+export function leafList(seqs: readonly number[]): string {
+  return `${seqs.length === 1 ? "leaf" : "leaves"} ${seqs.join(", ")}`;
+}

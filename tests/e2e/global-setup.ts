@@ -71,6 +71,7 @@ export default async function setup(project: TestProject) {
       SMTP_HOST: "127.0.0.1",
       SMTP_PORT: String(smtp.port),
       MAILBOX_DIR: mailboxDir,
+      UPLOADS_DIR: join(dir, "uploads"),
       APP_URL: baseUrl,
       MAIL_SEND_INTERVAL_MS: "300",
     },

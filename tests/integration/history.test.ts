@@ -36,7 +36,7 @@ describe("the seeded production history", () => {
     const shipped = pairs.filter((p) => p.state === "shipped");
     const inWorkshop = pairs.filter((p) => p.state !== "shipped");
     expect(shipped.length).toBeGreaterThan(0);
-    expect(new Set(inWorkshop.map((p) => p.state))).toEqual(new Set(["in_assembly", "awaiting_test", "tested", "packed"]));
+    expect(new Set(inWorkshop.map((p) => p.state))).toEqual(new Set(["in_production", "in_assembly", "awaiting_test", "tested", "packed"]));
 
     // A shipped pair sits in a carton inside a shipment to a dealer; one in the workshop in none.
     const shipments = await db().all<{ pair: string; dealer_id: string | null }>(sql`
@@ -50,15 +50,17 @@ describe("the seeded production history", () => {
     expect(inWorkshop.some((p) => shippedIds.has(p.id))).toBe(false);
   });
 
-  test("every pair holds exactly two speakers now, at L and R, each of its own side", async () => {
-    const pairs = await db().select({ id: items.id }).from(items).where(eq(items.kind, "pair"));
+  test("every assembled pair holds two speakers at L and R; one still in production holds its two cabinets", async () => {
+    const pairs = await db().select({ id: items.id, state: items.state }).from(items).where(eq(items.kind, "pair"));
     const held = await openLinks("pair");
+    expect(pairs.some((p) => p.state === "in_production")).toBe(true);
     for (const pair of pairs) {
       const mine = held.filter((l) => l.parent === pair.id).sort((a, b) => a.position.localeCompare(b.position));
-      expect(mine.map((l) => l.position)).toEqual(["L", "R"]);
+      const inProduction = pair.state === "in_production";
+      expect(mine.map((l) => l.position)).toEqual(inProduction ? ["CAB-L", "CAB-R"] : ["L", "R"]);
       for (const l of mine) {
-        expect(l.child_kind).toBe("speaker");
-        expect(JSON.parse(l.child_attrs).side).toBe(l.position);
+        expect(l.child_kind).toBe(inProduction ? "cabinet" : "speaker");
+        expect(`${inProduction ? "CAB-" : ""}${JSON.parse(l.child_attrs).side}`).toBe(l.position);
       }
     }
   });
@@ -84,7 +86,7 @@ describe("the seeded production history", () => {
       for (const r of parsed) {
         // Left face: leaves 1, 3, 5… of the run at F1, F2, F3…; right face: 2, 4, 6…, turned over.
         expect(r.id.leafNo).toBe(lowest + 2 * (r.face - 1) + (r.speaker_side === "R" ? 1 : 0));
-        expect(r.orientation).toBe(r.speaker_side === "R" ? "turned" : null);
+        expect(r.orientation).toBe(r.speaker_side === "R" ? "turned" : "as_cut");
       }
     }
   });
@@ -221,5 +223,23 @@ describe("seedHistory", () => {
     // Serials carry the year the part was registered in.
     const years = new Set((await snapshot(a)).filter((i) => i.kind === "pair").map((i) => parseSerial(i.identity)!.year));
     expect([...years].every((y) => y === 2025 || y === 2026)).toBe(true);
+  });
+});
+
+describe("the seeded veneer room", () => {
+  test("every face leaf is recorded once, with the pair its cabinet belongs to, and each flitch's leaves run 1…N", async () => {
+    const faces = await db().all<{ leaf: string; n: number }>(sql`SELECT leaf_id AS leaf, count(*) AS n FROM leaf_allocations WHERE role = 'face' GROUP BY leaf_id HAVING n > 1`);
+    expect(faces).toEqual([]);
+    const mismatched = await db().all<{ id: number }>(sql`
+      SELECT a.id FROM leaf_allocations a
+      JOIN links l ON l.child_id = a.leaf_id AND l.parent_id = a.cabinet_id AND l.position = a.position
+      JOIN events e ON e.id = l.fit_event_id
+      WHERE a.role = 'face' AND json_extract(e.data, '$.orientation') IS NOT a.orientation`);
+    expect(mismatched).toEqual([]);
+    const gaps = await db().all<{ flitch: string }>(sql`
+      SELECT f.item_id AS flitch FROM flitches f
+      WHERE (SELECT count(*) FROM veneer_leaves v WHERE v.flitch_id = f.item_id) <> f.leaf_count
+         OR (SELECT max(seq) FROM veneer_leaves v WHERE v.flitch_id = f.item_id) <> f.leaf_count`);
+    expect(gaps).toEqual([]);
   });
 });

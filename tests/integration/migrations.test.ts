@@ -5,7 +5,7 @@ import { describe, expect, test } from "vitest";
 import { openClient } from "@/db";
 import { migrateDatabase, MIGRATIONS_FOLDER } from "@/db/migrate";
 
-const TABLES = ["auth_tokens", "dealers", "events", "finishes", "holdings", "items", "links", "mail_attempts", "model_positions", "model_tolerances", "models", "outbox", "owners", "ownerships", "serial_sequences", "sessions", "sign_in_attempts", "user_roles", "users"];
+const TABLES = ["auth_tokens", "dealers", "events", "finishes", "flitches", "holdings", "items", "leaf_allocations", "leaf_defects", "links", "mail_attempts", "model_positions", "model_tolerances", "models", "outbox", "owners", "ownerships", "serial_sequences", "sessions", "sign_in_attempts", "uploads", "user_roles", "users", "veneer_leaves"];
 
 describe("migrations on an empty database", () => {
   const dir = mkdtempSync(join(tmpdir(), "twinleaf-mig-"));

@@ -20,6 +20,22 @@ import { momentParam, resolveMoment } from "@/lib/genealogy/moment";
 import { KIND_LABEL, stateLabel } from "@/lib/genealogy/kinds";
 import { dealersOf, itemDetails } from "@/lib/genealogy/queries";
 import { toTree, traceBackward, traceForward } from "@/lib/genealogy/trace";
+import { PairVeneer } from "./pair-veneer";
+import { parseLeafIdentity } from "@/lib/serials";
+
+/** A leaf names its flitch and number; a flitch opens in the veneer room for those who work there. */
+function VeneerOrigin({ identity, kind, inVeneerRoom }: { identity: string; kind: "flitch" | "leaf"; inVeneerRoom: boolean }) {
+  const flitch = kind === "leaf" ? parseLeafIdentity(identity)?.flitch.canonical : identity;
+  if (!flitch) return null;
+  const leafNo = kind === "leaf" ? parseLeafIdentity(identity)?.leafNo : null;
+  return (
+    <p data-testid="veneer-origin">
+      {leafNo ? <>Leaf {leafNo} of flitch </> : null}
+      <SerialLink identity={flitch} href={inVeneerRoom ? `/flitches/${encodeURIComponent(flitch)}` : undefined} />
+      {inVeneerRoom ? " (opens in the veneer room, with its leaf table, plan and photos)" : ""}
+    </p>
+  );
+}
 
 export async function generateMetadata({ params }: { params: Promise<{ identity: string }> }): Promise<Metadata> {
   return { title: decodeURIComponent((await params).identity) };
@@ -77,6 +93,8 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
         lead={[KIND_LABEL[item.kind] ?? item.kind, model?.name, finish?.name, item.partType].filter(Boolean).join(" · ")}
         actions={<Badge tone={item.state === "failed" || item.state === "scrapped" ? "danger" : item.state === "shipped" ? "leaf" : "info"}>{stateLabel(item.state)}</Badge>}
       />
+
+      {item.kind === "flitch" || item.kind === "leaf" ? <VeneerOrigin identity={item.identity} kind={item.kind} inVeneerRoom={user.permissions.has("veneer.work")} /> : null}
 
       <div className="grid gap-4 md:grid-cols-3">
         <Panel title="Where it is now">
@@ -137,6 +155,12 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
           <a className="font-bold text-leaf-dark underline" href={`/api/v1/items/${encodeURIComponent(item.identity)}/epcis`}>Events as EPCIS 2.0 JSON</a>
         </p>
       </Panel>
+
+      {item.kind === "pair" && finish?.kind === "veneer" && model ? (
+        <Panel title="Veneer">
+          <PairVeneer pair={item} leavesPerFace={model.leavesPerFace} canRepair={user.permissions.has("veneer.work")} />
+        </Panel>
+      ) : null}
 
       <Panel title="What holds it">
         <HolderSummary holders={holders.filter((h) => h.id !== item.id)} />

@@ -1,0 +1,15 @@
+"use server";
+import { getDb } from "@/db";
+import { guardedAction } from "@/lib/auth/guard";
+import { confirmRuns } from "@/lib/veneer/flitches";
+import { confirmSchema } from "../schemas";
+
+export const confirmRunsAction = guardedAction("veneer.work", confirmSchema, async (input, user) => {
+  const made = await confirmRuns(getDb(), { flitchId: input.flitchId, modelId: input.modelId, reservePerPair: input.reservePerPair, runs: input.runs }, { id: user.id });
+  const pairs = made.map((m) => m.pair.identity).join(",");
+  return {
+    ok: true,
+    revalidate: ["/flitches", `/flitches/${encodeURIComponent(input.flitch)}`, "/register"],
+    redirectTo: `/flitches/${encodeURIComponent(input.flitch)}/confirmed?pairs=${encodeURIComponent(pairs)}`,
+  };
+});
