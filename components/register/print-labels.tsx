@@ -58,7 +58,7 @@ export function PrintLabels({ identities, station }: { identities: string[]; sta
       </div>
       <div>
         <Button onClick={print} disabled={state.busy} aria-busy={state.busy}>
-          {state.busy ? "Making the PDF…" : "Print label"}
+          {state.busy ? "Making the PDF…" : identities.length > 1 ? `Print ${identities.length} labels` : "Print label"}
         </Button>
       </div>
     </div>

@@ -491,6 +491,7 @@ export async function pairVeneer(db: DbOrTx, pairId: string) {
     .select({
       a: leafAllocations,
       leaf: items.identity,
+      leafState: items.state,
       seq: veneerLeaves.seq,
       cabinet: sql<string | null>`(SELECT identity FROM items WHERE id = ${leafAllocations.cabinetId})`,
     })

@@ -25,8 +25,20 @@ export async function PairVeneer({ pair, leavesPerFace, canRepair }: { pair: Ite
                 .filter((f) => f.a.cabinetId === c.id)
                 .sort((a, b) => a.a.position!.localeCompare(b.a.position!) || a.a.startedAt.getTime() - b.a.startedAt.getTime())
                 .map((f) => (
-                  <li key={f.a.id}>
-                    <span className="inline-block w-8 font-bold">{f.a.position}</span> <SerialLink identity={f.leaf} bold={false} /> (leaf {f.seq})
+                  <li key={f.a.id} className={f.leafState === "scrapped" ? "text-ink-soft" : undefined}>
+                    <span className="inline-block w-8 font-bold">{f.a.position}</span>{" "}
+                    {f.leafState === "scrapped" ? (
+                      <>
+                        <s>
+                          <SerialLink identity={f.leaf} bold={false} />
+                        </s>{" "}
+                        (leaf {f.seq}, taken off: face re-veneered)
+                      </>
+                    ) : (
+                      <>
+                        <SerialLink identity={f.leaf} bold={false} /> (leaf {f.seq})
+                      </>
+                    )}
                   </li>
                 ))}
             </ul>
