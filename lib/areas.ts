@@ -61,7 +61,7 @@ export const AREAS: Area[] = [
     href: "/lab",
     label: "Lab",
     permission: "lab.work",
-    stations: ["lab"],
+    stations: ["lab", "lab-bench"],
     summary: "Measure drive units and crossovers, match left and right, and test each finished pair.",
     cautions: [
       "Soldering gives off fumes: use the fume extraction and let joints cool before handling.",

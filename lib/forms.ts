@@ -26,6 +26,8 @@ export interface FormState {
   message?: string;
   fieldErrors?: Record<string, string[] | undefined>;
   values?: Record<string, string | string[]>;
+  /** What a successful action hands back to show once, e.g. a new machine token. Never user input. */
+  data?: Record<string, string>;
 }
 
 export const initialFormState: FormState = { ok: false };

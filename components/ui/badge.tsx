@@ -13,5 +13,5 @@ const TONES: Record<Tone, string> = {
 };
 
 export function Badge({ tone = "neutral", children, className }: { tone?: Tone; children: ReactNode; className?: string }) {
-  return <span className={cx("inline-flex items-center rounded-full border px-2.5 py-0.5 text-sm font-bold", TONES[tone], className)}>{children}</span>;
+  return <span className={cx("inline-flex items-center whitespace-nowrap rounded-full border px-2.5 py-0.5 text-sm font-bold", TONES[tone], className)}>{children}</span>;
 }

@@ -5,3 +5,4 @@ export * from "./mail";
 export * from "./genealogy";
 export * from "./veneer";
 export * from "./uploads";
+export * from "./lab";

@@ -9,6 +9,7 @@
 import { randomUUID } from "node:crypto";
 import { eq } from "drizzle-orm";
 import type { Db, Tx } from "@/db";
+import { batchUnits, responses, tsParams, unitBatches } from "@/db/schema/lab";
 import { dealers, finishes, flitches, items, leafAllocations, leafDefects, modelPositions, models, owners, ownerships, users, veneerLeaves, type Item } from "@/db/schema";
 import { appendEvent } from "@/lib/events/queries";
 import { changeState, createItem, fit, removeFrom, type NewItem, type Recorder } from "@/lib/genealogy/graph";
@@ -390,6 +391,7 @@ function planHistory(ref: Reference, now: Date, seed: number, months: number): P
   const repaired = planRepair(plan, rng, pairs, now);
   planStock(plan, rng, ref, now);
   planFreshFlitch(plan, rng, ref, now);
+  planLabBatches(plan, rng, now);
   planOwners(plan, rng, pairs, repaired, now);
   return { plan, pairs };
 }
@@ -767,6 +769,87 @@ function planRepair(plan: Plan, rng: Rng, pairs: PairPlan[], now: Date): PairPla
 }
 
 /** Spare units the service desk can choose a replacement from. */
+/** Gaussian noise for the invented measurements (Box–Muller). */
+function gauss(rng: Rng): number {
+  return Math.sqrt(-2 * Math.log(1 - rng.float())) * Math.cos(2 * Math.PI * rng.float());
+}
+
+/**
+ * An invented tweeter response: a second-order high-pass at `fc` with quality `q`, a gentle top
+ * roll-off, and the unit's own small, smooth deviations. Demo data only, never a check.
+ */
+function tweeterResponse(rng: Rng, level: number): number[][] {
+  const fc = 1000 * (1 + 0.04 * gauss(rng));
+  const q = 0.8 + 0.05 * gauss(rng);
+  const ripple = [0.12 * gauss(rng), 0.1 * gauss(rng), 0.08 * gauss(rng)];
+  const phase = [rng.float() * 6.3, rng.float() * 6.3, rng.float() * 6.3];
+  const out: number[][] = [];
+  for (let k = 0; k <= 24 * 5.3; k++) {
+    const hz = 500 * 2 ** (k / 24);
+    if (hz > 20500) break;
+    const r = hz / fc;
+    const hp = 20 * Math.log10((r * r) / Math.sqrt((1 - r * r) ** 2 + (r / q) ** 2));
+    const top = -10 * Math.log10(1 + (hz / 28000) ** 4);
+    const x = Math.log2(hz / 500);
+    const dev = ripple.reduce((sum, a, i) => sum + a * Math.sin((i + 1) * 1.3 * x + phase[i]!), 0);
+    out.push([Math.round(hz * 100) / 100, Math.round((level + hp + top + dev) * 1000) / 1000]);
+  }
+  return out;
+}
+
+/**
+ * Two batches at the lab when the demo opens: tweeters measured three days ago and ready to match,
+ * and bass units that arrived yesterday and wait for the bench.
+ */
+function planLabBatches(plan: Plan, rng: Rng, now: Date) {
+  const lab = at("lab", "lab");
+  const batches = [
+    { key: "batch:tw", partType: "tweeter" as const, partNumber: "DT-25N", maker: TWEETER_MAKER, count: 12, received: workday(now, -4, 9), measured: true },
+    { key: "batch:bs", partType: "bass" as const, partNumber: "W18-PX", maker: CONE_MAKER, count: 8, received: workday(now, -1, 9), measured: false },
+  ];
+  for (const b of batches) {
+    const id = randomUUID();
+    const code = `${PART_TYPE_CODES[b.partType]}-${b.received.toISOString().slice(2, 4)}${b.received.toISOString().slice(5, 7)}-01`;
+    const lot = `${b.maker.prefix}-${rng.int(2400, 2999)}`;
+    plan.add(b.received, async (ctx) => {
+      const by = ctx.recorder(lab, b.received);
+      const eventId = await appendEvent(ctx.tx, { actorId: by.actorId, station: "lab", type: "batch.received", subjectKind: "batch", subjectId: id, data: { code, partType: b.partType, partNumber: b.partNumber, maker: b.maker.name, lot, count: b.count }, at: b.received });
+      await ctx.tx.insert(unitBatches).values({ id, code, partType: b.partType, partNumber: b.partNumber, maker: b.maker.name, lot, receivedOn: b.received.toISOString().slice(0, 10), eventId, createdAt: b.received });
+    });
+    const counter = b.partType === "tweeter" ? "tweeter" : "cone";
+    for (let i = 0; i < b.count; i++) {
+      const key = `${b.key}:${i}`;
+      plan.makerSerials[counter] += rng.int(1, 9);
+      const makerSerial = `${b.maker.prefix}${plan.makerSerials[counter]}`;
+      const made = plus(b.received, (i + 1) * MIN);
+      plan.create(key, made, lab, {
+        kind: "drive_unit",
+        partType: b.partType,
+        state: "awaiting_measurement",
+        identity: { serial: { kind: "drive_unit", code: PART_TYPE_CODES[b.partType] } },
+        attrs: { maker: b.maker.name, partNumber: b.partNumber, batch: code, makerSerial },
+      });
+      plan.add(made, async (ctx) => {
+        await ctx.tx.insert(batchUnits).values({ itemId: get(ctx, key).id, batchId: id, makerSerial });
+      });
+      if (!b.measured) continue;
+      const when = plus(b.received, 2 * HOUR + i * 6 * MIN);
+      const points = tweeterResponse(rng, 90 + 0.15 * gauss(rng));
+      const ts = { fsHz: Math.round(900 * (1 + 0.03 * gauss(rng))), qes: Math.round((1.1 + 0.05 * gauss(rng)) * 1000) / 1000, qms: Math.round((2.2 + 0.1 * gauss(rng)) * 1000) / 1000, reOhm: Math.round((4.7 + 0.05 * gauss(rng)) * 100) / 100 };
+      plan.add(when, async (ctx) => {
+        const unit = get(ctx, key);
+        const by = ctx.recorder(lab, when);
+        const rEvent = await appendEvent(ctx.tx, { actorId: by.actorId, station: "lab", type: "unit.response_measured", subjectKind: "item", subjectId: unit.id, data: { identity: unit.identity, points: points.length, fileName: `${makerSerial}.txt`, source: "upload" }, at: when });
+        await ctx.tx.insert(responses).values({ itemId: unit.id, points, fileName: `${makerSerial}.txt`, source: "upload", eventId: rEvent, createdAt: when });
+        const qts = Math.round(((ts.qes * ts.qms) / (ts.qes + ts.qms)) * 1000) / 1000;
+        const tEvent = await appendEvent(ctx.tx, { actorId: by.actorId, station: "lab", type: "unit.ts_measured", subjectKind: "item", subjectId: unit.id, data: { identity: unit.identity, ...ts, qts, source: "csv" }, at: when });
+        await ctx.tx.insert(tsParams).values({ itemId: unit.id, ...ts, qts, sensitivityDb: null, vasL: null, source: "csv", eventId: tEvent, createdAt: when });
+        await changeState(ctx.tx, unit, "measured", by);
+      });
+    }
+  }
+}
+
 function planStock(plan: Plan, rng: Rng, ref: Reference, now: Date) {
   const lab = at("lab", "lab");
   let n = 0;

@@ -8,10 +8,14 @@ import type { Cookie } from "lucia";
 import { cache } from "react";
 import { z } from "zod";
 import { echoValues, formDataToObject, type FormState } from "@/lib/forms";
+import { getDb } from "@/db";
 import { AppError, forbiddenError, unauthenticated } from "./errors";
 import { SESSION_COOKIE } from "./lucia";
+import { MACHINE_SCOPE_PERMISSIONS, verifyMachineToken, type MachineScope, type Principal } from "./machine-tokens";
 import type { Permission } from "./permissions";
 import { checkSession, startSession, type AuthUser } from "./sessions";
+
+export { recorderFor, type MachinePrincipal, type MachineScope, type Principal } from "./machine-tokens";
 
 /** The signed-in user of this request (read once per request), or null. */
 export const currentUser = cache(async (): Promise<AuthUser | null> => {
@@ -108,19 +112,69 @@ function json(status: number, body: unknown, init?: ResponseInit) {
   return Response.json(body, { ...init, status });
 }
 
+export const MACHINE_ROUTE_ONLY = "Machine tokens may only reach the lab's endpoints.";
+export const MACHINE_TOKEN_INVALID = "This machine token is not valid (unknown or revoked).";
+
+type RouteArgs<Q extends z.ZodType, B extends z.ZodType> = {
+  req: Request;
+  query: z.output<Q>;
+  body: z.output<B>;
+  params: Record<string, string | string[]>;
+};
+
+/**
+ * Who called: on an ordinary route always a signed-in `user` (with `machine: null`); on a route
+ * that declared `machine`, exactly one of `user` and `machine` is set. Check `machine` first:
+ * `if (machine) … else user.id` narrows both.
+ */
+type CallerOf<M extends MachineScope | undefined> = M extends MachineScope ? Principal : { user: AuthUser; machine: null };
+
+export type GuardedRoute = Guarded<(req: Request, ctx: RouteContext) => Promise<Response>> & {
+  /** The machine scope the route lets in with a Bearer token, or null: sessions only. */
+  machine: MachineScope | null;
+};
+
 /**
  * A route handler behind the session, a named permission and zod schemas for the query string
  * and the JSON body. Answers 401, 403 or 400 in JSON before the handler runs.
+ *
+ * A route under app/api/v1/lab/ may also let test benches in with `machine: "lab"`: a request
+ * with `Authorization: Bearer tlm_…` then runs the handler with `machine` set and `user` null,
+ * if the token is known, not revoked and of that scope (else 401). A Bearer token on any other
+ * route is refused with 403 whatever it is; a request with a Bearer header is judged by the
+ * token alone, never by a session cookie it may also carry. Sessions work as before, and must
+ * hold the permission. Records a machine makes follow `recorderFor` (lib/auth/machine-tokens):
+ * actorId null, station "lab-bench", and { machineTokenId, machineTokenName } in the event data.
  */
-export function guardedRoute<Q extends z.ZodType = z.ZodType<Record<string, never>>, B extends z.ZodType = z.ZodType<undefined>>(
+export function guardedRoute<
+  Q extends z.ZodType = z.ZodType<Record<string, never>>,
+  B extends z.ZodType = z.ZodType<undefined>,
+  M extends MachineScope | undefined = undefined,
+>(
   permission: Permission,
-  opts: { query?: Q; body?: B },
-  handler: (args: { req: Request; user: AuthUser; query: z.output<Q>; body: z.output<B>; params: Record<string, string | string[]> }) => Promise<unknown>,
-): Guarded<(req: Request, ctx: RouteContext) => Promise<Response>> {
+  opts: { query?: Q; body?: B; machine?: M },
+  handler: (args: RouteArgs<Q, B> & CallerOf<M>) => Promise<unknown>,
+): GuardedRoute {
+  const machine: MachineScope | null = opts.machine ?? null;
+  if (machine && !MACHINE_SCOPE_PERMISSIONS[machine]?.includes(permission)) {
+    // A programming slip, caught when the route file loads rather than by a bench in production.
+    throw new Error(`guardedRoute: a "${machine}" machine token cannot be let in to a route guarded by "${permission}".`);
+  }
   const route = async (req: Request, ctx: RouteContext): Promise<Response> => {
-    const user = await currentUser();
-    if (!user) return json(401, { error: unauthenticated().message });
-    if (!user.permissions.has(permission)) return json(403, { error: forbiddenError().message });
+    let caller: Principal;
+    const bearer = /^Bearer(?:\s+(.*))?$/i.exec(req.headers.get("authorization")?.trim() ?? "");
+    if (bearer) {
+      if (!machine) return json(403, { error: MACHINE_ROUTE_ONLY });
+      const principal = await verifyMachineToken(getDb(), bearer[1] ?? "");
+      if (!principal) return json(401, { error: MACHINE_TOKEN_INVALID }, { headers: { "WWW-Authenticate": 'Bearer error="invalid_token"' } });
+      if (principal.scope !== machine) return json(403, { error: MACHINE_ROUTE_ONLY });
+      caller = { user: null, machine: principal };
+    } else {
+      const user = await currentUser();
+      if (!user) return json(401, { error: unauthenticated().message });
+      if (!user.permissions.has(permission)) return json(403, { error: forbiddenError().message });
+      caller = { user, machine: null };
+    }
     const url = new URL(req.url);
     const query = (opts.query ?? z.object({})).safeParse(Object.fromEntries(url.searchParams));
     if (!query.success) return json(400, { error: "The query is not valid.", fieldErrors: z.flattenError(query.error as z.ZodError).fieldErrors });
@@ -136,14 +190,16 @@ export function guardedRoute<Q extends z.ZodType = z.ZodType<Record<string, neve
       bodyValue = parsed.data;
     }
     try {
-      const out = await handler({ req, user, query: query.data as z.output<Q>, body: bodyValue as z.output<B>, params: (await ctx.params) ?? {} });
+      const args = { req, ...caller, query: query.data as z.output<Q>, body: bodyValue as z.output<B>, params: (await ctx.params) ?? {} };
+      // A session caller satisfies both shapes of CallerOf; a machine one only reaches routes that declared it.
+      const out = await handler(args as RouteArgs<Q, B> & CallerOf<M>);
       return out instanceof Response ? out : json(200, out);
     } catch (e) {
       const f = failure(e);
       return json(f.status ?? 500, { error: f.message, fieldErrors: f.fieldErrors });
     }
   };
-  return Object.assign(route, { permission });
+  return Object.assign(route, { permission, machine });
 }
 
 /** The client's address as the nearest proxy saw it: the last x-forwarded-for entry. */

@@ -15,6 +15,7 @@ export const PERMISSIONS = [
   "admin.users",
   "admin.reference",
   "admin.mail",
+  "admin.tokens",
 ] as const;
 export type Permission = (typeof PERMISSIONS)[number];
 
@@ -27,7 +28,7 @@ export const ROLE_PERMISSIONS: Record<Role, readonly Permission[]> = {
   packing: ["register.read", "labels.print", "packing.work"],
   service: ["register.read", "labels.print", "service.work"],
   quality: ["register.read", "labels.print", "quality.work"],
-  admin: ["register.read", "admin.users", "admin.reference", "admin.mail"],
+  admin: ["register.read", "admin.users", "admin.reference", "admin.mail", "admin.tokens"],
 };
 
 export function permissionsOf(roles: readonly Role[]): Set<Permission> {

@@ -30,6 +30,13 @@ const PHRASES: Record<string, string> = {
   "veneer.reserve_returned": "returned a reserve leaf",
   "cabinet.batch_started": "started a batch of lacquer cabinets",
   "upload.stored": "added a photo",
+  "batch.received": "registered a batch of units",
+  "unit.response_measured": "measured a response",
+  "unit.ts_measured": "measured Thiele–Small parameters",
+  "set.matched": "reserved a matched set",
+  "crossover.built": "built a crossover board",
+  "machine_token.created": "created a machine token",
+  "machine_token.revoked": "revoked a machine token",
 };
 
 export function describeEvent(type: string, data: Record<string, unknown> = {}): string {

@@ -12,6 +12,7 @@ import { getDb } from "@/db";
 import { seedDemo } from "@/db/seed/seed";
 import { PERMISSIONS, ROLE_PERMISSIONS, type Permission } from "@/lib/auth/permissions";
 import { ROLES, type Role } from "@/lib/auth/roles";
+import { createMachineToken, revokeMachineToken } from "@/lib/auth/machine-tokens";
 import { startSession } from "@/lib/auth/sessions";
 import type { FormState } from "@/lib/forms";
 
@@ -98,7 +99,7 @@ function routeTarget(file: string) {
   return { url: `http://localhost:3000/${path.join("/")}`, params };
 }
 
-type Guarded = ((...args: never[]) => Promise<unknown>) & { permission?: Permission | null };
+type Guarded = ((...args: never[]) => Promise<unknown>) & { permission?: Permission | null; machine?: string | null };
 
 interface Entry {
   id: string;
@@ -146,7 +147,7 @@ interface Outcome {
   redirectedTo?: string;
 }
 
-async function call(e: Entry): Promise<Outcome> {
+async function call(e: Entry, headers?: Record<string, string>): Promise<Outcome> {
   if (e.kind === "action") {
     try {
       const state = (await (e.fn as unknown as (prev: FormState | undefined, fd: FormData) => Promise<FormState>)(undefined, new FormData()));
@@ -158,7 +159,7 @@ async function call(e: Entry): Promise<Outcome> {
     }
   }
   const res = await (e.fn as unknown as (req: Request, ctx: { params: Promise<Record<string, string | string[]>> }) => Promise<Response>)(
-    new Request(e.url!, { method: e.method }),
+    new Request(e.url!, { method: e.method, headers }),
     { params: Promise.resolve(e.params ?? {}) },
   );
   const text = await res.text();
@@ -285,5 +286,50 @@ describe("without a session", () => {
     await signInAs(null);
     const out = await call(entry);
     expect([401, 403], JSON.stringify(out.body)).not.toContain(out.status);
+  });
+});
+
+// Machine tokens reach the lab's endpoints only: a route opts in with guardedRoute's `machine`.
+const MACHINE_ROUTES = "app/api/v1/lab/";
+const routes = entries.filter((e) => e.kind === "route");
+const machineRoutes = routes.filter((e) => e.fn.machine != null);
+const sessionRoutes = routes.filter((e) => e.fn.machine == null);
+
+describe("machine tokens", () => {
+  const bearer = { valid: "", revoked: "" };
+
+  beforeAll(async () => {
+    const actorId = userIdByRole.get("admin")!;
+    bearer.valid = `Bearer ${(await createMachineToken(getDb(), { name: "Walk bench", scope: "lab", actorId })).token}`;
+    const old = await createMachineToken(getDb(), { name: "Walk bench, retired", scope: "lab", actorId });
+    await revokeMachineToken(getDb(), { id: old.row.id, actorId });
+    bearer.revoked = `Bearer ${old.token}`;
+  });
+
+  test(`every route says whether it lets machines in, and only routes under ${MACHINE_ROUTES} do`, () => {
+    for (const e of routes) expect(Object.hasOwn(e.fn, "machine"), `${e.id} made with guardedRoute`).toBe(true);
+    expect(machineRoutes.map((e) => e.id).filter((id) => !id.startsWith(MACHINE_ROUTES))).toEqual([]);
+  });
+
+  test.each(sessionRoutes.map((e) => [e.id, e] as const))("%s refuses a valid lab token with 403 and changes nothing", async (_id, entry) => {
+    await signInAs(null);
+    const before = await snapshot();
+    const out = await call(entry, { authorization: bearer.valid });
+    expect(out.status, JSON.stringify(out.body)).toBe(403);
+    expect(await snapshot()).toEqual(before);
+  });
+
+  test.each(machineRoutes.map((e) => [e.id, e] as const))("%s lets a valid lab token past the guard", async (_id, entry) => {
+    await signInAs(null);
+    const out = await call(entry, { authorization: bearer.valid });
+    expect([401, 403], JSON.stringify(out.body)).not.toContain(out.status);
+  });
+
+  test.each(machineRoutes.map((e) => [e.id, e] as const))("%s answers a revoked token 401 and changes nothing", async (_id, entry) => {
+    await signInAs(null);
+    const before = await snapshot();
+    const out = await call(entry, { authorization: bearer.revoked });
+    expect(out.status, JSON.stringify(out.body)).toBe(401);
+    expect(await snapshot()).toEqual(before);
   });
 });

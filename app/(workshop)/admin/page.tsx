@@ -10,6 +10,7 @@ export const metadata: Metadata = { title: "Administration" };
 
 const SECTIONS = [
   { href: "/admin/users", title: "Users and roles", text: "Invite people, change what they may do, deactivate those who have left." },
+  { href: "/admin/tokens", title: "Machine tokens", text: "Keys for the lab's test benches to post measurements; make one, or revoke one that is lost or retired." },
   { href: "/admin/mail", title: "Mail", text: "Every message Twinleaf queued, whether it was delivered, and the demo's caught mail." },
   { href: "/register", title: "Models, finishes and dealers", text: "The workshop's reference data." },
 ];
@@ -18,7 +19,7 @@ export default async function AdminPage() {
   await requirePage("admin.users");
   return (
     <AreaOverview area={areaByKey("admin")}>
-      <div className="grid gap-4 sm:grid-cols-3">
+      <div className="grid gap-4 sm:grid-cols-2">
         {SECTIONS.map((s) => (
           <Panel key={s.href} title={s.title}>
             <p className="text-ink-soft">{s.text}</p>

@@ -1,19 +1,169 @@
 import type { Metadata } from "next";
+import Link from "next/link";
+import { and, desc, eq, inArray } from "drizzle-orm";
 import { AreaOverview } from "@/components/shell/area-overview";
 import { ModelTable } from "@/components/workshop/reference-tables";
+import { SerialLink } from "@/components/register/serial-link";
+import { buttonClasses } from "@/components/ui/button";
+import { DataTable } from "@/components/ui/data-table";
 import { Panel } from "@/components/ui/panel";
 import { getDb } from "@/db";
+import { events, items } from "@/db/schema";
 import { listModels } from "@/lib/workshop/queries";
 import { areaByKey } from "@/lib/areas";
 import { requirePage } from "@/lib/auth/guard";
+import { formatDate, formatDay } from "@/lib/format";
+import { listBatches, openSets } from "@/lib/lab/units";
 
 export const metadata: Metadata = { title: "Lab" };
 
+const batchLink = (code: string) => (
+  <Link className="serial whitespace-nowrap font-bold text-leaf-dark underline" href={`/lab/batches/${encodeURIComponent(code)}`}>
+    {code}
+  </Link>
+);
+
 export default async function Page() {
   await requirePage("lab.work");
-  const models = await listModels(getDb());
+  const db = getDb();
+  const [models, batches, sets] = await Promise.all([listModels(db), listBatches(db), openSets(db)]);
+  const failedItems = await db
+    .select({ id: items.id, identity: items.identity, partType: items.partType, kind: items.kind })
+    .from(items)
+    .where(and(inArray(items.kind, ["drive_unit", "crossover"]), eq(items.state, "failed")))
+    .limit(100);
+  const reasons = failedItems.length
+    ? await db
+        .select({ subjectId: events.subjectId, reason: events.reason, at: events.at })
+        .from(events)
+        .where(and(eq(events.type, "item.state_changed"), inArray(events.subjectId, failedItems.map((f) => f.id))))
+        .orderBy(desc(events.id))
+    : [];
+  const waiting = batches.filter((b) => Number(b.awaiting) > 0);
+  const ready = batches.filter((b) => Number(b.ready) >= 2);
   return (
     <AreaOverview area={areaByKey("lab")}>
+      <div className="flex flex-wrap gap-3">
+        <Link href="/lab/batches/new" className={buttonClasses("primary")} data-testid="register-batch">
+          Register a batch
+        </Link>
+        <Link href="/lab/match" className={buttonClasses("secondary")}>
+          Match left and right
+        </Link>
+        <Link href="/lab/crossovers" className={buttonClasses("secondary")}>
+          Crossover boards
+        </Link>
+      </div>
+      <div className="grid gap-6 lg:grid-cols-2">
+        <Panel title="Waiting for measurement">
+          {waiting.length ? (
+            <ul className="flex flex-col gap-1" data-testid="lab-waiting">
+              {waiting.map((b) => (
+                <li key={b.id}>
+                  {batchLink(b.code)}: {Number(b.awaiting)} of {b.units} {b.partType} units ({b.partNumber})
+                </li>
+              ))}
+            </ul>
+          ) : (
+            <p className="text-ink-soft">Every registered unit is measured.</p>
+          )}
+        </Panel>
+        <Panel title="Ready to match">
+          {ready.length ? (
+            <ul className="flex flex-col gap-1" data-testid="lab-ready">
+              {ready.map((b) => (
+                <li key={b.id}>
+                  {batchLink(b.code)}: {Number(b.ready)} measured units free{" "}
+                  <Link className="font-bold text-leaf-dark underline" href={`/lab/match?batch=${encodeURIComponent(b.code)}`}>
+                    match them
+                  </Link>
+                </li>
+              ))}
+            </ul>
+          ) : (
+            <p className="text-ink-soft">No batch has two measured units free.</p>
+          )}
+        </Panel>
+      </div>
+      <Panel title="Reserved sets waiting for assembly">
+        <DataTable
+          caption="Matched sets reserved and not yet fitted"
+          testId="lab-sets"
+          empty="No set is waiting."
+          initialSort={{ key: "made", dir: "desc" }}
+          columns={[
+            { key: "code", label: "Set" },
+            { key: "part", label: "Part" },
+            { key: "model", label: "For" },
+            { key: "L", label: "Left" },
+            { key: "R", label: "Right" },
+            { key: "max", label: "Largest difference, dB", numeric: true },
+            { key: "made", label: "Reserved" },
+          ]}
+          rows={sets.map((s) => ({
+            id: s.code,
+            cells: {
+              code: { value: s.code, display: <span className="serial">{s.code}</span> },
+              part: { value: s.partType ?? "" },
+              model: { value: s.model ?? "" },
+              L: { value: s.L ?? "", display: s.L ? <SerialLink identity={s.L} bold={false} /> : "" },
+              R: { value: s.R ?? "", display: s.R ? <SerialLink identity={s.R} bold={false} /> : "" },
+              max: { value: s.maxDiffDb, display: `${s.maxDiffDb.toFixed(2)} of ${s.limitDb}` },
+              made: { value: s.createdAt.getTime(), display: formatDay(s.createdAt) },
+            },
+          }))}
+        />
+      </Panel>
+      <Panel title="Failures">
+        {failedItems.length ? (
+          <ul className="flex flex-col gap-1" data-testid="lab-failures">
+            {failedItems.map((f) => {
+              const r = reasons.find((x) => x.subjectId === f.id);
+              return (
+                <li key={f.id}>
+                  <SerialLink identity={f.identity} /> {f.partType ?? f.kind.replace("_", " ")}: {r?.reason ?? "failed"}
+                  {r ? <span className="text-sm text-ink-soft"> ({formatDay(r.at)})</span> : null}
+                </li>
+              );
+            })}
+          </ul>
+        ) : (
+          <p className="text-ink-soft">No failed unit or board.</p>
+        )}
+      </Panel>
+      <Panel title="Batches">
+        <DataTable
+          caption="Batches of drive units"
+          testId="lab-batches"
+          empty="No batch registered yet."
+          initialSort={{ key: "received", dir: "desc" }}
+          columns={[
+            { key: "code", label: "Batch" },
+            { key: "part", label: "Part" },
+            { key: "number", label: "Part number" },
+            { key: "lot", label: "Lot" },
+            { key: "received", label: "Received" },
+            { key: "units", label: "Units", numeric: true },
+            { key: "awaiting", label: "Waiting", numeric: true },
+            { key: "reserved", label: "Reserved", numeric: true },
+            { key: "failed", label: "Failed", numeric: true },
+          ]}
+          rows={batches.map((b) => ({
+            id: b.id,
+            cells: {
+              code: { value: b.code, display: batchLink(b.code) },
+              part: { value: b.partType },
+              number: { value: `${b.maker} ${b.partNumber}` },
+              lot: { value: b.lot },
+              received: { value: b.receivedOn, display: formatDate(new Date(`${b.receivedOn}T12:00:00Z`)) },
+              units: { value: Number(b.units) },
+              awaiting: { value: Number(b.awaiting) },
+              reserved: { value: Number(b.reserved) },
+              failed: { value: Number(b.failed) },
+            },
+          }))}
+        />
+      </Panel>
       <Panel title="Matching limits per model">
         <ModelTable models={models} show="tolerances" />
       </Panel>

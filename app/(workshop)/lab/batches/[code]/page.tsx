@@ -1,0 +1,96 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { notFound } from "next/navigation";
+import { PrintLabels } from "@/components/register/print-labels";
+import { SerialLink } from "@/components/register/serial-link";
+import { BackLink } from "@/components/ui/back-link";
+import { Badge } from "@/components/ui/badge";
+import { buttonClasses } from "@/components/ui/button";
+import { DataTable } from "@/components/ui/data-table";
+import { Notice } from "@/components/ui/notice";
+import { Panel, PageHeader } from "@/components/ui/panel";
+import { getDb } from "@/db";
+import { requirePage } from "@/lib/auth/guard";
+import { formatDate, formatWhen } from "@/lib/format";
+import { stateLabel } from "@/lib/genealogy/kinds";
+import { batchByCode, batchUnitsView } from "@/lib/lab/units";
+import { BulkTabs } from "./bulk-tabs";
+import { MeasureDialog } from "./measure-dialog";
+
+export async function generateMetadata({ params }: { params: Promise<{ code: string }> }): Promise<Metadata> {
+  return { title: `Batch ${decodeURIComponent((await params).code)}` };
+}
+
+const fmt = (n: number | null, digits = 2) => (n === null ? "" : n.toFixed(digits));
+const TONE: Record<string, "info" | "leaf" | "walnut" | "danger" | "neutral"> = { awaiting_measurement: "neutral", measured: "info", reserved: "leaf", failed: "danger", fitted: "walnut" };
+
+export default async function BatchPage({ params, searchParams }: { params: Promise<{ code: string }>; searchParams: Promise<{ registered?: string }> }) {
+  await requirePage("lab.work");
+  const db = getDb();
+  const code = decodeURIComponent((await params).code);
+  const batch = await batchByCode(db, code);
+  if (!batch) notFound();
+  const units = await batchUnitsView(db, batch.id);
+  const registered = (await searchParams).registered;
+  const awaiting = units.filter((u) => u.state === "awaiting_measurement").length;
+  const ready = units.filter((u) => u.state === "measured" && u.responseId !== null).length;
+  return (
+    <div className="flex flex-col gap-6" data-testid="batch-page">
+      <BackLink href="/lab">Lab</BackLink>
+      <PageHeader
+        title={<span className="serial" data-testid="batch-code">{batch.code}</span>}
+        lead={`${units.length} ${batch.partType} units · ${batch.maker} ${batch.partNumber} · lot ${batch.lot} · received ${formatDate(new Date(`${batch.receivedOn}T12:00:00Z`))}`}
+        actions={
+          ready >= 2 ? (
+            <Link className={buttonClasses("primary")} href={`/lab/match?batch=${encodeURIComponent(batch.code)}`} data-testid="match-batch">
+              Match {ready} measured units
+            </Link>
+          ) : null
+        }
+      />
+      {registered ? <Notice tone="leaf">Batch registered with {units.length} units. Print their labels, then bring in the measurements.</Notice> : null}
+      <p className="text-ink-soft">
+        {awaiting} waiting for measurement · {ready} measured and free to match · {units.filter((u) => u.setCode).length} reserved in sets · {units.filter((u) => u.state === "failed").length} failed
+      </p>
+      <Panel title="Units">
+        <DataTable
+          caption={`Units of batch ${batch.code}`}
+          testId="units-table"
+          columns={[
+            { key: "identity", label: "Serial" },
+            { key: "maker", label: "Maker's serial" },
+            { key: "state", label: "State" },
+            { key: "response", label: "Response" },
+            { key: "fs", label: "Fs, Hz", numeric: true },
+            { key: "qts", label: "Qts", numeric: true },
+            { key: "re", label: "Re, Ω", numeric: true },
+            { key: "spl", label: "dB", numeric: true },
+            { key: "set", label: "Set" },
+            { key: "act", label: "", sortable: false },
+          ]}
+          rows={units.map((u) => ({
+            id: u.id,
+            cells: {
+              identity: { value: u.identity, display: <SerialLink identity={u.identity} /> },
+              maker: { value: u.makerSerial ?? "" },
+              state: { value: u.state, display: <Badge tone={TONE[u.state] ?? "neutral"}>{stateLabel(u.state)}</Badge> },
+              response: { value: u.responseAt?.getTime() ?? 0, display: u.responseAt ? formatWhen(u.responseAt) : "none" },
+              fs: { value: u.fsHz, display: fmt(u.fsHz, 0) },
+              qts: { value: u.qts, display: fmt(u.qts) },
+              re: { value: u.reOhm, display: fmt(u.reOhm) },
+              spl: { value: u.sensitivityDb, display: fmt(u.sensitivityDb, 1) },
+              set: { value: u.setCode ?? "" },
+              act: { value: null, display: u.state === "awaiting_measurement" || u.state === "measured" ? <MeasureDialog batch={batch.code} unit={{ id: u.id, identity: u.identity }} /> : null },
+            },
+          }))}
+        />
+      </Panel>
+      <Panel title="Bring in a whole batch">
+        <BulkTabs batch={batch.code} />
+      </Panel>
+      <Panel title="Labels">
+        <PrintLabels identities={units.map((u) => u.identity)} station="lab" />
+      </Panel>
+    </div>
+  );
+}

@@ -1,0 +1,504 @@
+import "server-only";
+import { and, asc, desc, eq, inArray, isNull, like, sql } from "drizzle-orm";
+import type { DbOrTx } from "@/db";
+import { batchUnits, items, matchedSets, modelTolerances, models, responses, setMembers, tsParams, unitBatches, type Item, type LabPartType } from "@/db/schema";
+import { AppError, isConstraintError } from "@/lib/auth/errors";
+import { newId } from "@/lib/auth/tokens";
+import { appendEvent } from "@/lib/events/queries";
+import { changeState, createItem, type Recorder } from "@/lib/genealogy/graph";
+import { bandLevels, checkTsParams, parseResponseFile, thirdOctaveBands } from "@/lib/acoustics";
+import { LIMIT_EPSILON_DB, pairCost, planPairs } from "@/lib/matching";
+import { allocateSerial } from "@/lib/serials/allocator";
+import { PART_TYPE_CODES, parseSerial } from "@/lib/serials/format";
+
+export const LAB_STATION = "lab";
+
+/** Who records: a signed-in user, or a test bench with a machine token (actor null, the token named in the data). */
+export interface LabActor {
+  id: string | null;
+  machine?: { id: string; name: string } | null;
+}
+
+const recorder = (actor: LabActor): Recorder => ({ actorId: actor.id, station: actor.machine ? "lab-bench" : LAB_STATION });
+const machineData = (actor: LabActor) => (actor.machine ? { machineTokenId: actor.machine.id, machineTokenName: actor.machine.name } : {});
+
+/**
+ * The band each part type is matched over: where it plays in a typical two- or three-way design.
+ * Common practice (no published source): a tweeter above about 1.6 kHz, a midrange from 200 Hz to
+ * 5 kHz, a bass unit from 31.5 Hz to 1 kHz.
+ */
+export const PASSBANDS: Record<LabPartType, { minHz: number; maxHz: number }> = {
+  tweeter: { minHz: 1600, maxHz: 20000 },
+  midrange: { minHz: 200, maxHz: 5000 },
+  bass: { minHz: 31.5, maxHz: 1000 },
+};
+
+// ---- batches ------------------------------------------------------------------------------------
+
+export interface BatchIntake {
+  partType: LabPartType;
+  partNumber: string;
+  maker: string;
+  lot: string;
+  receivedOn: string;
+  /** Scanned from the makers' labels, one per unit; or empty to register `count` units. */
+  makerSerials: string[];
+  count: number;
+}
+
+/** Registers a batch and its units, each with a Twinleaf serial (and the maker's serial where scanned). */
+export async function registerBatch(db: DbOrTx, input: BatchIntake, actor: LabActor) {
+  const serials = input.makerSerials.map((s) => s.trim()).filter(Boolean);
+  const count = serials.length || input.count;
+  if (count < 1 || count > 500) throw new AppError(400, "A batch holds 1 to 500 units.", { count: ["1 to 500 units."] });
+  const dup = serials.find((s, i) => serials.indexOf(s) !== i);
+  if (dup) throw new AppError(400, `The maker's serial ${dup} is scanned twice.`, { makerSerials: [`${dup} appears twice.`] });
+  const code = PART_TYPE_CODES[input.partType];
+  return db.transaction(async (tx) => {
+    const month = input.receivedOn.slice(2, 4) + input.receivedOn.slice(5, 7);
+    const [n] = await tx.select({ n: sql<number>`count(*)` }).from(unitBatches).where(like(unitBatches.code, `${code}-${month}-%`));
+    const batchCode = `${code}-${month}-${String(Number(n?.n ?? 0) + 1).padStart(2, "0")}`;
+    const id = newId();
+    const eventId = await appendEvent(tx, {
+      actorId: actor.id,
+      station: LAB_STATION,
+      type: "batch.received",
+      subjectKind: "batch",
+      subjectId: id,
+      data: { code: batchCode, partType: input.partType, partNumber: input.partNumber, maker: input.maker, lot: input.lot, count, ...machineData(actor) },
+    });
+    await tx.insert(unitBatches).values({ id, code: batchCode, partType: input.partType, partNumber: input.partNumber, maker: input.maker, lot: input.lot, receivedOn: input.receivedOn, eventId });
+    const year = Number(input.receivedOn.slice(0, 4));
+    const units: Item[] = [];
+    for (let i = 0; i < count; i++) {
+      const makerSerial = serials[i] ?? null;
+      const unit = await createItem(
+        tx,
+        {
+          kind: "drive_unit",
+          identity: await allocateSerial(tx, { kind: "drive_unit", code, year }),
+          partType: input.partType,
+          state: "awaiting_measurement",
+          attrs: { maker: input.maker, partNumber: input.partNumber, batch: batchCode, ...(makerSerial ? { makerSerial } : {}) },
+        },
+        recorder(actor),
+      );
+      await tx.insert(batchUnits).values({ itemId: unit.id, batchId: id, makerSerial });
+      units.push(unit);
+    }
+    return { id, code: batchCode, units };
+  });
+}
+
+export async function batchByCode(db: DbOrTx, code: string) {
+  const [b] = await db.select().from(unitBatches).where(eq(unitBatches.code, code)).limit(1);
+  return b ?? null;
+}
+
+export interface UnitRow {
+  id: string;
+  identity: string;
+  makerSerial: string | null;
+  state: string;
+  responseId: number | null;
+  responseAt: Date | null;
+  points: number[][] | null;
+  fsHz: number | null;
+  qts: number | null;
+  qes: number | null;
+  qms: number | null;
+  reOhm: number | null;
+  vasL: number | null;
+  sensitivityDb: number | null;
+  setCode: string | null;
+}
+
+/** A batch's units with their newest response and Thiele–Small set, and the set that holds them. */
+export async function batchUnitsView(db: DbOrTx, batchId: string, opts: { withPoints?: boolean } = {}): Promise<UnitRow[]> {
+  const rows = await db
+    .select({ id: items.id, identity: items.identity, state: items.state, makerSerial: batchUnits.makerSerial })
+    .from(batchUnits)
+    .innerJoin(items, eq(items.id, batchUnits.itemId))
+    .where(eq(batchUnits.batchId, batchId))
+    .orderBy(asc(items.identity));
+  const ids = rows.map((r) => r.id);
+  if (!ids.length) return [];
+  const latestResponse = await db
+    .select({ id: responses.id, itemId: responses.itemId, createdAt: responses.createdAt, ...(opts.withPoints ? { points: responses.points } : {}) })
+    .from(responses)
+    .where(and(inArray(responses.itemId, ids), eq(responses.purpose, "unit"), sql`${responses.id} = (SELECT max(r2.id) FROM responses r2 WHERE r2.item_id = ${responses.itemId} AND r2.purpose = 'unit')`));
+  const latestTs = await db
+    .select()
+    .from(tsParams)
+    .where(and(inArray(tsParams.itemId, ids), sql`${tsParams.id} = (SELECT max(t2.id) FROM ts_params t2 WHERE t2.item_id = ${tsParams.itemId})`));
+  const sets = await db
+    .select({ itemId: setMembers.itemId, code: matchedSets.code })
+    .from(setMembers)
+    .innerJoin(matchedSets, eq(matchedSets.id, setMembers.setId))
+    .where(and(inArray(setMembers.itemId, ids), isNull(setMembers.endedAt)));
+  return rows.map((r) => {
+    const resp = latestResponse.find((x) => x.itemId === r.id);
+    const ts = latestTs.find((x) => x.itemId === r.id);
+    return {
+      ...r,
+      responseId: resp?.id ?? null,
+      responseAt: resp?.createdAt ?? null,
+      points: (resp as { points?: number[][] } | undefined)?.points ?? null,
+      fsHz: ts?.fsHz ?? null,
+      qts: ts?.qts ?? null,
+      qes: ts?.qes ?? null,
+      qms: ts?.qms ?? null,
+      reOhm: ts?.reOhm ?? null,
+      vasL: ts?.vasL ?? null,
+      sensitivityDb: ts?.sensitivityDb ?? null,
+      setCode: sets.find((s) => s.itemId === r.id)?.code ?? null,
+    };
+  });
+}
+
+// ---- measurements -------------------------------------------------------------------------------
+
+/** Finds a unit by its Twinleaf serial, or by the maker's serial (within a batch when one is given). */
+export async function findUnit(db: DbOrTx, text: string, batchId?: string): Promise<Item | null> {
+  const parsed = parseSerial(text);
+  if (parsed?.valid && parsed.kind === "drive_unit") {
+    const [row] = await db.select().from(items).where(and(eq(items.identity, parsed.canonical), eq(items.kind, "drive_unit"))).limit(1);
+    if (row) return row;
+  }
+  const byMaker = await db
+    .select({ item: items })
+    .from(batchUnits)
+    .innerJoin(items, eq(items.id, batchUnits.itemId))
+    .where(and(eq(batchUnits.makerSerial, text.trim()), batchId ? eq(batchUnits.batchId, batchId) : undefined))
+    .limit(2);
+  if (byMaker.length === 1) return byMaker[0]!.item;
+  return null;
+}
+
+const MEASURABLE = new Set(["awaiting_measurement", "measured", "in_stock"]);
+
+async function measurableUnit(tx: DbOrTx, itemId: string) {
+  const [unit] = await tx.select().from(items).where(eq(items.id, itemId)).limit(1);
+  if (!unit || (unit.kind !== "drive_unit" && unit.kind !== "crossover")) throw new AppError(404, "That unit is not in the register.");
+  if (unit.kind === "drive_unit" && !MEASURABLE.has(unit.state)) throw new AppError(409, `${unit.identity} is ${unit.state.replace(/_/g, " ")}: it can no longer be measured as a loose unit.`);
+  return unit;
+}
+
+export interface ResponseInput {
+  itemId: string;
+  points: { hz: number; db: number; phaseDeg?: number }[];
+  fileName: string | null;
+  source: "form" | "csv" | "upload" | "api";
+}
+
+async function insertResponse(tx: DbOrTx, input: ResponseInput, actor: LabActor) {
+  const unit = await measurableUnit(tx, input.itemId);
+  const eventId = await appendEvent(tx, {
+    actorId: actor.id,
+    station: actor.machine ? "lab-bench" : LAB_STATION,
+    type: "unit.response_measured",
+    subjectKind: "item",
+    subjectId: unit.id,
+    data: { identity: unit.identity, points: input.points.length, fromHz: input.points[0]?.hz, toHz: input.points.at(-1)?.hz, fileName: input.fileName, source: input.source, ...machineData(actor) },
+  });
+  await tx.insert(responses).values({
+    itemId: unit.id,
+    points: input.points.map((p) => (p.phaseDeg === undefined ? [p.hz, p.db] : [p.hz, p.db, p.phaseDeg])),
+    fileName: input.fileName,
+    source: input.source,
+    eventId,
+  });
+  if (unit.state === "awaiting_measurement") await changeState(tx, unit, "measured", recorder(actor));
+  return unit;
+}
+
+/**
+ * Reads response files and records each for the unit it names (Twinleaf or maker serial in the
+ * first line or the file name). Every file is checked first: if any is bad or names no unit,
+ * nothing is written and each problem is reported with its file and line.
+ */
+export async function importResponseFiles(db: DbOrTx, files: { name: string; text: string }[], opts: { batchId?: string; source: "upload" | "api" }, actor: LabActor) {
+  if (!files.length) throw new AppError(400, "Choose at least one response file.");
+  const problems: string[] = [];
+  const parsed: { name: string; unit: Item; points: { hz: number; db: number; phaseDeg?: number }[] }[] = [];
+  const seen = new Map<string, string>();
+  for (const f of files) {
+    const result = parseResponseFile(f.text, { name: f.name });
+    if (!result.ok) {
+      for (const e of result.errors.slice(0, 5)) problems.push(`${f.name}, line ${e.line}: ${e.message}`);
+      continue;
+    }
+    const hint = result.serialHint ?? f.name.replace(/\.[A-Za-z0-9]+$/, "");
+    const unit = (result.serialHint ? await findUnit(db, result.serialHint, opts.batchId) : null) ?? (await findUnit(db, hint, opts.batchId));
+    if (!unit) {
+      problems.push(`${f.name}: names no unit of ${opts.batchId ? "this batch" : "the register"} (put the unit's serial or the maker's serial in the first line or the file name).`);
+      continue;
+    }
+    if (seen.has(unit.id)) {
+      problems.push(`${f.name}: ${unit.identity} is also measured by ${seen.get(unit.id)}; send one file per unit.`);
+      continue;
+    }
+    seen.set(unit.id, f.name);
+    parsed.push({ name: f.name, unit, points: result.points });
+  }
+  if (problems.length) throw new AppError(400, `Nothing was saved: ${problems.length} problem${problems.length === 1 ? "" : "s"} in the files.`, { files: problems });
+  return db.transaction(async (tx) => {
+    const out: { file: string; unit: string }[] = [];
+    for (const p of parsed) {
+      await insertResponse(tx, { itemId: p.unit.id, points: p.points, fileName: p.name, source: opts.source }, actor);
+      out.push({ file: p.name, unit: p.unit.identity });
+    }
+    return out;
+  });
+}
+
+export interface TsInput {
+  fsHz: number | null;
+  qts: number | null;
+  qes: number | null;
+  qms: number | null;
+  reOhm: number | null;
+  vasL: number | null;
+  sensitivityDb: number | null;
+}
+
+/** Checks a Thiele–Small set and fills in a derived Qts; returns field errors when it does not hold together. */
+export function checkedTs(input: TsInput): { ok: true; value: TsInput } | { ok: false; fieldErrors: Record<string, string[]> } {
+  const result = checkTsParams({ fs: input.fsHz, qts: input.qts, qes: input.qes, qms: input.qms, re: input.reOhm, vas: input.vasL, sensitivity: input.sensitivityDb });
+  if (!result.ok) {
+    const map: Record<string, string> = { fs: "fsHz", re: "reOhm", vas: "vasL", sensitivity: "sensitivityDb" };
+    return { ok: false, fieldErrors: Object.fromEntries(Object.entries(result.fieldErrors).map(([k, v]) => [map[k] ?? k, v])) };
+  }
+  return { ok: true, value: { ...input, qts: result.values.qts ?? input.qts } };
+}
+
+async function insertTs(tx: DbOrTx, itemId: string, ts: TsInput, source: "form" | "csv" | "api", actor: LabActor) {
+  const unit = await measurableUnit(tx, itemId);
+  const eventId = await appendEvent(tx, {
+    actorId: actor.id,
+    station: actor.machine ? "lab-bench" : LAB_STATION,
+    type: "unit.ts_measured",
+    subjectKind: "item",
+    subjectId: unit.id,
+    data: { identity: unit.identity, ...ts, source, ...machineData(actor) },
+  });
+  await tx.insert(tsParams).values({ itemId: unit.id, ...ts, source, eventId });
+}
+
+/** One unit's measurement from the form: a response file, a Thiele–Small set, or both, in one go. */
+export async function recordMeasurement(db: DbOrTx, input: { itemId: string; response: { name: string; text: string } | null; ts: TsInput | null }, actor: LabActor) {
+  let points: { hz: number; db: number; phaseDeg?: number }[] | null = null;
+  if (input.response) {
+    const result = parseResponseFile(input.response.text, { name: input.response.name });
+    if (!result.ok) {
+      throw new AppError(400, `The response file was not saved: ${result.errors.length} problem${result.errors.length === 1 ? "" : "s"}.`, {
+        response: result.errors.slice(0, 10).map((e) => `Line ${e.line}: ${e.message}`),
+      });
+    }
+    points = result.points;
+  }
+  let ts: TsInput | null = null;
+  if (input.ts && Object.values(input.ts).some((v) => v !== null)) {
+    const checked = checkedTs(input.ts);
+    if (!checked.ok) throw new AppError(400, "Some parameters need attention.", checked.fieldErrors);
+    ts = checked.value;
+  }
+  if (!points && !ts) throw new AppError(400, "Give a response file, Thiele–Small parameters, or both.");
+  await db.transaction(async (tx) => {
+    if (points) await insertResponse(tx, { itemId: input.itemId, points, fileName: input.response!.name, source: "form" }, actor);
+    if (ts) await insertTs(tx, input.itemId, ts, "form", actor);
+  });
+}
+
+/** Thiele–Small sets for many units at once (CSV or JSON): every row checked first, then all written. */
+export async function importTsRows(db: DbOrTx, rows: { line: number; serial: string; ts: TsInput }[], opts: { batchId?: string; source: "csv" | "api" }, actor: LabActor) {
+  const problems: string[] = [];
+  const ready: { unit: Item; ts: TsInput }[] = [];
+  for (const r of rows) {
+    const unit = await findUnit(db, r.serial, opts.batchId);
+    if (!unit) {
+      problems.push(`Line ${r.line}: ${r.serial} is not a unit of ${opts.batchId ? "this batch" : "the register"}.`);
+      continue;
+    }
+    const checked = checkedTs(r.ts);
+    if (!checked.ok) {
+      problems.push(`Line ${r.line} (${r.serial}): ${Object.values(checked.fieldErrors).flat().join(" ")}`);
+      continue;
+    }
+    ready.push({ unit, ts: checked.value });
+  }
+  if (problems.length) throw new AppError(400, `Nothing was saved: ${problems.length} row${problems.length === 1 ? "" : "s"} need attention.`, { csv: problems });
+  await db.transaction(async (tx) => {
+    for (const r of ready) await insertTs(tx, r.unit.id, r.ts, opts.source, actor);
+  });
+  return ready.length;
+}
+
+/** A unit that fails the bench is set aside with its reason. */
+export async function failUnit(db: DbOrTx, input: { itemId: string; reason: string }, actor: LabActor) {
+  await db.transaction(async (tx) => {
+    const unit = await measurableUnit(tx, input.itemId);
+    await changeState(tx, unit, "failed", { ...recorder(actor), reason: input.reason }, machineData(actor));
+  });
+}
+
+// ---- matching -----------------------------------------------------------------------------------
+
+export async function limitFor(db: DbOrTx, modelId: string, partType: LabPartType) {
+  const [row] = await db
+    .select({ limit: modelTolerances.mismatchLimitDb, model: models })
+    .from(modelTolerances)
+    .innerJoin(models, eq(models.id, modelTolerances.modelId))
+    .where(and(eq(modelTolerances.modelId, modelId), eq(modelTolerances.partType, partType)))
+    .limit(1);
+  return row ?? null;
+}
+
+export interface MatchView {
+  bands: ReturnType<typeof thirdOctaveBands>;
+  /** `id` is the unit's serial, so the plan and its reasons name units as people know them. */
+  units: { id: string; itemId: string; identity: string; levels: number[]; fs?: number; qts?: number }[];
+  notReady: { identity: string; reason: string }[];
+  plan: ReturnType<typeof planPairs>;
+  limitDb: number;
+}
+
+/**
+ * The optimal plan for a batch's measured, unreserved units against a model's limit for the part
+ * type, on one-third-octave bands over the part type's passband.
+ */
+export async function matchBatch(db: DbOrTx, batch: { id: string; partType: LabPartType }, opts: { limitDb: number; fsWeight?: number; qtsWeight?: number }): Promise<MatchView> {
+  const pass = PASSBANDS[batch.partType];
+  const bands = thirdOctaveBands(pass.minHz, pass.maxHz);
+  const rows = await batchUnitsView(db, batch.id, { withPoints: true });
+  const units: MatchView["units"] = [];
+  const notReady: MatchView["notReady"] = [];
+  for (const r of rows) {
+    if (r.setCode) continue;
+    if (r.state === "failed") {
+      notReady.push({ identity: r.identity, reason: "failed on the bench" });
+      continue;
+    }
+    if (r.state !== "measured" && r.state !== "in_stock") continue;
+    if (!r.points) {
+      notReady.push({ identity: r.identity, reason: "no response measured yet" });
+      continue;
+    }
+    try {
+      const levels = bandLevels(r.points.map(([hz, db]) => ({ hz: hz!, db: db! })), bands);
+      units.push({ id: r.identity, itemId: r.id, identity: r.identity, levels, ...(r.fsHz !== null ? { fs: r.fsHz } : {}), ...(r.qts !== null ? { qts: r.qts } : {}) });
+    } catch (e) {
+      notReady.push({ identity: r.identity, reason: (e as Error).message });
+    }
+  }
+  const plan = planPairs(units, opts);
+  return { bands, units, notReady, plan, limitDb: opts.limitDb };
+}
+
+/** Thrown when units of a plan were reserved by someone else first. */
+export class UnitsTakenError extends AppError {
+  constructor(public readonly taken: string[]) {
+    super(409, `${taken.join(", ")} ${taken.length === 1 ? "was" : "were"} reserved a moment ago by another plan. Nothing was saved; the plan below is worked out again from the units still free.`);
+    this.name = "UnitsTakenError";
+  }
+}
+
+/**
+ * Accepts a plan: each pair becomes a matched set whose two units are reserved for one future
+ * speaker pair (left and right). Costs are worked out again here from the measurements, so a
+ * pair the limit does not allow cannot be reserved whatever the browser sends.
+ */
+export async function acceptPlan(
+  db: DbOrTx,
+  input: { batchId: string; modelId: string; pairs: { a: string; b: string }[]; fsWeight?: number; qtsWeight?: number },
+  actor: LabActor,
+) {
+  const [batch] = await db.select().from(unitBatches).where(eq(unitBatches.id, input.batchId)).limit(1);
+  if (!batch) throw new AppError(404, "That batch is not in the register.");
+  const limit = await limitFor(db, input.modelId, batch.partType);
+  if (!limit) throw new AppError(400, "Choose a model that uses this part type.");
+  if (!input.pairs.length) throw new AppError(400, "The plan has no pair to accept.");
+  /** Serials of the units in the plan. */
+  const ids = input.pairs.flatMap((p) => [p.a, p.b]);
+  if (new Set(ids).size !== ids.length) throw new AppError(400, "A unit appears in two pairs of the plan.");
+  try {
+    return await db.transaction(async (tx) => {
+      const view = await matchBatch(tx, { id: batch.id, partType: batch.partType }, { limitDb: limit.limit, fsWeight: input.fsWeight, qtsWeight: input.qtsWeight });
+      const byId = new Map(view.units.map((u) => [u.id, u]));
+
+      const taken = ids.filter((id) => !byId.has(id));
+      if (taken.length) throw new UnitsTakenError(taken);
+      const out: { code: string; left: string; right: string }[] = [];
+      const [count] = await tx.select({ n: sql<number>`count(*)` }).from(matchedSets).where(like(matchedSets.code, `M-${batch.code}-%`));
+      let n = Number(count?.n ?? 0);
+      for (const p of input.pairs) {
+        const a = byId.get(p.a)!;
+        const b = byId.get(p.b)!;
+        const c = pairCost(a, b, { limitDb: limit.limit, fsWeight: input.fsWeight, qtsWeight: input.qtsWeight });
+        if (c.maxDiffDb > limit.limit + LIMIT_EPSILON_DB) throw new AppError(400, `${a.identity} and ${b.identity} differ by ${c.maxDiffDb.toFixed(2)} dB, over the ${limit.limit} dB limit.`);
+        const id = newId();
+        const code = `M-${batch.code}-${String(++n).padStart(3, "0")}`;
+        const eventId = await appendEvent(tx, {
+          actorId: actor.id,
+          station: LAB_STATION,
+          type: "set.matched",
+          subjectKind: "set",
+          subjectId: id,
+          data: { code, left: a.identity, right: b.identity, cost: c.cost, maxDiffDb: c.maxDiffDb, limitDb: limit.limit, model: limit.model.code, ...machineData(actor) },
+        });
+        await tx.insert(matchedSets).values({ id, code, kind: "drive_unit", partType: batch.partType, batchId: batch.id, modelId: input.modelId, cost: c.cost, maxDiffDb: c.maxDiffDb, limitDb: limit.limit, eventId });
+        await tx.insert(setMembers).values([
+          { setId: id, itemId: a.itemId, side: "L" },
+          { setId: id, itemId: b.itemId, side: "R" },
+        ]);
+        for (const u of [a, b]) {
+          const [item] = await tx.select().from(items).where(eq(items.id, u.itemId)).limit(1);
+          await changeState(tx, item!, "reserved", recorder(actor), { set: code });
+        }
+        out.push({ code, left: a.identity, right: b.identity });
+      }
+      return out;
+    });
+  } catch (e) {
+    if (e instanceof AppError) throw e;
+    if (isConstraintError(e, "UNIQUE")) {
+      const held = await db.select({ identity: items.identity }).from(setMembers).innerJoin(items, eq(items.id, setMembers.itemId)).where(and(inArray(items.identity, ids), isNull(setMembers.endedAt)));
+      throw new UnitsTakenError(held.map((h) => h.identity));
+    }
+    throw e;
+  }
+}
+
+/** Sets reserved and not yet fitted, newest first, with their two units. */
+export async function openSets(db: DbOrTx, limit = 200) {
+  const rows = await db
+    .select({ set: matchedSets, side: setMembers.side, unit: items.identity, model: models.code })
+    .from(matchedSets)
+    .innerJoin(setMembers, eq(setMembers.setId, matchedSets.id))
+    .innerJoin(items, eq(items.id, setMembers.itemId))
+    .leftJoin(models, eq(models.id, matchedSets.modelId))
+    .where(isNull(setMembers.endedAt))
+    .orderBy(desc(matchedSets.createdAt))
+    .limit(limit * 2);
+  const sets = new Map<string, { code: string; partType: string | null; model: string | null; cost: number; maxDiffDb: number; limitDb: number; createdAt: Date; L?: string; R?: string }>();
+  for (const r of rows) {
+    const s = sets.get(r.set.id) ?? { code: r.set.code, partType: r.set.partType, model: r.model, cost: r.set.cost, maxDiffDb: r.set.maxDiffDb, limitDb: r.set.limitDb, createdAt: r.set.createdAt };
+    s[r.side] = r.unit;
+    sets.set(r.set.id, s);
+  }
+  return [...sets.values()];
+}
+
+/** Batches with how many units wait for measurement, are ready to match, are reserved or failed. */
+export async function listBatches(db: DbOrTx) {
+  return db.all<{ id: string; code: string; partType: LabPartType; partNumber: string; maker: string; lot: string; receivedOn: string; units: number; awaiting: number; ready: number; reserved: number; failed: number }>(sql`
+    SELECT b.id, b.code, b.part_type AS partType, b.part_number AS partNumber, b.maker, b.lot, b.received_on AS receivedOn,
+      count(*) AS units,
+      sum(i.state = 'awaiting_measurement') AS awaiting,
+      sum(i.state = 'measured' AND EXISTS (SELECT 1 FROM responses r WHERE r.item_id = i.id)) AS ready,
+      sum(i.state = 'reserved') AS reserved,
+      sum(i.state = 'failed') AS failed
+    FROM unit_batches b JOIN batch_units bu ON bu.batch_id = b.id JOIN items i ON i.id = bu.item_id
+    GROUP BY b.id ORDER BY b.received_on DESC, b.code DESC`);
+}
+
