@@ -47,7 +47,7 @@ export const AREAS: Area[] = [
     href: "/pairs",
     label: "Cabinet shop",
     permission: "cabinet.work",
-    stations: ["press", "trim", "brace", "sanding", "lacquer", "cure", "polish", "finish"],
+    stations: ["press", "trim", "brace", "sanding", "inspection", "lacquer", "oven", "flatting", "cure", "polish", "finish", "cabinet"],
     summary: "Record each step of a cabinet pair's route: press cycle, trimming, bracing, sanding, lacquer coats, flatting, curing and polishing.",
     cautions: [
       "The forming press is hot and closes with great force: mind burns and pinch points, and keep hands clear of the platens.",

@@ -6,3 +6,4 @@ export * from "./genealogy";
 export * from "./veneer";
 export * from "./uploads";
 export * from "./lab";
+export * from "./route";

@@ -10,6 +10,8 @@ import { randomUUID } from "node:crypto";
 import { eq } from "drizzle-orm";
 import type { Db, Tx } from "@/db";
 import { batchUnits, responses, tsParams, unitBatches } from "@/db/schema/lab";
+import { nonconformances, processSpecs, routeRecords, routeStarts } from "@/db/schema/route";
+import { defaultRoute } from "@/lib/route/default-spec";
 import { dealers, finishes, flitches, items, leafAllocations, leafDefects, modelPositions, models, owners, ownerships, users, veneerLeaves, type Item } from "@/db/schema";
 import { appendEvent } from "@/lib/events/queries";
 import { changeState, createItem, fit, removeFrom, type NewItem, type Recorder } from "@/lib/genealogy/graph";
@@ -386,6 +388,7 @@ function planHistory(ref: Reference, now: Date, seed: number, months: number): P
 
   planLots(plan, rng, start, now);
   planFlitches(plan, rng, pairs);
+  planRoutes(plan, rng, pairs, now);
   for (const p of pairs) planPair(plan, rng, p);
   planShipments(plan, [...shipments.values()]);
   const repaired = planRepair(plan, rng, pairs, now);
@@ -530,6 +533,80 @@ function planFlitches(plan: Plan, rng: Rng, pairs: PairPlan[]) {
 }
 
 const SIDES = ["L", "R"] as const;
+
+/**
+ * The cabinet route of the veneered pairs still in production when the demo opens: each step
+ * recorded at a plausible time after the press (holds respected), so the shop's home shows pairs
+ * at every station. The newest pair past trimming has a trim reading out of window and an open
+ * nonconformance for quality to disposition. Invented demo data, never a check.
+ */
+function planRoutes(plan: Plan, rng: Rng, pairs: PairPlan[], now: Date) {
+  const steps = defaultRoute();
+  const live = pairs.filter((p) => p.finish.kind === "veneer" && p.t.assembly > now);
+  const offsets = new Map<string, number>([
+    ["press", 0],
+    ["trim", 2 * HOUR],
+    ["brace", 3 * HOUR],
+    ["sanding", DAY],
+    ["check-sanding", DAY + HOUR],
+    ["flatting", 3 * DAY],
+  ]);
+  const coatAt = (n: number) => (n <= 4 ? 2 * DAY + (n - 1) * 2 * HOUR : 3 * DAY + 2 * HOUR + (n - 5) * 2 * HOUR);
+  let ncGiven = false;
+  const sorted = [...live].sort((a, b) => b.t.press.getTime() - a.t.press.getTime());
+  for (const p of sorted) {
+    const cure = p.t.press.getTime() + coatAt(8) + 14 * DAY;
+    const timeOf = (key: string): number => {
+      if (key.startsWith("coat-")) return p.t.press.getTime() + coatAt(Number(key.slice(5)));
+      if (key === "machine-polish") return cure + HOUR;
+      if (key === "check-polish") return cure + 3 * HOUR;
+      if (key === "hand-finish") return cure + 5 * HOUR;
+      return p.t.press.getTime() + offsets.get(key)!;
+    };
+    const done = steps.filter((s) => timeOf(s.key) + 30 * MIN <= now.getTime());
+    if (!done.length) continue;
+    const trimBad = !ncGiven && done.some((s) => s.key === "trim");
+    if (trimBad) ncGiven = true;
+    for (const step of done) {
+      const startedAt = new Date(timeOf(step.key));
+      const recordedAt = plus(startedAt, step.key === "brace" ? 2 * HOUR + 10 * MIN : 25 * MIN);
+      if (trimBad && step.seq > steps.find((s) => s.key === "trim")!.seq) break;
+      const readings: Record<string, number | boolean> = {};
+      for (const r of step.readings) {
+        if (r.kind === "check") readings[r.key] = true;
+        else if (r.equals !== undefined) readings[r.key] = r.equals;
+        else if (r.absMax !== undefined) readings[r.key] = trimBad && step.key === "trim" ? 0.24 : Math.round(rng.float() * 15) / 100;
+        else if (r.min !== undefined && r.max !== undefined) readings[r.key] = r.min + Math.round(rng.float() * (r.max - r.min));
+        else readings[r.key] = (r.min ?? 0) + rng.int(5, 15);
+      }
+      const out = trimBad && step.key === "trim";
+      const station = step.station === "inspection" ? "sanding" : step.station;
+      plan.add(recordedAt, async (ctx) => {
+        const pair = get(ctx, p.key);
+        const cabinets = SIDES.map((side) => ({ id: get(ctx, `${p.key}:cab:${side}`).id, side }));
+        const [spec] = await ctx.tx.select().from(processSpecs).where(eq(processSpecs.modelId, p.model.id));
+        if (!spec) return;
+        const by = ctx.recorder(at("cabinet", station), recordedAt);
+        if (step.seq === 1) {
+          const startEvent = await appendEvent(ctx.tx, { actorId: by.actorId, station, type: "route.started", subjectKind: "item", subjectId: pair.id, data: { identity: pair.identity, specVersion: spec.version }, at: recordedAt });
+          await ctx.tx.insert(routeStarts).values({ pairId: pair.id, specId: spec.id, eventId: startEvent });
+        }
+        let first = 0;
+        for (const c of cabinets) {
+          const e = await appendEvent(ctx.tx, { actorId: by.actorId, station, type: "route.step_recorded", subjectKind: "item", subjectId: c.id, data: { identity: get(ctx, `${p.key}:cab:${c.side}`).identity, pair: pair.identity, seq: step.seq, step: step.name, side: c.side, readings, outOfWindow: out ? ["deviationMm"] : [], startedAt: startedAt.toISOString() }, at: recordedAt });
+          first ||= e;
+        }
+        const [record] = await ctx.tx.insert(routeRecords).values({ pairId: pair.id, specId: spec.id, seq: step.seq, cabinets, startedAt, recordedAt, readings, outOfWindow: out, eventId: first }).returning({ id: routeRecords.id });
+        if (out) {
+          const code = `NC-${recordedAt.toISOString().slice(2, 4)}${recordedAt.toISOString().slice(5, 7)}-001`;
+          const finding = "Trim deviation 0.24 mm (window ±0.2 mm)";
+          const e = await appendEvent(ctx.tx, { actorId: by.actorId, station, type: "nc.opened", subjectKind: "item", subjectId: pair.id, data: { identity: pair.identity, code, step: step.name, seq: step.seq, finding, sides: ["L", "R"] }, at: recordedAt });
+          await ctx.tx.insert(nonconformances).values({ id: randomUUID(), code, pairId: pair.id, recordId: record!.id, cabinets, seq: step.seq, finding, openedAt: recordedAt, openedEventId: e });
+        }
+      });
+    }
+  }
+}
 
 /**
  * A flitch received two days ago, measured, with a split leaf and a knot noted, and not yet

@@ -7,6 +7,7 @@ import type { Role } from "@/lib/auth/roles";
 import { appendEvent } from "@/lib/events/queries";
 import { DEMO_PASSWORD, SEED_DEALERS, SEED_FINISHES, SEED_MODELS, SEED_USERS } from "./data";
 import { seedHistory } from "./history";
+import { ensureDefaultSpecs } from "@/lib/route/server";
 import { gs1CheckDigit, isValidGtin } from "@/lib/serials";
 
 export { gs1CheckDigit };
@@ -85,6 +86,8 @@ export async function seedDemo(db: Db, options: { history?: boolean } = {}): Pro
         data: { ...model, positions, tolerances },
       });
     }
+    // Every model gets the workshop's usual cabinet route as its first version.
+    await ensureDefaultSpecs(tx);
 
     for (const finish of SEED_FINISHES) {
       const [row] = await tx

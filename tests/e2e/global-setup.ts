@@ -13,6 +13,8 @@ declare module "vitest" {
   export interface ProvidedContext {
     baseUrl: string;
     mailboxDir: string;
+    /** Write an ISO time or "+<ms>" here to move the app's clock (lib/clock.ts). */
+    clockFile: string;
     databaseUrl: string;
   }
 }
@@ -72,6 +74,7 @@ export default async function setup(project: TestProject) {
       SMTP_PORT: String(smtp.port),
       MAILBOX_DIR: mailboxDir,
       UPLOADS_DIR: join(dir, "uploads"),
+      TWINLEAF_CLOCK_FILE: join(dir, "clock"),
       APP_URL: baseUrl,
       MAIL_SEND_INTERVAL_MS: "300",
     },
@@ -81,6 +84,7 @@ export default async function setup(project: TestProject) {
   project.provide("baseUrl", baseUrl);
   project.provide("mailboxDir", mailboxDir);
   project.provide("databaseUrl", databaseUrl);
+  project.provide("clockFile", join(dir, "clock"));
 
   return async () => {
     server.kill("SIGTERM");

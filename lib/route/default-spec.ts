@@ -1,0 +1,69 @@
+import type { StepSpec } from "./types";
+
+const MIN = 1;
+const HOUR = 60 * MIN;
+const DAY = 24 * HOUR;
+
+/**
+ * The demo workshop's route for a veneered or lacquered cabinet pair. The values are common
+ * practice, as the workshop states them (no published source): press at 135–140 °C for 20–25
+ * minutes; trimming to ±0.2 mm; braces clamped 2 h and rested 2 h more before the next step; 4
+ * coats each stoved, flatting back, 4 more coats (8 in all); 2 weeks of curing after the last
+ * coat before polishing; a machine polishing cycle of about 70 minutes, then polishing by hand; a
+ * hand check after machine sanding and after machine polishing.
+ */
+export function defaultRoute(): StepSpec[] {
+  const steps: Omit<StepSpec, "seq">[] = [
+    {
+      key: "press",
+      name: "Forming press",
+      station: "press",
+      readings: [
+        { key: "platenC", label: "Platen temperature", unit: "°C", kind: "number", min: 135, max: 140 },
+        { key: "minutes", label: "Time in the press", unit: "min", kind: "number", min: 20, max: 25 },
+      ],
+      note: "135–140 °C for 20–25 minutes (common practice).",
+    },
+    {
+      key: "trim",
+      name: "Trimming",
+      station: "trim",
+      readings: [{ key: "deviationMm", label: "Trim deviation", unit: "mm", kind: "number", absMax: 0.2 }],
+      note: "Accurate to ±0.2 mm (common practice).",
+    },
+    {
+      key: "brace",
+      name: "Brace fitting",
+      station: "brace",
+      readings: [{ key: "clampMinutes", label: "Time under clamp", unit: "min", kind: "number", min: 120 }],
+      holdAfter: { minutes: 4 * HOUR, from: "start", label: "clamp 2 h and rest 2 h" },
+      note: "Held under clamp pressure 2 hours, then 2 more hours at rest to cure, before the next step (common practice).",
+    },
+    { key: "sanding", name: "Machine sanding", station: "sanding", readings: [] },
+    { key: "check-sanding", name: "Hand check after sanding", station: "inspection", readings: [{ key: "pass", label: "Inspector's check: surface fit for lacquer", unit: null, kind: "check" }] },
+    ...[1, 2, 3, 4].map((n) => coat(n)),
+    { key: "flatting", name: "Flatting back", station: "flatting", readings: [], note: "After the first four coats, before the next four (common practice)." },
+    ...[5, 6, 7, 8].map((n) => coat(n, n === 8 ? { minutes: 14 * DAY, from: "end", label: "curing, 2 weeks after the last coat" } : undefined)),
+    {
+      key: "machine-polish",
+      name: "Machine polishing",
+      station: "polish",
+      readings: [{ key: "cycleMinutes", label: "Polishing cycle", unit: "min", kind: "number", min: 60, max: 80 }],
+      note: "A cycle of about 70 minutes (common practice; the window 60–80 min is the demo workshop's).",
+    },
+    { key: "check-polish", name: "Hand check after polishing", station: "inspection", readings: [{ key: "pass", label: "Inspector's check: finish even, no burn-through", unit: null, kind: "check" }] },
+    { key: "hand-finish", name: "Hand polishing and finish", station: "finish", readings: [] },
+  ];
+  return steps.map((s, i) => ({ ...s, seq: i + 1 }));
+}
+
+function coat(n: number, holdAfter?: StepSpec["holdAfter"]): Omit<StepSpec, "seq"> {
+  return {
+    key: `coat-${n}`,
+    name: `Lacquer coat ${n}, stoved`,
+    station: "lacquer",
+    readings: [{ key: "coat", label: "Coat number", unit: null, kind: "number", equals: n }],
+    ...(holdAfter ? { holdAfter } : {}),
+    note: n === 8 ? "The last of 8 coats: curing starts when it is recorded (common practice)." : "Each coat is stoved in the oven (common practice).",
+  };
+}

@@ -1,0 +1,410 @@
+/**
+ * The route rules: where a pair's cabinets are on their route, whether a step may be recorded now,
+ * and whether a step's readings are complete and inside their windows. Pure TypeScript: no server,
+ * no Node APIs and no clock — every function that needs the time takes `now` explicitly.
+ *
+ * Times in messages are shown in UTC, like "14:05 on 3 Dec" (the year is added only when it is not
+ * the year of `now`), because the app shows UTC times everywhere else. A release time is rounded up
+ * to the whole minute for display, so the time shown is never earlier than the real release.
+ */
+import type { CabinetPosition, PairPosition, ReadingSpec, RouteEntry, RouteSpec, Side, StepSpec } from "./types";
+
+/** Readings are compared with their windows with this tolerance, so "0.20" typed for 0.2 is in. */
+export const READING_EPSILON = 1e-9;
+/** A step's start may be up to this far ahead of `now` (clocks on the shop floor drift a little). */
+export const FUTURE_TOLERANCE_MS = 60_000;
+
+const SIDES: readonly Side[] = ["L", "R"];
+const MINUTE_MS = 60_000;
+
+export type StepCheck = { ok: true } | { ok: false; reason: string; allowedAt?: Date };
+
+export interface StepInput {
+  seq: number;
+  cabinets: Side[];
+  startedAt: Date;
+}
+
+export interface OutOfWindow {
+  key: string;
+  label: string;
+  value: number | boolean;
+  window: string;
+}
+
+export type ReadingsCheck =
+  | { ok: true; values: Record<string, number | boolean>; outOfWindow: OutOfWindow[] }
+  | { ok: false; fieldErrors: Record<string, string[]> };
+
+/** The hold a cabinet is in because of its last done step, whether or not it has ended by now. */
+export interface CabinetHold {
+  side: Side;
+  /** The step whose hold it is. */
+  step: StepSpec;
+  /** When the hold releases: a step may start at exactly this time. */
+  until: Date;
+  label: string;
+}
+
+// ——— words ———
+
+/** "left" / "right". */
+export function sideName(side: Side): string {
+  return side === "L" ? "left" : "right";
+}
+
+/** "the left cabinet", "the left and right cabinets". */
+export function cabinetsPhrase(sides: Side[]): string {
+  const names = sides.map(sideName);
+  return sides.length === 1 ? `the ${names[0]} cabinet` : `the ${joinAnd(names)} cabinets`;
+}
+
+function joinAnd(words: string[]): string {
+  if (words.length <= 1) return words.join("");
+  return `${words.slice(0, -1).join(", ")} and ${words[words.length - 1]}`;
+}
+
+const MONTHS = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"] as const;
+
+/**
+ * A time for the shop floor, in UTC: "14:05 on 3 Dec". The year is added ("14:05 on 3 Jan 2027")
+ * when `now` is given and is in another year. `roundUp` rounds up to the whole minute (for release
+ * times: never show a time earlier than the real one).
+ */
+export function formatShopTime(d: Date, now?: Date, roundUp = false): string {
+  const t = roundUp ? new Date(Math.ceil(d.getTime() / MINUTE_MS) * MINUTE_MS) : d;
+  const hh = String(t.getUTCHours()).padStart(2, "0");
+  const mm = String(t.getUTCMinutes()).padStart(2, "0");
+  const year = now && now.getUTCFullYear() !== t.getUTCFullYear() ? ` ${t.getUTCFullYear()}` : "";
+  return `${hh}:${mm} on ${t.getUTCDate()} ${MONTHS[t.getUTCMonth()]}${year}`;
+}
+
+/** "Step 9 (Lacquer coat 4, stoved)". */
+function stepTitle(step: StepSpec): string {
+  return `Step ${step.seq} (${step.name})`;
+}
+
+/** A number for people: no trailing float noise ("0.2", not "0.20000000000000001"). */
+function formatNumber(n: number): string {
+  return String(Number(n.toPrecision(12)));
+}
+
+// ——— the route and where the cabinets are on it ———
+
+/** The steps of a spec, in route order. */
+export function stepsOf(spec: RouteSpec | StepSpec[]): StepSpec[] {
+  const steps = Array.isArray(spec) ? spec : spec.steps;
+  return [...steps].sort((a, b) => a.seq - b.seq);
+}
+
+interface CabinetState {
+  done: Set<number>;
+  /** The step entry that last marked each seq done. */
+  entries: Map<number, Extract<RouteEntry, { kind: "step" }>>;
+}
+
+interface Replay {
+  cabinets: Map<Side, CabinetState>;
+  openNcs: string[];
+}
+
+function replay(history: RouteEntry[], sides: readonly Side[]): Replay {
+  const cabinets = new Map<Side, CabinetState>(sides.map((s) => [s, { done: new Set<number>(), entries: new Map() }]));
+  const open: string[] = [];
+  for (const e of history) {
+    switch (e.kind) {
+      case "step":
+        for (const side of e.cabinets) {
+          const c = cabinets.get(side);
+          if (!c) continue;
+          c.done.add(e.seq);
+          c.entries.set(e.seq, e);
+        }
+        break;
+      case "rework":
+        for (const side of e.cabinets) {
+          const c = cabinets.get(side);
+          if (!c) continue;
+          for (const seq of [...c.done]) {
+            if (seq >= e.toSeq) {
+              c.done.delete(seq);
+              c.entries.delete(seq);
+            }
+          }
+        }
+        break;
+      case "nc_opened":
+        if (!open.includes(e.ncId)) open.push(e.ncId);
+        break;
+      case "nc_closed": {
+        const i = open.indexOf(e.ncId);
+        if (i >= 0) open.splice(i, 1);
+        break;
+      }
+    }
+  }
+  return { cabinets, openNcs: open };
+}
+
+/**
+ * The hold after a cabinet's last done step (the highest seq done), whatever the time now. Null
+ * when that step has no hold or nothing is done.
+ */
+function holdOf(side: Side, state: CabinetState, steps: StepSpec[]): CabinetHold | null {
+  let lastSeq: number | null = null;
+  for (const seq of state.done) if (lastSeq === null || seq > lastSeq) lastSeq = seq;
+  if (lastSeq === null) return null;
+  const step = steps.find((s) => s.seq === lastSeq);
+  const entry = state.entries.get(lastSeq);
+  if (!step?.holdAfter || !entry) return null;
+  const from = step.holdAfter.from === "start" ? entry.startedAt : entry.recordedAt;
+  return { side, step, until: new Date(from.getTime() + step.holdAfter.minutes * MINUTE_MS), label: step.holdAfter.label };
+}
+
+/**
+ * The holds the cabinets are in because of their last done step, whether or not they have ended by
+ * now (a step recorded after the fact is compared with when it started, not with now).
+ */
+export function holdsOf(spec: RouteSpec | StepSpec[], history: RouteEntry[], sides: Side[] = ["L", "R"]): CabinetHold[] {
+  const steps = stepsOf(spec);
+  const r = replay(history, sides);
+  const holds: CabinetHold[] = [];
+  for (const side of sides) {
+    const h = holdOf(side, r.cabinets.get(side)!, steps);
+    if (h) holds.push(h);
+  }
+  return holds;
+}
+
+/**
+ * Where the pair is on its route: replays `history` in order. A step entry marks its seq done for
+ * its cabinets; a rework removes, for its cabinets, every done seq ≥ toSeq; nonconformances opened
+ * and not yet closed are listed in `openNcs`. `holdUntil` is the end of the hold after the last
+ * done step when that end is after `now`.
+ */
+export function position(spec: RouteSpec | StepSpec[], history: RouteEntry[], sides: Side[] = ["L", "R"], now: Date): PairPosition {
+  const steps = stepsOf(spec);
+  const r = replay(history, sides);
+  const cabinets: CabinetPosition[] = sides.map((side) => {
+    const state = r.cabinets.get(side)!;
+    const next = steps.find((s) => !state.done.has(s.seq)) ?? null;
+    const hold = next ? holdOf(side, state, steps) : null;
+    const active = hold && hold.until.getTime() > now.getTime() ? hold : null;
+    return {
+      side,
+      done: [...state.done].sort((a, b) => a - b),
+      next,
+      holdUntil: active ? active.until : null,
+      holdLabel: active ? active.label : null,
+    };
+  });
+  return { cabinets, openNcs: [...r.openNcs], finished: cabinets.every((c) => c.next === null) };
+}
+
+// ——— may this step be recorded? ———
+
+/**
+ * Whether `input` may be recorded now. Refuses, in this order: no cabinet named; an unknown seq; a
+ * start time missing or more than a minute after `now`; an open nonconformance on the pair; a
+ * cabinet whose next step is not `seq` (steps are done strictly in order; both cabinets may be
+ * named only when the step is next for both); a start before a hold on a cabinet releases (a start
+ * at exactly the release time is allowed; `allowedAt` is the release time).
+ */
+export function checkStep(spec: RouteSpec | StepSpec[], history: RouteEntry[], input: StepInput, now: Date): StepCheck {
+  const steps = stepsOf(spec);
+  const cabinets = SIDES.filter((s) => input.cabinets.includes(s));
+  if (input.cabinets.length === 0) {
+    return { ok: false, reason: "Choose the cabinet or cabinets the step was done on: left, right or both." };
+  }
+  if (cabinets.length === 0 || input.cabinets.some((s) => !SIDES.includes(s))) {
+    return { ok: false, reason: "A cabinet is either left or right. Choose left, right or both." };
+  }
+
+  const step = steps.find((s) => s.seq === input.seq);
+  if (!step) {
+    const last = steps[steps.length - 1];
+    return {
+      ok: false,
+      reason: last
+        ? `There is no step ${input.seq} on this route: its steps are 1 to ${last.seq}. Choose a step from the route.`
+        : `There is no step ${input.seq}: this route has no steps.`,
+    };
+  }
+
+  const started = input.startedAt;
+  if (!(started instanceof Date) || Number.isNaN(started.getTime())) {
+    return { ok: false, reason: "Enter when the step started." };
+  }
+  if (started.getTime() > now.getTime() + FUTURE_TOLERANCE_MS) {
+    return {
+      ok: false,
+      reason: `The start time ${formatShopTime(started, now)} is in the future (it is now ${formatShopTime(now, now)}). Enter when the step really started.`,
+    };
+  }
+
+  const r = replay(history, SIDES);
+  if (r.openNcs.length > 0) {
+    const ids = joinAnd(r.openNcs);
+    const reason =
+      r.openNcs.length === 1
+        ? `The pair is on hold: nonconformance ${ids} is open. Quality must disposition it first.`
+        : `The pair is on hold: nonconformances ${ids} are open. Quality must disposition them first.`;
+    return { ok: false, reason };
+  }
+
+  // Strict order: the step must be next for every named cabinet.
+  const nextOf = (side: Side) => steps.find((s) => !r.cabinets.get(side)!.done.has(s.seq)) ?? null;
+  const wrong = cabinets.filter((side) => nextOf(side)?.seq !== step.seq);
+  if (wrong.length > 0) {
+    const sentences = groupBy(wrong, (side) => nextOf(side)?.seq ?? null).map(([, group]) => {
+      const next = nextOf(group[0]!);
+      const who = cabinetsPhrase(group);
+      const its = group.length === 1 ? "its" : "their";
+      if (!next) return `${stepTitle(step)} is already done for ${who}: ${group.length === 1 ? "it has" : "they have"} finished the route.`;
+      const verb = next.seq > step.seq ? "is already done for" : "is not next for";
+      return `${stepTitle(step)} ${verb} ${who}: ${its} next step is ${next.seq}, ${next.name}.`;
+    });
+    const ready = cabinets.filter((side) => !wrong.includes(side));
+    if (ready.length > 0) {
+      sentences.push(`Record it for ${cabinetsPhrase(ready)} alone, and for ${cabinetsPhrase(wrong)} when ${wrong.length === 1 ? "it gets" : "they get"} there.`);
+    }
+    return { ok: false, reason: sentences.join(" ") };
+  }
+
+  // Holds: compared with when the step started, so a step recorded after the fact is checked too.
+  const held = cabinets
+    .map((side) => holdOf(side, r.cabinets.get(side)!, steps))
+    .filter((h): h is CabinetHold => h !== null && started.getTime() < h.until.getTime());
+  if (held.length > 0) {
+    const allowedAt = new Date(Math.max(...held.map((h) => h.until.getTime())));
+    const groups = groupBy(held, (h) => `${h.until.getTime()}|${h.label}`);
+    const when = formatShopTime(allowedAt, now, true);
+    let reason: string;
+    if (groups.length === 1) {
+      const group = groups[0]![1];
+      const h = group[0]!;
+      const who = cabinetsPhrase(group.map((g) => g.side));
+      reason = `Not before ${when}: ${who} ${group.length === 1 ? "is" : "are"} on hold (${h.label}) until then.`;
+    } else {
+      const parts = held.map((h) => `${cabinetsPhrase([h.side])} is on hold (${h.label}) until ${formatShopTime(h.until, now, true)}`);
+      reason = `Not before ${when}: ${joinAnd(parts)}.`;
+    }
+    return { ok: false, reason, allowedAt };
+  }
+
+  return { ok: true };
+}
+
+function groupBy<T, K>(items: T[], key: (t: T) => K): [K, T[]][] {
+  const out: [K, T[]][] = [];
+  for (const item of items) {
+    const k = key(item);
+    const g = out.find(([gk]) => gk === k);
+    if (g) g[1].push(item);
+    else out.push([k, [item]]);
+  }
+  return out;
+}
+
+// ——— readings ———
+
+/** The window of a reading for people: "135–140 °C", "±0.2 mm", "at least 120 min", "pass". */
+export function windowText(r: ReadingSpec): string {
+  if (r.kind === "check") return "pass";
+  const unit = r.unit ? ` ${r.unit}` : "";
+  const parts: string[] = [];
+  if (r.equals !== undefined) parts.push(`exactly ${formatNumber(r.equals)}${unit}`);
+  if (r.min !== undefined && r.max !== undefined) parts.push(`${formatNumber(r.min)}–${formatNumber(r.max)}${unit}`);
+  else if (r.min !== undefined) parts.push(`at least ${formatNumber(r.min)}${unit}`);
+  else if (r.max !== undefined) parts.push(`at most ${formatNumber(r.max)}${unit}`);
+  if (r.absMax !== undefined) parts.push(`±${formatNumber(r.absMax)}${unit}`);
+  return parts.length > 0 ? parts.join(", ") : "any value";
+}
+
+const NUMBER_RE = /^[+-]?(\d+([.,]\d*)?|[.,]\d+)$/;
+
+/**
+ * A number typed on the shop floor: "137", "137.5", "137,5", "-0,15", "−0.15" (a typographic
+ * minus). No thousands separators, no exponents. Null when it is not a number.
+ */
+export function parseReadingNumber(raw: string): number | null {
+  const s = raw.trim().replace(/^[\u2212\u2013]/, "-");
+  if (!NUMBER_RE.test(s)) return null;
+  const n = Number(s.replace(",", "."));
+  return Number.isFinite(n) ? n : null;
+}
+
+const TRUE_WORDS = new Set(["true", "pass", "passed", "yes", "y", "on", "1", "ok"]);
+const FALSE_WORDS = new Set(["false", "fail", "failed", "no", "n", "off", "0"]);
+
+function lcFirst(s: string): string {
+  return s.length > 0 && !/^[A-Z]{2}/.test(s) ? s[0]!.toLowerCase() + s.slice(1) : s;
+}
+
+/** Whether a number is inside its reading's window, with the tolerance READING_EPSILON. */
+function inWindow(r: ReadingSpec, v: number): boolean {
+  if (r.min !== undefined && v < r.min - READING_EPSILON) return false;
+  if (r.max !== undefined && v > r.max + READING_EPSILON) return false;
+  if (r.absMax !== undefined && Math.abs(v) > r.absMax + READING_EPSILON) return false;
+  return true;
+}
+
+/**
+ * Checks the readings typed for a step. Every reading is required. Numbers are parsed from text
+ * (a decimal comma is allowed); a reading that is not a number, a missing reading and a number that
+ * must equal a value (the coat number) but does not are field errors. A number outside its window,
+ * or a check the inspector failed, is not an error: it is returned in `outOfWindow` (it is recorded
+ * and opens a nonconformance). Window edges are in.
+ */
+export function checkReadings(step: StepSpec, raw: Record<string, string | boolean | undefined>): ReadingsCheck {
+  const values: Record<string, number | boolean> = {};
+  const outOfWindow: OutOfWindow[] = [];
+  const fieldErrors: Record<string, string[]> = {};
+  const fail = (key: string, msg: string) => (fieldErrors[key] ??= []).push(msg);
+
+  for (const r of step.readings) {
+    const v = raw[r.key];
+    const what = lcFirst(r.label);
+    if (r.kind === "check") {
+      let pass: boolean | null = null;
+      if (typeof v === "boolean") pass = v;
+      else if (typeof v === "string") {
+        const w = v.trim().toLowerCase();
+        if (TRUE_WORDS.has(w)) pass = true;
+        else if (FALSE_WORDS.has(w)) pass = false;
+      }
+      if (pass === null) {
+        fail(r.key, `Answer pass or fail for “${r.label}”.`);
+        continue;
+      }
+      values[r.key] = pass;
+      if (!pass) outOfWindow.push({ key: r.key, label: r.label, value: false, window: windowText(r) });
+      continue;
+    }
+
+    const unit = r.unit ? ` in ${r.unit}` : "";
+    if (v === undefined || (typeof v === "string" && v.trim() === "")) {
+      fail(r.key, `Enter the ${what}${unit}.`);
+      continue;
+    }
+    const n = typeof v === "string" ? parseReadingNumber(v) : null;
+    if (n === null) {
+      fail(r.key, `“${String(v)}” is not a number. Enter the ${what}${unit}, like 12 or 12,5.`);
+      continue;
+    }
+    if (r.equals !== undefined && Math.abs(n - r.equals) > READING_EPSILON) {
+      fail(
+        r.key,
+        r.key === "coat"
+          ? `This step is coat ${formatNumber(r.equals)}; you entered ${formatNumber(n)}.`
+          : `This step needs ${what} ${formatNumber(r.equals)}; you entered ${formatNumber(n)}.`,
+      );
+      continue;
+    }
+    values[r.key] = n;
+    if (!inWindow(r, n)) outOfWindow.push({ key: r.key, label: r.label, value: n, window: windowText(r) });
+  }
+
+  if (Object.keys(fieldErrors).length > 0) return { ok: false, fieldErrors };
+  return { ok: true, values, outOfWindow };
+}

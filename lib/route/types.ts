@@ -1,0 +1,80 @@
+/**
+ * The cabinet route: a model's process spec (ordered steps, the readings each takes with their
+ * windows, and the holds after them) and the history a pair has made along it. Pure types, shared
+ * by the rules (lib/route/rules.ts), the server code and the pages.
+ */
+
+export const STATIONS = ["press", "trim", "brace", "sanding", "lacquer", "oven", "flatting", "cure", "polish", "finish", "inspection"] as const;
+export type Station = (typeof STATIONS)[number];
+
+export interface ReadingSpec {
+  key: string;
+  label: string;
+  /** "°C", "min", "mm"…; null for a check. */
+  unit: string | null;
+  /** A number within [min, max] (either may be absent), |value| ≤ absMax, or an inspector's pass/fail check. */
+  kind: "number" | "check";
+  min?: number;
+  max?: number;
+  /** For deviations: the window is −absMax…+absMax. */
+  absMax?: number;
+  /** A number that must equal this exactly (e.g. the coat number of a coat step): a mismatch is refused as a slip, not recorded. */
+  equals?: number;
+}
+
+export interface HoldSpec {
+  /** Minutes the next step must wait. */
+  minutes: number;
+  /** Counted from when this step started (a clamp) or from when it was recorded as done (a coat). */
+  from: "start" | "end";
+  /** What people call the wait: "clamp and rest", "curing". */
+  label: string;
+}
+
+export interface StepSpec {
+  /** 1, 2, 3… in route order. */
+  seq: number;
+  key: string;
+  name: string;
+  station: Station;
+  readings: ReadingSpec[];
+  holdAfter?: HoldSpec;
+  /** Words for the operator: what the step is and its source ("common practice"). */
+  note?: string;
+}
+
+export interface RouteSpec {
+  id: string;
+  modelId: string;
+  version: number;
+  steps: StepSpec[];
+}
+
+export type Side = "L" | "R";
+
+/** What has happened to a pair on its route, oldest first. Every entry comes from an appended record. */
+export type RouteEntry =
+  | { kind: "step"; id: number; seq: number; cabinets: Side[]; startedAt: Date; recordedAt: Date; readings: Record<string, number | boolean>; outOfWindow: boolean }
+  /** Quality sent the cabinets back: `toSeq` is the step to do again, and every step after it. */
+  | { kind: "rework"; id: number; cabinets: Side[]; toSeq: number; at: Date }
+  /** A nonconformance opened: the pair is on hold until it is dispositioned. */
+  | { kind: "nc_opened"; id: number; ncId: string; cabinets: Side[]; at: Date }
+  | { kind: "nc_closed"; id: number; ncId: string; at: Date };
+
+export interface CabinetPosition {
+  side: Side;
+  /** Seqs done, in order, since the last rework back past them. */
+  done: number[];
+  /** The next step, or null when the route is finished. */
+  next: StepSpec | null;
+  /** When the next step may start because of a hold after the last step (null: no hold now). */
+  holdUntil: Date | null;
+  holdLabel: string | null;
+}
+
+export interface PairPosition {
+  cabinets: CabinetPosition[];
+  /** Open nonconformances hold the whole pair. */
+  openNcs: string[];
+  finished: boolean;
+}
