@@ -353,6 +353,16 @@ function planHistory(ref: Reference, now: Date, seed: number, months: number): P
     }
   }
 
+  // A few veneered pairs pressed in the last days, so the cabinet shop has work at several stations.
+  const veneers = ref.finishes.filter((f) => f.kind === "veneer");
+  for (const d of [1, 4, 8, 12]) {
+    const model = rng.weighted(ref.models, weight(MODEL_WEIGHTS));
+    const finish = rng.weighted(veneers, weight(FINISH_WEIGHTS));
+    const dealer = rng.weighted(ref.dealers, weight(DEALER_WEIGHTS));
+    const press = workday(now, -d, 8 + rng.int(0, 2));
+    pairs.push({ key: `pair:${pairs.length}`, window: months - 1, model, finish, dealer, t: timeline(rng, press, false), units: { L: {}, R: {} } });
+  }
+
   // Pin a few of the last pairs to moments just before `now`, so the workshop always shows one
   // pair at each late step whatever the random draw: in assembly, awaiting test, tested, packed.
   // Each is shifted whole so its earlier steps keep their order; the steps after `now` are set

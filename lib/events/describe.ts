@@ -34,6 +34,12 @@ const PHRASES: Record<string, string> = {
   "unit.response_measured": "measured a response",
   "unit.ts_measured": "measured Thiele–Small parameters",
   "set.matched": "reserved a matched set",
+  "route.started": "started the cabinet route",
+  "route.step_recorded": "recorded a route step",
+  "nc.opened": "opened a nonconformance",
+  "nc.dispositioned": "dispositioned a nonconformance",
+  "spec.created": "saved a route version",
+  "pair.final_tested": "tested the finished pair",
   "crossover.built": "built a crossover board",
   "machine_token.created": "created a machine token",
   "machine_token.revoked": "revoked a machine token",
@@ -48,6 +54,10 @@ export function describeEvent(type: string, data: Record<string, unknown> = {}):
   if (type === "leaf.defect_noted") return `noted a defect: ${s("kind")}${s("note") ? ` (${s("note")})` : ""}`;
   if (type === "veneer.run_confirmed") return `confirmed a run for ${s("pair")}: left ${String(data.left ?? "")}, right ${String(data.right ?? "")} turned${Array.isArray(data.reserve) && data.reserve.length ? `, reserve ${String(data.reserve)}` : ""}`;
   if (type === "veneer.reserve_released") return `re-veneered ${s("cabinet")} at ${s("position")} with ${s("leaf")} (replacing ${s("replaces")})`;
+  if (type === "route.step_recorded") return `recorded step ${String(data.seq ?? "")}, ${s("step").toLowerCase()}${Array.isArray(data.outOfWindow) && data.outOfWindow.length ? " (out of window)" : ""}`;
+  if (type === "nc.opened") return `opened ${s("code")}: ${s("finding")}`;
+  if (type === "nc.dispositioned") return `dispositioned ${s("code")}: ${s("disposition").replace(/_/g, " ")}`;
+  if (type === "pair.final_tested") return data.pass ? "passed the final pair test" : "failed the final pair test";
   if (type === "label.printed") return data.reprint ? "reprinted a label" : phrase;
   return phrase;
 }

@@ -54,7 +54,8 @@ export async function createSpecVersion(db: DbOrTx, input: { modelId: string; st
     const latest = await currentSpec(tx, input.modelId);
     const version = (latest?.version ?? 0) + 1;
     const id = newId();
-    const eventId = await appendEvent(tx, { actorId: actor.id, station: "admin", type: "spec.created", subjectKind: "model", subjectId: input.modelId, data: { version, steps: input.steps.length, note: input.note } });
+    const [model] = await tx.select({ code: models.code }).from(models).where(eq(models.id, input.modelId)).limit(1);
+    const eventId = await appendEvent(tx, { actorId: actor.id, station: "admin", type: "spec.created", subjectKind: "model", subjectId: input.modelId, data: { model: model?.code, code: model?.code, version, steps: input.steps.length, note: input.note } });
     const [row] = await tx.insert(processSpecs).values({ id, modelId: input.modelId, version, steps: input.steps, note: input.note, createdBy: actor.id, eventId }).returning();
     return row!;
   });
@@ -231,7 +232,11 @@ export async function dispositionNc(
     const route = await pairRoute(tx, pair!, at);
     let reworkToSeq: number | null = null;
     let scrapCabinet: Item | null = null;
-    if (input.disposition === "rework") {
+    // Seq 0 is the final pair test: rework means adjust and test again; use as is accepts the deviation.
+    const finalTest = nc.seq === 0;
+    if (finalTest && input.disposition === "scrap") throw new AppError(400, "A final-test nonconformance is reworked (adjusted and tested again) or used as is.", { disposition: ["Choose rework or use as is."] });
+    if (finalTest && input.disposition === "rework") reworkToSeq = 0;
+    else if (input.disposition === "rework") {
       const step = route.spec.steps.find((s) => s.seq === input.reworkToSeq);
       if (!step) throw new AppError(400, "Choose the step to go back to.", { reworkToSeq: ["Choose a step of the route."] });
       if (step.seq > nc.seq) throw new AppError(400, `Rework goes back: choose step ${nc.seq} or an earlier one.`, { reworkToSeq: [`Step ${nc.seq} or earlier.`] });
@@ -255,6 +260,9 @@ export async function dispositionNc(
       .update(nonconformances)
       .set({ disposition: input.disposition, reworkToSeq, scrapCabinetId: scrapCabinet?.id ?? null, reason: input.reason, approvedBy: actor.id, dispositionedAt: at, dispositionEventId: eventId })
       .where(eq(nonconformances.id, nc.id));
+    if (finalTest) {
+      await changeState(tx, pair!, input.disposition === "use_as_is" ? "ready_to_pack" : "awaiting_test", { actorId: actor.id, station: "quality", reason: input.reason }, { nc: nc.code });
+    }
     if (scrapCabinet) {
       const by: Recorder = { actorId: actor.id, station: "quality", reason: input.reason };
       await removeFrom(tx, { parent: pair!, child: scrapCabinet, data: { nc: nc.code } }, { ...by, reason: `scrapped under ${nc.code}: ${input.reason}` });

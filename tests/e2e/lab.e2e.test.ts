@@ -63,5 +63,8 @@ describe("the lab, as a lab user does it", () => {
     await expect(page.getByTestId("plan-accepted").textContent()).resolves.toMatch(/2 matched sets reserved/);
     await page.goto(url("/lab"));
     await expect(page.getByTestId("lab-sets").textContent()).resolves.toContain(`M-${batch}-001`);
+    // The set is in the register: a unit's page names its set and its partner.
+    await page.getByTestId("lab-sets").locator("a").first().click();
+    await expect(page.getByTestId("lab-origin").textContent()).resolves.toMatch(new RegExp(`Reserved in matched set M-${batch}-00\\d as the (left|right) unit, with D-TW-`));
   });
 });

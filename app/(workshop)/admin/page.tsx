@@ -11,6 +11,7 @@ export const metadata: Metadata = { title: "Administration" };
 const SECTIONS = [
   { href: "/admin/users", title: "Users and roles", text: "Invite people, change what they may do, deactivate those who have left." },
   { href: "/admin/tokens", title: "Machine tokens", text: "Keys for the lab's test benches to post measurements; make one, or revoke one that is lost or retired." },
+  { href: "/admin/routes", title: "Cabinet routes", text: "Each model's steps through the shop, their readings and waits; edit one as a new version, and see which pairs follow which." },
   { href: "/admin/mail", title: "Mail", text: "Every message Twinleaf queued, whether it was delivered, and the demo's caught mail." },
   { href: "/register", title: "Models, finishes and dealers", text: "The workshop's reference data." },
 ];

@@ -21,15 +21,23 @@ export function DispositionForm({ nc, steps, sides, back }: { nc: { id: string; 
           name="disposition"
           value={kind}
           onChange={(e) => setKind(e.target.value)}
-          options={[
-            { value: "", label: "Choose…" },
-            { value: "rework", label: "Rework: back to a step" },
-            { value: "use_as_is", label: "Use as is (deviation)" },
-            { value: "scrap", label: "Scrap one cabinet" },
-          ]}
+          options={
+            nc.seq === 0
+              ? [
+                  { value: "", label: "Choose…" },
+                  { value: "rework", label: "Rework: adjust and test again" },
+                  { value: "use_as_is", label: "Use as is (deviation)" },
+                ]
+              : [
+                  { value: "", label: "Choose…" },
+                  { value: "rework", label: "Rework: back to a step" },
+                  { value: "use_as_is", label: "Use as is (deviation)" },
+                  { value: "scrap", label: "Scrap one cabinet" },
+                ]
+          }
           errors={state.fieldErrors?.disposition}
         />
-        {kind === "rework" ? (
+        {kind === "rework" && nc.seq > 0 ? (
           <SelectField label="Back to step" name="reworkToSeq" defaultValue={String(nc.seq)} options={steps.map((s) => ({ value: String(s.seq), label: `${s.seq}. ${s.name}` }))} errors={state.fieldErrors?.reworkToSeq} />
         ) : null}
         {kind === "scrap" ? (

@@ -21,6 +21,7 @@ import { KIND_LABEL, stateLabel } from "@/lib/genealogy/kinds";
 import { dealersOf, itemDetails } from "@/lib/genealogy/queries";
 import { toTree, traceBackward, traceForward } from "@/lib/genealogy/trace";
 import { PairVeneer } from "./pair-veneer";
+import { LabOrigin } from "./lab-origin";
 import { parseLeafIdentity } from "@/lib/serials";
 
 /** A leaf names its flitch and number; a flitch opens in the veneer room for those who work there. */
@@ -94,6 +95,14 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
         actions={<Badge tone={item.state === "failed" || item.state === "scrapped" ? "danger" : item.state === "shipped" ? "leaf" : "info"}>{stateLabel(item.state)}</Badge>}
       />
 
+      {item.kind === "pair" ? (
+        <p>
+          <Link className="font-bold text-leaf-dark underline" href={`/pairs/${encodeURIComponent(item.identity)}`} data-testid="route-link">
+            Its cabinet route: the steps recorded, holds and nonconformances
+          </Link>
+        </p>
+      ) : null}
+      {item.kind === "drive_unit" || item.kind === "crossover" ? <LabOrigin item={item} inLab={user.permissions.has("lab.work")} /> : null}
       {item.kind === "flitch" || item.kind === "leaf" ? <VeneerOrigin identity={item.identity} kind={item.kind} inVeneerRoom={user.permissions.has("veneer.work")} /> : null}
 
       <div className="grid gap-4 md:grid-cols-3">

@@ -1,0 +1,163 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { asc, count, desc, eq } from "drizzle-orm";
+import { BackLink } from "@/components/ui/back-link";
+import { Badge } from "@/components/ui/badge";
+import { buttonClasses } from "@/components/ui/button";
+import { Notice } from "@/components/ui/notice";
+import { Panel, PageHeader } from "@/components/ui/panel";
+import { TD, TH, TR, Table } from "@/components/ui/table";
+import { getDb } from "@/db";
+import { models, processSpecs, routeStarts, users } from "@/db/schema";
+import { requirePage } from "@/lib/auth/guard";
+import { formatDate, formatWhenExact } from "@/lib/format";
+import { windowText } from "@/lib/route/rules";
+import type { StepSpec } from "@/lib/route/types";
+import { holdText, STATION_LABELS } from "./schemas";
+
+export const metadata: Metadata = { title: "Cabinet routes" };
+
+const pairsText = (n: number) => (n === 0 ? "no pairs" : n === 1 ? "1 pair" : `${n} pairs`);
+
+/** A version's steps, in route order: what is read, its window, and the wait after it. */
+function StepsTable({ steps, caption, testId }: { steps: StepSpec[]; caption: string; testId?: string }) {
+  return (
+    <Table data-testid={testId}>
+      <caption className="sr-only">{caption}</caption>
+      <thead>
+        <tr>
+          <TH className="w-12 text-right">Step</TH>
+          <TH>Name</TH>
+          <TH>Station</TH>
+          <TH>Readings and their windows</TH>
+          <TH>After it</TH>
+        </tr>
+      </thead>
+      <tbody>
+        {steps.map((s) => (
+          <TR key={s.seq} data-testid={testId ? `${testId}-step-${s.seq}` : undefined}>
+            <TD className="text-right tabular-nums">{s.seq}</TD>
+            <TD>
+              <span className="font-bold">{s.name}</span> <code className="font-mono text-sm text-ink-soft">{s.key}</code>
+              {s.note ? <p className="mt-1 max-w-prose text-sm text-ink-soft">{s.note}</p> : null}
+            </TD>
+            <TD>{STATION_LABELS[s.station] ?? s.station}</TD>
+            <TD>
+              {s.readings.length ? (
+                <ul className="flex flex-col gap-0.5">
+                  {s.readings.map((r) => (
+                    <li key={r.key}>
+                      {r.label}: <span className="whitespace-nowrap font-bold">{windowText(r)}</span>
+                    </li>
+                  ))}
+                </ul>
+              ) : (
+                <span className="text-ink-soft">no readings</span>
+              )}
+            </TD>
+            <TD>{s.holdAfter ? holdText(s.holdAfter) : <span className="text-ink-soft">next step at once</span>}</TD>
+          </TR>
+        ))}
+      </tbody>
+    </Table>
+  );
+}
+
+export default async function RoutesPage({ searchParams }: { searchParams: Promise<{ saved?: string; version?: string }> }) {
+  await requirePage("admin.reference");
+  const db = getDb();
+  const sp = await searchParams;
+  const active = await db.select({ id: models.id, code: models.code, name: models.name }).from(models).where(eq(models.active, true)).orderBy(asc(models.code));
+  const specs = await db
+    .select({ spec: processSpecs, by: users.name })
+    .from(processSpecs)
+    .leftJoin(users, eq(users.id, processSpecs.createdBy))
+    .orderBy(asc(processSpecs.modelId), desc(processSpecs.version));
+  const starts = await db.select({ specId: routeStarts.specId, n: count() }).from(routeStarts).groupBy(routeStarts.specId);
+  const pairsOn = new Map(starts.map((s) => [s.specId, Number(s.n)]));
+
+  // The notice after a save, shown only for a version that exists.
+  const savedModel = active.find((m) => m.code === sp.saved);
+  const savedVersion = Number(sp.version);
+  const saved = savedModel && specs.some((s) => s.spec.modelId === savedModel.id && s.spec.version === savedVersion) ? { code: savedModel.code, version: savedVersion } : null;
+
+  return (
+    <div className="flex flex-col gap-6" data-testid="routes-page">
+      <BackLink href="/admin">Administration</BackLink>
+      <PageHeader
+        title="Cabinet routes"
+        lead="Each model's route through the shop: its steps in order, the readings each takes with their windows, and the waits after them. Editing a route saves a new version; a pair keeps the version it started under, and pairs not yet started take the newest."
+      />
+      {saved ? (
+        <Notice tone="leaf" testId="route-saved">
+          Version {saved.version} of {saved.code} saved; pairs already on the route keep their version.
+        </Notice>
+      ) : null}
+      {active.length === 0 ? <p className="text-ink-soft">No active models yet: add one under the register first.</p> : null}
+      {active.map((m) => {
+        const versions = specs.filter((s) => s.spec.modelId === m.id);
+        const [current, ...earlier] = versions;
+        const editHref = `/admin/routes/${encodeURIComponent(m.code)}/edit`;
+        return (
+          <Panel
+            key={m.id}
+            title={
+              <>
+                {m.name} <span className="serial text-ink-soft">{m.code}</span>
+              </>
+            }
+            actions={
+              <Link href={editHref} className={buttonClasses(current ? "secondary" : "primary", "sm")} data-testid={`edit-route-${m.code}`}>
+                {current ? "Edit as a new version" : "Set its route"}
+              </Link>
+            }
+          >
+            <div data-testid={`route-${m.code}`} className="flex flex-col gap-4">
+              {current ? (
+                <>
+                  <p data-testid={`route-${m.code}-current`}>
+                    <Badge tone="leaf">version {current.spec.version}</Badge>{" "}
+                    <span className="text-ink-soft">
+                      saved <time dateTime={current.spec.createdAt.toISOString()} title={formatWhenExact(current.spec.createdAt)}>{formatDate(current.spec.createdAt)}</time> by {current.by ?? "Twinleaf"} ·{" "}
+                      {current.spec.steps.length} steps · {pairsText(pairsOn.get(current.spec.id) ?? 0)} on it
+                    </span>
+                    {current.spec.note ? <span className="mt-1 block">“{current.spec.note}”</span> : null}
+                  </p>
+                  <StepsTable steps={current.spec.steps} caption={`Route of ${m.code}, version ${current.spec.version}`} testId={`route-${m.code}-steps`} />
+                </>
+              ) : (
+                <p className="text-ink-soft">This model has no route yet: its pairs cannot start on the shop floor until it has one.</p>
+              )}
+              {earlier.length ? (
+                <section aria-labelledby={`earlier-${m.code}`}>
+                  <h3 id={`earlier-${m.code}`} className="mb-2 font-bold">
+                    Earlier versions
+                  </h3>
+                  <ul className="flex flex-col gap-2" data-testid={`route-${m.code}-earlier`}>
+                    {earlier.map((v) => (
+                      <li key={v.spec.id}>
+                        <details className="rounded-lg border border-line px-3 py-2">
+                          <summary className="cursor-pointer">
+                            <span className="font-bold">Version {v.spec.version}</span>{" "}
+                            <span className="text-ink-soft">
+                              <time dateTime={v.spec.createdAt.toISOString()}>{formatDate(v.spec.createdAt)}</time> by {v.by ?? "Twinleaf"} · {v.spec.steps.length} steps ·{" "}
+                              {pairsText(pairsOn.get(v.spec.id) ?? 0)} on it
+                            </span>
+                            {v.spec.note ? <span className="block">“{v.spec.note}”</span> : null}
+                          </summary>
+                          <div className="mt-3">
+                            <StepsTable steps={v.spec.steps} caption={`Route of ${m.code}, version ${v.spec.version}`} />
+                          </div>
+                        </details>
+                      </li>
+                    ))}
+                  </ul>
+                </section>
+              ) : null}
+            </div>
+          </Panel>
+        );
+      })}
+    </div>
+  );
+}
