@@ -13,6 +13,8 @@ afterAll(async () => {
 
 // WCAG 2.1 A and AA rules, as axe-core tags them.
 async function violations(page: Page) {
+  // Next streams a dynamic page's metadata after its shell: check the page once it has its title.
+  await page.waitForFunction(() => document.title.length > 0);
   const result = await new AxeBuilder({ page }).withTags(["wcag2a", "wcag2aa", "wcag21a", "wcag21aa"]).analyze();
   return result.violations.map((v) => `${v.id}: ${v.help} (${v.nodes.map((n) => n.target.join(" ")).join(", ")})`);
 }
