@@ -7,3 +7,4 @@ export * from "./veneer";
 export * from "./uploads";
 export * from "./lab";
 export * from "./route";
+export * from "./dispatch";

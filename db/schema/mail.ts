@@ -15,6 +15,11 @@ export const outbox = sqliteTable(
     subject: text("subject").notNull(),
     text: text("text").notNull(),
     html: text("html"),
+    /**
+     * Files to attach, made when the mail is sent: e.g. { kind: "certificate", certificateId, filename }
+     * renders that certificate's PDF (marked as a copy). Nothing bulky is kept in the outbox.
+     */
+    attachments: text("attachments", { mode: "json" }).$type<{ kind: "certificate"; certificateId: string; filename: string }[]>().notNull().default([]),
     createdAt: integer("created_at", { mode: "timestamp_ms" })
       .notNull()
       .default(sql`(unixepoch('subsec') * 1000)`),

@@ -12,7 +12,9 @@ import type { Db, Tx } from "@/db";
 import { batchUnits, responses, tsParams, unitBatches } from "@/db/schema/lab";
 import { nonconformances, processSpecs, routeRecords, routeStarts } from "@/db/schema/route";
 import { defaultRoute } from "@/lib/route/default-spec";
-import { dealers, finishes, flitches, items, leafAllocations, leafDefects, modelPositions, models, owners, ownerships, users, veneerLeaves, type Item } from "@/db/schema";
+import { certificates, dealers, finalTests, finishes, flitches, items, leafAllocations, leafDefects, modelPositions, models, owners, ownerships, users, veneerLeaves, type Item } from "@/db/schema";
+import { compareResponses } from "@/lib/acoustics";
+import { certificateCode, CERTIFICATE_CODE_BYTES } from "@/lib/certificates/code";
 import { appendEvent } from "@/lib/events/queries";
 import { changeState, createItem, fit, removeFrom, type NewItem, type Recorder } from "@/lib/genealogy/graph";
 import { allocateSerial } from "@/lib/serials/allocator";
@@ -236,6 +238,10 @@ interface RefModel {
   minLeafLengthMm: number;
   minLeafWidthMm: number;
   pairGtin: string;
+  /** The final pair test: |L − R| limit over the model's range. */
+  pairResponseLimitDb: number;
+  responseMinHz: number;
+  responseMaxHz: number;
   positions: { position: string; partType: PartType }[];
 }
 interface Reference {
@@ -266,6 +272,9 @@ async function loadReference(db: Db): Promise<Reference | null> {
       minLeafLengthMm: m.minLeafLengthMm,
       minLeafWidthMm: m.minLeafWidthMm,
       pairGtin: m.pairGtin,
+      pairResponseLimitDb: m.pairResponseLimitDb,
+      responseMinHz: m.responseMinHz,
+      responseMaxHz: m.responseMaxHz,
       // A position with count n holds n units: P1..Pn.
       positions: positionRows
         .filter((p) => p.modelId === m.id)
@@ -400,6 +409,9 @@ function planHistory(ref: Reference, now: Date, seed: number, months: number): P
   planFlitches(plan, rng, pairs);
   planRoutes(plan, rng, pairs, now);
   for (const p of pairs) planPair(plan, rng, p);
+  // The sign-offs draw from a generator of their own, so adding them changed no other draw of the history.
+  const signOffs = new Rng(seed ^ SIGN_OFF_SALT);
+  for (const p of pairs) planSignOffs(plan, signOffs, p, now);
   planShipments(plan, [...shipments.values()]);
   const repaired = planRepair(plan, rng, pairs, now);
   planStock(plan, rng, ref, now);
@@ -767,6 +779,108 @@ function planPair(plan: Plan, rng: Rng, p: PairPlan) {
   });
   plan.fit(plus(t.packed, MIN), packing, carton, p.key, "PAIR");
   plan.state(plus(t.packed, MIN), packing, p.key, "packed");
+}
+
+const SIGN_OFF_SALT = 0x5c3a71f;
+
+/**
+ * An invented finished-speaker response over the model's range, 1/12 octave: a shared voicing
+ * (gentle ripples, the bass roll-off at the bottom of the range, a soft top) plus each speaker's
+ * own small, smooth deviation. Demo data only, never a check.
+ */
+function finalResponses(rng: Rng, model: RefModel): { L: number[][]; R: number[][] } {
+  const level = 86 + 1.5 * gauss(rng);
+  const voicing = [0.5 * gauss(rng), 0.35 * gauss(rng), 0.25 * gauss(rng)];
+  const phase = [rng.float() * 6.3, rng.float() * 6.3, rng.float() * 6.3];
+  const own = (["L", "R"] as const).map(() => ({ a: [0.07 * gauss(rng), 0.06 * gauss(rng), 0.05 * gauss(rng)], p: [rng.float() * 6.3, rng.float() * 6.3, rng.float() * 6.3], offset: 0.08 * gauss(rng) }));
+  const hz: number[] = [];
+  for (let k = 0; ; k++) {
+    const f = model.responseMinHz * 2 ** (k / 12);
+    if (f > model.responseMaxHz * (1 + 1e-9)) break;
+    hz.push(f);
+  }
+  if (hz[hz.length - 1]! < model.responseMaxHz * 0.999) hz.push(model.responseMaxHz);
+  const curve = (side: 0 | 1, scale: number) =>
+    hz.map((f) => {
+      const x = Math.log2(f / 1000);
+      const base = level + voicing.reduce((sum, a, i) => sum + a * Math.sin((i + 1) * 0.9 * x + phase[i]!), 0) - 4 / (1 + (f / (1.3 * model.responseMinHz)) ** 4) - 1.2 * (f / model.responseMaxHz) ** 2;
+      const o = own[side]!;
+      const dev = o.offset + o.a.reduce((sum, a, i) => sum + a * Math.sin((i + 1) * 1.4 * x + o.p[i]!), 0);
+      return [Math.round(f * 100) / 100, Math.round((base + scale * dev) * 1000) / 1000];
+    });
+  // A pair that reached the carton passed: should a draw come out over the limit, the two are closer.
+  for (let scale = 1; ; scale /= 2) {
+    const out = { L: curve(0, scale), R: curve(1, scale) };
+    const cmp = compareResponses(toPoints(out.L), toPoints(out.R), { minHz: model.responseMinHz, maxHz: model.responseMaxHz, limitDb: model.pairResponseLimitDb });
+    if (cmp.maxAbsDiffDb <= 0.8 * model.pairResponseLimitDb || scale < 1e-3) return out;
+  }
+}
+
+const toPoints = (pts: number[][]) => pts.map(([hz, db]) => ({ hz: hz!, db: db! }));
+
+/**
+ * The records of the late steps: the final clean and inspection at assembly, the final pair test
+ * in the lab with both finished responses, and for a pair that was packed its certificate (issued
+ * and printed, to go in the carton) and the packer's sign-off.
+ */
+function planSignOffs(plan: Plan, rng: Rng, p: PairPlan, now: Date) {
+  const { t, model } = p;
+  const assembly = at("assembly", "assembly");
+  const lab = at("lab", "lab");
+  const packing = at("packing", "packing");
+
+  plan.add(t.built, async (ctx) => {
+    const pair = get(ctx, p.key);
+    await appendEvent(ctx.tx, { actorId: ctx.recorder(assembly, t.built).actorId, station: "assembly", type: "pair.inspected", subjectKind: "item", subjectId: pair.id, data: { identity: pair.identity }, at: t.built });
+  });
+
+  if (t.tested > now) return;
+  // Drawn for every tested pair in plan order, whatever `now` cuts off later, so the draws stay aligned.
+  const curves = finalResponses(rng, model);
+  const comparison = compareResponses(toPoints(curves.L), toPoints(curves.R), { minHz: model.responseMinHz, maxHz: model.responseMaxHz, limitDb: model.pairResponseLimitDb });
+  const tested = plus(t.tested, -10 * MIN);
+  plan.add(tested, async (ctx) => {
+    const pair = get(ctx, p.key);
+    const by = ctx.recorder(lab, tested);
+    const ids: number[] = [];
+    for (const side of SIDES) {
+      const speaker = get(ctx, `${p.key}:spk:${side}`);
+      const points = curves[side];
+      const fileName = `${speaker.identity}-final.txt`;
+      const eventId = await appendEvent(ctx.tx, { actorId: by.actorId, station: "lab", type: "unit.response_measured", subjectKind: "item", subjectId: speaker.id, data: { identity: speaker.identity, purpose: "final", points: points.length, fileName }, at: tested });
+      const [row] = await ctx.tx.insert(responses).values({ itemId: speaker.id, purpose: "final", points, fileName, source: "upload", eventId, createdAt: tested }).returning({ id: responses.id });
+      ids.push(row!.id);
+    }
+    const limitDb = model.pairResponseLimitDb;
+    const eventId = await appendEvent(ctx.tx, {
+      actorId: by.actorId,
+      station: "lab",
+      type: "pair.final_tested",
+      subjectKind: "item",
+      subjectId: pair.id,
+      data: { identity: pair.identity, pass: comparison.pass, maxDiffDb: comparison.maxAbsDiffDb, worstBand: comparison.worstBand, limitDb, minHz: model.responseMinHz, maxHz: model.responseMaxHz },
+      at: tested,
+    });
+    await ctx.tx.insert(finalTests).values({ pairId: pair.id, leftResponseId: ids[0]!, rightResponseId: ids[1]!, limitDb, maxDiffDb: comparison.maxAbsDiffDb, worstBand: comparison.worstBand, pass: comparison.pass, eventId, createdAt: tested });
+  });
+
+  if (t.packed > now) return;
+  const code = certificateCode(Uint8Array.from({ length: CERTIFICATE_CODE_BYTES }, () => rng.int(0, 255)));
+  // Issued and printed just before packing: the certificate goes into the carton with the pair.
+  const issued = plus(t.packed, -30 * MIN);
+  plan.add(issued, async (ctx) => {
+    const pair = get(ctx, p.key);
+    const by = ctx.recorder(packing, issued);
+    const id = randomUUID();
+    const eventId = await appendEvent(ctx.tx, { actorId: by.actorId, station: "packing", type: "certificate.issued", subjectKind: "item", subjectId: pair.id, data: { identity: pair.identity, certificateId: id }, at: issued });
+    await ctx.tx.insert(certificates).values({ id, pairId: pair.id, code, issuedAt: issued, eventId });
+    await appendEvent(ctx.tx, { actorId: by.actorId, station: "packing", type: "certificate.printed", subjectKind: "item", subjectId: pair.id, data: { identity: pair.identity, certificateId: id, copy: false }, at: plus(issued, MIN) });
+  });
+  const packed = plus(t.packed, MIN);
+  plan.add(packed, async (ctx) => {
+    const pair = get(ctx, p.key);
+    await appendEvent(ctx.tx, { actorId: ctx.recorder(packing, packed).actorId, station: "packing", type: "pair.packed", subjectKind: "item", subjectId: pair.id, data: { identity: pair.identity, carton: get(ctx, `${p.key}:carton`).identity }, at: packed });
+  });
 }
 
 function driveUnit(plan: Plan, rng: Rng, model: RefModel, partType: PartType): ItemSpec {

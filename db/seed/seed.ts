@@ -8,6 +8,8 @@ import { appendEvent } from "@/lib/events/queries";
 import { DEMO_PASSWORD, SEED_DEALERS, SEED_FINISHES, SEED_MODELS, SEED_USERS } from "./data";
 import { seedHistory } from "./history";
 import { ensureDefaultSpecs } from "@/lib/route/server";
+import { ensurePackingLists } from "@/lib/dispatch/packing-list";
+import { packingItems } from "@/db/schema/dispatch";
 import { gs1CheckDigit, isValidGtin } from "@/lib/serials";
 
 export { gs1CheckDigit };
@@ -86,8 +88,16 @@ export async function seedDemo(db: Db, options: { history?: boolean } = {}): Pro
         data: { ...model, positions, tolerances },
       });
     }
-    // Every model gets the workshop's usual cabinet route as its first version.
+    // Every model gets the workshop's usual cabinet route as its first version, and a packing list;
+    // the floor-stander also ships with its spikes.
     await ensureDefaultSpecs(tx);
+    if ((await ensurePackingLists(tx)) > 0) {
+      const [tower] = await tx.select({ id: models.id }).from(models).where(eq(models.code, "TB3"));
+      if (tower) {
+        const [last] = await tx.select({ n: sql<number>`max(position)` }).from(packingItems).where(eq(packingItems.modelId, tower.id));
+        await tx.insert(packingItems).values({ modelId: tower.id, position: Number(last?.n ?? 0) + 1, label: "Floor spikes and cups (8 each)" }).onConflictDoNothing();
+      }
+    }
 
     for (const finish of SEED_FINISHES) {
       const [row] = await tx

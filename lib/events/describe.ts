@@ -40,6 +40,15 @@ const PHRASES: Record<string, string> = {
   "nc.dispositioned": "dispositioned a nonconformance",
   "spec.created": "saved a route version",
   "pair.final_tested": "tested the finished pair",
+  "pair.assembled": "built the pair's speakers",
+  "pair.inspected": "did the final clean and inspection",
+  "pair.packed": "packed the pair",
+  "set.member_fitted": "fitted a unit of a matched set",
+  "pair.lacquer_paired": "paired two lacquer cabinets",
+  "certificate.issued": "issued the certificate",
+  "certificate.printed": "printed the certificate",
+  "carton.moved": "moved a carton",
+  "shipment.sent": "shipped cartons",
   "crossover.built": "built a crossover board",
   "machine_token.created": "created a machine token",
   "machine_token.revoked": "revoked a machine token",
@@ -58,6 +67,7 @@ export function describeEvent(type: string, data: Record<string, unknown> = {}):
   if (type === "nc.opened") return `opened ${s("code")}: ${s("finding")}`;
   if (type === "nc.dispositioned") return `dispositioned ${s("code")}: ${s("disposition").replace(/_/g, " ")}`;
   if (type === "pair.final_tested") return data.pass ? "passed the final pair test" : "failed the final pair test";
+  if (type === "certificate.printed") return data.copy ? "printed a copy of the certificate" : "printed the certificate";
   if (type === "label.printed") return data.reprint ? "reprinted a label" : phrase;
   return phrase;
 }

@@ -1,7 +1,7 @@
 import "server-only";
 import { and, eq, isNull, or, sql } from "drizzle-orm";
 import { getDb, withWriteLock, type Db } from "@/db";
-import { mailAttempts, outbox } from "@/db/schema";
+import { certificates, mailAttempts, outbox, type OutboxMessage } from "@/db/schema";
 import { attemptStats, DEFAULT_MAX_ATTEMPTS, retryDelaySql } from "./outbox";
 import { createMailTransport, type MailTransport } from "./transport";
 
@@ -13,6 +13,29 @@ export interface DeliverOptions {
   batch?: number;
   /** Sender address; by default the transport's own (createMailTransport sets MAIL_FROM). */
   from?: string;
+  /** Where the links printed in attached certificates point: by default APP_URL. */
+  baseUrl?: string;
+}
+
+const defaultBaseUrl = () => (process.env.APP_URL || "http://localhost:3000").replace(/\/$/, "");
+
+/**
+ * The files a message names, made now: each certificate is rendered from the register as a copy.
+ * Loaded only when a message has attachments, so plain mail never pulls in the PDF renderer.
+ * A failure here fails the try, and the message is tried again later like any other.
+ */
+async function attachmentsFor(db: Db, list: OutboxMessage["attachments"], baseUrl: string) {
+  if (!list?.length) return [];
+  const { certificateData, renderCertificate } = await import("@/lib/certificates");
+  const out: { filename: string; content: Buffer; contentType: string }[] = [];
+  for (const a of list) {
+    if (a.kind !== "certificate") throw new Error(`attachment ${a.filename}: unknown kind ${String(a.kind)}`);
+    const [row] = await db.select({ pairId: certificates.pairId }).from(certificates).where(eq(certificates.id, a.certificateId)).limit(1);
+    if (!row) throw new Error(`attachment ${a.filename}: no certificate ${a.certificateId}`);
+    const content = await renderCertificate(await certificateData(db, row.pairId, { baseUrl, copy: true }));
+    out.push({ filename: a.filename, content, contentType: "application/pdf" });
+  }
+  return out;
 }
 
 const DETAIL_MAX = 500;
@@ -43,7 +66,7 @@ export async function deliverDue(
   const failures = sql`coalesce(${stats.failures}, 0)`;
 
   const due = await db
-    .select({ id: outbox.id, to: outbox.to, subject: outbox.subject, text: outbox.text, html: outbox.html })
+    .select({ id: outbox.id, to: outbox.to, subject: outbox.subject, text: outbox.text, html: outbox.html, attachments: outbox.attachments })
     .from(outbox)
     .leftJoin(stats, eq(stats.outboxId, outbox.id))
     .where(
@@ -62,12 +85,14 @@ export async function deliverDue(
     let ok: boolean;
     let detail: string;
     try {
+      const attachments = await attachmentsFor(db, m.attachments, opts.baseUrl ?? defaultBaseUrl());
       const info = await transport.sendMail({
         ...(opts.from ? { from: opts.from } : {}),
         to: m.to,
         subject: m.subject,
         text: m.text,
         ...(m.html ? { html: m.html } : {}),
+        ...(attachments.length ? { attachments } : {}),
       });
       ok = true;
       detail = info.messageId || "accepted";

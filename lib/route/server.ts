@@ -321,6 +321,8 @@ export async function shopPairs(db: DbOrTx, at: Date = clockNow()): Promise<Shop
   const pairs = await db.select().from(items).where(and(eq(items.kind, "pair"), inArray(items.state, ["in_production", "unpartnered"]))).orderBy(asc(items.createdAt));
   const out: ShopPair[] = [];
   for (const pair of pairs) {
+    // Lacquer pairs are paired at assembly from cabinets that already finished: no route for them here.
+    if (pair.attrs.pairedAt === "assembly") continue;
     let route: PairRoute;
     try {
       route = await pairRoute(db, pair, at);

@@ -53,6 +53,9 @@ export default async function Page() {
         <Link href="/lab/crossovers" className={buttonClasses("secondary")}>
           Crossover boards
         </Link>
+        <Link href="/lab/final-test" className={buttonClasses("secondary")} data-testid="final-test-link">
+          Final pair test
+        </Link>
       </div>
       <div className="grid gap-6 lg:grid-cols-2">
         <Panel title="Waiting for measurement">

@@ -35,7 +35,9 @@ export default async function PairRoutePage({ params }: { params: Promise<{ iden
   const steps = route.spec.steps;
   const pos = route.position;
   const nextSeq = Math.min(...pos.cabinets.map((c) => c.next?.seq ?? Infinity));
-  const next = Number.isFinite(nextSeq) ? steps.find((s) => s.seq === nextSeq)! : null;
+  // A lacquer pair is made at assembly from cabinets that already finished: nothing to record here.
+  const pairedAtAssembly = pair.attrs.pairedAt === "assembly";
+  const next = Number.isFinite(nextSeq) && !pairedAtAssembly ? steps.find((s) => s.seq === nextSeq)! : null;
   const hold = pos.cabinets.filter((c) => c.next?.seq === nextSeq && c.holdUntil).map((c) => c.holdUntil!)[0];
   const canWork = user.permissions.has("cabinet.work");
   const openNcs = route.ncs.filter((n) => !n.disposition);
@@ -96,7 +98,7 @@ export default async function PairRoutePage({ params }: { params: Promise<{ iden
           )}
         </Panel>
       ) : (
-        <Notice tone="leaf">Both cabinets have finished the route: the pair is ready for assembly.</Notice>
+        <Notice tone="leaf">{pairedAtAssembly ? "Paired at assembly from two finished lacquer cabinets." : "Both cabinets have finished the route: the pair is ready for assembly."}</Notice>
       )}
 
       {user.permissions.has("quality.work") && openNcs.length ? (

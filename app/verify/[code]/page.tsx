@@ -1,0 +1,66 @@
+import { notFound } from "next/navigation";
+import { getDb } from "@/db";
+import { clientAddress } from "@/lib/auth/guard";
+import { verifyCertificate } from "@/lib/dispatch";
+import { verifyLimiter } from "@/lib/dispatch/rate-limit";
+import { formatDay } from "@/lib/format";
+
+/**
+ * The public certificate check, reached from the QR code on a pair's certificate. Signed out;
+ * shows only what the certificate itself prints (no names, dealer, owner or ids). Limited per
+ * client address, so the codes cannot be guessed at speed.
+ */
+export default async function Page({ params }: { params: Promise<{ code: string }> }) {
+  if (!verifyLimiter().hit(await clientAddress())) {
+    return (
+      <section className="rounded-xl border-2 border-caution/50 bg-caution-soft px-5 py-4" data-testid="verify-throttled">
+        <h1 className="text-2xl font-bold">Please wait a little</h1>
+        <p className="mt-2">Too many checks from your address; try again in a few minutes.</p>
+      </section>
+    );
+  }
+  const { code } = await params;
+  let text: string;
+  try {
+    text = decodeURIComponent(code);
+  } catch {
+    notFound(); // a broken %-escape is no certificate code either
+  }
+  const found = await verifyCertificate(getDb(), text);
+  if (!found) notFound();
+
+  const rows: [string, string | null, boolean][] = [
+    ["Model", found.model, false],
+    ["Finish", found.finish, false],
+    ["Left speaker", found.leftSerial, true],
+    ["Right speaker", found.rightSerial, true],
+    ["Pair", found.pairSerial, true],
+    ["Built", found.buildMonth, false],
+    ["Certificate issued", formatDay(found.issuedOn), false],
+  ];
+  return (
+    <article className="flex flex-col gap-5" data-testid="verify-genuine">
+      <div className="rounded-xl border-l-4 border-leaf bg-leaf-soft px-5 py-4">
+        <p className="flex items-center gap-2 text-sm font-bold uppercase tracking-wide text-leaf-dark">
+          <svg width="20" height="20" viewBox="0 0 24 24" aria-hidden="true">
+            <circle cx="12" cy="12" r="11" fill="currentColor" />
+            <path d="m7 12.5 3.2 3.2L17 9" stroke="#fff" strokeWidth="2.4" fill="none" strokeLinecap="round" strokeLinejoin="round" />
+          </svg>
+          Verified
+        </p>
+        <h1 className="mt-1 text-2xl font-bold leading-tight sm:text-3xl">This is a genuine Twinleaf certificate</h1>
+        <p className="mt-2 text-ink-soft">The workshop&apos;s register holds this certificate for the matched pair below. Check that the serials match the labels on your speakers.</p>
+      </div>
+      <dl className="divide-y divide-line overflow-hidden rounded-xl border border-line bg-surface">
+        {rows.map(([label, value, serial]) => (
+          <div key={label} className="flex flex-col gap-0.5 px-5 py-3 sm:flex-row sm:items-baseline sm:justify-between sm:gap-4">
+            <dt className="text-sm text-ink-soft">{label}</dt>
+            <dd className={serial ? "serial break-all text-lg font-bold" : "text-lg font-bold"} data-testid={`verify-${label.toLowerCase().replace(/\s+/g, "-")}`}>
+              {value ?? "Not recorded"}
+            </dd>
+          </div>
+        ))}
+      </dl>
+    </article>
+  );
+}

@@ -1,0 +1,106 @@
+import { sql } from "drizzle-orm";
+import { check, index, integer, real, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
+import { events } from "./events";
+import { items } from "./genealogy";
+import { responses } from "./lab";
+import { dealers, models } from "./workshop";
+
+/** The final pair test: left and right finished responses compared band by band over the model's range. */
+export const finalTests = sqliteTable(
+  "final_tests",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    pairId: text("pair_id")
+      .notNull()
+      .references(() => items.id),
+    leftResponseId: integer("left_response_id")
+      .notNull()
+      .references(() => responses.id),
+    rightResponseId: integer("right_response_id")
+      .notNull()
+      .references(() => responses.id),
+    limitDb: real("limit_db").notNull(),
+    maxDiffDb: real("max_diff_db").notNull(),
+    worstBand: text("worst_band").notNull(),
+    pass: integer("pass", { mode: "boolean" }).notNull(),
+    eventId: integer("event_id")
+      .notNull()
+      .references(() => events.id),
+    createdAt: integer("created_at", { mode: "timestamp_ms" })
+      .notNull()
+      .default(sql`(unixepoch('subsec') * 1000)`),
+  },
+  (t) => [index("final_tests_pair_idx").on(t.pairId, t.id)],
+);
+
+/**
+ * A pair's certificate. `code` is the unguessable part of its public verification link. Issued
+ * once per pair; every print (the first, and each copy) is an event.
+ */
+export const certificates = sqliteTable("certificates", {
+  id: text("id").primaryKey(),
+  pairId: text("pair_id")
+    .notNull()
+    .unique()
+    .references(() => items.id),
+  code: text("code").notNull().unique(),
+  issuedAt: integer("issued_at", { mode: "timestamp_ms" }).notNull(),
+  eventId: integer("event_id")
+    .notNull()
+    .references(() => events.id),
+});
+
+/** What goes in a model's carton, in packing order (both speakers and the certificate are always first). */
+export const packingItems = sqliteTable(
+  "packing_items",
+  {
+    modelId: text("model_id")
+      .notNull()
+      .references(() => models.id),
+    position: integer("position").notNull(),
+    label: text("label").notNull(),
+  },
+  (t) => [uniqueIndex("packing_items_pk").on(t.modelId, t.position)],
+);
+
+/** Where a packed carton is stored; appended, the newest counts. */
+export const cartonLocations = sqliteTable(
+  "carton_locations",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    cartonId: text("carton_id")
+      .notNull()
+      .references(() => items.id),
+    location: text("location").notNull(),
+    eventId: integer("event_id")
+      .notNull()
+      .references(() => events.id),
+    at: integer("at", { mode: "timestamp_ms" })
+      .notNull()
+      .default(sql`(unixepoch('subsec') * 1000)`),
+  },
+  (t) => [index("carton_locations_carton_idx").on(t.cartonId, t.id)],
+);
+
+/** A shipment's particulars (the shipment itself is an item holding its cartons). */
+export const shipmentDetails = sqliteTable(
+  "shipment_details",
+  {
+    itemId: text("item_id")
+      .primaryKey()
+      .references(() => items.id),
+    dealerId: text("dealer_id")
+      .notNull()
+      .references(() => dealers.id),
+    shippedOn: text("shipped_on").notNull(),
+    carrier: text("carrier").notNull(),
+    tracking: text("tracking").notNull(),
+    eventId: integer("event_id")
+      .notNull()
+      .references(() => events.id),
+  },
+  (t) => [check("shipment_details_date", sql`${t.shippedOn} GLOB '[0-9][0-9][0-9][0-9]-[0-9][0-9]-[0-9][0-9]'`)],
+);
+
+export type FinalTest = typeof finalTests.$inferSelect;
+export type Certificate = typeof certificates.$inferSelect;

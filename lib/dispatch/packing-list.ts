@@ -1,0 +1,38 @@
+import "server-only";
+import { asc, eq, notExists, sql } from "drizzle-orm";
+import type { DbOrTx } from "@/db";
+import { models, packingItems } from "@/db/schema";
+
+// Kept apart from the rest of lib/dispatch (labels, certificates, mail) so the seed can import it lightly.
+
+export const sameLabel = (a: string, b: string) => a.trim().toLowerCase() === b.trim().toLowerCase();
+
+/** Always first in every carton, in this order, whatever the model's own list says. */
+export const FIXED_PACKING_ITEMS = ["Left speaker", "Right speaker", "Certificate"] as const;
+
+/** A model's list until someone writes its own. */
+export const DEFAULT_PACKING_LIST: readonly string[] = [...FIXED_PACKING_ITEMS, "Grilles (2)", "Owner's manual"];
+
+/**
+ * The model's packing list in order: the three fixed items first, then the model's own rows (a
+ * fixed item written among them is not listed twice). A model without rows gets the default list.
+ */
+export async function packingList(db: DbOrTx, modelId: string): Promise<string[]> {
+  const rows = await db.select({ label: packingItems.label }).from(packingItems).where(eq(packingItems.modelId, modelId)).orderBy(asc(packingItems.position));
+  if (rows.length === 0) return [...DEFAULT_PACKING_LIST];
+  const own = rows.map((r) => r.label.trim()).filter((l) => l !== "" && !FIXED_PACKING_ITEMS.some((f) => sameLabel(f, l)));
+  return [...FIXED_PACKING_ITEMS, ...own];
+}
+
+/** Writes the default packing list for every model that has none yet; returns how many models got one. */
+export async function ensurePackingLists(tx: DbOrTx): Promise<number> {
+  const bare = await tx
+    .select({ id: models.id })
+    .from(models)
+    .where(notExists(tx.select({ one: sql`1` }).from(packingItems).where(eq(packingItems.modelId, models.id))));
+  for (const m of bare) {
+    await tx.insert(packingItems).values(DEFAULT_PACKING_LIST.map((label, i) => ({ modelId: m.id, position: i + 1, label })));
+  }
+  return bare.length;
+}
+

@@ -1,0 +1,160 @@
+import "server-only";
+import { sql } from "drizzle-orm";
+import type { DbOrTx } from "@/db";
+import { normaliseScan, parseSerial } from "@/lib/serials/format";
+import { isoDay } from "./dates";
+
+const dateOf = (ms: number | null | undefined) => (ms === null || ms === undefined ? null : new Date(Number(ms)));
+
+export interface ReadyPair {
+  identity: string;
+  state: string;
+  model: string;
+  modelCode: string;
+  finish: string | null;
+  /** When it passed its final test (the newest move into its present state). */
+  testedAt: Date | null;
+}
+
+/** Pairs that passed their final test and wait to be packed, longest waiting first. */
+export async function readyToPack(db: DbOrTx): Promise<ReadyPair[]> {
+  const rows = await db.all<{ identity: string; state: string; model: string | null; model_code: string | null; finish: string | null; tested_at: number | null }>(sql`
+    SELECT p.identity, p.state, m.name AS model, m.code AS model_code, f.name AS finish,
+           (SELECT max(e.at) FROM events e
+             WHERE e.subject_kind = 'item' AND e.subject_id = p.id AND e.type = 'item.state_changed'
+               AND json_extract(e.data, '$.to') = p.state) AS tested_at
+    FROM items p
+    LEFT JOIN models m ON m.id = p.model_id
+    LEFT JOIN finishes f ON f.id = p.finish_id
+    WHERE p.kind = 'pair' AND p.state IN ('ready_to_pack', 'tested')
+    ORDER BY tested_at, p.identity`);
+  return rows.map((r) => ({ identity: r.identity, state: r.state, model: r.model ?? "", modelCode: r.model_code ?? "", finish: r.finish, testedAt: dateOf(r.tested_at) }));
+}
+
+export interface WaitingCarton {
+  id: string;
+  carton: string;
+  pair: string | null;
+  model: string;
+  modelCode: string;
+  finish: string | null;
+  location: string | null;
+  packedOn: string;
+}
+
+/** Packed cartons not yet in a shipment, with where they are stored, oldest first. */
+export async function waitingToShip(db: DbOrTx): Promise<WaitingCarton[]> {
+  const rows = await db.all<{ id: string; carton: string; pair: string | null; model: string | null; model_code: string | null; finish: string | null; location: string | null; packed_on: string | null; created_at: number }>(sql`
+    SELECT c.id, c.identity AS carton, p.identity AS pair, m.name AS model, m.code AS model_code, f.name AS finish,
+           (SELECT cl.location FROM carton_locations cl WHERE cl.carton_id = c.id ORDER BY cl.id DESC LIMIT 1) AS location,
+           json_extract(c.attrs, '$.packedOn') AS packed_on, c.created_at
+    FROM items c
+    LEFT JOIN links pl ON pl.parent_id = c.id AND pl.position = 'PAIR' AND pl.ended_at IS NULL
+    LEFT JOIN items p ON p.id = pl.child_id
+    LEFT JOIN models m ON m.id = c.model_id
+    LEFT JOIN finishes f ON f.id = p.finish_id
+    WHERE c.kind = 'carton' AND c.state = 'packed'
+      AND NOT EXISTS (SELECT 1 FROM links sl WHERE sl.child_id = c.id AND sl.ended_at IS NULL AND sl.parent_kind = 'shipment')
+    ORDER BY c.created_at, c.identity`);
+  return rows.map((r) => ({
+    id: r.id,
+    carton: r.carton,
+    pair: r.pair,
+    model: r.model ?? "",
+    modelCode: r.model_code ?? "",
+    finish: r.finish,
+    location: r.location,
+    packedOn: r.packed_on ?? isoDay(new Date(Number(r.created_at))),
+  }));
+}
+
+export interface ShippedCarton {
+  shipment: string;
+  carton: string;
+  pair: string | null;
+  dealer: string;
+  carrier: string | null;
+  tracking: string | null;
+}
+
+/** Cartons in shipments that left on `day` (YYYY-MM-DD). */
+export async function shippedOn(db: DbOrTx, day: string): Promise<ShippedCarton[]> {
+  const rows = await db.all<{ shipment: string; carton: string; pair: string | null; dealer: string | null; carrier: string | null; tracking: string | null }>(sql`
+    SELECT s.identity AS shipment, c.identity AS carton, p.identity AS pair, d.name AS dealer, sd.carrier, sd.tracking
+    FROM shipment_details sd
+    JOIN items s ON s.id = sd.item_id
+    JOIN dealers d ON d.id = sd.dealer_id
+    JOIN links cl ON cl.parent_id = s.id AND cl.ended_at IS NULL
+    JOIN items c ON c.id = cl.child_id AND c.kind = 'carton'
+    LEFT JOIN links pl ON pl.parent_id = c.id AND pl.position = 'PAIR' AND pl.ended_at IS NULL
+    LEFT JOIN items p ON p.id = pl.child_id
+    WHERE sd.shipped_on = ${day}
+    ORDER BY s.created_at, CAST(cl.position AS INTEGER)`);
+  return rows.map((r) => ({ ...r, dealer: r.dealer ?? "" }));
+}
+
+export interface PairForPacking {
+  id: string;
+  identity: string;
+  state: string;
+  modelId: string | null;
+  model: string;
+  modelCode: string;
+  finish: string | null;
+  left: string | null;
+  right: string | null;
+  carton: string | null;
+  location: string | null;
+  hasCertificate: boolean;
+  /** The newest final test on record passed (demo pairs tested before the records began have none). */
+  finalTestPassed: boolean;
+}
+
+/** What the packing page shows of a pair, by its serial as scanned or typed; null when there is no such pair. */
+export async function pairForPacking(db: DbOrTx, text: string): Promise<PairForPacking | null> {
+  const t = normaliseScan(text);
+  const parsed = parseSerial(t);
+  const identity = parsed?.valid ? parsed.canonical : t;
+  const [row] = await db.all<{
+    id: string; identity: string; state: string; model_id: string | null; model: string | null; model_code: string | null; finish: string | null;
+    left: string | null; right: string | null; carton_id: string | null; carton: string | null; certificate: string | null; passed: number | null;
+  }>(sql`
+    SELECT p.id, p.identity, p.state, p.model_id, m.name AS model, m.code AS model_code, f.name AS finish,
+           (SELECT s.identity FROM links l JOIN items s ON s.id = l.child_id WHERE l.parent_id = p.id AND l.position = 'L' AND l.ended_at IS NULL) AS "left",
+           (SELECT s.identity FROM links l JOIN items s ON s.id = l.child_id WHERE l.parent_id = p.id AND l.position = 'R' AND l.ended_at IS NULL) AS "right",
+           c.id AS carton_id, c.identity AS carton,
+           (SELECT id FROM certificates WHERE pair_id = p.id) AS certificate,
+           (SELECT pass FROM final_tests WHERE pair_id = p.id ORDER BY id DESC LIMIT 1) AS passed
+    FROM items p
+    LEFT JOIN models m ON m.id = p.model_id
+    LEFT JOIN finishes f ON f.id = p.finish_id
+    LEFT JOIN links cl ON cl.child_id = p.id AND cl.ended_at IS NULL AND cl.parent_kind = 'carton'
+    LEFT JOIN items c ON c.id = cl.parent_id
+    WHERE p.kind = 'pair' AND p.identity = ${identity}`);
+  if (!row) return null;
+  const [loc] = row.carton_id
+    ? await db.all<{ location: string }>(sql`SELECT location FROM carton_locations WHERE carton_id = ${row.carton_id} ORDER BY id DESC LIMIT 1`)
+    : [];
+  return {
+    id: row.id,
+    identity: row.identity,
+    state: row.state,
+    modelId: row.model_id,
+    model: row.model ?? "",
+    modelCode: row.model_code ?? "",
+    finish: row.finish,
+    left: row.left,
+    right: row.right,
+    carton: row.carton,
+    location: loc?.location ?? null,
+    hasCertificate: row.certificate !== null,
+    finalTestPassed: Number(row.passed) === 1,
+  };
+}
+
+/** Storage places used lately, most recent first: suggestions for the location field. */
+export async function knownLocations(db: DbOrTx, limit = 30): Promise<string[]> {
+  const rows = await db.all<{ location: string }>(sql`
+    SELECT location FROM carton_locations GROUP BY location ORDER BY max(id) DESC LIMIT ${limit}`);
+  return rows.map((r) => r.location);
+}

@@ -1,0 +1,112 @@
+import "server-only";
+import { and, desc, eq, inArray, isNull, like, sql } from "drizzle-orm";
+import type { DbOrTx } from "@/db";
+import { finalTests, items, links, models, nonconformances, responses } from "@/db/schema";
+import { compareResponses, parseResponseFile, type ResponseComparison } from "@/lib/acoustics";
+import { AppError } from "@/lib/auth/errors";
+import { newId } from "@/lib/auth/tokens";
+import { now as clockNow } from "@/lib/clock";
+import { appendEvent } from "@/lib/events/queries";
+import { changeState, itemByIdentity } from "@/lib/genealogy/graph";
+import { parseSerial } from "@/lib/serials/format";
+
+/** Pairs built and waiting for their final test. */
+export const AWAITING_TEST = "awaiting_test";
+/** The state a pair takes when its final test passes (or quality accepts a deviation). */
+export const READY_TO_PACK = "ready_to_pack";
+
+async function speakersOf(db: DbOrTx, pairId: string) {
+  const rows = await db
+    .select({ item: items, position: links.position })
+    .from(links)
+    .innerJoin(items, eq(items.id, links.childId))
+    .where(and(eq(links.parentId, pairId), isNull(links.endedAt), inArray(links.position, ["L", "R"]), eq(items.kind, "speaker")));
+  return { L: rows.find((r) => r.position === "L")?.item ?? null, R: rows.find((r) => r.position === "R")?.item ?? null };
+}
+
+export interface FinalTestResult {
+  comparison: ResponseComparison;
+  limitDb: number;
+  nc: string | null;
+}
+
+/**
+ * The final pair test: the finished left and right responses compared per one-third-octave band,
+ * |L − R| over the model's range against its limit. A pass makes the pair ready to pack; a fail
+ * opens a nonconformance on the pair for quality. Both files are checked before anything is written.
+ */
+export async function recordFinalTest(db: DbOrTx, input: { pair: string; left: { name: string; text: string }; right: { name: string; text: string } }, actor: { id: string }): Promise<FinalTestResult> {
+  const parsedSerial = parseSerial(input.pair);
+  const pair = await itemByIdentity(db, parsedSerial?.valid ? parsedSerial.canonical : input.pair.trim().toUpperCase());
+  if (!pair || pair.kind !== "pair") throw new AppError(404, `${input.pair} is not a pair in the register.`);
+  if (pair.state !== AWAITING_TEST) throw new AppError(409, `${pair.identity} is ${pair.state.replace(/_/g, " ")}: only a built pair waiting for its test is tested here.`);
+  const [model] = await db.select().from(models).where(eq(models.id, pair.modelId!)).limit(1);
+  const problems: string[] = [];
+  const parse = (side: string, f: { name: string; text: string }) => {
+    const r = parseResponseFile(f.text, { name: f.name });
+    if (!r.ok) for (const e of r.errors.slice(0, 8)) problems.push(`${side} (${f.name}), line ${e.line}: ${e.message}`);
+    return r.ok ? r.points : null;
+  };
+  const left = parse("Left", input.left);
+  const right = parse("Right", input.right);
+  if (problems.length || !left || !right) throw new AppError(400, "Nothing was saved: the response files need attention.", { files: problems });
+  let comparison: ResponseComparison;
+  try {
+    comparison = compareResponses(left, right, { minHz: model!.responseMinHz, maxHz: model!.responseMaxHz, limitDb: model!.pairResponseLimitDb });
+  } catch (e) {
+    throw new AppError(400, `Nothing was saved: ${(e as Error).message}`);
+  }
+  return db.transaction(async (tx) => {
+    const at = clockNow();
+    const speakers = await speakersOf(tx, pair.id);
+    if (!speakers.L || !speakers.R) throw new AppError(409, `${pair.identity} does not hold two speakers.`);
+    const ids: number[] = [];
+    for (const [side, points, file] of [["L", left, input.left], ["R", right, input.right]] as const) {
+      const speaker = speakers[side]!;
+      const eventId = await appendEvent(tx, { actorId: actor.id, station: "lab", type: "unit.response_measured", subjectKind: "item", subjectId: speaker.id, data: { identity: speaker.identity, purpose: "final", points: points.length, fileName: file.name } });
+      const [row] = await tx.insert(responses).values({ itemId: speaker.id, purpose: "final", points: points.map((p) => (p.phaseDeg === undefined ? [p.hz, p.db] : [p.hz, p.db, p.phaseDeg])), fileName: file.name, source: "upload", eventId }).returning({ id: responses.id });
+      ids.push(row!.id);
+    }
+    const limitDb = model!.pairResponseLimitDb;
+    const eventId = await appendEvent(tx, {
+      actorId: actor.id,
+      station: "lab",
+      type: "pair.final_tested",
+      subjectKind: "item",
+      subjectId: pair.id,
+      data: { identity: pair.identity, pass: comparison.pass, maxDiffDb: comparison.maxAbsDiffDb, worstBand: comparison.worstBand, limitDb, minHz: model!.responseMinHz, maxHz: model!.responseMaxHz },
+    });
+    await tx.insert(finalTests).values({ pairId: pair.id, leftResponseId: ids[0]!, rightResponseId: ids[1]!, limitDb, maxDiffDb: comparison.maxAbsDiffDb, worstBand: comparison.worstBand, pass: comparison.pass, eventId });
+    let nc: string | null = null;
+    if (comparison.pass) {
+      await changeState(tx, pair, READY_TO_PACK, { actorId: actor.id, station: "lab" });
+    } else {
+      const prefix = `NC-${at.toISOString().slice(2, 4)}${at.toISOString().slice(5, 7)}-`;
+      const [count] = await tx.select({ n: sql<number>`count(*)` }).from(nonconformances).where(like(nonconformances.code, `${prefix}%`));
+      nc = `${prefix}${String(Number(count?.n ?? 0) + 1).padStart(3, "0")}`;
+      const finding = `Final test: left and right differ by ${comparison.maxAbsDiffDb.toFixed(2)} dB at ${comparison.worstBand} Hz (limit ${limitDb} dB)`;
+      const opened = await appendEvent(tx, { actorId: actor.id, station: "lab", type: "nc.opened", subjectKind: "item", subjectId: pair.id, data: { identity: pair.identity, code: nc, step: "Final pair test", seq: 0, finding } });
+      await tx.insert(nonconformances).values({ id: newId(), code: nc, pairId: pair.id, cabinets: [], seq: 0, finding, openedAt: at, openedEventId: opened });
+      await changeState(tx, pair, "failed_test", { actorId: actor.id, station: "lab" }, { nc });
+    }
+    return { comparison, limitDb, nc };
+  });
+}
+
+/** Pairs built and waiting for the final test, oldest first. */
+export async function pairsAwaitingTest(db: DbOrTx) {
+  return db
+    .select({ identity: items.identity, model: models.code, name: models.name, createdAt: items.createdAt })
+    .from(items)
+    .innerJoin(models, eq(models.id, items.modelId))
+    .where(and(eq(items.kind, "pair"), eq(items.state, AWAITING_TEST)))
+    .orderBy(items.createdAt);
+}
+
+/** The newest final test of a pair, with both responses. */
+export async function latestFinalTest(db: DbOrTx, pairId: string) {
+  const [test] = await db.select().from(finalTests).where(eq(finalTests.pairId, pairId)).orderBy(desc(finalTests.id)).limit(1);
+  if (!test) return null;
+  const rs = await db.select().from(responses).where(inArray(responses.id, [test.leftResponseId, test.rightResponseId]));
+  return { test, left: rs.find((r) => r.id === test.leftResponseId)!, right: rs.find((r) => r.id === test.rightResponseId)! };
+}

@@ -1,0 +1,440 @@
+import { execFileSync, spawnSync } from "node:child_process";
+import { mkdtempSync, readFileSync, readdirSync, rmSync, writeFileSync } from "node:fs";
+import { createRequire } from "node:module";
+import { tmpdir } from "node:os";
+import path from "node:path";
+import { toBuffer } from "bwip-js/node";
+import * as cdigit from "cdigit";
+import { and, eq, isNull, sql } from "drizzle-orm";
+import { simpleParser } from "mailparser";
+import { beforeAll, describe, expect, test } from "vitest";
+import { prepareZXingModule, readBarcodes, type ReaderOptions } from "zxing-wasm/reader";
+import { getDb } from "@/db";
+import { cartonLocations, certificates, dealers, events, items, links, models, outbox, packingItems, shipmentDetails, users, type Item } from "@/db/schema";
+import { seedDemo } from "@/db/seed/seed";
+import { AppError } from "@/lib/auth/errors";
+import {
+  cartonLabelData,
+  cartonLabelPdf,
+  DEFAULT_PACKING_LIST,
+  ensurePackingLists,
+  moveCarton,
+  packingList,
+  packPair,
+  readyToPack,
+  shipCartons,
+  verifyCertificate,
+  waitingToShip,
+} from "@/lib/dispatch";
+import { isoDay } from "@/lib/dispatch/dates";
+import { createRateLimiter } from "@/lib/dispatch/rate-limit";
+import { PUBLIC_CERTIFICATE_FIELDS } from "@/lib/dispatch/verify";
+import { startFakeSmtp } from "@/lib/mail/fake-smtp";
+import { deliverDue } from "@/lib/mail/sender";
+import { createMailTransport } from "@/lib/mail/transport";
+import { parseSerial } from "@/lib/serials";
+import { gs1CheckDigit } from "@/lib/serials/gs1";
+
+const db = () => getDb();
+let packer: { id: string };
+
+// The oracle for the printed label is ZXing-C++ (zxing-wasm), an independent decoder, as in
+// tests/unit/labels.test.ts; its .wasm is loaded from node_modules rather than a CDN.
+beforeAll(async () => {
+  await seedDemo(db());
+  const [u] = await db().select({ id: users.id }).from(users).where(eq(users.email, "packing@demo.twinleaf.test"));
+  packer = { id: u!.id };
+  const wasm = readFileSync(createRequire(import.meta.url).resolve("zxing-wasm/reader/zxing_reader.wasm"));
+  await prepareZXingModule({
+    overrides: { wasmBinary: wasm.buffer.slice(wasm.byteOffset, wasm.byteOffset + wasm.byteLength) as ArrayBuffer },
+    fireImmediately: true,
+  });
+}, 120_000);
+
+/** Row counts of the tables dispatch writes: a refused call must leave them all as they were. */
+async function counts() {
+  const [row] = await db().all<Record<string, number>>(sql`
+    SELECT (SELECT count(*) FROM items) AS items, (SELECT count(*) FROM links) AS links, (SELECT count(*) FROM events) AS events,
+           (SELECT count(*) FROM certificates) AS certificates, (SELECT count(*) FROM carton_locations) AS locations,
+           (SELECT count(*) FROM shipment_details) AS shipments, (SELECT count(*) FROM outbox) AS outbox`);
+  return row;
+}
+
+async function refusal(p: Promise<unknown>): Promise<AppError> {
+  const e = await p.then(
+    () => null,
+    (err: unknown) => err,
+  );
+  expect(e).toBeInstanceOf(AppError);
+  return e as AppError;
+}
+
+async function pairsIn(state: string): Promise<Item[]> {
+  return db().select().from(items).where(and(eq(items.kind, "pair"), eq(items.state, state))).orderBy(items.identity);
+}
+
+async function fresh(identity: string): Promise<Item> {
+  const [row] = await db().select().from(items).where(eq(items.identity, identity));
+  return row!;
+}
+
+describe("packing lists", () => {
+  test("the seeded models start with both speakers and the certificate", async () => {
+    for (const m of await db().select().from(models)) {
+      expect((await packingList(db(), m.id)).slice(0, 3)).toEqual(["Left speaker", "Right speaker", "Certificate"]);
+    }
+  });
+
+  test("a model without rows gets the default list; ensurePackingLists writes it once", async () => {
+    const id = "dispatch-test-model";
+    await db().insert(models).values({
+      id, code: "DT9", name: "Dispatch test", leavesPerFace: 1, minLeafLengthMm: 1, minLeafWidthMm: 1,
+      pairResponseLimitDb: 1, responseMinHz: 100, responseMaxHz: 10_000,
+      pairGtin: "09521234543213", // a valid GTIN-14 from REFERENCES.md (GS1 section)
+      active: false,
+    });
+    expect(await packingList(db(), id)).toEqual([...DEFAULT_PACKING_LIST]);
+    expect(await ensurePackingLists(db())).toBe(1);
+    expect(await ensurePackingLists(db())).toBe(0);
+    const rows = await db().select().from(packingItems).where(eq(packingItems.modelId, id)).orderBy(packingItems.position);
+    expect(rows.map((r) => r.label)).toEqual([...DEFAULT_PACKING_LIST]);
+    expect(rows.map((r) => r.position)).toEqual([1, 2, 3, 4, 5]);
+  });
+
+  test("a model's own rows follow the three fixed items, which are never listed twice", async () => {
+    const id = "dispatch-test-model-2";
+    await db().insert(models).values({
+      id, code: "DT8", name: "Dispatch test two", leavesPerFace: 1, minLeafLengthMm: 1, minLeafWidthMm: 1,
+      pairResponseLimitDb: 1, responseMinHz: 100, responseMaxHz: 10_000, pairGtin: "09521234543213", active: false,
+    });
+    await db().insert(packingItems).values([
+      { modelId: id, position: 1, label: "Wall brackets (2)" },
+      { modelId: id, position: 2, label: "certificate" },
+      { modelId: id, position: 3, label: "Cleaning cloth" },
+    ]);
+    expect(await packingList(db(), id)).toEqual(["Left speaker", "Right speaker", "Certificate", "Wall brackets (2)", "Cleaning cloth"]);
+  });
+});
+
+describe("packing a tested pair", () => {
+  let pair: Item;
+  let list: string[];
+
+  beforeAll(async () => {
+    const tested = await pairsIn("tested");
+    expect(tested.length).toBeGreaterThan(0);
+    pair = tested[0]!;
+    list = await packingList(db(), pair.modelId!);
+  });
+
+  test("the packers' home lists it as ready to pack", async () => {
+    const ready = await readyToPack(db());
+    const mine = ready.find((r) => r.identity === pair.identity);
+    expect(mine).toMatchObject({ state: "tested", modelCode: expect.any(String) });
+    expect(mine!.testedAt).toBeInstanceOf(Date);
+  });
+
+  test("an unticked item, a stray label or an empty location is refused and writes nothing", async () => {
+    const before = await counts();
+    const partial = list.filter((l) => l !== "Grilles (2)");
+    const e1 = await refusal(packPair(db(), { pairIdentity: pair.identity, checked: partial, location: "Rack B" }, packer));
+    expect(e1.status).toBe(400);
+    expect(e1.message).toBe("Tick every item: Grilles (2) is not ticked.");
+    expect(e1.fieldErrors?.checked).toEqual([e1.message]);
+
+    const e2 = await refusal(packPair(db(), { pairIdentity: pair.identity, checked: ["Left speaker"], location: "Rack B" }, packer));
+    const rest = list.slice(1);
+    expect(e2.message).toBe(`Tick every item: ${rest.slice(0, -1).join(", ")} and ${rest.at(-1)} are not ticked.`);
+    expect(e2.message).toMatch(/^Tick every item: Right speaker, Certificate, Grilles \(2\)(,| and) Owner's manual/);
+
+    const e3 = await refusal(packPair(db(), { pairIdentity: pair.identity, checked: [...list, "A spare tweeter"], location: "Rack B" }, packer));
+    expect(e3.message).toMatch(/"A spare tweeter" is not on the packing list/);
+
+    const e4 = await refusal(packPair(db(), { pairIdentity: pair.identity, checked: list, location: "   " }, packer));
+    expect(e4.status).toBe(400);
+    expect(e4.fieldErrors?.location?.[0]).toMatch(/Say where the carton is stored/);
+
+    expect(await counts()).toEqual(before);
+  });
+
+  test("a pair that has not passed its final test is refused with a plain reason", async () => {
+    const [building] = await pairsIn("in_assembly");
+    const e = await refusal(packPair(db(), { pairIdentity: building!.identity, checked: list, location: "Rack B" }, packer));
+    expect(e.status).toBe(409);
+    expect(e.message).toBe(`${building!.identity} is in assembly: only a pair that has passed its final test can be packed.`);
+    const e2 = await refusal(packPair(db(), { pairIdentity: "P-XX-26-00001-Z", checked: list, location: "Rack B" }, packer));
+    expect(e2.status).toBe(404);
+  });
+
+  test("packed: a carton holds the pair at PAIR, the location is recorded, the certificate issued", async () => {
+    const r = await packPair(db(), { pairIdentity: pair.identity.toLowerCase(), checked: [...list].reverse(), location: "  Rack B,   shelf 2 " }, packer);
+    const [model] = await db().select().from(models).where(eq(models.id, pair.modelId!));
+
+    expect(parseSerial(r.carton.identity)).toMatchObject({ kind: "carton", code: model!.code, valid: true });
+    expect(r.carton).toMatchObject({ kind: "carton", state: "packed", modelId: model!.id });
+    expect(r.carton.attrs).toMatchObject({ gtin: model!.pairGtin, packedOn: expect.stringMatching(/^\d{4}-\d{2}-\d{2}$/) });
+
+    const held = await db().select().from(links).where(and(eq(links.parentId, r.carton.id), isNull(links.endedAt)));
+    expect(held.map((l) => [l.childId, l.position])).toEqual([[pair.id, "PAIR"]]);
+
+    const locs = await db().select().from(cartonLocations).where(eq(cartonLocations.cartonId, r.carton.id));
+    expect(locs.map((l) => l.location)).toEqual(["Rack B, shelf 2"]);
+
+    expect((await fresh(pair.identity)).state).toBe("packed");
+    const [packed] = await db().select().from(events).where(and(eq(events.type, "pair.packed"), eq(events.subjectId, pair.id)));
+    expect(packed!.data).toMatchObject({ carton: r.carton.identity, checklist: list, location: "Rack B, shelf 2" });
+    expect(packed!.actorId).toBe(packer.id);
+
+    const [cert] = await db().select().from(certificates).where(eq(certificates.pairId, pair.id));
+    expect(cert!.id).toBe(r.certificateId);
+
+    expect((await waitingToShip(db())).find((w) => w.carton === r.carton.identity)).toMatchObject({ pair: pair.identity, location: "Rack B, shelf 2" });
+  });
+
+  test("packing it again is refused", async () => {
+    const e = await refusal(packPair(db(), { pairIdentity: pair.identity, checked: list, location: "Rack B" }, packer));
+    expect(e.status).toBe(409);
+    expect(e.message).toMatch(/is already packed, in carton K-/);
+  });
+
+  test("moving the carton appends a location; the same place again is refused", async () => {
+    const [carton] = await db().select().from(links).where(and(eq(links.childId, pair.id), isNull(links.endedAt)));
+    const identity = carton!.parentIdentity!;
+    await moveCarton(db(), { carton: identity, location: "Bay 3" }, packer);
+    const locs = await db().select().from(cartonLocations).where(eq(cartonLocations.cartonId, carton!.parentId)).orderBy(cartonLocations.id);
+    expect(locs.map((l) => l.location)).toEqual(["Rack B, shelf 2", "Bay 3"]);
+    const e = await refusal(moveCarton(db(), { carton: identity, location: "bay 3" }, packer));
+    expect(e.message).toMatch(/already at Bay 3/);
+    await moveCarton(db(), { carton: identity, location: "Rack B, shelf 2" }, packer);
+  });
+});
+
+// ---- the carton label, read back by an independent decoder -------------------------------------
+
+const hasPdftoppm = spawnSync("pdftoppm", ["-v"]).status === 0;
+
+async function decodePdf(pdf: Buffer, opts: ReaderOptions) {
+  const dir = mkdtempSync(path.join(tmpdir(), "twinleaf-carton-"));
+  try {
+    const file = path.join(dir, "label.pdf");
+    writeFileSync(file, pdf);
+    execFileSync("pdftoppm", ["-png", "-r", "300", file, path.join(dir, "page")]);
+    const pngs = readdirSync(dir).filter((f) => f.endsWith(".png")).sort();
+    return Promise.all(pngs.map((f) => readBarcodes(new Uint8Array(readFileSync(path.join(dir, f))), { tryHarder: true, ...opts })));
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+}
+
+/** One page object with its MediaBox (react-pdf writes page dictionaries uncompressed). */
+function pageBoxes(pdf: Buffer): number[][] {
+  const objects = pdf.toString("latin1").match(/\d+ \d+ obj\b.*?\bendobj/gs) ?? [];
+  return objects
+    .filter((o) => /\/Type\s*\/Page(?![A-Za-z])/.test(o))
+    .map((o) => /\/MediaBox\s*\[\s*([-\d.\s]+)\]/.exec(o)![1]!.trim().split(/\s+/).map(Number));
+}
+
+describe.skipIf(!hasPdftoppm)("the carton label decodes to the GS1 element string (poppler + zxing-wasm)", () => {
+  let carton: string;
+  let pair: string;
+  let gtin: string;
+  let yymmdd: string;
+
+  beforeAll(async () => {
+    const packed = await db().select().from(events).where(eq(events.type, "pair.packed")).orderBy(events.id);
+    const data = packed.at(-1)!.data as { identity: string; carton: string };
+    carton = data.carton;
+    pair = data.identity;
+    const c = await fresh(carton);
+    gtin = c.attrs.gtin as string;
+    yymmdd = (c.attrs.packedOn as string).replace(/-/g, "").slice(2);
+  });
+
+  test.each([203, 300, 600])("at %i dpi: one 100 × 150 mm page whose GS1-128 reads (01)GTIN(11)date(21)pair", async (printerDpi) => {
+    const pdf = await cartonLabelPdf(db(), carton, { printerDpi });
+    const boxes = pageBoxes(pdf);
+    expect(boxes).toHaveLength(1);
+    expect(boxes[0]![2]).toBeCloseTo((100 * 72) / 25.4, 1);
+    expect(boxes[0]![3]).toBeCloseTo((150 * 72) / 25.4, 1);
+
+    const [hri] = await decodePdf(pdf, { textMode: "HRI" });
+    expect(hri).toHaveLength(1);
+    // ZXing's HRI text mode gives the AI form; ]C1 is GS1-128 (FNC1 first), ISO/IEC 15424.
+    expect(hri![0]!.text).toBe(`(01)${gtin}(11)${yymmdd}(21)${pair}`);
+    expect(hri![0]!.symbologyIdentifier).toBe("]C1");
+    expect(hri![0]!.contentType).toBe("GS1");
+    // Plain mode: the element string as transmitted. (01) and (11) are fixed length and (21) is last,
+    // so no group separator at all (GS1 General Specifications, concatenation).
+    const [plain] = await decodePdf(pdf, { textMode: "Plain" });
+    expect(plain![0]!.text).toBe(`01${gtin}11${yymmdd}21${pair}`);
+  });
+
+  test("the decoded GTIN's check digit is right by the project's gs1CheckDigit and by cdigit, and bwip-js accepts the string", async () => {
+    const [page] = await decodePdf(await cartonLabelPdf(db(), carton), { textMode: "HRI" });
+    const hit = page![0]!;
+    const decodedGtin = /^\(01\)(\d{14})\(11\)/.exec(hit.text)![1]!;
+    // GS1 mod-10 (REFERENCES.md): the project's implementation and an independent one agree.
+    expect(gs1CheckDigit(decodedGtin.slice(0, 13))).toBe(Number(decodedGtin[13]));
+    expect(cdigit.gtin.validate(decodedGtin)).toBe(true);
+    expect(cdigit.gtin.compute("629104150021")).toBe("3"); // GS1's own worked example pins the oracle
+    // bwip-js lints GS1 data and throws on a bad (01) check digit (REFERENCES.md): it takes ours…
+    await expect(toBuffer({ bcid: "gs1-128", text: hit.text })).resolves.toBeInstanceOf(Buffer);
+    // …and refuses the same string with the check digit off by one, so the check is not vacuous.
+    const wrong = hit.text.replace(`(01)${decodedGtin}`, `(01)${decodedGtin.slice(0, 13)}${(Number(decodedGtin[13]) + 1) % 10}`);
+    await expect(toBuffer({ bcid: "gs1-128", text: wrong })).rejects.toThrow(/checksum/i);
+  });
+
+  test("the label's data names the model, finish and both speakers; an unknown carton is a 404", async () => {
+    const data = await cartonLabelData(db(), carton);
+    expect(data.pair).toBe(pair);
+    expect(data.left).toMatch(/^S-/);
+    expect(data.right).toMatch(/^S-/);
+    expect(data.element.hri).toBe(`(01)${gtin}(11)${yymmdd}(21)${pair}`);
+    const e = await refusal(cartonLabelPdf(db(), "K-XX-26-00001-Z"));
+    expect(e.status).toBe(404);
+  });
+});
+
+// ---- shipping ----------------------------------------------------------------------------------
+
+describe("shipping two cartons to a dealer", () => {
+  let dealer: typeof dealers.$inferSelect;
+  let chosen: { carton: string; pair: string | null }[];
+  let shipment: Item;
+  const today = isoDay(new Date());
+
+  beforeAll(async () => {
+    dealer = (await db().select().from(dealers).where(eq(dealers.code, "MLR")))[0]!;
+    const waiting = await waitingToShip(db());
+    // Ours (certificate issued when packed) and one from the demo history (none yet).
+    const ours = waiting.find((w) => w.location === "Rack B, shelf 2")!;
+    const theirs = waiting.find((w) => w !== ours)!;
+    chosen = [ours, theirs];
+  });
+
+  test("bad input is refused with a message per field and writes nothing", async () => {
+    const before = await counts();
+    const cartons = chosen.map((c) => c.carton);
+    const future = isoDay(new Date(Date.now() + 3 * 86_400_000));
+    const e1 = await refusal(shipCartons(db(), { dealerId: dealer.id, cartons, shippedOn: future, carrier: "Fernway Freight", tracking: "ABC123" }, packer));
+    expect(e1.fieldErrors?.shippedOn?.[0]).toMatch(/in the future/);
+    const e2 = await refusal(shipCartons(db(), { dealerId: dealer.id, cartons, shippedOn: today, carrier: " ", tracking: "" }, packer));
+    expect(Object.keys(e2.fieldErrors ?? {}).sort()).toEqual(["carrier", "tracking"]);
+    const e3 = await refusal(shipCartons(db(), { dealerId: dealer.id, cartons: [...cartons, "K-XX-26-00001-Z"], shippedOn: today, carrier: "Fernway Freight", tracking: "ABC123" }, packer));
+    expect(e3.fieldErrors?.cartons).toEqual(["K-XX-26-00001-Z is not a carton in the register."]);
+    const [tested] = await pairsIn("tested");
+    const e4 = await refusal(shipCartons(db(), { dealerId: dealer.id, cartons: [tested?.identity ?? "P-XX-26-00001-Z"], shippedOn: today, carrier: "Fernway Freight", tracking: "ABC123" }, packer));
+    expect(e4.fieldErrors?.cartons?.[0]).toMatch(/is not a carton in the register/);
+    const e5 = await refusal(shipCartons(db(), { dealerId: "no-such-dealer", cartons, shippedOn: "2026-02-30", carrier: "Fernway Freight", tracking: "ABC123" }, packer));
+    expect(Object.keys(e5.fieldErrors ?? {}).sort()).toEqual(["dealerId", "shippedOn"]);
+    expect(await counts()).toEqual(before);
+  });
+
+  test("one shipment holds both cartons; cartons and pairs are shipped; ONE e-mail to the dealer with two certificates", async () => {
+    const r = await shipCartons(db(), { dealerId: dealer.id, cartons: chosen.map((c) => c.carton), shippedOn: today, carrier: "Fernway Freight", tracking: "ABC123" }, packer);
+    shipment = r.shipment;
+    expect(parseSerial(r.shipment.identity)).toMatchObject({ kind: "shipment", code: "MLR", valid: true });
+    expect(r.shipment).toMatchObject({ kind: "shipment", state: "shipped", dealerId: dealer.id });
+
+    const held = await db().select().from(links).where(and(eq(links.parentId, r.shipment.id), isNull(links.endedAt))).orderBy(links.position);
+    expect(held.map((l) => l.position)).toEqual(["1", "2"]);
+    for (const c of chosen) {
+      expect((await fresh(c.carton)).state).toBe("shipped");
+      expect((await fresh(c.pair!)).state).toBe("shipped");
+    }
+    const [details] = await db().select().from(shipmentDetails).where(eq(shipmentDetails.itemId, r.shipment.id));
+    expect(details).toMatchObject({ dealerId: dealer.id, shippedOn: today, carrier: "Fernway Freight", tracking: "ABC123" });
+
+    const mails = await db().select().from(outbox).where(eq(outbox.id, r.mailId));
+    expect(mails).toHaveLength(1);
+    const mail = mails[0]!;
+    expect(mail.to).toBe(dealer.email);
+    expect(mail.subject).toBe("Shipped: 2 matched pairs, tracking ABC123");
+    for (const c of chosen) expect(mail.text).toContain(c.pair!);
+    expect(mail.text).toContain("ABC123");
+    expect(mail.eventId).toBe(details!.eventId);
+    const certs = await db().select().from(certificates);
+    expect(mail.attachments).toHaveLength(2);
+    for (const [i, c] of chosen.entries()) {
+      const pairRow = await fresh(c.pair!);
+      const cert = certs.find((x) => x.pairId === pairRow.id)!;
+      expect(mail.attachments[i]).toEqual({ kind: "certificate", certificateId: cert.id, filename: `certificate-${c.pair}.pdf` });
+    }
+    // Exactly one message for this shipment.
+    expect(await db().select().from(outbox).where(eq(outbox.eventId, details!.eventId))).toHaveLength(1);
+  });
+
+  test("a shipped carton cannot ship again", async () => {
+    const before = await counts();
+    const e = await refusal(shipCartons(db(), { dealerId: dealer.id, cartons: [chosen[0]!.carton], shippedOn: today, carrier: "Fernway Freight", tracking: "XYZ9" }, packer));
+    expect(e.fieldErrors?.cartons).toEqual([`${chosen[0]!.carton} has already shipped (${shipment.identity}).`]);
+    expect(await counts()).toEqual(before);
+    expect(await waitingToShip(db())).not.toContainEqual(expect.objectContaining({ carton: chosen[0]!.carton }));
+  });
+
+  test("the sender renders each certificate at send time; through SMTP the message arrives with both PDFs", async () => {
+    const dir = mkdtempSync(path.join(process.env.TWINLEAF_TEST_DIR!, "mailbox-"));
+    const smtp = await startFakeSmtp({ port: 0, dir });
+    try {
+      const transport = createMailTransport({ smtp: { host: "127.0.0.1", port: smtp.port, secure: false }, from: "Twinleaf <no-reply@twinleaf.test>", mailboxDir: dir });
+      const result = await deliverDue(db(), transport, { batch: 1000, baseUrl: "https://twinleaf.example" });
+      transport.close();
+      expect(result.failed).toBe(0);
+      const files = readdirSync(dir).filter((f) => f.endsWith(".eml"));
+      const parsed = await Promise.all(files.map(async (f) => simpleParser(readFileSync(path.join(dir, f)))));
+      const ours = parsed.filter((m) => m.subject === "Shipped: 2 matched pairs, tracking ABC123");
+      expect(ours).toHaveLength(1);
+      const mail = ours[0]!;
+      expect(mail.attachments.map((a) => [a.filename, a.contentType])).toEqual(chosen.map((c) => [`certificate-${c.pair}.pdf`, "application/pdf"]));
+      for (const a of mail.attachments) expect(a.content.subarray(0, 5).toString()).toBe("%PDF-");
+      expect(mail.text).toContain("tracking number ABC123");
+    } finally {
+      await smtp.close();
+    }
+  }, 60_000);
+});
+
+// ---- the public check --------------------------------------------------------------------------
+
+describe("verifyCertificate", () => {
+  test("answers the public fields only, for the code on the certificate", async () => {
+    const [cert] = await db()
+      .select({ code: certificates.code, pairId: certificates.pairId, issuedAt: certificates.issuedAt })
+      .from(certificates)
+      .orderBy(certificates.issuedAt)
+      .limit(1);
+    const found = await verifyCertificate(db(), cert!.code);
+    expect(found).not.toBeNull();
+    // Nothing beyond the public keys: no names, dealer, owner, ids or states.
+    expect(Object.keys(found!).sort()).toEqual([...PUBLIC_CERTIFICATE_FIELDS].sort());
+    const [pair] = await db().select().from(items).where(eq(items.id, cert!.pairId));
+    const [model] = await db().select().from(models).where(eq(models.id, pair!.modelId!));
+    expect(found!.pairSerial).toBe(pair!.identity);
+    expect(found!.model).toBe(`${model!.code} ${model!.name}`);
+    expect(found!.leftSerial).toMatch(/^S-/);
+    expect(found!.rightSerial).toMatch(/^S-/);
+    expect(found!.buildMonth).toMatch(/^(January|February|March|April|May|June|July|August|September|October|November|December) 20\d\d$/);
+    expect(found!.issuedOn.getTime()).toBe(cert!.issuedAt.getTime());
+    // Capitals typed from paper read the same.
+    expect(await verifyCertificate(db(), cert!.code.toUpperCase())).toEqual(found);
+    const text = JSON.stringify(found);
+    expect(text).not.toContain(pair!.id);
+    expect(text).not.toMatch(/@|demo|dealer/i);
+  });
+
+  test.each([["a well-formed code nobody was given", "a".repeat(26)], ["malformed", "../../etc/passwd"], ["empty", ""], ["too short", "abc"]])("%s → null", async (_what, code) => {
+    expect(await verifyCertificate(db(), code)).toBeNull();
+  });
+});
+
+describe("the public page's limiter", () => {
+  test("allows max per window per address, then refuses until the oldest hit leaves the window", () => {
+    const limiter = createRateLimiter({ windowMs: 600_000, max: 30 });
+    const t0 = 1_000_000;
+    for (let i = 0; i < 30; i++) expect(limiter.hit("203.0.113.9", t0 + i)).toBe(true);
+    expect(limiter.hit("203.0.113.9", t0 + 31)).toBe(false);
+    expect(limiter.hit("198.51.100.7", t0 + 31)).toBe(true); // another address is not affected
+    expect(limiter.retryAfterMs("203.0.113.9", t0 + 31)).toBe(600_000 - 31);
+    expect(limiter.hit("203.0.113.9", t0 + 600_000)).toBe(true);
+  });
+});
