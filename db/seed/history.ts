@@ -564,7 +564,8 @@ const SIDES = ["L", "R"] as const;
  */
 function planRoutes(plan: Plan, rng: Rng, pairs: PairPlan[], now: Date) {
   const steps = defaultRoute();
-  const live = pairs.filter((p) => p.finish.kind === "veneer" && p.t.assembly > now);
+  // Veneered pairs travel as pairs; a lacquer pair's cabinets travel alone until assembly pairs them.
+  const live = pairs.filter((p) => p.t.assembly > now);
   const offsets = new Map<string, number>([
     ["press", 0],
     ["trim", 2 * HOUR],
@@ -587,7 +588,8 @@ function planRoutes(plan: Plan, rng: Rng, pairs: PairPlan[], now: Date) {
     };
     const done = steps.filter((s) => timeOf(s.key) + 30 * MIN <= now.getTime());
     if (!done.length) continue;
-    const trimBad = !ncGiven && done.some((s) => s.key === "trim");
+    const lacquer = p.finish.kind === "lacquer";
+    const trimBad = !lacquer && !ncGiven && done.some((s) => s.key === "trim");
     if (trimBad) ncGiven = true;
     for (const step of done) {
       const startedAt = new Date(timeOf(step.key));
@@ -603,9 +605,9 @@ function planRoutes(plan: Plan, rng: Rng, pairs: PairPlan[], now: Date) {
       }
       const out = trimBad && step.key === "trim";
       const station = step.station === "inspection" ? "sanding" : step.station;
-      plan.add(recordedAt, async (ctx) => {
-        const pair = get(ctx, p.key);
-        const cabinets = SIDES.map((side) => ({ id: get(ctx, `${p.key}:cab:${side}`).id, side }));
+      for (const group of lacquer ? SIDES.map((side) => [side] as const) : [SIDES]) plan.add(recordedAt, async (ctx) => {
+        const pair = lacquer ? get(ctx, `${p.key}:cab:${group[0]}`) : get(ctx, p.key);
+        const cabinets = lacquer ? [{ id: pair.id, side: "L" as const }] : group.map((side) => ({ id: get(ctx, `${p.key}:cab:${side}`).id, side }));
         const [spec] = await ctx.tx.select().from(processSpecs).where(eq(processSpecs.modelId, p.model.id));
         if (!spec) return;
         const by = ctx.recorder(at("cabinet", station), recordedAt);
@@ -615,7 +617,7 @@ function planRoutes(plan: Plan, rng: Rng, pairs: PairPlan[], now: Date) {
         }
         let first = 0;
         for (const c of cabinets) {
-          const e = await appendEvent(ctx.tx, { actorId: by.actorId, station, type: "route.step_recorded", subjectKind: "item", subjectId: c.id, data: { identity: get(ctx, `${p.key}:cab:${c.side}`).identity, pair: pair.identity, seq: step.seq, step: step.name, side: c.side, readings, outOfWindow: out ? ["deviationMm"] : [], startedAt: startedAt.toISOString() }, at: recordedAt });
+          const e = await appendEvent(ctx.tx, { actorId: by.actorId, station, type: "route.step_recorded", subjectKind: "item", subjectId: c.id, data: { identity: lacquer ? pair.identity : get(ctx, `${p.key}:cab:${c.side}`).identity, pair: pair.identity, seq: step.seq, step: step.name, side: c.side, readings, outOfWindow: out ? ["deviationMm"] : [], startedAt: startedAt.toISOString() }, at: recordedAt });
           first ||= e;
         }
         const [record] = await ctx.tx.insert(routeRecords).values({ pairId: pair.id, specId: spec.id, seq: step.seq, cabinets, startedAt, recordedAt, readings, outOfWindow: out, eventId: first }).returning({ id: routeRecords.id });

@@ -91,9 +91,22 @@ export async function pairOf(db: DbOrTx, text: string): Promise<Item | null> {
       .innerJoin(items, eq(items.id, links.parentId))
       .where(and(eq(links.childId, item.id), isNull(links.endedAt), eq(items.kind, "pair")))
       .limit(1);
-    return holder?.pair ?? null;
+    if (holder) return holder.pair;
+    return (await isLoneLacquerCabinet(db, item)) ? item : null;
   }
   return null;
+}
+
+/**
+ * A lacquer cabinet is made in a batch without a pair and travels the route on its own until
+ * assembly pairs it: its route records are kept under its own id, as its own one-cabinet "group".
+ */
+export async function isLoneLacquerCabinet(db: DbOrTx, item: Item): Promise<boolean> {
+  if (item.kind !== "cabinet" || !item.finishId) return false;
+  const [finish] = await db.select({ kind: finishes.kind }).from(finishes).where(eq(finishes.id, item.finishId)).limit(1);
+  if (finish?.kind !== "lacquer") return false;
+  const [held] = await db.select({ id: links.id }).from(links).where(and(eq(links.childId, item.id), isNull(links.endedAt))).limit(1);
+  return !held;
 }
 
 /** History entries for the cabinets now at each side, from the records and nonconformances. */
@@ -116,7 +129,8 @@ function historyFor(records: (typeof routeRecords.$inferSelect)[], ncs: Nonconfo
 }
 
 export async function pairRoute(db: DbOrTx, pair: Item, at: Date = clockNow()): Promise<PairRoute> {
-  if (pair.kind !== "pair" || !pair.modelId) throw new AppError(400, `${pair.identity} is not a pair of a model.`);
+  const lone = pair.kind === "cabinet" && (await isLoneLacquerCabinet(db, pair));
+  if ((pair.kind !== "pair" && !lone) || !pair.modelId) throw new AppError(400, `${pair.identity} is not a pair of a model, nor a lacquer cabinet waiting for one.`);
   const [model] = await db.select().from(models).where(eq(models.id, pair.modelId)).limit(1);
   const [finish] = pair.finishId ? await db.select({ name: finishes.name }).from(finishes).where(eq(finishes.id, pair.finishId)).limit(1) : [];
   const [start] = await db.select().from(routeStarts).where(eq(routeStarts.pairId, pair.id)).limit(1);
@@ -127,7 +141,7 @@ export async function pairRoute(db: DbOrTx, pair: Item, at: Date = clockNow()): 
     .from(links)
     .innerJoin(items, eq(items.id, links.childId))
     .where(and(eq(links.parentId, pair.id), isNull(links.endedAt), inArray(links.position, ["CAB-L", "CAB-R"])));
-  const cabinets = held.map((h) => ({ side: (h.position === "CAB-L" ? "L" : "R") as Side, item: h.item })).sort((a, b) => a.side.localeCompare(b.side));
+  const cabinets = lone ? [{ side: "L" as Side, item: pair }] : held.map((h) => ({ side: (h.position === "CAB-L" ? "L" : "R") as Side, item: h.item })).sort((a, b) => a.side.localeCompare(b.side));
   const records = await db.select().from(routeRecords).where(eq(routeRecords.pairId, pair.id)).orderBy(asc(routeRecords.id));
   const ncs = await db.select().from(nonconformances).where(eq(nonconformances.pairId, pair.id)).orderBy(asc(nonconformances.openedAt));
   const history = historyFor(records, ncs, cabinets);
@@ -263,7 +277,10 @@ export async function dispositionNc(
     if (finalTest) {
       await changeState(tx, pair!, input.disposition === "use_as_is" ? "ready_to_pack" : "awaiting_test", { actorId: actor.id, station: "quality", reason: input.reason }, { nc: nc.code });
     }
-    if (scrapCabinet) {
+    if (scrapCabinet && pair!.kind === "cabinet") {
+      // A lone lacquer cabinet: nothing to break apart.
+      await changeState(tx, scrapCabinet, "scrapped", { actorId: actor.id, station: "quality", reason: input.reason }, { nc: nc.code });
+    } else if (scrapCabinet) {
       const by: Recorder = { actorId: actor.id, station: "quality", reason: input.reason };
       await removeFrom(tx, { parent: pair!, child: scrapCabinet, data: { nc: nc.code } }, { ...by, reason: `scrapped under ${nc.code}: ${input.reason}` });
       await changeState(tx, scrapCabinet, "scrapped", by, { nc: nc.code });
@@ -311,6 +328,8 @@ export interface ShopPair {
   /** Since when the next step has been allowed (the last step's time or the hold's release). */
   readySince: Date | null;
   unpartnered: boolean;
+  /** A lacquer cabinet on the route by itself (no pair yet). */
+  lone: boolean;
 }
 
 /** A pair whose next step has been allowed this long without being done is overdue (the demo workshop's rule). */
@@ -319,6 +338,14 @@ export const OVERDUE_AFTER_MS = 48 * 3600_000;
 /** Every pair still on the cabinet route, where it is now. */
 export async function shopPairs(db: DbOrTx, at: Date = clockNow()): Promise<ShopPair[]> {
   const pairs = await db.select().from(items).where(and(eq(items.kind, "pair"), inArray(items.state, ["in_production", "unpartnered"]))).orderBy(asc(items.createdAt));
+  // Lacquer cabinets in no pair, still on the route.
+  const lone = await db
+    .select({ item: items })
+    .from(items)
+    .innerJoin(finishes, eq(finishes.id, items.finishId))
+    .where(and(eq(items.kind, "cabinet"), eq(finishes.kind, "lacquer"), inArray(items.state, ["in_progress", "in_route"]), sql`NOT EXISTS (SELECT 1 FROM links l WHERE l.child_id = ${items.id} AND l.ended_at IS NULL)`))
+    .orderBy(asc(items.createdAt));
+  pairs.push(...lone.map((l) => l.item));
   const out: ShopPair[] = [];
   for (const pair of pairs) {
     // Lacquer pairs are paired at assembly from cabinets that already finished: no route for them here.
@@ -348,7 +375,8 @@ export async function shopPairs(db: DbOrTx, at: Date = clockNow()): Promise<Shop
       holdLabel: withNext.find((c) => c.holdUntil)?.holdLabel ?? null,
       openNcs: route.position.openNcs,
       readySince,
-      unpartnered: route.cabinets.length < 2,
+      unpartnered: pair.kind === "pair" && route.cabinets.length < 2,
+      lone: pair.kind === "cabinet",
     });
   }
   return out;

@@ -179,3 +179,24 @@ describe("versions of the route", () => {
     expect(await failureText(() => db().run(sql`UPDATE process_specs SET note = 'x' WHERE id = ${v1.id}`))).toMatch(/new version/);
   });
 });
+
+describe("lacquer cabinets", () => {
+  test("a lacquer cabinet from a batch walks the route on its own; two finished ones are paired at assembly", async () => {
+    const lacquer = (await db().select().from(finishes)).find((f) => f.kind === "lacquer")!;
+    const made = await createLacquerBatch(db(), { modelId: model.id, finishId: lacquer.id, count: 2 }, { id: cabinetUser });
+    for (const cab of made) {
+      let t = 0;
+      const steps = (await currentSpec(db(), model.id))!.steps;
+      for (const s of steps) {
+        await step(cab.id, s.seq, at(t), undefined, ["L"]);
+        t += s.holdAfter ? s.holdAfter.minutes * MIN : HOUR;
+      }
+      const [after] = await db().select().from(items).where(eq(items.id, cab.id));
+      expect(after!.state).toBe("finished");
+    }
+    setClock(null);
+    const { pairLacquerCabinets } = await import("@/lib/assembly");
+    const { pair } = await pairLacquerCabinets(db(), { left: made[0]!.identity, right: made[1]!.identity }, { id: cabinetUser });
+    expect(pair.identity).toMatch(new RegExp(`^P-${model.code}-`));
+  });
+});

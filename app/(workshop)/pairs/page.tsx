@@ -114,7 +114,7 @@ export default async function Page() {
                     {go.map((p) => (
                       <li key={p.pair}>
                         <SerialLink identity={p.pair} href={route(p.pair)} /> {p.model}: {p.next?.name}
-                        {p.sides.length < 2 ? ` (${side(p.sides)})` : ""}
+                        {p.lone ? " (lacquer cabinet, not yet paired)" : p.sides.length < 2 ? ` (${side(p.sides)})` : ""}
                         {p.unpartnered ? " · unpartnered" : ""}
                       </li>
                     ))}

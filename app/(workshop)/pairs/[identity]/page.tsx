@@ -15,7 +15,7 @@ import { itemByIdentity } from "@/lib/genealogy/graph";
 import { stateLabel } from "@/lib/genealogy/kinds";
 import { STATION_CAUTIONS } from "@/lib/route/cautions";
 import { windowText } from "@/lib/route/rules";
-import { pairRoute } from "@/lib/route/server";
+import { isLoneLacquerCabinet, pairRoute } from "@/lib/route/server";
 import { DispositionForm } from "@/app/(workshop)/containment/disposition-form";
 import { RepartnerForm } from "./repartner-form";
 import { StepForm } from "./step-form";
@@ -29,7 +29,9 @@ export default async function PairRoutePage({ params }: { params: Promise<{ iden
   const db = getDb();
   const identity = decodeURIComponent((await params).identity);
   const pair = await itemByIdentity(db, identity);
-  if (!pair || pair.kind !== "pair") notFound();
+  if (!pair || (pair.kind !== "pair" && !(await isLoneLacquerCabinet(db, pair)))) notFound();
+  // A lacquer cabinet made in a batch travels the route alone until assembly pairs it.
+  const lone = pair.kind === "cabinet";
   const at = now();
   const route = await pairRoute(db, pair, at);
   const steps = route.spec.steps;
@@ -50,13 +52,14 @@ export default async function PairRoutePage({ params }: { params: Promise<{ iden
         lead={`${route.model.code} ${route.model.name}${route.finishName ? ` · ${route.finishName}` : ""} · route version ${route.spec.version}${route.started ? "" : " (fixed when the first step is recorded)"}`}
         actions={<Badge tone={pos.openNcs.length ? "danger" : pos.finished ? "leaf" : "info"}>{pos.openNcs.length ? "on hold" : pos.finished ? "route finished" : stateLabel(pair.state)}</Badge>}
       />
+      {lone ? <Notice tone="info">A lacquer cabinet made in a batch: it travels the route on its own, and assembly pairs it with another finished cabinet of its model and colour.</Notice> : null}
       <div className="grid gap-4 md:grid-cols-2" data-testid="route-cabinets">
-        {(["L", "R"] as const).map((side) => {
+        {(lone ? (["L"] as const) : (["L", "R"] as const)).map((side) => {
           const c = cabinetOf(side);
           const p = pos.cabinets.find((x) => x.side === side);
           return (
             <div key={side} className="rounded-lg border border-line bg-surface p-4">
-              <p className="font-bold">{side === "L" ? "Left cabinet" : "Right cabinet"}</p>
+              <p className="font-bold">{lone ? "This cabinet" : side === "L" ? "Left cabinet" : "Right cabinet"}</p>
               {c ? (
                 <>
                   <SerialLink identity={c.item.identity} />
@@ -114,7 +117,7 @@ export default async function PairRoutePage({ params }: { params: Promise<{ iden
         </Panel>
       ) : null}
 
-      {user.permissions.has("quality.work") && route.cabinets.length < 2 ? (
+      {user.permissions.has("quality.work") && !lone && route.cabinets.length < 2 ? (
         <Panel title="A new partner">
           <RepartnerForm pair={pair.identity} pairId={pair.id} />
         </Panel>

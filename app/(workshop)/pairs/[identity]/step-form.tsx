@@ -31,7 +31,7 @@ export function StepForm({ pair, pairId, step, sides, window }: { pair: string; 
             <label key={s.side} className="flex min-h-12 cursor-pointer items-center gap-3 rounded-lg border border-line bg-surface px-3 has-checked:border-leaf has-checked:bg-leaf-soft">
               <input type="checkbox" name="sides" value={s.side} defaultChecked={s.ready} disabled={!s.ready} className="size-5 accent-leaf" />
               <span>
-                {s.side === "L" ? "Left" : "Right"} <span className="serial text-sm">{s.identity}</span>
+                {sides.length === 1 ? "Cabinet" : s.side === "L" ? "Left" : "Right"} <span className="serial text-sm">{s.identity}</span>
                 {s.ready ? "" : " (not at this step)"}
               </span>
             </label>
