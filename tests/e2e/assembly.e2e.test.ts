@@ -18,21 +18,12 @@ import { acceptPlan, importResponseFiles, registerBatch } from "@/lib/lab/units"
 import { pairRoute, recordStep } from "@/lib/route/server";
 import { confirmRuns, createLacquerBatch, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
 import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser-helpers";
+import { goodReadings } from "../fixtures/route";
 
 let browser: Browser;
 let page: Page;
 const w = { pair: "", tweeter: [] as string[], bass: [] as string[], xo: [] as string[], lacquer: [] as string[] };
 
-/** Good readings for each step of the default route (common practice values, as in route.test.ts). */
-function goodReadings(key: string): Record<string, string | boolean> {
-  if (key === "press") return { platenC: "137", minutes: "22" };
-  if (key === "trim") return { deviationMm: "0.1" };
-  if (key === "brace") return { clampMinutes: "120" };
-  if (key.startsWith("check")) return { pass: true };
-  if (key.startsWith("coat-")) return { coat: key.slice(5) };
-  if (key === "machine-polish") return { cycleMinutes: "70" };
-  return {};
-}
 
 const flat = (serial: string) => [`* ${serial}`, "Freq(Hz) SPL(dB)", ...Array.from({ length: 121 }, (_, k) => `${(20 * 2 ** (k / 12)).toFixed(2)}\t90`)].join("\n");
 

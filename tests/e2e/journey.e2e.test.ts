@@ -19,19 +19,11 @@ import { acceptPlan, importResponseFiles, registerBatch } from "@/lib/lab/units"
 import { pairRoute, recordStep } from "@/lib/route/server";
 import { confirmRuns, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
 import { demoEmail, launchBrowser, newPage, signIn, url, waitForMail } from "./browser-helpers";
+import { goodReadings } from "../fixtures/route";
 
 let browser: Browser;
 const w = { pair: "", flitch: "", tweeter: [] as string[], bass: [] as string[], xo: [] as string[] };
 
-function goodReadings(key: string): Record<string, string | boolean> {
-  if (key === "press") return { platenC: "137", minutes: "22" };
-  if (key === "trim") return { deviationMm: "0.1" };
-  if (key === "brace") return { clampMinutes: "120" };
-  if (key.startsWith("check")) return { pass: true };
-  if (key.startsWith("coat-")) return { coat: key.slice(5) };
-  if (key === "machine-polish") return { cycleMinutes: "70" };
-  return {};
-}
 
 /** A made-up flat response from 20 Hz to 20 kHz, 1/12 octave apart, with the unit's serial on line 1. */
 const flat = (serial: string, level = 90) => [`* ${serial}`, "Freq(Hz) SPL(dB)", ...Array.from({ length: 121 }, (_, k) => `${(20 * 2 ** (k / 12)).toFixed(2)}\t${level}`)].join("\n");

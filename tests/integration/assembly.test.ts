@@ -22,6 +22,7 @@ import { acceptPlan, failUnit, importResponseFiles, matchBatch, registerBatch, t
 import { pairRoute, recordStep } from "@/lib/route/server";
 import { formatSerial } from "@/lib/serials/format";
 import { confirmRuns, createLacquerBatch, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
+import { goodReadings } from "../fixtures/route";
 
 const db = () => getDb();
 const ids = { veneer: "", cabinet: "", lab: "", assembly: "", quality: "" };
@@ -56,16 +57,6 @@ async function newPair() {
   return made!;
 }
 
-/** Good readings for a step of the default route (common practice values, as in route.test.ts). */
-function goodReadings(key: string): Record<string, string | boolean> {
-  if (key === "press") return { platenC: "137", minutes: "22" };
-  if (key === "trim") return { deviationMm: "0.1" };
-  if (key === "brace") return { clampMinutes: "120" };
-  if (key.startsWith("check")) return { pass: true };
-  if (key.startsWith("coat-")) return { coat: key.slice(5) };
-  if (key === "machine-polish") return { cycleMinutes: "70" };
-  return {};
-}
 
 const T0 = new Date("2026-12-07T08:00:00Z");
 const HOUR = 3_600_000;

@@ -7,6 +7,7 @@ import { setClock } from "@/lib/clock";
 import { traceBackward } from "@/lib/genealogy/trace";
 import { createSpecVersion, currentSpec, dispositionNc, pairRoute, recordStep, repartner } from "@/lib/route/server";
 import { confirmRuns, createLacquerBatch, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
+import { goodReadings } from "../fixtures/route";
 import { failureText } from "./helpers";
 
 const db = () => getDb();
@@ -42,23 +43,12 @@ const MIN = 60_000;
 const HOUR = 60 * MIN;
 const DAY = 24 * HOUR;
 
-/** Good readings for a step of the default route (common practice values). */
-function goodReadings(seq: number, key: string): Record<string, string> {
-  if (key === "press") return { platenC: "137", minutes: "22" };
-  if (key === "trim") return { deviationMm: "0.1" };
-  if (key === "brace") return { clampMinutes: "120" };
-  if (key.startsWith("check")) return { pass: "pass" } as Record<string, string>;
-  if (key.startsWith("coat-")) return { coat: key.slice(5) };
-  if (key === "machine-polish") return { cycleMinutes: "70" };
-  void seq;
-  return {};
-}
 
 async function step(pairId: string, seq: number, when: Date, readings?: Record<string, string | boolean>, sides: ("L" | "R")[] = ["L", "R"]) {
   setClock(when);
   const spec = (await pairRoute(db(), (await db().select().from(items).where(eq(items.id, pairId)))[0]!)).spec;
   const s = spec.steps.find((x) => x.seq === seq)!;
-  const input = readings ?? goodReadings(seq, s.key);
+  const input = readings ?? goodReadings(s.key);
   return recordStep(db(), { pairId, seq, sides, startedAt: when, readings: Object.fromEntries(Object.entries(input).map(([k, v]) => [k, v === "pass" ? true : v])), station: s.station }, { id: cabinetUser });
 }
 
