@@ -357,7 +357,7 @@ export async function limitFor(db: DbOrTx, modelId: string, partType: LabPartTyp
 export interface MatchView {
   bands: ReturnType<typeof thirdOctaveBands>;
   /** `id` is the unit's serial, so the plan and its reasons name units as people know them. */
-  units: { id: string; itemId: string; identity: string; levels: number[]; fs?: number; qts?: number }[];
+  units: { id: string; itemId: string; identity: string; levels: number[]; points: number[][]; fs?: number; qts?: number }[];
   notReady: { identity: string; reason: string }[];
   plan: ReturnType<typeof planPairs>;
   limitDb: number;
@@ -386,7 +386,7 @@ export async function matchBatch(db: DbOrTx, batch: { id: string; partType: LabP
     }
     try {
       const levels = bandLevels(r.points.map(([hz, db]) => ({ hz: hz!, db: db! })), bands);
-      units.push({ id: r.identity, itemId: r.id, identity: r.identity, levels, ...(r.fsHz !== null ? { fs: r.fsHz } : {}), ...(r.qts !== null ? { qts: r.qts } : {}) });
+      units.push({ id: r.identity, itemId: r.id, identity: r.identity, levels, points: r.points, ...(r.fsHz !== null ? { fs: r.fsHz } : {}), ...(r.qts !== null ? { qts: r.qts } : {}) });
     } catch (e) {
       notReady.push({ identity: r.identity, reason: (e as Error).message });
     }

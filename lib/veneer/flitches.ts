@@ -339,6 +339,7 @@ export async function confirmRuns(
         if (problems.length) throw new AppError(400, `Run ${i + 1} (leaves ${run.left[0]}–${run.reserve.at(-1) ?? run.right.at(-1)}): ${problems.join(" ")}`);
       }
       const leafBySeq = new Map(view.leaves.map((l) => [l.seq, l]));
+      const leafItems = new Map((await tx.select().from(items).where(inArray(items.id, view.leaves.map((l) => l.id)))).map((i) => [i.id, i]));
       const year = new Date().getUTCFullYear();
       const recorder = by(actor);
       const out: ConfirmedPair[] = [];
@@ -373,18 +374,16 @@ export async function confirmRuns(
         const now = new Date();
         for (const { side, seqs, orientation } of faces) {
           for (const [i, seq] of seqs.entries()) {
-            const leaf = leafBySeq.get(seq)!;
-            const leafItem = (await tx.select().from(items).where(eq(items.id, leaf.id)).limit(1))[0]!;
+            const leafItem = leafItems.get(leafBySeq.get(seq)!.id)!;
             const position = facePosition(i);
             await fit(tx, { parent: cabinets[side], child: leafItem, position, data: { orientation } }, recorder);
-            await tx.insert(leafAllocations).values({ leafId: leaf.id, pairId: pair.id, role: "face", cabinetId: cabinets[side].id, position, orientation, startedAt: now, eventId: allocated });
+            await tx.insert(leafAllocations).values({ leafId: leafItem.id, pairId: pair.id, role: "face", cabinetId: cabinets[side].id, position, orientation, startedAt: now, eventId: allocated });
             await changeState(tx, leafItem, "used", recorder, { pair: pair.identity });
           }
         }
         for (const seq of run.reserve) {
-          const leaf = leafBySeq.get(seq)!;
-          const leafItem = (await tx.select().from(items).where(eq(items.id, leaf.id)).limit(1))[0]!;
-          await tx.insert(leafAllocations).values({ leafId: leaf.id, pairId: pair.id, role: "reserve", startedAt: now, eventId: allocated });
+          const leafItem = leafItems.get(leafBySeq.get(seq)!.id)!;
+          await tx.insert(leafAllocations).values({ leafId: leafItem.id, pairId: pair.id, role: "reserve", startedAt: now, eventId: allocated });
           await changeState(tx, leafItem, "reserved", recorder, { pair: pair.identity });
         }
         out.push({ pair, left: cabinets.L, right: cabinets.R, run });

@@ -1,5 +1,6 @@
 "use client";
-import { startTransition, useActionState, useEffect, useId, useState, type FormEvent } from "react";
+import { useActionState, useEffect, useId, useState } from "react";
+import { submitKeepingFields } from "@/components/ui/kept-form";
 import { controlClasses } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { Button } from "@/components/ui/button";
@@ -13,14 +14,7 @@ export function MoveForm({ cartons, locations }: { cartons: { carton: string; lo
   const [carton, setCarton] = useState("");
   const [location, setLocation] = useState("");
   const id = useId();
-  // Dispatched by hand rather than as the form's action: React resets a form after its action,
-  // which would untick every box (and reset the selects) while the state still holds them.
-  const submit = (e: FormEvent<HTMLFormElement>) => {
-    e.preventDefault();
-    if (pending) return;
-    const formData = new FormData(e.currentTarget);
-    startTransition(() => action(formData));
-  };
+  const submit = submitKeepingFields(action, pending);
   useEffect(() => {
     if (state.ok) setLocation("");
   }, [state]);

@@ -1,6 +1,7 @@
 "use client";
 import Link from "next/link";
-import { startTransition, useActionState, useEffect, useId, useState, type FormEvent } from "react";
+import { useActionState, useEffect, useId, useState } from "react";
+import { submitKeepingFields } from "@/components/ui/kept-form";
 import { controlClasses } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { Button } from "@/components/ui/button";
@@ -30,14 +31,7 @@ export function ShipForm({ cartons, dealers, today }: { cartons: ShipCarton[]; d
   const [carrier, setCarrier] = useState("");
   const [tracking, setTracking] = useState("");
   const id = useId();
-  // Dispatched by hand rather than as the form's action: React resets a form after its action,
-  // which would untick every box (and reset the selects) while the state still holds them.
-  const submit = (e: FormEvent<HTMLFormElement>) => {
-    e.preventDefault();
-    if (pending) return;
-    const formData = new FormData(e.currentTarget);
-    startTransition(() => action(formData));
-  };
+  const submit = submitKeepingFields(action, pending);
 
   // Shipped: the cartons have left the list; the next shipment starts afresh (the carrier often stays).
   useEffect(() => {

@@ -28,10 +28,8 @@ export async function generateMetadata({ params }: { params: Promise<{ identity:
   return { title: `Flitch ${decodeURIComponent((await params).identity)}` };
 }
 
-const SIDE = { "CAB-L": "left", "CAB-R": "right" } as Record<string, string>;
-
 export default async function FlitchPage({ params, searchParams }: { params: Promise<{ identity: string }>; searchParams: Promise<{ model?: string; reserve?: string; received?: string }> }) {
-  const user = await requirePage("veneer.work");
+  await requirePage("veneer.work");
   const db = getDb();
   const identity = decodeURIComponent((await params).identity);
   const view = await flitchView(db, identity);
@@ -47,7 +45,6 @@ export default async function FlitchPage({ params, searchParams }: { params: Pro
   const events = await recentEvents(db, { subjects: { kind: "item", ids: [view.item.id, ...view.leaves.map((l) => l.id)] }, limit: 60 });
   const area = areaByKey("veneer");
 
-  const cabinetSide = (a: NonNullable<(typeof view.leaves)[number]["allocation"]>) => (a.cabinet ? a.cabinet : "");
   const rows: LeafRowData[] = view.leaves.map((l) => ({
     id: l.id,
     seq: l.seq,
@@ -60,13 +57,12 @@ export default async function FlitchPage({ params, searchParams }: { params: Pro
       ? `taken off ${l.allocation?.cabinet ?? "its cabinet"} (re-veneered)`
       : l.allocation
         ? l.allocation.role === "face"
-          ? `${l.allocation.position} of ${cabinetSide(l.allocation)}${l.allocation.orientation === "turned" ? ", turned" : ""} · ${l.allocation.pair}`
+          ? `${l.allocation.position} of ${l.allocation.cabinet ?? ""}${l.allocation.orientation === "turned" ? ", turned" : ""} · ${l.allocation.pair}`
           : `reserve for ${l.allocation.pair}`
         : null,
     locked: l.allocation?.role === "face",
     short: Boolean(spec && l.lengthMm !== null && l.widthMm !== null && (l.lengthMm < spec.minLengthMm || l.widthMm < spec.minWidthMm)),
   }));
-  void SIDE;
 
   return (
     <div className="flex flex-col gap-6" data-testid="flitch-page">
@@ -158,7 +154,6 @@ export default async function FlitchPage({ params, searchParams }: { params: Pro
       <Panel title="History">
         <EventTable events={events} caption={`Events of ${view.item.identity} and its leaves`} />
       </Panel>
-      {user ? null : null}
     </div>
   );
 }

@@ -1,5 +1,5 @@
 import type { Metadata } from "next";
-import { PairChart } from "@/components/lab/pair-chart";
+import { MatchPlan } from "@/components/lab/match-plan";
 import { SerialLink } from "@/components/register/serial-link";
 import { SafetyCautions } from "@/components/shell/safety-cautions";
 import { BackLink } from "@/components/ui/back-link";
@@ -22,7 +22,6 @@ import { limitSchema } from "./schemas";
 
 export const metadata: Metadata = { title: "Crossover boards" };
 
-const db2 = (n: number) => n.toFixed(2);
 const BOARDS_SHOWN = 30;
 const TONE: Record<string, "info" | "leaf" | "walnut" | "danger" | "neutral"> = { in_stock: "info", reserved: "leaf", failed: "danger", fitted: "walnut" };
 
@@ -51,8 +50,6 @@ export default async function CrossoversPage({ searchParams }: { searchParams: P
       view = await matchCrossovers(db, { modelId: model.id, limitDb });
     }
   }
-  const byId = new Map(view?.units.map((u) => [u.id, u]) ?? []);
-  const gain = view ? view.plan.greedyTotalCost - view.plan.totalCost : 0;
 
   return (
     <div className="flex flex-col gap-6" data-testid="crossovers-page">
@@ -148,77 +145,21 @@ export default async function CrossoversPage({ searchParams }: { searchParams: P
         ) : null}
 
         {view && model ? (
-          <div className="mt-6 flex flex-col gap-4">
-            <div className="grid gap-3 sm:grid-cols-4" data-testid="crossover-plan-summary">
-              <Figure label="Boards ready and free" value={String(view.units.length)} />
-              <Figure label="Pairs" value={String(view.plan.pairs.length)} note={`greedy pairing: ${view.plan.greedyPairs}`} />
-              <Figure label="Total cost (dB RMS)" value={db2(view.plan.totalCost)} note={`greedy: ${db2(view.plan.greedyTotalCost)}`} />
-              <Figure label="Gain over greedy" value={view.plan.pairs.length > view.plan.greedyPairs ? `+${view.plan.pairs.length - view.plan.greedyPairs} pairs` : `${db2(gain)} dB`} />
-            </div>
-            <DataTable
-              caption="Pairs of boards in the plan"
-              testId="crossover-plan-pairs"
-              empty="No two boards are within the limit."
-              initialSort={{ key: "cost", dir: "asc" }}
-              columns={[
-                { key: "n", label: "#", numeric: true },
-                { key: "a", label: "Left" },
-                { key: "b", label: "Right" },
-                { key: "cost", label: "Cost, dB RMS", numeric: true },
-                { key: "max", label: "Largest difference, dB", numeric: true },
-              ]}
-              rows={view.plan.pairs.map((p, i) => ({
-                id: `${p.a}:${p.b}`,
-                cells: {
-                  n: { value: i + 1 },
-                  a: { value: p.a, display: <span className="serial">{p.a}</span> },
-                  b: { value: p.b, display: <span className="serial">{p.b}</span> },
-                  cost: { value: p.cost, display: db2(p.cost) },
-                  max: { value: p.maxDiffDb, display: `${db2(p.maxDiffDb)} of ${limitDb}` },
-                },
-              }))}
+          <div className="mt-6">
+            <MatchPlan
+              plan={view.plan}
+              units={view.units}
+              notReady={view.notReady}
+              bands={view.bands}
+              limitDb={limitDb}
+              minHz={model.responseMinHz}
+              maxHz={model.responseMaxHz}
+              freeLabel="Boards ready and free"
+              noun="boards"
+              testPrefix="crossover-"
+              // Always mounted, so its answer stays on screen after the page is worked out again.
+              accept={<AcceptCrossovers modelId={model.id} limitDb={limitDb} pairs={view.plan.pairs.map((p) => `${p.a}:${p.b}`).join(";")} count={view.plan.pairs.length} />}
             />
-            {view.plan.single.length || view.notReady.length ? (
-              <div data-testid="crossover-plan-single">
-                <h3 className="mb-1 font-bold">Left single</h3>
-                <ul className="list-disc pl-5">
-                  {[...view.plan.single.map((s) => ({ identity: s.id, reason: s.reason })), ...view.notReady].map((s) => (
-                    <li key={s.identity}>
-                      <span className="serial">{s.identity}</span>: {s.reason}
-                    </li>
-                  ))}
-                </ul>
-              </div>
-            ) : null}
-            {/* Always mounted, so its answer stays on screen after the page is worked out again. */}
-            <AcceptCrossovers modelId={model.id} limitDb={limitDb} pairs={view.plan.pairs.map((p) => `${p.a}:${p.b}`).join(";")} count={view.plan.pairs.length} />
-            {view.plan.pairs.length ? (
-              <>
-                <div className="grid gap-4 lg:grid-cols-2">
-                  {view.plan.pairs.map((p, i) => {
-                    const A = byId.get(p.a)!;
-                    const B = byId.get(p.b)!;
-                    const bands = view.bands.map((band, k) => {
-                      const mean = (A.levels[k]! + B.levels[k]!) / 2;
-                      return { centreHz: band.centreHz, nominal: band.nominal, low: mean - limitDb / 2, high: mean + limitDb / 2 };
-                    });
-                    const pts = (u: typeof A) => u.points.map((x) => [x[0]!, x[1]!] as [number, number]);
-                    return (
-                      <PairChart
-                        key={`${p.a}:${p.b}`}
-                        title={`Pair ${i + 1}: ${db2(p.cost)} dB RMS, largest ${db2(p.maxDiffDb)} dB`}
-                        a={{ label: A.identity, points: pts(A) }}
-                        b={{ label: B.identity, points: pts(B) }}
-                        bands={bands}
-                        limitDb={limitDb}
-                        minHz={model.responseMinHz}
-                        maxHz={model.responseMaxHz}
-                      />
-                    );
-                  })}
-                </div>
-              </>
-            ) : null}
           </div>
         ) : null}
       </Panel>
@@ -226,12 +167,3 @@ export default async function CrossoversPage({ searchParams }: { searchParams: P
   );
 }
 
-function Figure({ label, value, note }: { label: string; value: string; note?: string }) {
-  return (
-    <div className="rounded-lg border border-line bg-paper p-3">
-      <p className="text-sm text-ink-soft">{label}</p>
-      <p className="text-2xl font-bold tabular-nums">{value}</p>
-      {note ? <p className="text-sm text-ink-soft">{note}</p> : null}
-    </div>
-  );
-}

@@ -2,19 +2,17 @@ import type { Metadata } from "next";
 import { and, eq } from "drizzle-orm";
 import { BackLink } from "@/components/ui/back-link";
 import { buttonClasses } from "@/components/ui/button";
-import { DataTable } from "@/components/ui/data-table";
 import { Notice } from "@/components/ui/notice";
 import { Panel, PageHeader } from "@/components/ui/panel";
-import { PairChart } from "@/components/lab/pair-chart";
+import { MatchPlan } from "@/components/lab/match-plan";
 import { getDb } from "@/db";
 import { modelTolerances, models } from "@/db/schema";
 import { requirePage } from "@/lib/auth/guard";
-import { batchByCode, batchUnitsView, listBatches, matchBatch, PASSBANDS } from "@/lib/lab/units";
+import { batchByCode, listBatches, matchBatch, PASSBANDS } from "@/lib/lab/units";
 import { AcceptPlan } from "./accept-plan";
 
 export const metadata: Metadata = { title: "Match left and right" };
 
-const db2 = (n: number) => n.toFixed(2);
 
 export default async function MatchPage({ searchParams }: { searchParams: Promise<{ batch?: string; model?: string; fs?: string; qts?: string; accepted?: string }> }) {
   await requirePage("lab.work");
@@ -37,10 +35,7 @@ export default async function MatchPage({ searchParams }: { searchParams: Promis
   const fsWeight = weight(sp.fs);
   const qtsWeight = weight(sp.qts);
   const view = batch && model ? await matchBatch(db, { id: batch.id, partType: batch.partType }, { limitDb: model.limit, fsWeight, qtsWeight }) : null;
-  const points = batch && view ? new Map((await batchUnitsView(db, batch.id, { withPoints: true })).map((u) => [u.identity, u.points])) : new Map();
-  const byId = new Map(view?.units.map((u) => [u.id, u]) ?? []);
   const pass = batch ? PASSBANDS[batch.partType] : null;
-  const gain = view ? view.plan.greedyTotalCost - view.plan.totalCost : 0;
 
   return (
     <div className="flex flex-col gap-6" data-testid="match-page">
@@ -92,98 +87,26 @@ export default async function MatchPage({ searchParams }: { searchParams: Promis
       {batch && !model ? <Notice tone="caution">No model has a mismatch limit for {batch.partType} units.</Notice> : null}
 
       {view && batch && model && pass ? (
-        <>
           <Panel title="The plan">
-            <div className="mb-4 grid gap-3 sm:grid-cols-4" data-testid="plan-summary">
-              <Figure label="Units measured and free" value={String(view.units.length)} />
-              <Figure label="Pairs" value={String(view.plan.pairs.length)} note={`greedy pairing: ${view.plan.greedyPairs}`} />
-              <Figure label="Total cost (dB RMS)" value={db2(view.plan.totalCost)} note={`greedy: ${db2(view.plan.greedyTotalCost)}`} />
-              <Figure label="Gain over greedy" value={view.plan.pairs.length > view.plan.greedyPairs ? `+${view.plan.pairs.length - view.plan.greedyPairs} pair${view.plan.pairs.length - view.plan.greedyPairs === 1 ? "" : "s"}` : `${db2(gain)} dB`} />
-            </div>
-            <DataTable
-              caption="Pairs of the plan"
-              testId="plan-pairs"
-              empty="No two units are within the limit."
-              initialSort={{ key: "cost", dir: "asc" }}
-              columns={[
-                { key: "n", label: "#", numeric: true },
-                { key: "a", label: "Left" },
-                { key: "b", label: "Right" },
-                { key: "cost", label: "Cost, dB RMS", numeric: true },
-                { key: "max", label: "Largest difference, dB", numeric: true },
-              ]}
-              rows={view.plan.pairs.map((p, i) => ({
-                id: `${p.a}:${p.b}`,
-                cells: {
-                  n: { value: i + 1 },
-                  a: { value: byId.get(p.a)?.identity ?? p.a, display: <span className="serial">{byId.get(p.a)?.identity}</span> },
-                  b: { value: byId.get(p.b)?.identity ?? p.b, display: <span className="serial">{byId.get(p.b)?.identity}</span> },
-                  cost: { value: p.cost, display: db2(p.cost) },
-                  max: { value: p.maxDiffDb, display: `${db2(p.maxDiffDb)} of ${model.limit}` },
-                },
-              }))}
+            <MatchPlan
+              plan={view.plan}
+              units={view.units}
+              notReady={view.notReady}
+              bands={view.bands}
+              limitDb={model.limit}
+              minHz={pass.minHz}
+              maxHz={pass.maxHz}
+              freeLabel="Units measured and free"
+              noun="units"
+              accept={
+                view.plan.pairs.length ? (
+                  <AcceptPlan batch={batch.code} batchId={batch.id} modelId={model.id} fsWeight={fsWeight} qtsWeight={qtsWeight} pairs={view.plan.pairs.map((p) => `${p.a}:${p.b}`).join(";")} count={view.plan.pairs.length} />
+                ) : null
+              }
             />
-            {view.plan.single.length || view.notReady.length ? (
-              <div className="mt-4" data-testid="plan-single">
-                <h3 className="mb-1 font-bold">Left single</h3>
-                <ul className="list-disc pl-5">
-                  {view.plan.single.map((s) => (
-                    <li key={s.id}>
-                      <span className="serial">{byId.get(s.id)?.identity}</span>: {s.reason}
-                    </li>
-                  ))}
-                  {view.notReady.map((s) => (
-                    <li key={s.identity}>
-                      <span className="serial">{s.identity}</span>: {s.reason}
-                    </li>
-                  ))}
-                </ul>
-              </div>
-            ) : null}
-            {view.plan.pairs.length ? (
-              <div className="mt-6">
-                <AcceptPlan batch={batch.code} batchId={batch.id} modelId={model.id} fsWeight={fsWeight} qtsWeight={qtsWeight} pairs={view.plan.pairs.map((p) => `${p.a}:${p.b}`).join(";")} count={view.plan.pairs.length} />
-              </div>
-            ) : null}
           </Panel>
-          {view.plan.pairs.length ? (
-            <Panel title="Each pair's responses">
-              <div className="grid gap-4 lg:grid-cols-2">
-                {view.plan.pairs.map((p, i) => {
-                  const A = byId.get(p.a)!;
-                  const B = byId.get(p.b)!;
-                  const bands = view.bands.map((band, k) => {
-                    const mean = (A.levels[k]! + B.levels[k]!) / 2;
-                    return { centreHz: band.centreHz, nominal: band.nominal, low: mean - model.limit / 2, high: mean + model.limit / 2 };
-                  });
-                  return (
-                    <PairChart
-                      key={`${p.a}:${p.b}`}
-                      title={`Pair ${i + 1}: ${db2(p.cost)} dB RMS, largest ${db2(p.maxDiffDb)} dB`}
-                      a={{ label: A.identity, points: (points.get(p.a) ?? []).map((x: number[]) => [x[0]!, x[1]!] as [number, number]) }}
-                      b={{ label: B.identity, points: (points.get(p.b) ?? []).map((x: number[]) => [x[0]!, x[1]!] as [number, number]) }}
-                      bands={bands}
-                      limitDb={model.limit}
-                      minHz={pass.minHz}
-                      maxHz={pass.maxHz}
-                    />
-                  );
-                })}
-              </div>
-            </Panel>
-          ) : null}
-        </>
       ) : null}
     </div>
   );
 }
 
-function Figure({ label, value, note }: { label: string; value: string; note?: string }) {
-  return (
-    <div className="rounded-lg border border-line bg-paper p-3">
-      <p className="text-sm text-ink-soft">{label}</p>
-      <p className="text-2xl font-bold tabular-nums">{value}</p>
-      {note ? <p className="text-sm text-ink-soft">{note}</p> : null}
-    </div>
-  );
-}

@@ -1,5 +1,6 @@
 "use client";
-import { startTransition, useActionState, useId, useState, type FormEvent } from "react";
+import { useActionState, useId, useState } from "react";
+import { submitKeepingFields } from "@/components/ui/kept-form";
 import { controlClasses } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { Button } from "@/components/ui/button";
@@ -16,14 +17,7 @@ export function PackForm({ pair, items, locations }: { pair: string; items: stri
   const [ticked, setTicked] = useState<string[]>([]);
   const [location, setLocation] = useState("");
   const id = useId();
-  // Dispatched by hand rather than as the form's action: React resets a form after its action,
-  // which would untick every box (and reset the selects) while the state still holds them.
-  const submit = (e: FormEvent<HTMLFormElement>) => {
-    e.preventDefault();
-    if (pending) return;
-    const formData = new FormData(e.currentTarget);
-    startTransition(() => action(formData));
-  };
+  const submit = submitKeepingFields(action, pending);
   const errors = (field: string) => (!state.ok ? state.fieldErrors?.[field] : undefined);
   const all = ticked.length === items.length;
 

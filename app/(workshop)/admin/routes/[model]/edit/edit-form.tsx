@@ -1,5 +1,6 @@
 "use client";
-import { startTransition, useActionState, useEffect, useId, useRef, useState, type ComponentProps, type FormEvent, type ReactNode } from "react";
+import { useActionState, useEffect, useId, useRef, useState, type ComponentProps, type ReactNode } from "react";
+import { submitKeepingFields } from "@/components/ui/kept-form";
 import { Button } from "@/components/ui/button";
 import { controlClasses, SelectField, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
@@ -323,14 +324,7 @@ export function RouteEditForm({ model, baseVersion, steps: initial }: { model: {
     setNote("");
   };
 
-  // Dispatched by hand rather than as the form's action: React resets a form after its action,
-  // which would show every select at its first option while the draft still holds its value.
-  const submit = (e: FormEvent<HTMLFormElement>) => {
-    e.preventDefault();
-    if (pending) return;
-    const formData = new FormData(e.currentTarget);
-    startTransition(() => action(formData));
-  };
+  const submit = submitKeepingFields(action, pending);
 
   return (
     <form onSubmit={submit} className="flex flex-col gap-6" noValidate data-testid="route-edit-form" aria-busy={pending}>
