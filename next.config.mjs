@@ -5,5 +5,20 @@ const nextConfig = {
   // Native or Node-only packages stay outside the server bundle.
   serverExternalPackages: ["@node-rs/argon2", "@libsql/client", "libsql", "nodemailer", "smtp-server", "mailparser"],
   poweredByHeader: false,
+  // Each area's URL is its own word (lib/paths.ts); addresses bookmarked under the old words still arrive.
+  async redirects() {
+    return [
+      { source: "/flitches", destination: "/veneer", permanent: false },
+      { source: "/flitches/receive", destination: "/veneer/receive", permanent: false },
+      { source: "/flitches/:identity", destination: "/veneer/flitches/:identity", permanent: false },
+      { source: "/flitches/:identity/confirmed", destination: "/veneer/flitches/:identity/confirmed", permanent: false },
+      { source: "/pairs", destination: "/cabinet", permanent: false },
+      { source: "/pairs/batches", destination: "/cabinet/lacquer", permanent: false },
+      { source: "/pairs/:identity", destination: "/cabinet/pairs/:identity", permanent: false },
+      { source: "/containment", destination: "/quality", permanent: false },
+      { source: "/dispatch", destination: "/packing", permanent: false },
+      { source: "/dispatch/pack/:pair", destination: "/packing/pack/:pair", permanent: false },
+    ];
+  },
 };
 export default nextConfig;

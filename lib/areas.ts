@@ -1,4 +1,6 @@
 import type { Permission } from "@/lib/auth/permissions";
+import { ROLES, type Role } from "@/lib/auth/roles";
+import type { Station } from "@/lib/vocabulary/stations";
 
 export interface Area {
   key: string;
@@ -31,7 +33,7 @@ export const AREAS: Area[] = [
   },
   {
     key: "veneer",
-    href: "/flitches",
+    href: "/veneer",
     label: "Veneer room",
     permission: "veneer.work",
     stations: ["veneer"],
@@ -44,7 +46,7 @@ export const AREAS: Area[] = [
   },
   {
     key: "cabinet",
-    href: "/pairs",
+    href: "/cabinet",
     label: "Cabinet shop",
     permission: "cabinet.work",
     stations: ["press", "trim", "brace", "sanding", "inspection", "lacquer", "oven", "flatting", "cure", "polish", "finish", "cabinet"],
@@ -79,8 +81,8 @@ export const AREAS: Area[] = [
   },
   {
     key: "packing",
-    href: "/dispatch",
-    label: "Dispatch",
+    href: "/packing",
+    label: "Packing",
     permission: "packing.work",
     stations: ["packing"],
     summary: "Final clean check, the pair certificate and carton labels, packing and shipping to dealers.",
@@ -97,7 +99,7 @@ export const AREAS: Area[] = [
   },
   {
     key: "quality",
-    href: "/containment",
+    href: "/quality",
     label: "Quality",
     permission: "quality.work",
     stations: ["quality"],
@@ -114,6 +116,15 @@ export const AREAS: Area[] = [
     cautions: [],
   },
 ];
+
+/**
+ * Where a person's records are made when the page does not belong to one station (a label or a
+ * certificate printed from the register): the area of their first role in the order work flows.
+ * Taken from the session, never from the request.
+ */
+export function homeStation(roles: readonly Role[]): Station {
+  return ROLES.find((r) => roles.includes(r)) ?? "admin";
+}
 
 export function areaByKey(key: string): Area {
   const area = AREAS.find((a) => a.key === key);

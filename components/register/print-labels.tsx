@@ -17,7 +17,7 @@ const SYMBOLOGIES = [
 ];
 
 /** Prints one item's label as a PDF in a new tab; the print (or reprint) is recorded. */
-export function PrintLabels({ identities, station }: { identities: string[]; station: string }) {
+export function PrintLabels({ identities }: { identities: string[] }) {
   const [layout, setLayout] = useState("thermal-100x50");
   const [symbology, setSymbology] = useState("");
   const [startAt, setStartAt] = useState("1");
@@ -29,7 +29,7 @@ export function PrintLabels({ identities, station }: { identities: string[]; sta
     const res = await fetch("/api/v1/labels", {
       method: "POST",
       headers: { "content-type": "application/json" },
-      body: JSON.stringify({ identities, layout, station, startAt: layout === "a4-3x8" ? Math.max(0, Number(startAt) - 1) : 0, printerDpi: layout === "a4-3x8" ? 600 : Number(dpi), ...(symbology ? { symbology } : {}) }),
+      body: JSON.stringify({ identities, layout, startAt: layout === "a4-3x8" ? Math.max(0, Number(startAt) - 1) : 0, printerDpi: layout === "a4-3x8" ? 600 : Number(dpi), ...(symbology ? { symbology } : {}) }),
     });
     if (!res.ok) {
       const body = await res.json().catch(() => ({}));

@@ -2,7 +2,8 @@
 import { useRouter } from "next/navigation";
 import { useMemo } from "react";
 import Tree, { type CustomNodeElementProps, type RawNodeDatum } from "react-d3-tree";
-import { itemHref, stateLabel } from "@/lib/genealogy/kinds";
+import { stateLabel } from "@/lib/vocabulary/item-kinds";
+import { itemHref } from "@/lib/paths";
 import type { TraceTree } from "@/lib/genealogy/trace";
 
 const KIND_COLOUR: Record<string, string> = {

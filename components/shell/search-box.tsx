@@ -3,7 +3,7 @@ import { useRouter } from "next/navigation";
 import { useEffect, useId, useRef, useState } from "react";
 import useSWR from "swr";
 import { cx } from "@/components/ui/cx";
-import { KIND_LABEL, stateLabel } from "@/lib/genealogy/kinds";
+import { kindLabel, stateLabel } from "@/lib/vocabulary/item-kinds";
 import type { SearchAnswer, SearchHit } from "@/lib/search/search";
 
 const fetcher = async (url: string): Promise<SearchAnswer> => {
@@ -16,7 +16,7 @@ const searchUrl = (q: string) => `/api/v1/search?q=${encodeURIComponent(q)}`;
 
 
 function describe(hit: SearchHit): { title: string; detail: string; mono: boolean } {
-  if (hit.type === "item") return { title: hit.identity, detail: `${(KIND_LABEL[hit.kind] ?? hit.kind).toLowerCase()} · ${stateLabel(hit.state)}`, mono: true };
+  if (hit.type === "item") return { title: hit.identity, detail: `${kindLabel(hit.kind).toLowerCase()} · ${stateLabel(hit.state)}`, mono: true };
   return { title: hit.name, detail: `${hit.type} · ${hit.detail}`, mono: false };
 }
 

@@ -31,6 +31,7 @@ export function Thumbnails({ uploads, empty = "No photos yet." }: { uploads: Sho
             className="block overflow-hidden rounded-lg border border-line bg-paper focus-visible:outline-2 focus-visible:outline-leaf"
           >
             {/* A plain img: the preview is already small and comes from a guarded route, not the image optimiser. */}
+            {/* eslint-disable-next-line @next/next/no-img-element */}
             <img src={`/api/v1/uploads/${u.id}?size=thumb`} alt={u.caption || u.originalName} loading="lazy" {...thumbSize(u)} className="aspect-square w-full object-contain" />
             <span className="sr-only"> (opens the full photo in a new tab)</span>
           </a>

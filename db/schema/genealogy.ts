@@ -3,23 +3,9 @@ import { check, index, integer, primaryKey, sqliteTable, text, uniqueIndex } fro
 import { events } from "./events";
 import { dealers, finishes, models } from "./workshop";
 
-/** Every kind of thing the register follows. Serialised kinds carry a MOD 37-2 checked serial. */
-export const ITEM_KINDS = [
-  "flitch",
-  "leaf",
-  "cabinet",
-  "drive_unit",
-  "crossover",
-  "component_lot",
-  "speaker",
-  "pair",
-  "carton",
-  "shipment",
-] as const;
-export type ItemKind = (typeof ITEM_KINDS)[number];
+import { ITEM_KINDS, SHARED_KINDS, type ItemKind } from "../../lib/vocabulary/item-kinds";
 
-/** Kinds that name a quantity rather than one physical part: they may sit in many parents at once. */
-export const SHARED_KINDS: readonly ItemKind[] = ["component_lot"];
+export { ITEM_KINDS, SHARED_KINDS, type ItemKind };
 
 /**
  * One physical thing (or one lot of them) with its identity: a serial for serialised kinds, a lot

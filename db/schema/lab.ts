@@ -5,8 +5,7 @@ import { events } from "./events";
 import { items } from "./genealogy";
 import { models } from "./workshop";
 
-export const PART_TYPES = ["tweeter", "midrange", "bass"] as const;
-export type LabPartType = (typeof PART_TYPES)[number];
+import { PART_TYPES } from "../../lib/vocabulary/part-types";
 
 /** A batch of drive units of one part type as they came in from the maker, with its lot. */
 export const unitBatches = sqliteTable(

@@ -3,6 +3,7 @@ import { check, index, integer, real, sqliteTable, text, uniqueIndex } from "dri
 import { events } from "./events";
 import { items } from "./genealogy";
 import { finishes } from "./workshop";
+import { DEFECT_KINDS } from "../../lib/vocabulary/defects";
 
 /** What was recorded when a flitch came in. The flitch itself is an item (kind "flitch") with its serial. */
 export const flitches = sqliteTable(
@@ -59,8 +60,6 @@ export const veneerLeaves = sqliteTable(
   ],
 );
 
-export const DEFECT_KINDS = ["split", "knot", "hole", "stain", "buckle", "sapwood", "mineral streak", "other"] as const;
-export type DefectKind = (typeof DEFECT_KINDS)[number];
 
 /** A defect found on a leaf: appended; clearing one (a mistaken entry) sets `cleared_event_id` once. */
 export const leafDefects = sqliteTable(

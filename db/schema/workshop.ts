@@ -1,4 +1,5 @@
 import { sql } from "drizzle-orm";
+import { PART_TYPES } from "../../lib/vocabulary/part-types";
 import { check, integer, primaryKey, real, sqliteTable, text } from "drizzle-orm/sqlite-core";
 
 /** A speaker design. */
@@ -37,7 +38,7 @@ export const modelPositions = sqliteTable(
       .notNull()
       .references(() => models.id, { onDelete: "cascade" }),
     position: text("position").notNull(),
-    partType: text("part_type", { enum: ["tweeter", "midrange", "bass"] }).notNull(),
+    partType: text("part_type", { enum: PART_TYPES }).notNull(),
     count: integer("count").notNull().default(1),
   },
   (t) => [primaryKey({ columns: [t.modelId, t.position] }), check("model_positions_count", sql`${t.count} >= 1`)],
@@ -50,7 +51,7 @@ export const modelTolerances = sqliteTable(
     modelId: text("model_id")
       .notNull()
       .references(() => models.id, { onDelete: "cascade" }),
-    partType: text("part_type", { enum: ["tweeter", "midrange", "bass"] }).notNull(),
+    partType: text("part_type", { enum: PART_TYPES }).notNull(),
     mismatchLimitDb: real("mismatch_limit_db").notNull(),
   },
   (t) => [primaryKey({ columns: [t.modelId, t.partType] }), check("model_tolerances_positive", sql`${t.mismatchLimitDb} > 0`)],

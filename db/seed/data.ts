@@ -7,7 +7,7 @@ import type { dealers, finishes, models } from "@/db/schema";
 
 export const DEMO_PASSWORD = "twinleaf-demo";
 
-type PartType = "tweeter" | "midrange" | "bass";
+import type { PartType } from "@/lib/vocabulary/part-types";
 
 export interface SeedModel extends Omit<typeof models.$inferInsert, "id" | "active"> {
   positions: { position: string; partType: PartType; count: number }[];

@@ -6,6 +6,7 @@
  * step back-dated, one transaction per calendar month. Demo data only: no test of the computation
  * may rely on it.
  */
+import type { Station } from "@/lib/vocabulary/stations";
 import { randomUUID } from "node:crypto";
 import { eq } from "drizzle-orm";
 import type { Db, Tx } from "@/db";
@@ -165,7 +166,7 @@ const yymm = (d: Date) => `${String(d.getUTCFullYear() % 100).padStart(2, "0")}$
 type Role = "veneer" | "cabinet" | "lab" | "assembly" | "packing" | "service";
 interface By {
   role: Role;
-  station: string;
+  station: Station;
 }
 
 type IdentitySpec = { serial: { kind: SerialKind; code: string } } | { leafOf: string; leafNo: number } | { fixed: string };
@@ -316,7 +317,7 @@ interface PairPlan {
 }
 
 const VENEER: By = { role: "veneer", station: "veneer" };
-const at = (role: Role, station: string): By => ({ role, station });
+const at = (role: Role, station: Station): By => ({ role, station });
 
 function timeline(rng: Rng, press: Date, lacquer: boolean): Timeline {
   // Trimming, bracing, sanding and the coats before flatting; lacquer colours take more coats.
@@ -460,7 +461,6 @@ function planFlitches(plan: Plan, rng: Rng, pairs: PairPlan[]) {
     const key = `${p.finish.code}:${p.window}`;
     groups.set(key, [...(groups.get(key) ?? []), p]);
   }
-  const press = at("cabinet", "press");
   for (const [groupKey, group] of groups) {
     group.sort((a, b) => a.t.press.getTime() - b.t.press.getTime());
     const finish = group[0]!.finish;

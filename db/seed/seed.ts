@@ -7,7 +7,7 @@ import type { Role } from "@/lib/auth/roles";
 import { appendEvent } from "@/lib/events/queries";
 import { DEMO_PASSWORD, SEED_DEALERS, SEED_FINISHES, SEED_MODELS, SEED_USERS } from "./data";
 import { seedHistory } from "./history";
-import { ensureDefaultSpecs } from "@/lib/route/server";
+import { ensureDefaultSpecs } from "@/lib/route/specs";
 import { ensurePackingLists } from "@/lib/dispatch/packing-list";
 import { packingItems } from "@/db/schema/dispatch";
 import { gs1CheckDigit, isValidGtin } from "@/lib/serials";

@@ -1,4 +1,5 @@
 import "server-only";
+import type { Station } from "@/lib/vocabulary/stations";
 // Machine tokens: how a test bench in the lab reaches Twinleaf's JSON API without a person's
 // session. The token is shown once, when it is made; only its SHA-256 is kept, so a copy of the
 // database cannot be used to post readings. Rows are revoked once, never deleted (see the triggers).
@@ -48,14 +49,14 @@ export interface MachinePrincipal {
 /** Exactly one of the two is set: a signed-in person, or a bench with a machine token. */
 export type Principal = { user: AuthUser; machine: null } | { user: null; machine: MachinePrincipal };
 
-export const MACHINE_STATION = "lab-bench";
+export const MACHINE_STATION: Station = "lab-bench";
 
 /**
  * The actor, station and extra event data for a record made by either kind of principal.
  * Spread it into appendEvent: `appendEvent(tx, { ...r.event, type, subjectKind, subjectId, data: { ...r.data, ...mine } })`.
  * `userStation` is the station a person at the same endpoint records at (e.g. "lab").
  */
-export function recorderFor(principal: Principal, userStation: string): { actorId: string | null; station: string; data: Record<string, string> } {
+export function recorderFor(principal: Principal, userStation: Station): { actorId: string | null; station: Station; data: Record<string, string> } {
   if (principal.machine) {
     return { actorId: null, station: MACHINE_STATION, data: { machineTokenId: principal.machine.id, machineTokenName: principal.machine.name } };
   }

@@ -6,7 +6,7 @@ export const PERMISSIONS = [
   "labels.print",
   "veneer.work",
   "cabinet.work",
-  "cabinet.batch",
+  "cabinet.lacquer",
   "lab.work",
   "assembly.work",
   "packing.work",
@@ -21,8 +21,8 @@ export type Permission = (typeof PERMISSIONS)[number];
 
 /** The one permission map: role → what it may do. Every signed-in user may search and read traces. */
 export const ROLE_PERMISSIONS: Record<Role, readonly Permission[]> = {
-  veneer: ["register.read", "labels.print", "veneer.work", "cabinet.batch"],
-  cabinet: ["register.read", "labels.print", "cabinet.work", "cabinet.batch"],
+  veneer: ["register.read", "labels.print", "veneer.work", "cabinet.lacquer"],
+  cabinet: ["register.read", "labels.print", "cabinet.work", "cabinet.lacquer"],
   lab: ["register.read", "labels.print", "lab.work"],
   assembly: ["register.read", "labels.print", "assembly.work"],
   packing: ["register.read", "labels.print", "packing.work"],

@@ -1,4 +1,6 @@
 import "server-only";
+import { SIDES, type Side } from "@/lib/vocabulary/sides";
+import type { Station } from "@/lib/vocabulary/stations";
 import { and, desc, eq, inArray, isNull } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db";
 import {
@@ -25,8 +27,6 @@ import { now as clockNow } from "@/lib/clock";
 import { parseSerial } from "@/lib/serials/format";
 import { certificateCode, verifyUrl } from "./code";
 
-export type Side = "L" | "R";
-export const SIDES: readonly Side[] = ["L", "R"];
 
 /** The pair states the demo history leaves a pair in after it shipped with a certificate. */
 const ALREADY_OUT = new Set(["packed", "shipped"]);
@@ -214,7 +214,7 @@ export async function certificatePrinted(db: DbOrTx, certificate: Pick<Certifica
 export async function recordCertificatePrint(
   db: DbOrTx,
   certificateId: string,
-  opts: { actorId: string | null; copy: boolean; station: string },
+  opts: { actorId: string | null; copy: boolean; station: Station },
 ): Promise<number> {
   const [row] = await db
     .select({ id: certificates.id, pairId: certificates.pairId, identity: items.identity })

@@ -12,7 +12,6 @@ export {
   type FinalTestFigure,
   type MatchFigure,
   type PositionRow,
-  type Side,
   type Signature,
   type SignatureStep,
   type VeneerFace,

@@ -2,7 +2,8 @@ import { Document, G, type Styles, Image, Line, Page, Path, Polygon, Rect, Svg, 
 import type { ReactNode } from "react";
 import { renderBarcode } from "@/lib/labels/barcodes";
 import { CERT_MONO_FONT as MONO_FONT, CERT_TEXT_FONT as TEXT_FONT, registerCertificateFonts } from "./fonts";
-import type { CertificateData, FinalTestFigure, PositionRow, Side, VeneerOrigin } from "./data";
+import type { Side } from "@/lib/vocabulary/sides";
+import type { CertificateData, FinalTestFigure, PositionRow, VeneerOrigin } from "./data";
 import { formatDb, formatHz } from "./data";
 
 // Twinleaf's palette (app/globals.css).

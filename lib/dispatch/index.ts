@@ -4,6 +4,7 @@ import "server-only";
  * a dealer (with the dealer's e-mail and every pair's certificate), the carton label and the
  * public certificate check. Everything that writes runs in one transaction and appends events.
  */
+import type { Actor } from "@/lib/vocabulary/actor";
 import { and, eq, isNull, sql } from "drizzle-orm";
 import type { Db, DbOrTx, Tx } from "@/db";
 import { cartonLocations, certificates, dealers, finishes, items, links, models, outbox, shipmentDetails, type Item } from "@/db/schema";
@@ -12,7 +13,7 @@ import { issueCertificate } from "@/lib/certificates";
 import { now as clockNow } from "@/lib/clock";
 import { appendEvent } from "@/lib/events/queries";
 import { changeState, createItem, fit, itemByIdentity, type Recorder } from "@/lib/genealogy/graph";
-import { stateLabel } from "@/lib/genealogy/kinds";
+import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { allocateSerial } from "@/lib/serials/allocator";
 import { normaliseScan, parseSerial } from "@/lib/serials/format";
 import { isValidGtin } from "@/lib/serials/gs1";
@@ -31,10 +32,6 @@ export const PACKABLE_STATES = ["ready_to_pack", "tested"] as const;
 
 const LOCATION_MAX = 60;
 const TEXT_MAX = 80;
-
-export interface Actor {
-  id: string;
-}
 
 const recorder = (actor: Actor): Recorder => ({ actorId: actor.id, station: STATION });
 

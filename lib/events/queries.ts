@@ -2,11 +2,13 @@ import "server-only";
 import { and, desc, eq, inArray, type SQL } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { events, users } from "@/db/schema";
+import type { EventType } from "@/lib/vocabulary/event-types";
+import type { Station } from "@/lib/vocabulary/stations";
 
 export interface NewEvent {
   actorId: string | null;
-  station: string;
-  type: string;
+  station: Station;
+  type: EventType;
   subjectKind: string;
   subjectId: string;
   data?: Record<string, unknown>;

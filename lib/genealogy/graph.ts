@@ -1,4 +1,5 @@
 import "server-only";
+import type { Station } from "@/lib/vocabulary/stations";
 import { and, eq, isNull, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { items, links, SHARED_KINDS, type Item, type ItemKind } from "@/db/schema";
@@ -7,10 +8,12 @@ import { newId } from "@/lib/auth/tokens";
 import { appendEvent } from "@/lib/events/queries";
 import { addHoldings, removeHoldings } from "./holdings";
 
+export type { Item, ItemKind };
+
 /** Who records a change and where; every change of the graph is an event. */
 export interface Recorder {
   actorId: string | null;
-  station: string;
+  station: Station;
   /** When it happened; defaults to now. The seed back-dates its history with this. */
   at?: Date;
   reason?: string | null;

@@ -7,10 +7,11 @@ import { newId } from "@/lib/auth/tokens";
 import { appendEvent } from "@/lib/events/queries";
 import { changeState, createItem, fit, itemByIdentity, type Recorder } from "@/lib/genealogy/graph";
 import { bandLevels, parseResponseFile, thirdOctaveBands, type ResponseFilePoint } from "@/lib/acoustics";
-import { boardVerdict, checkNominal, formatValue, parseValue, TOLERANCE_LETTERS, type BoardVerdict, type Unit } from "@/lib/components";
+import { boardVerdict, checkNominal, formatValue, parseValue, TOLERANCE_LETTERS, type BoardVerdict, type Unit } from "@/lib/crossover-parts";
 import { pairCost, planPairs } from "@/lib/matching";
 import { allocateSerial } from "@/lib/serials/allocator";
-import { LAB_STATION, UnitsTakenError, type LabActor } from "./units";
+import type { LabActor } from "@/lib/vocabulary/actor";
+import { LAB_STATION, UnitsTakenError } from "./units";
 
 /**
  * Crossover boards: built from component lots at the bench, checked part by part against IEC 60063

@@ -1,5 +1,5 @@
 import type { Principal } from "@/lib/auth/machine-tokens";
-import type { LabActor } from "./units";
+import type { LabActor } from "@/lib/vocabulary/actor";
 
 /** The lab's actor for a route caller: a signed-in user, or a bench's machine token (actor null, token named in the events). */
 export function labActor(caller: Principal): LabActor {

@@ -1,7 +1,9 @@
 import "server-only";
+import type { LabActor } from "@/lib/vocabulary/actor";
 import { and, asc, desc, eq, inArray, isNull, like, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
-import { batchUnits, items, matchedSets, modelTolerances, models, responses, setMembers, tsParams, unitBatches, type Item, type LabPartType } from "@/db/schema";
+import { batchUnits, items, matchedSets, modelTolerances, models, responses, setMembers, tsParams, unitBatches, type Item } from "@/db/schema";
+import type { PartType } from "@/lib/vocabulary/part-types";
 import { AppError, isConstraintError } from "@/lib/auth/errors";
 import { newId } from "@/lib/auth/tokens";
 import { appendEvent } from "@/lib/events/queries";
@@ -14,11 +16,6 @@ import { PART_TYPE_CODES, parseSerial } from "@/lib/serials/format";
 export const LAB_STATION = "lab";
 
 /** Who records: a signed-in user, or a test bench with a machine token (actor null, the token named in the data). */
-export interface LabActor {
-  id: string | null;
-  machine?: { id: string; name: string } | null;
-}
-
 const recorder = (actor: LabActor): Recorder => ({ actorId: actor.id, station: actor.machine ? "lab-bench" : LAB_STATION });
 const machineData = (actor: LabActor) => (actor.machine ? { machineTokenId: actor.machine.id, machineTokenName: actor.machine.name } : {});
 
@@ -27,7 +24,7 @@ const machineData = (actor: LabActor) => (actor.machine ? { machineTokenId: acto
  * Common practice (no published source): a tweeter above about 1.6 kHz, a midrange from 200 Hz to
  * 5 kHz, a bass unit from 31.5 Hz to 1 kHz.
  */
-export const PASSBANDS: Record<LabPartType, { minHz: number; maxHz: number }> = {
+export const PASSBANDS: Record<PartType, { minHz: number; maxHz: number }> = {
   tweeter: { minHz: 1600, maxHz: 20000 },
   midrange: { minHz: 200, maxHz: 5000 },
   bass: { minHz: 31.5, maxHz: 1000 },
@@ -36,7 +33,7 @@ export const PASSBANDS: Record<LabPartType, { minHz: number; maxHz: number }> = 
 // ---- batches ------------------------------------------------------------------------------------
 
 export interface BatchIntake {
-  partType: LabPartType;
+  partType: PartType;
   partNumber: string;
   maker: string;
   lot: string;
@@ -344,7 +341,7 @@ export async function failUnit(db: DbOrTx, input: { itemId: string; reason: stri
 
 // ---- matching -----------------------------------------------------------------------------------
 
-export async function limitFor(db: DbOrTx, modelId: string, partType: LabPartType) {
+export async function limitFor(db: DbOrTx, modelId: string, partType: PartType) {
   const [row] = await db
     .select({ limit: modelTolerances.mismatchLimitDb, model: models })
     .from(modelTolerances)
@@ -367,7 +364,7 @@ export interface MatchView {
  * The optimal plan for a batch's measured, unreserved units against a model's limit for the part
  * type, on one-third-octave bands over the part type's passband.
  */
-export async function matchBatch(db: DbOrTx, batch: { id: string; partType: LabPartType }, opts: { limitDb: number; fsWeight?: number; qtsWeight?: number }): Promise<MatchView> {
+export async function matchBatch(db: DbOrTx, batch: { id: string; partType: PartType }, opts: { limitDb: number; fsWeight?: number; qtsWeight?: number }): Promise<MatchView> {
   const pass = PASSBANDS[batch.partType];
   const bands = thirdOctaveBands(pass.minHz, pass.maxHz);
   const rows = await batchUnitsView(db, batch.id, { withPoints: true });
@@ -491,7 +488,7 @@ export async function openSets(db: DbOrTx, limit = 200) {
 
 /** Batches with how many units wait for measurement, are ready to match, are reserved or failed. */
 export async function listBatches(db: DbOrTx) {
-  return db.all<{ id: string; code: string; partType: LabPartType; partNumber: string; maker: string; lot: string; receivedOn: string; units: number; awaiting: number; ready: number; reserved: number; failed: number }>(sql`
+  return db.all<{ id: string; code: string; partType: PartType; partNumber: string; maker: string; lot: string; receivedOn: string; units: number; awaiting: number; ready: number; reserved: number; failed: number }>(sql`
     SELECT b.id, b.code, b.part_type AS partType, b.part_number AS partNumber, b.maker, b.lot, b.received_on AS receivedOn,
       count(*) AS units,
       sum(i.state = 'awaiting_measurement') AS awaiting,

@@ -1,7 +1,7 @@
 import { AppError } from "@/lib/auth/errors";
 import { cartonElementString } from "@/lib/serials";
 import type { ItemWithNames } from "@/lib/genealogy/queries";
-import { KIND_LABEL } from "@/lib/genealogy/kinds";
+import { KIND_LABEL } from "@/lib/vocabulary/item-kinds";
 import type { Symbology } from "./barcodes";
 import type { LabelSpec } from "./sheets";
 

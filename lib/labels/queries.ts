@@ -1,4 +1,5 @@
 import "server-only";
+import type { Station } from "@/lib/vocabulary/stations";
 import { and, eq, inArray } from "drizzle-orm";
 import type { Db } from "@/db";
 import { events } from "@/db/schema";
@@ -7,7 +8,7 @@ import { appendEvent } from "@/lib/events/queries";
 /** Appends one label.printed event per item, in one transaction; a second print is marked a reprint. */
 export async function recordLabelPrints(
   db: Db,
-  input: { items: { id: string; identity: string; symbology: string }[]; layout: string; actorId: string; station: string },
+  input: { items: { id: string; identity: string; symbology: string }[]; layout: string; actorId: string; station: Station },
 ): Promise<number[]> {
   return db.transaction(async (tx) => {
     const ids = input.items.map((i) => i.id);

@@ -1,4 +1,4 @@
-import type { Station } from "./types";
+import type { RouteStation } from "@/lib/vocabulary/stations";
 
 const LIFT = "Cabinets are heavy and awkward: lift with two people or a lifting aid.";
 
@@ -6,7 +6,7 @@ const LIFT = "Cabinets are heavy and awkward: lift with two people or a lifting 
  * The usual cautions at each station of the cabinet route. Reminders only: the site's safety
  * rules, local regulations and qualified people come first (see SAFETY_DEFERRAL in lib/areas.ts).
  */
-export const STATION_CAUTIONS: Record<Station, string[]> = {
+export const STATION_CAUTIONS: Record<RouteStation, string[]> = {
   press: ["The platens are hot: wear heat-resistant gloves and never reach between them.", "The press closes with great force: keep hands clear of pinch points and use the two-hand controls as fitted.", LIFT],
   trim: ["Trimming blades and router bits cut: keep guards in place and hands clear.", "Run the dust extraction; wear eye and hearing protection.", LIFT],
   brace: ["Clamps store force: release them steadily and keep fingers out of the jaws.", LIFT],

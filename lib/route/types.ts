@@ -4,8 +4,7 @@
  * by the rules (lib/route/rules.ts), the server code and the pages.
  */
 
-export const STATIONS = ["press", "trim", "brace", "sanding", "lacquer", "oven", "flatting", "cure", "polish", "finish", "inspection"] as const;
-export type Station = (typeof STATIONS)[number];
+import type { RouteStation } from "@/lib/vocabulary/stations";
 
 export interface ReadingSpec {
   key: string;
@@ -36,7 +35,7 @@ export interface StepSpec {
   seq: number;
   key: string;
   name: string;
-  station: Station;
+  station: RouteStation;
   readings: ReadingSpec[];
   holdAfter?: HoldSpec;
   /** Words for the operator: what the step is and its source ("common practice"). */
@@ -50,7 +49,9 @@ export interface RouteSpec {
   steps: StepSpec[];
 }
 
-export type Side = "L" | "R";
+import type { Side } from "@/lib/vocabulary/sides";
+
+export type { Side };
 
 /** What has happened to a pair on its route, oldest first. Every entry comes from an appended record. */
 export type RouteEntry =

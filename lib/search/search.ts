@@ -3,7 +3,7 @@ import Fuse from "fuse.js";
 import { inArray, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { dealers, items, owners } from "@/db/schema";
-import { itemHref } from "@/lib/genealogy/kinds";
+import { itemHref } from "@/lib/paths";
 import { nearMisses, normaliseScan, serialReadings } from "@/lib/serials";
 
 export type SearchHit =

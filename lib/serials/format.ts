@@ -3,6 +3,7 @@
  * the check is the ISO/IEC 7064 MOD 37-2 character of the body with the hyphens removed.
  * A veneer leaf is its flitch's serial + `/` + a two-digit leaf number.
  */
+import type { PartType } from "@/lib/vocabulary/part-types";
 import type { ItemKind } from "@/db/schema/genealogy";
 import { mod37_2Check } from "./iso7064";
 
@@ -19,8 +20,8 @@ export const SERIAL_KIND_LETTERS = {
 export type SerialKind = keyof typeof SERIAL_KIND_LETTERS;
 
 /** The code a drive unit's serial carries instead of a model code. */
-export const PART_TYPE_CODES = { tweeter: "TW", midrange: "MR", bass: "BS" } as const;
-export type PartType = keyof typeof PART_TYPE_CODES;
+export const PART_TYPE_CODES = { tweeter: "TW", midrange: "MR", bass: "BS" } as const satisfies Record<PartType, string>;
+export type { PartType };
 
 const KIND_BY_LETTER = new Map<string, SerialKind>(
   Object.entries(SERIAL_KIND_LETTERS).map(([kind, letter]) => [letter, kind as SerialKind]),

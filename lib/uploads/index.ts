@@ -1,4 +1,5 @@
 import "server-only";
+import type { Station } from "@/lib/vocabulary/stations";
 // The one way a file enters Twinleaf. Every check runs on the bytes in memory before anything is
 // written; then the files are written (temp name, then rename), then the row and its event in one
 // short transaction. A failed transaction removes the files again, so a refusal leaves nothing.
@@ -97,7 +98,7 @@ export interface UploadOptions {
   maxBytes?: number;
   caption?: string;
   actorId: string;
-  station: string;
+  station: Station;
 }
 
 export type UploadInput = UploadFile & UploadOptions;

@@ -1,4 +1,5 @@
 import "server-only";
+import type { Actor } from "@/lib/vocabulary/actor";
 import { and, asc, eq, gt, isNotNull, isNull, sql } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db";
 import { authTokens, sessions, userRoles, users } from "@/db/schema";
@@ -15,10 +16,8 @@ import { inviteMail, resetMail } from "@/lib/mail/templates";
 export const INVITE_TTL_HOURS = 72;
 export const RESET_TTL_MINUTES = 60;
 
-export interface Actor {
-  id: string;
-  name: string;
-}
+/** The administrator making a change; their name goes into the invitation. */
+export type NamedActor = Actor & { name: string };
 
 export interface UserSummary {
   id: string;
@@ -79,7 +78,7 @@ async function issueToken(tx: DbOrTx, userId: string, purpose: "invite" | "reset
 /** Invites a new user: the user, their roles, a one-time link, the event and the e-mail, in one transaction. */
 export async function inviteUser(
   db: Db,
-  input: { email: string; name: string; roles: Role[]; actor: Actor; baseUrl: string },
+  input: { email: string; name: string; roles: Role[]; actor: NamedActor; baseUrl: string },
 ): Promise<{ userId: string }> {
   const email = normaliseEmail(input.email);
   const userId = newId();
@@ -120,7 +119,7 @@ async function requireUser(db: DbOrTx, userId: string) {
 }
 
 /** Replaces a user's roles. Takes effect on their next request, because sessions read roles afresh. */
-export async function setRoles(db: Db, input: { userId: string; roles: Role[]; actor: Actor; reason?: string }): Promise<void> {
+export async function setRoles(db: Db, input: { userId: string; roles: Role[]; actor: NamedActor; reason?: string }): Promise<void> {
   await db.transaction(async (tx) => {
     const user = await requireUser(tx, input.userId);
     const before = (await tx.select({ role: userRoles.role }).from(userRoles).where(eq(userRoles.userId, user.id))).map((r) => r.role).sort();
@@ -144,7 +143,7 @@ export async function setRoles(db: Db, input: { userId: string; roles: Role[]; a
 }
 
 /** Deactivates a user and ends every session they hold. */
-export async function deactivateUser(db: Db, input: { userId: string; actor: Actor; reason?: string }): Promise<void> {
+export async function deactivateUser(db: Db, input: { userId: string; actor: NamedActor; reason?: string }): Promise<void> {
   if (input.userId === input.actor.id) throw new AppError(409, "You cannot deactivate yourself.");
   await db.transaction(async (tx) => {
     const user = await requireUser(tx, input.userId);
@@ -167,7 +166,7 @@ export async function deactivateUser(db: Db, input: { userId: string; actor: Act
   });
 }
 
-export async function reactivateUser(db: Db, input: { userId: string; actor: Actor }): Promise<void> {
+export async function reactivateUser(db: Db, input: { userId: string; actor: NamedActor }): Promise<void> {
   await db.transaction(async (tx) => {
     const user = await requireUser(tx, input.userId);
     if (user.active) return;
@@ -198,7 +197,7 @@ export async function findToken(db: DbOrTx, token: string, purpose: "invite" | "
 const TOKEN_GONE = "This link has expired or has already been used. Ask for a new one.";
 
 /** Spends a one-time token and sets the password. The conditional update makes a second use fail. */
-async function spendToken(db: Db, token: string, purpose: "invite" | "reset", password: string, eventType: string) {
+async function spendToken(db: Db, token: string, purpose: "invite" | "reset", password: string, eventType: "user.joined" | "user.password_reset") {
   const passwordHash = await hashPassword(password); // hashed before the transaction: never slow work inside one
   return db.transaction(async (tx) => {
     const found = await findToken(tx, token, purpose);

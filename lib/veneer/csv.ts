@@ -8,7 +8,7 @@
  * applies nothing until the file is good.
  */
 import Papa from "papaparse";
-import { DEFECT_KINDS, type DefectKind } from "@/db/schema/veneer";
+import { DEFECT_KINDS, type DefectKind } from "@/lib/vocabulary/defects";
 
 export interface LeafCsvRow {
   seq: number;

@@ -1,7 +1,11 @@
 import "server-only";
+import type { Actor } from "@/lib/vocabulary/actor";
+import type { Side } from "@/lib/vocabulary/sides";
+import { PAIR_CABINET_POSITION as CABINET_POSITION, facePosition } from "@/lib/vocabulary/positions";
+import type { DefectKind } from "@/lib/vocabulary/defects";
 import { and, asc, eq, inArray, isNull, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
-import { finishes, flitches, items, leafAllocations, links, leafDefects, models, veneerLeaves, type DefectKind, type Item, type Orientation } from "@/db/schema";
+import { finishes, flitches, items, leafAllocations, links, leafDefects, models, veneerLeaves, type Item, type Orientation } from "@/db/schema";
 import { AppError, isConstraintError } from "@/lib/auth/errors";
 import { appendEvent } from "@/lib/events/queries";
 import { changeState, createItem, fit, itemByIdentity, removeFrom, type Recorder } from "@/lib/genealogy/graph";
@@ -11,15 +15,6 @@ import type { LeafCsvRow } from "./csv";
 import { checkRun, planFlitch, planYield, type FlitchPlan, type PlanLeaf, type PlanRun, type PlanSpec } from "./plan";
 
 export const VENEER_STATION = "veneer";
-/** Where a pair holds its two cabinets until they become speakers. */
-export const CABINET_POSITION = { L: "CAB-L", R: "CAB-R" } as const;
-export type Side = keyof typeof CABINET_POSITION;
-/** Face positions of a cabinet: F1…Fk, left to right across the veneered face. */
-export const facePosition = (i: number) => `F${i + 1}`;
-
-export interface Actor {
-  id: string;
-}
 
 const by = (actor: Actor, reason?: string | null): Recorder => ({ actorId: actor.id, station: VENEER_STATION, reason: reason ?? null });
 
@@ -500,40 +495,6 @@ export async function pairVeneer(db: DbOrTx, pairId: string) {
     .where(eq(leafAllocations.pairId, pairId))
     .orderBy(asc(veneerLeaves.seq));
   return rows;
-}
-
-// ---- lacquered cabinets -------------------------------------------------------------------------
-
-/** Cabinets for a lacquer colour, made in a batch without leaves; they are paired at assembly. */
-export async function createLacquerBatch(db: DbOrTx, input: { modelId: string; finishId: string; count: number }, actor: Actor, station = "cabinet"): Promise<Item[]> {
-  const [model] = await db.select().from(models).where(eq(models.id, input.modelId)).limit(1);
-  if (!model || !model.active) throw new AppError(400, "Choose a model from the list.", { modelId: ["Choose a model from the list."] });
-  const [finish] = await db.select().from(finishes).where(eq(finishes.id, input.finishId)).limit(1);
-  if (!finish || !finish.active) throw new AppError(400, "Choose a colour from the list.", { finishId: ["Choose a colour from the list."] });
-  if (finish.kind !== "lacquer") throw new AppError(400, `${finish.name} is a veneer: veneered cabinets are made from a flitch's plan in the veneer room.`, { finishId: ["Choose a lacquer colour."] });
-  return db.transaction(async (tx) => {
-    const year = new Date().getUTCFullYear();
-    const recorder: Recorder = { actorId: actor.id, station };
-    const batchEvent = await appendEvent(tx, {
-      actorId: actor.id,
-      station,
-      type: "cabinet.batch_started",
-      subjectKind: "model",
-      subjectId: model.id,
-      data: { model: model.code, finish: finish.name, count: input.count },
-    });
-    const out: Item[] = [];
-    for (let i = 0; i < input.count; i++) {
-      out.push(
-        await createItem(
-          tx,
-          { kind: "cabinet", identity: await allocateSerial(tx, { kind: "cabinet", code: model.code, year }), state: "in_progress", modelId: model.id, finishId: finish.id, attrs: { batchEventId: batchEvent } },
-          recorder,
-        ),
-      );
-    }
-    return out;
-  });
 }
 
 /** Flitches with their species and how far they have been used, newest first. */

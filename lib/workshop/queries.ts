@@ -1,5 +1,5 @@
 import "server-only";
-import { asc } from "drizzle-orm";
+import { asc, eq } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { dealers, finishes, modelPositions, models, modelTolerances } from "@/db/schema";
 
@@ -31,6 +31,12 @@ export async function listModels(db: DbOrTx): Promise<ModelSummary[]> {
     positions: positions.filter((p) => p.modelId === m.id).map(({ position, partType, count }) => ({ position, partType, count })),
     tolerances: tolerances.filter((t) => t.modelId === m.id).map(({ partType, mismatchLimitDb }) => ({ partType, mismatchLimitDb })),
   }));
+}
+
+/** One model row by its id, or null. */
+export async function modelById(db: DbOrTx, id: string) {
+  const [row] = await db.select().from(models).where(eq(models.id, id)).limit(1);
+  return row ?? null;
 }
 
 export function listFinishes(db: DbOrTx) {

@@ -42,11 +42,11 @@ describe("accessibility of the veneer room (axe-core)", () => {
   test("the flitch list, a flitch with its plan and leaf table, intake and lacquer batches have no WCAG A/AA violations", async () => {
     const page = await newPage(browser);
     await signIn(page, demoEmail("veneer"));
-    for (const path of ["/flitches", "/flitches/receive", "/pairs/batches"]) {
+    for (const path of ["/veneer", "/veneer/receive", "/cabinet/lacquer"]) {
       await page.goto(url(path));
       expect(await violations(page), path).toEqual([]);
     }
-    await page.goto(url("/flitches"));
+    await page.goto(url("/veneer"));
     await page.getByTestId("flitch-table").locator("a").first().click();
     await page.getByTestId("plan-picture").waitFor();
     expect(await violations(page), "flitch page").toEqual([]);

@@ -117,7 +117,7 @@ describe("accounts", () => {
 
   test("deactivating a user ends their open session", async () => {
     const user = await join("Sloane Tidwell", "sloane.leaving@workshop.test", ["Cabinet shop"]);
-    expect((await user.goto(url("/pairs")))?.status()).toBe(200);
+    expect((await user.goto(url("/cabinet")))?.status()).toBe(200);
 
     await openUser("Sloane Tidwell");
     await admin.getByRole("button", { name: "Deactivate…" }).click();
@@ -125,7 +125,7 @@ describe("accounts", () => {
     await admin.getByRole("button", { name: "Deactivate now" }).click();
     await admin.getByTestId("toast").filter({ hasText: "Deactivated" }).waitFor();
 
-    await user.goto(url("/pairs"));
+    await user.goto(url("/cabinet"));
     expect(new URL(user.url()).pathname).toBe("/sign-in");
     const res = await user.request.get(url("/api/v1/me"));
     expect(res.status()).toBe(401);

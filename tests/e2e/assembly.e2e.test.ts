@@ -15,8 +15,9 @@ import { setClock } from "@/lib/clock";
 import { changeState } from "@/lib/genealogy/graph";
 import { buildCrossover } from "@/lib/lab/crossovers";
 import { acceptPlan, importResponseFiles, registerBatch } from "@/lib/lab/units";
-import { pairRoute, recordStep } from "@/lib/route/server";
-import { confirmRuns, createLacquerBatch, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
+import { pairRoute, recordStep } from "@/lib/route/pair-route";
+import { confirmRuns, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
+import { makeLacquerCabinets } from "@/lib/cabinets/lacquer";
 import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser-helpers";
 import { goodReadings } from "../fixtures/route";
 
@@ -43,7 +44,7 @@ beforeAll(async () => {
   let t = Date.now() - 30 * 86_400_000;
   for (const s of (await pairRoute(db, made!.pair)).spec.steps) {
     setClock(new Date(t));
-    await recordStep(db, { pairId: made!.pair.id, seq: s.seq, sides: ["L", "R"], startedAt: new Date(t), readings: goodReadings(s.key), station: s.station }, { id: cabinet });
+    await recordStep(db, { pairId: made!.pair.id, seq: s.seq, sides: ["L", "R"], startedAt: new Date(t), readings: goodReadings(s.key) }, { id: cabinet });
     t += s.holdAfter && s.holdAfter.minutes > 240 ? 15 * 86_400_000 : 5 * 3_600_000;
   }
   setClock(null);
@@ -56,7 +57,7 @@ beforeAll(async () => {
   }
   const parts = [{ position: "C1", lot: "LOT-E2E-ASM-C47", partNumber: "PP-475", nominal: "4.7µF", tolerance: "J", reading: "4.72µF" }];
   for (let i = 0; i < 2; i++) w.xo.push((await buildCrossover(db, { modelId: pw2.id, parts }, { id: lab })).crossover.identity);
-  const lacquer = await createLacquerBatch(db, { modelId: pw2.id, finishId: fs.find((f) => f.kind === "lacquer")!.id, count: 2 }, { id: cabinet });
+  const lacquer = await makeLacquerCabinets(db, { modelId: pw2.id, finishId: fs.find((f) => f.kind === "lacquer")!.id, count: 2 }, { id: cabinet });
   for (const c of lacquer) await changeState(db, c, "finished", { actorId: cabinet, station: "cabinet" });
   w.lacquer = lacquer.map((c) => c.identity);
   client.close();

@@ -36,10 +36,10 @@ describe("dispatch, as a packer does it", () => {
   const tracking = `E2E-${Date.now().toString(36).toUpperCase()}`;
 
   test("packs a tested pair from the packers' home: every item ticked, a storage place", async () => {
-    await page.goto(url("/dispatch"));
+    await page.goto(url("/packing"));
     await page.getByTestId("area-packing").waitFor();
     await expect(page.getByTestId("safety-cautions").textContent()).resolves.toMatch(/two people or a lifting aid/);
-    expect(await violations(page), "/dispatch").toEqual([]);
+    expect(await violations(page), "/packing").toEqual([]);
     const row = page.getByTestId("ready-pair").first();
     pair = (await row.locator("td").first().textContent())!.trim();
     expect(pair).toMatch(/^P-/);
@@ -76,7 +76,7 @@ describe("dispatch, as a packer does it", () => {
 
   test("ships it to a dealer; the dealer's e-mail arrives with the certificate attached", async () => {
     const [dealer] = await db.select().from(dealers).where(eq(dealers.code, "MLR"));
-    await page.goto(url("/dispatch"));
+    await page.goto(url("/packing"));
     const form = page.getByTestId("ship-form");
     await form.locator(`input[name="cartons"][value="${carton}"]`).check();
     await form.getByLabel("Dealer").selectOption(dealer!.id);

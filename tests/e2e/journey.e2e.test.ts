@@ -16,7 +16,7 @@ import { certificates, dealers, finishes, items, models, users } from "@/db/sche
 import { setClock } from "@/lib/clock";
 import { buildCrossover } from "@/lib/lab/crossovers";
 import { acceptPlan, importResponseFiles, registerBatch } from "@/lib/lab/units";
-import { pairRoute, recordStep } from "@/lib/route/server";
+import { pairRoute, recordStep } from "@/lib/route/pair-route";
 import { confirmRuns, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
 import { demoEmail, launchBrowser, newPage, signIn, url, waitForMail } from "./browser-helpers";
 import { goodReadings } from "../fixtures/route";
@@ -43,7 +43,7 @@ beforeAll(async () => {
   let t = Date.now() - 30 * 86_400_000;
   for (const s of (await pairRoute(db, made!.pair)).spec.steps) {
     setClock(new Date(t));
-    await recordStep(db, { pairId: made!.pair.id, seq: s.seq, sides: ["L", "R"], startedAt: new Date(t), readings: goodReadings(s.key), station: s.station }, { id: cabinet });
+    await recordStep(db, { pairId: made!.pair.id, seq: s.seq, sides: ["L", "R"], startedAt: new Date(t), readings: goodReadings(s.key) }, { id: cabinet });
     t += s.holdAfter && s.holdAfter.minutes > 240 ? 15 * 86_400_000 : 5 * 3_600_000;
   }
   setClock(null);
@@ -107,7 +107,7 @@ describe("a pair from matched parts to a shipped carton, in the browser", () => 
 
   test("a packer packs it, prints its certificate and carton label, and ships it; the dealer's e-mail carries the certificate", async () => {
     const page = await as("packing");
-    await page.goto(url(`/dispatch/pack/${w.pair}`));
+    await page.goto(url(`/packing/pack/${w.pair}`));
     const boxes = page.getByTestId("pack-item");
     for (let i = 0; i < (await boxes.count()); i++) await boxes.nth(i).check();
     await page.getByLabel("Storage location").fill("Rack J, shelf 2");
@@ -125,7 +125,7 @@ describe("a pair from matched parts to a shipped carton, in the browser", () => 
     const [dealer] = await db.select().from(dealers).limit(1);
     client.close();
     const tracking = `J-${Date.now().toString(36).toUpperCase()}`;
-    await page.goto(url("/dispatch"));
+    await page.goto(url("/packing"));
     const form = page.getByTestId("ship-form");
     await form.locator(`input[name="cartons"][value="${carton}"]`).check();
     await form.getByLabel("Dealer").selectOption(dealer!.id);

@@ -31,7 +31,7 @@ describe("the lab, as a lab user does it", () => {
     await form.getByLabel("Maker's part number").fill("T-E2E");
     await form.getByLabel("Maker", { exact: true }).fill("A test maker");
     await form.getByLabel("Production or supplier lot").fill("LOT-E2E");
-    await form.getByLabel("Makers' serials (optional)").fill(MAKER.join("\n"));
+    await form.getByLabel("Makers’ serials (optional)").fill(MAKER.join("\n"));
     await form.getByRole("button", { name: "Register batch" }).click();
     await page.getByTestId("batch-page").waitFor();
     batch = (await page.getByTestId("batch-code").textContent())!;

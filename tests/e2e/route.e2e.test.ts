@@ -61,7 +61,7 @@ describe("the cabinet route, walked by a cabinet user", () => {
   test("scans a cabinet label and walks the pair from the press to the hand finish as the clock moves", async () => {
     moveClock(0);
     const { pair, left } = made[0]!;
-    await cabinet.goto(url("/pairs"));
+    await cabinet.goto(url("/cabinet"));
     await cabinet.getByTestId("scan-form").getByRole("textbox").fill(left.toLowerCase());
     await cabinet.getByTestId("scan-form").getByRole("button", { name: "Open" }).click();
     await cabinet.getByTestId("route-page").waitFor();
@@ -96,13 +96,13 @@ describe("nonconformances, dispositioned by quality", () => {
   test("a press reading out of window holds the pair; quality accepts it as a deviation and the pair goes on", async () => {
     moveClock(0);
     const { pair } = made[1]!;
-    await cabinet.goto(url(`/pairs/${pair}`));
+    await cabinet.goto(url(`/cabinet/pairs/${pair}`));
     await record(cabinet, { "Platen temperature": "141", "Time in the press": "22" }, true);
     await expect(cabinet.getByTestId("step-done").textContent()).resolves.toMatch(/nonconformance NC-/);
     await cabinet.reload();
     await expect(cabinet.getByTestId("route-hold").textContent()).resolves.toMatch(/Platen temperature 141 °C/);
 
-    await quality.goto(url("/containment"));
+    await quality.goto(url("/quality"));
     // The newest open nonconformance is listed last.
     const form = quality.locator('[data-testid^="disposition-"]').last();
     await form.getByLabel("Disposition").selectOption("use_as_is");
@@ -110,15 +110,15 @@ describe("nonconformances, dispositioned by quality", () => {
     await form.getByRole("button", { name: /Record the disposition/ }).click();
     await expect.poll(() => quality.getByTestId("closed-ncs").textContent()).toMatch(/use as is/);
 
-    await cabinet.goto(url(`/pairs/${pair}`));
+    await cabinet.goto(url(`/cabinet/pairs/${pair}`));
     await record(cabinet, { "Trim deviation": "0.05" });
   });
 
   test("quality scraps one cabinet: its partner is left unpartnered", async () => {
     const { pair, right } = made[2]!;
-    await cabinet.goto(url(`/pairs/${pair}`));
+    await cabinet.goto(url(`/cabinet/pairs/${pair}`));
     await record(cabinet, { "Platen temperature": "152", "Time in the press": "22" }, true);
-    await quality.goto(url(`/pairs/${pair}`));
+    await quality.goto(url(`/cabinet/pairs/${pair}`));
     const form = quality.locator('[data-testid^="disposition-"]').first();
     await form.getByLabel("Disposition").selectOption("scrap");
     await form.getByLabel("Cabinet to scrap").selectOption("R");

@@ -12,16 +12,19 @@ import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import { getDb } from "@/db";
 import { events, finishes, items, links, models, setMembers, users, type Item } from "@/db/schema";
 import { seedDemo } from "@/db/seed/seed";
-import { assemblyView, buildSpeakers, checkScan, pairForScan, pairLacquerCabinets, pairsAwaitingAssembly, reservedSets, unpairedLacquerCabinets, type ChosenPart, type Side } from "@/lib/assembly";
+import { assemblyView, buildSpeakers, checkScan, pairForScan, pairLacquerCabinets, pairsAwaitingAssembly, reservedSets, unpairedLacquerCabinets, type ChosenPart } from "@/lib/assembly";
+import type { Side } from "@/lib/vocabulary/sides";
 import { AppError } from "@/lib/auth/errors";
 import { setClock } from "@/lib/clock";
 import { changeState } from "@/lib/genealogy/graph";
 import { traceBackward } from "@/lib/genealogy/trace";
 import { acceptCrossoverPlan, buildCrossover, type BoardPartInput } from "@/lib/lab/crossovers";
-import { acceptPlan, failUnit, importResponseFiles, matchBatch, registerBatch, type LabActor } from "@/lib/lab/units";
-import { pairRoute, recordStep } from "@/lib/route/server";
+import { acceptPlan, failUnit, importResponseFiles, matchBatch, registerBatch } from "@/lib/lab/units";
+import type { LabActor } from "@/lib/vocabulary/actor";
+import { pairRoute, recordStep } from "@/lib/route/pair-route";
 import { formatSerial } from "@/lib/serials/format";
-import { confirmRuns, createLacquerBatch, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
+import { confirmRuns, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
+import { makeLacquerCabinets } from "@/lib/cabinets/lacquer";
 import { goodReadings } from "../fixtures/route";
 
 const db = () => getDb();
@@ -65,7 +68,7 @@ const DAY = 24 * HOUR;
 async function step(pair: Item, seq: number, when: Date, readings?: Record<string, string | boolean>) {
   setClock(when);
   const s = (await pairRoute(db(), pair, when)).spec.steps.find((x) => x.seq === seq)!;
-  return recordStep(db(), { pairId: pair.id, seq, sides: ["L", "R"], startedAt: when, readings: readings ?? goodReadings(s.key), station: s.station }, { id: ids.cabinet });
+  return recordStep(db(), { pairId: pair.id, seq, sides: ["L", "R"], startedAt: when, readings: readings ?? goodReadings(s.key) }, { id: ids.cabinet });
 }
 
 /**
@@ -118,7 +121,10 @@ async function reserve(batch: { id: string }, partType: "tweeter" | "bass", mode
   const view = await matchBatch(db(), { id: batch.id, partType }, { limitDb: 0.5 });
   for (const [a, b] of pairs) expect(view.units.map((u) => u.identity)).toEqual(expect.arrayContaining([a.identity, b.identity]));
   const sets = await acceptPlan(db(), { batchId: batch.id, modelId, pairs: pairs.map(([a, b]) => ({ a: a.identity, b: b.identity })) }, lab);
-  for (const s of sets) w.setCodes.set(s.left, s.code), w.setCodes.set(s.right, s.code);
+  for (const s of sets) {
+    w.setCodes.set(s.left, s.code);
+    w.setCodes.set(s.right, s.code);
+  }
 }
 
 const fresh = async (item: Item) => (await db().select().from(items).where(eq(items.id, item.id)))[0]!;
@@ -161,7 +167,10 @@ beforeAll(async () => {
   // Boards: 0–1 a set for A, 2–3 a set (partner rule on B), 4–5 loose for B, 6–7 loose for the lacquer pair.
   for (let i = 0; i < 8; i++) w.xo.push((await buildCrossover(db(), { modelId: pw2.id, parts: goodParts(), response: { name: `xo-${i}.txt`, text: boardResponse() } }, lab)).crossover);
   const xsets = await acceptCrossoverPlan(db(), { modelId: pw2.id, limitDb: 0.5, pairs: [{ a: w.xo[0]!.identity, b: w.xo[1]!.identity }, { a: w.xo[2]!.identity, b: w.xo[3]!.identity }] }, lab);
-  for (const s of xsets) w.setCodes.set(s.left, s.code), w.setCodes.set(s.right, s.code);
+  for (const s of xsets) {
+    w.setCodes.set(s.left, s.code);
+    w.setCodes.set(s.right, s.code);
+  }
   const bad = goodParts();
   bad[0] = { ...bad[0]!, reading: "5.3µF" };
   w.xoFailed = (await buildCrossover(db(), { modelId: pw2.id, parts: bad }, lab)).crossover;
@@ -404,9 +413,9 @@ describe("lacquer cabinets are paired at assembly", () => {
 
   beforeAll(async () => {
     const fs = await db().select().from(finishes);
-    const by = { actorId: ids.cabinet, station: "cabinet" };
-    slate = await createLacquerBatch(db(), { modelId: pw2.id, finishId: fs.find((f) => f.code === "LSL")!.id, count: 6 }, { id: ids.cabinet });
-    chalk = await createLacquerBatch(db(), { modelId: pw2.id, finishId: fs.find((f) => f.code === "LCH")!.id, count: 1 }, { id: ids.cabinet });
+    const by = { actorId: ids.cabinet, station: "cabinet" as const };
+    slate = await makeLacquerCabinets(db(), { modelId: pw2.id, finishId: fs.find((f) => f.code === "LSL")!.id, count: 6 }, { id: ids.cabinet });
+    chalk = await makeLacquerCabinets(db(), { modelId: pw2.id, finishId: fs.find((f) => f.code === "LCH")!.id, count: 1 }, { id: ids.cabinet });
     // Slate 0–2, 4–5 and the chalk one have finished; slate 3 is still in progress.
     for (const c of [slate[0]!, slate[1]!, slate[2]!, slate[4]!, slate[5]!, chalk[0]!]) await changeState(db(), c, "finished", by);
   });

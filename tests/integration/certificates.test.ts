@@ -349,7 +349,7 @@ describe("GET /api/v1/pairs/[identity]/certificate", () => {
     const [pair] = await pairs(sql`p.state = 'awaiting_test'`);
     await passFinalTest(pair!.id);
     await signInAs("packing");
-
+    // The request may name a station; the event takes it from the server (the packer's own area), never from the request.
     const first = await print(pair!.identity, "?station=packing-bench");
     expect(first.res.status).toBe(200);
     expect(first.res.headers.get("content-type")).toBe("application/pdf");
@@ -360,7 +360,7 @@ describe("GET /api/v1/pairs/[identity]/certificate", () => {
     expect(cert).not.toBeNull();
     let printed = await printEvents(pair!.id);
     expect(printed).toHaveLength(1);
-    expect(printed[0]).toMatchObject({ actorId: users.get("packing")!.id, station: "packing-bench", data: { identity: pair!.identity, certificateId: cert!.id, copy: false } });
+    expect(printed[0]).toMatchObject({ actorId: users.get("packing")!.id, station: "packing", data: { identity: pair!.identity, certificateId: cert!.id, copy: false } });
     const firstText = (await pdfText(first.body)).text;
     expect(firstText).toContain(pair!.identity);
     expect(firstText).not.toContain("COPY");
@@ -370,7 +370,7 @@ describe("GET /api/v1/pairs/[identity]/certificate", () => {
     expect(second.res.status).toBe(200);
     printed = await printEvents(pair!.id);
     expect(printed).toHaveLength(2);
-    expect(printed[1]).toMatchObject({ actorId: users.get("service")!.id, station: "packing", data: { certificateId: cert!.id, copy: true } });
+    expect(printed[1]).toMatchObject({ actorId: users.get("service")!.id, station: "service", data: { certificateId: cert!.id, copy: true } });
     expect((await pdfText(second.body)).text).toContain("COPY");
     // Still one certificate, issued once.
     expect(await certificateOf(db(), pair!.id)).toEqual(cert);

@@ -13,7 +13,7 @@ import { seedDemo } from "@/db/seed/seed";
 import { AppError } from "@/lib/auth/errors";
 import { traceBackward, traceForward } from "@/lib/genealogy/trace";
 import { acceptCrossoverPlan, BoardsTakenError, buildCrossover, crossoverBoards, matchCrossovers, type BoardPartInput } from "@/lib/lab/crossovers";
-import type { LabActor } from "@/lib/lab/units";
+import type { LabActor } from "@/lib/vocabulary/actor";
 import { failureText } from "./helpers";
 
 const db = () => getDb();

@@ -7,6 +7,7 @@
  * Negative checks prove the validation can fail: an AggregationEvent without `action`, a bizStep
  * outside CBV 2.0, an undeclared extension prefix.
  */
+import type { Station } from "@/lib/vocabulary/stations";
 import { readFileSync } from "node:fs";
 import { createRequire } from "node:module";
 import { dirname, join } from "node:path";
@@ -41,7 +42,7 @@ function validate(doc: unknown) {
 const BASE = "https://register.example.test";
 const GTIN = "09521234543213"; // a valid GTIN-14 from the GS1 General Specifications (REFERENCES.md)
 const t = (min: number) => new Date(Date.UTC(2024, 2, 4, 8, 0) + min * 60_000);
-const by = (station: string, min: number) => ({ actorId: null, station, at: t(min) });
+const by = (station: Station, min: number) => ({ actorId: null, station, at: t(min) });
 
 const ids = {} as Record<string, string>;
 const ev = {} as Record<string, number>;
@@ -77,19 +78,19 @@ beforeAll(async () => {
     await fit(tx, { parent: pair, child: spL, position: "L" }, by("assembly", 7));
     await fit(tx, { parent: pair, child: spR, position: "R" }, by("assembly", 7));
     ev.reading = await appendEvent(tx, {
-      actorId: null, station: "lab", type: "reading.recorded", subjectKind: "item", subjectId: twL.id,
+      actorId: null, station: "lab", type: "reading.recorded" as never, subjectKind: "item", subjectId: twL.id,
       data: { name: "fs", value: 1450, unit: "Hz" }, at: t(8),
     });
     ev.correction = await appendEvent(tx, {
-      actorId: null, station: "lab", type: "reading.recorded", subjectKind: "item", subjectId: twL.id,
+      actorId: null, station: "lab", type: "reading.recorded" as never, subjectKind: "item", subjectId: twL.id,
       data: { name: "fs", value: 1540, unit: "Hz" }, correctsId: ev.reading, reason: "Digits swapped when typed.", at: t(9),
     });
     await appendEvent(tx, {
-      actorId: null, station: "lab", type: "reading.recorded", subjectKind: "item", subjectId: pair.id,
+      actorId: null, station: "lab", type: "reading.recorded" as never, subjectKind: "item", subjectId: pair.id,
       data: { name: "sensitivity", value: 87.5, unit: "dB" }, at: t(10),
     });
     await appendEvent(tx, {
-      actorId: null, station: "lab", type: "reading.recorded", subjectKind: "item", subjectId: ids.other!,
+      actorId: null, station: "lab", type: "reading.recorded" as never, subjectKind: "item", subjectId: ids.other!,
       data: { name: "fs", value: 1500, unit: "Hz" }, at: t(10),
     });
     const carton = await mk("carton", "carton", "EPX24-0007-C", 11, { modelId: "m-epcis" });

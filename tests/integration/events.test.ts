@@ -9,9 +9,9 @@ describe("the event log is append-only", () => {
   test("an event is appended with server time, and a correction names the event it corrects", async () => {
     const db = getDb();
     const before = Date.now();
-    const first = await appendEvent(db, { actorId: null, station: "test", type: "note.made", subjectKind: "note", subjectId: "n1", data: { text: "first" } });
+    const first = await appendEvent(db, { actorId: null, station: "admin", type: "flitch.received", subjectKind: "note", subjectId: "n1", data: { text: "first" } });
     const fix = await appendEvent(db, {
-      actorId: null, station: "test", type: "note.corrected", subjectKind: "note", subjectId: "n1",
+      actorId: null, station: "admin", type: "event.corrected", subjectKind: "note", subjectId: "n1",
       data: { text: "second" }, correctsId: first, reason: "typing slip",
     });
     const rows = await recentEvents(db);
@@ -22,23 +22,23 @@ describe("the event log is append-only", () => {
 
   test("a correction without a reason is refused by the schema", async () => {
     const db = getDb();
-    const first = await appendEvent(db, { actorId: null, station: "test", type: "note.made", subjectKind: "note", subjectId: "n2" });
+    const first = await appendEvent(db, { actorId: null, station: "admin", type: "flitch.received", subjectKind: "note", subjectId: "n2" });
     await expect(
-      appendEvent(db, { actorId: null, station: "test", type: "note.corrected", subjectKind: "note", subjectId: "n2", correctsId: first }),
+      appendEvent(db, { actorId: null, station: "admin", type: "event.corrected", subjectKind: "note", subjectId: "n2", correctsId: first }),
     ).rejects.toThrow();
   });
 
   test("UPDATE on the event log fails", async () => {
     const db = getDb();
-    const id = await appendEvent(db, { actorId: null, station: "test", type: "note.made", subjectKind: "note", subjectId: "n3" });
-    expect(await failureText(() => db.update(events).set({ type: "note.changed" }).where(sql`${events.id} = ${id}`))).toMatch(/append-only/);
+    const id = await appendEvent(db, { actorId: null, station: "admin", type: "flitch.received", subjectKind: "note", subjectId: "n3" });
+    expect(await failureText(() => db.update(events).set({ type: "flitch.changed" }).where(sql`${events.id} = ${id}`))).toMatch(/append-only/);
     const [row] = await db.select().from(events).where(sql`${events.id} = ${id}`);
-    expect(row?.type).toBe("note.made");
+    expect(row?.type).toBe("flitch.received");
   });
 
   test("DELETE on the event log fails", async () => {
     const db = getDb();
-    const id = await appendEvent(db, { actorId: null, station: "test", type: "note.made", subjectKind: "note", subjectId: "n4" });
+    const id = await appendEvent(db, { actorId: null, station: "admin", type: "flitch.received", subjectKind: "note", subjectId: "n4" });
     expect(await failureText(() => db.delete(events).where(sql`${events.id} = ${id}`))).toMatch(/append-only/);
     expect(await failureText(() => db.run(sql`DELETE FROM events`))).toMatch(/append-only/);
     const [row] = await db.select().from(events).where(sql`${events.id} = ${id}`);

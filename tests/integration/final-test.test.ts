@@ -5,7 +5,7 @@ import { finalTests, items, models, nonconformances, users } from "@/db/schema";
 import { seedDemo } from "@/db/seed/seed";
 import { createItem, fit } from "@/lib/genealogy/graph";
 import { recordFinalTest } from "@/lib/lab/final-test";
-import { dispositionNc } from "@/lib/route/server";
+import { dispositionNc } from "@/lib/route/nonconformances";
 import { allocateSerial } from "@/lib/serials/allocator";
 import { failureText } from "./helpers";
 
@@ -25,7 +25,7 @@ beforeAll(async () => {
 /** A built pair waiting for its test: two speakers at L and R (the assembly station's result). */
 async function builtPair() {
   return db().transaction(async (tx) => {
-    const by = { actorId: lab, station: "assembly" };
+    const by = { actorId: lab, station: "assembly" as const };
     const year = 2026;
     const pair = await createItem(tx, { kind: "pair", identity: await allocateSerial(tx, { kind: "pair", code: model.code, year }), state: "awaiting_test", modelId: model.id }, by);
     for (const side of ["L", "R"]) {

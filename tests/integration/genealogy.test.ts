@@ -1,3 +1,4 @@
+import type { Station } from "@/lib/vocabulary/stations";
 import { sql } from "drizzle-orm";
 import { beforeAll, describe, expect, test } from "vitest";
 import { getDb } from "@/db";
@@ -7,7 +8,7 @@ import { createItem, fit, removeFrom } from "@/lib/genealogy/graph";
 import { shippedAt, toTree, traceBackward, traceForward } from "@/lib/genealogy/trace";
 import { failureText } from "./helpers";
 
-const by = (at: string, station = "assembly") => ({ actorId: null, station, at: new Date(at) });
+const by = (at: string, station: Station = "assembly") => ({ actorId: null, station, at: new Date(at) });
 const db = () => getDb();
 
 // A small invented register: one pair, two speakers, a shared capacitor lot in both crossovers,

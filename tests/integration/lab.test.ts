@@ -4,7 +4,8 @@ import { getDb } from "@/db";
 import { items, models, modelTolerances, responses, setMembers, tsParams, users } from "@/db/schema";
 import { seedDemo } from "@/db/seed/seed";
 import { parseTsCsv } from "@/lib/lab/ts-csv";
-import { acceptPlan, batchUnitsView, failUnit, importResponseFiles, importTsRows, matchBatch, recordMeasurement, registerBatch, UnitsTakenError, type LabActor } from "@/lib/lab/units";
+import { acceptPlan, batchUnitsView, failUnit, importResponseFiles, importTsRows, matchBatch, recordMeasurement, registerBatch, UnitsTakenError } from "@/lib/lab/units";
+import type { LabActor } from "@/lib/vocabulary/actor";
 import { failureText } from "./helpers";
 
 const db = () => getDb();

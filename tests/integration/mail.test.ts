@@ -34,7 +34,7 @@ async function settleEverything() {
 
 describe("queueMail joins the transaction of the event that causes it", () => {
   const event = (subjectId: string) => ({
-    actorId: null, station: "admin", type: "user.invited", subjectKind: "user", subjectId,
+    actorId: null, station: "admin" as const, type: "user.invited" as const, subjectKind: "user", subjectId,
   });
 
   test("rolled back: neither the event nor the mail is there", async () => {

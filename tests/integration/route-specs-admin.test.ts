@@ -11,7 +11,7 @@ import { seedDemo } from "@/db/seed/seed";
 import { startSession } from "@/lib/auth/sessions";
 import type { FormState } from "@/lib/forms";
 import { defaultRoute } from "@/lib/route/default-spec";
-import { pairRoute, recordStep } from "@/lib/route/server";
+import { pairRoute, recordStep } from "@/lib/route/pair-route";
 import type { StepSpec } from "@/lib/route/types";
 import { confirmRuns, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
 
@@ -121,7 +121,7 @@ describe("saving a route as a new version", () => {
     await signInAs("admin");
     // A pair that started on version 1.
     const started = await newPair();
-    await recordStep(db(), { pairId: started.id, seq: 1, sides: ["L", "R"], readings: { platenC: "137", minutes: "22" }, station: "press" }, { id: ids.get("cabinet")! });
+    await recordStep(db(), { pairId: started.id, seq: 1, sides: ["L", "R"], readings: { platenC: "137", minutes: "22" } }, { id: ids.get("cabinet")! });
     const [v1] = await versionsOf(model.id);
     expect(v1!.version).toBe(1);
 

@@ -5,8 +5,11 @@ import { finishes, items, links, models, nonconformances, users } from "@/db/sch
 import { seedDemo } from "@/db/seed/seed";
 import { setClock } from "@/lib/clock";
 import { traceBackward } from "@/lib/genealogy/trace";
-import { createSpecVersion, currentSpec, dispositionNc, pairRoute, recordStep, repartner } from "@/lib/route/server";
-import { confirmRuns, createLacquerBatch, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
+import { createSpecVersion, currentSpec } from "@/lib/route/specs";
+import { dispositionNc, repartner } from "@/lib/route/nonconformances";
+import { pairRoute, recordStep } from "@/lib/route/pair-route";
+import { confirmRuns, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
+import { makeLacquerCabinets } from "@/lib/cabinets/lacquer";
 import { goodReadings } from "../fixtures/route";
 import { failureText } from "./helpers";
 
@@ -49,7 +52,7 @@ async function step(pairId: string, seq: number, when: Date, readings?: Record<s
   const spec = (await pairRoute(db(), (await db().select().from(items).where(eq(items.id, pairId)))[0]!)).spec;
   const s = spec.steps.find((x) => x.seq === seq)!;
   const input = readings ?? goodReadings(s.key);
-  return recordStep(db(), { pairId, seq, sides, startedAt: when, readings: Object.fromEntries(Object.entries(input).map(([k, v]) => [k, v === "pass" ? true : v])), station: s.station }, { id: cabinetUser });
+  return recordStep(db(), { pairId, seq, sides, startedAt: when, readings: Object.fromEntries(Object.entries(input).map(([k, v]) => [k, v === "pass" ? true : v])) }, { id: cabinetUser });
 }
 
 describe("the cabinet route, at its boundaries (values: common practice)", () => {
@@ -141,7 +144,7 @@ describe("nonconformances and their dispositions", () => {
     const nowTrace = await traceBackward(db(), pair.id, { mode: "now" });
     expect(nowTrace.map((n) => n.identity)).not.toContain(right.identity);
 
-    const [spare] = await createLacquerBatch(db(), { modelId: model.id, finishId: (await db().select().from(finishes)).find((f) => f.kind === "lacquer")!.id, count: 2 }, { id: cabinetUser });
+    const [spare] = await makeLacquerCabinets(db(), { modelId: model.id, finishId: (await db().select().from(finishes)).find((f) => f.kind === "lacquer")!.id, count: 2 }, { id: cabinetUser });
     expect(await failureText(() => repartner(db(), { pairId: pair.id, cabinet: spare!.identity, reason: "lacquer cabinet offered" }, { id: qualityUser }))).toMatch(/model and finish/);
     const other = await newPair();
     const held = await db().select().from(links).where(sql`${links.childId} = ${other.right.id} AND ${links.endedAt} IS NULL`);
@@ -173,7 +176,7 @@ describe("versions of the route", () => {
 describe("lacquer cabinets", () => {
   test("a lacquer cabinet from a batch walks the route on its own; two finished ones are paired at assembly", async () => {
     const lacquer = (await db().select().from(finishes)).find((f) => f.kind === "lacquer")!;
-    const made = await createLacquerBatch(db(), { modelId: model.id, finishId: lacquer.id, count: 2 }, { id: cabinetUser });
+    const made = await makeLacquerCabinets(db(), { modelId: model.id, finishId: lacquer.id, count: 2 }, { id: cabinetUser });
     for (const cab of made) {
       let t = 0;
       const steps = (await currentSpec(db(), model.id))!.steps;

@@ -5,7 +5,7 @@ import { createItem } from "@/lib/genealogy/graph";
 import { search } from "@/lib/search/search";
 import { formatSerial, mod37_2Check } from "@/lib/serials";
 
-const by = { actorId: null, station: "test" };
+const by = { actorId: null, station: "admin" as const };
 const pairSerial = formatSerial({ kind: "pair", code: "PW2", year: 2026, seq: 42 });
 const otherSerial = formatSerial({ kind: "pair", code: "PW2", year: 2026, seq: 43 });
 

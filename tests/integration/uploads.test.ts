@@ -95,13 +95,13 @@ async function state() {
   return { uploads: await uploadCount(), events: await storedEvents(), files: filesInDir() };
 }
 
-const by = () => ({ subject: { kind: "item", id: flitch.id }, purpose: "photo", accept: "image" as const, actorId: veneerUser, station: "veneer" });
+const by = () => ({ subject: { kind: "item", id: flitch.id }, purpose: "photo", accept: "image" as const, actorId: veneerUser, station: "veneer" as const });
 
 beforeAll(async () => {
   veneerUser = await makeUser("Veneer", "veneer");
   labUser = await makeUser("Lab", "lab");
   const identity = formatSerial({ kind: "flitch", code: "WAL", year: 2026, seq: 1 });
-  const recorder = { actorId: null, station: "test" };
+  const recorder = { actorId: null, station: "admin" as const };
   flitch = await db().transaction((tx) => createItem(tx, { kind: "flitch", identity, state: "received" }, recorder));
   leaf = await db().transaction((tx) => createItem(tx, { kind: "leaf", identity: `${identity}/03`, state: "cut" }, recorder));
   cabinet = await db().transaction((tx) => createItem(tx, { kind: "cabinet", identity: "CAB-TEST-1", state: "built" }, recorder));
@@ -129,7 +129,7 @@ describe("storeUpload", () => {
     expect(thumb).toMatchObject({ format: "jpeg", width: 320, height: 240 });
 
     const [event] = await db().select().from(events).where(eq(events.id, row.eventId!));
-    expect(event).toMatchObject({ type: "upload.stored", subjectKind: "item", subjectId: flitch.id, actorId: veneerUser, station: "veneer" });
+    expect(event).toMatchObject({ type: "upload.stored", subjectKind: "item", subjectId: flitch.id, actorId: veneerUser, station: "veneer" as const });
     expect(event!.data).toEqual({ uploadId: row.id, name: "flitch front.png", mime: "image/png", bytes: bytes.byteLength, purpose: "photo" });
 
     expect((await listUploads(db(), { kind: "item", id: flitch.id }, "photo")).map((u) => u.id)).toContain(row.id);

@@ -4,21 +4,9 @@ import { getDb } from "@/db";
 import { finishes, items, leafAllocations, links, models, users } from "@/db/schema";
 import { seedDemo } from "@/db/seed/seed";
 import { traceBackward, traceForward } from "@/lib/genealogy/trace";
-import {
-  confirmRuns,
-  createLacquerBatch,
-  flitchView,
-  importLeafRows,
-  LeavesTakenError,
-  measureLeaf,
-  noteDefect,
-  planView,
-  receiveFlitch,
-  releaseReserve,
-  returnReserve,
-  specFor,
-  type Actor,
-} from "@/lib/veneer/flitches";
+import { confirmRuns, flitchView, importLeafRows, LeavesTakenError, measureLeaf, noteDefect, planView, receiveFlitch, releaseReserve, returnReserve, specFor } from "@/lib/veneer/flitches";
+import { makeLacquerCabinets } from "@/lib/cabinets/lacquer";
+import type { Actor } from "@/lib/vocabulary/actor";
 import { failureText } from "./helpers";
 
 const db = () => getDb();
@@ -203,11 +191,11 @@ describe("the leaf table", () => {
 
 describe("lacquered cabinets", () => {
   test("a batch makes cabinets without leaves or a pair; a veneer species is refused", async () => {
-    const made = await createLacquerBatch(db(), { modelId: model.id, finishId: lacquer.id, count: 3 }, actor);
+    const made = await makeLacquerCabinets(db(), { modelId: model.id, finishId: lacquer.id, count: 3 }, actor);
     expect(made).toHaveLength(3);
     expect(new Set(made.map((c) => c.identity)).size).toBe(3);
     const held = await db().select().from(links).where(eq(links.childId, made[0]!.id));
     expect(held).toHaveLength(0);
-    expect(await failureText(() => createLacquerBatch(db(), { modelId: model.id, finishId: walnut.id, count: 2 }, actor))).toMatch(/is a veneer/);
+    expect(await failureText(() => makeLacquerCabinets(db(), { modelId: model.id, finishId: walnut.id, count: 2 }, actor))).toMatch(/is a veneer/);
   });
 });

@@ -68,7 +68,7 @@ describe("can, rolesWith and permissionsOf agree with the map", () => {
     expect(can(["veneer", "lab"], "lab.work")).toBe(true);
     expect(can(["veneer", "lab"], "veneer.work")).toBe(true);
     expect(can(["veneer", "lab"], "admin.users")).toBe(false);
-    expect([...permissionsOf(["veneer", "lab"])].sort()).toEqual(["cabinet.batch", "lab.work", "labels.print", "register.read", "veneer.work"]);
+    expect([...permissionsOf(["veneer", "lab"])].sort()).toEqual(["cabinet.lacquer", "lab.work", "labels.print", "register.read", "veneer.work"]);
   });
 
   test("no roles grant nothing", () => {

@@ -1,5 +1,5 @@
 import { describe, expect, test } from "vitest";
-import { DEFECT_KINDS } from "@/db/schema/veneer";
+import { DEFECT_KINDS } from "@/lib/vocabulary/defects";
 import { LEAF_CSV_COLUMNS, LEAF_CSV_TEMPLATE, parseLeafCsv, type LeafCsvResult } from "@/lib/veneer/csv";
 
 // Every file below is made up for its test case.

@@ -1,6 +1,5 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { and, desc, eq, inArray } from "drizzle-orm";
 import { AreaOverview } from "@/components/shell/area-overview";
 import { ModelTable } from "@/components/workshop/reference-tables";
 import { SerialLink } from "@/components/register/serial-link";
@@ -8,11 +7,11 @@ import { buttonClasses } from "@/components/ui/button";
 import { DataTable } from "@/components/ui/data-table";
 import { Panel } from "@/components/ui/panel";
 import { getDb } from "@/db";
-import { events, items } from "@/db/schema";
 import { listModels } from "@/lib/workshop/queries";
 import { areaByKey } from "@/lib/areas";
 import { requirePage } from "@/lib/auth/guard";
 import { formatDate, formatDay } from "@/lib/format";
+import { failedParts } from "@/lib/lab/queries";
 import { listBatches, openSets } from "@/lib/lab/units";
 
 export const metadata: Metadata = { title: "Lab" };
@@ -26,19 +25,7 @@ const batchLink = (code: string) => (
 export default async function Page() {
   await requirePage("lab.work");
   const db = getDb();
-  const [models, batches, sets] = await Promise.all([listModels(db), listBatches(db), openSets(db)]);
-  const failedItems = await db
-    .select({ id: items.id, identity: items.identity, partType: items.partType, kind: items.kind })
-    .from(items)
-    .where(and(inArray(items.kind, ["drive_unit", "crossover"]), eq(items.state, "failed")))
-    .limit(100);
-  const reasons = failedItems.length
-    ? await db
-        .select({ subjectId: events.subjectId, reason: events.reason, at: events.at })
-        .from(events)
-        .where(and(eq(events.type, "item.state_changed"), inArray(events.subjectId, failedItems.map((f) => f.id))))
-        .orderBy(desc(events.id))
-    : [];
+  const [models, batches, sets, failedItems] = await Promise.all([listModels(db), listBatches(db), openSets(db), failedParts(db)]);
   const waiting = batches.filter((b) => Number(b.awaiting) > 0);
   const ready = batches.filter((b) => Number(b.ready) >= 2);
   return (
@@ -120,15 +107,12 @@ export default async function Page() {
       <Panel title="Failures">
         {failedItems.length ? (
           <ul className="flex flex-col gap-1" data-testid="lab-failures">
-            {failedItems.map((f) => {
-              const r = reasons.find((x) => x.subjectId === f.id);
-              return (
-                <li key={f.id}>
-                  <SerialLink identity={f.identity} /> {f.partType ?? f.kind.replace("_", " ")}: {r?.reason ?? "failed"}
-                  {r ? <span className="text-sm text-ink-soft"> ({formatDay(r.at)})</span> : null}
-                </li>
-              );
-            })}
+            {failedItems.map((f) => (
+              <li key={f.id}>
+                <SerialLink identity={f.identity} /> {f.partType ?? f.kind.replace("_", " ")}: {f.reason ?? "failed"}
+                {f.at ? <span className="text-sm text-ink-soft"> ({formatDay(f.at)})</span> : null}
+              </li>
+            ))}
           </ul>
         ) : (
           <p className="text-ink-soft">No failed unit or board.</p>

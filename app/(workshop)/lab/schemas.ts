@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { PART_TYPES } from "@/db/schema/lab";
+import { PART_TYPES } from "@/lib/vocabulary/part-types";
 
 const toNumber = (v: unknown) => {
   if (typeof v !== "string") return v;

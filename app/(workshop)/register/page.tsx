@@ -8,7 +8,7 @@ import { listDealers, listFinishes, listModels } from "@/lib/workshop/queries";
 import { recentPairs } from "@/lib/genealogy/queries";
 import { formatDate } from "@/lib/format";
 import { SerialLink } from "@/components/register/serial-link";
-import { stateLabel } from "@/lib/genealogy/kinds";
+import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { DataTable } from "@/components/ui/data-table";
 
 export const metadata: Metadata = { title: "Register" };

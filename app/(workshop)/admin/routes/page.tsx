@@ -1,6 +1,5 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { asc, count, desc, eq } from "drizzle-orm";
 import { BackLink } from "@/components/ui/back-link";
 import { Badge } from "@/components/ui/badge";
 import { buttonClasses } from "@/components/ui/button";
@@ -8,12 +7,13 @@ import { Notice } from "@/components/ui/notice";
 import { Panel, PageHeader } from "@/components/ui/panel";
 import { TD, TH, TR, Table } from "@/components/ui/table";
 import { getDb } from "@/db";
-import { models, processSpecs, routeStarts, users } from "@/db/schema";
 import { requirePage } from "@/lib/auth/guard";
 import { formatDate, formatWhenExact } from "@/lib/format";
 import { windowText } from "@/lib/route/rules";
+import { routesOverview } from "@/lib/route/specs";
 import type { StepSpec } from "@/lib/route/types";
-import { holdText, STATION_LABELS } from "./schemas";
+import { STATION_NAME } from "@/lib/vocabulary/stations";
+import { holdText } from "@/lib/route/spec-rules";
 
 export const metadata: Metadata = { title: "Cabinet routes" };
 
@@ -41,7 +41,7 @@ function StepsTable({ steps, caption, testId }: { steps: StepSpec[]; caption: st
               <span className="font-bold">{s.name}</span> <code className="font-mono text-sm text-ink-soft">{s.key}</code>
               {s.note ? <p className="mt-1 max-w-prose text-sm text-ink-soft">{s.note}</p> : null}
             </TD>
-            <TD>{STATION_LABELS[s.station] ?? s.station}</TD>
+            <TD>{STATION_NAME[s.station] ?? s.station}</TD>
             <TD>
               {s.readings.length ? (
                 <ul className="flex flex-col gap-0.5">
@@ -65,21 +65,12 @@ function StepsTable({ steps, caption, testId }: { steps: StepSpec[]; caption: st
 
 export default async function RoutesPage({ searchParams }: { searchParams: Promise<{ saved?: string; version?: string }> }) {
   await requirePage("admin.reference");
-  const db = getDb();
   const sp = await searchParams;
-  const active = await db.select({ id: models.id, code: models.code, name: models.name }).from(models).where(eq(models.active, true)).orderBy(asc(models.code));
-  const specs = await db
-    .select({ spec: processSpecs, by: users.name })
-    .from(processSpecs)
-    .leftJoin(users, eq(users.id, processSpecs.createdBy))
-    .orderBy(asc(processSpecs.modelId), desc(processSpecs.version));
-  const starts = await db.select({ specId: routeStarts.specId, n: count() }).from(routeStarts).groupBy(routeStarts.specId);
-  const pairsOn = new Map(starts.map((s) => [s.specId, Number(s.n)]));
-
+  const overview = await routesOverview(getDb());
   // The notice after a save, shown only for a version that exists.
-  const savedModel = active.find((m) => m.code === sp.saved);
+  const savedEntry = overview.find((o) => o.model.code === sp.saved);
   const savedVersion = Number(sp.version);
-  const saved = savedModel && specs.some((s) => s.spec.modelId === savedModel.id && s.spec.version === savedVersion) ? { code: savedModel.code, version: savedVersion } : null;
+  const saved = savedEntry && savedEntry.versions.some((v) => v.spec.version === savedVersion) ? { code: savedEntry.model.code, version: savedVersion } : null;
 
   return (
     <div className="flex flex-col gap-6" data-testid="routes-page">
@@ -93,9 +84,8 @@ export default async function RoutesPage({ searchParams }: { searchParams: Promi
           Version {saved.version} of {saved.code} saved; pairs already on the route keep their version.
         </Notice>
       ) : null}
-      {active.length === 0 ? <p className="text-ink-soft">No active models yet: add one under the register first.</p> : null}
-      {active.map((m) => {
-        const versions = specs.filter((s) => s.spec.modelId === m.id);
+      {overview.length === 0 ? <p className="text-ink-soft">No active models yet: add one under the register first.</p> : null}
+      {overview.map(({ model: m, versions }) => {
         const [current, ...earlier] = versions;
         const editHref = `/admin/routes/${encodeURIComponent(m.code)}/edit`;
         return (
@@ -119,7 +109,7 @@ export default async function RoutesPage({ searchParams }: { searchParams: Promi
                     <Badge tone="leaf">version {current.spec.version}</Badge>{" "}
                     <span className="text-ink-soft">
                       saved <time dateTime={current.spec.createdAt.toISOString()} title={formatWhenExact(current.spec.createdAt)}>{formatDate(current.spec.createdAt)}</time> by {current.by ?? "Twinleaf"} ·{" "}
-                      {current.spec.steps.length} steps · {pairsText(pairsOn.get(current.spec.id) ?? 0)} on it
+                      {current.spec.steps.length} steps · {pairsText(current.pairs)} on it
                     </span>
                     {current.spec.note ? <span className="mt-1 block">“{current.spec.note}”</span> : null}
                   </p>
@@ -141,7 +131,7 @@ export default async function RoutesPage({ searchParams }: { searchParams: Promi
                             <span className="font-bold">Version {v.spec.version}</span>{" "}
                             <span className="text-ink-soft">
                               <time dateTime={v.spec.createdAt.toISOString()}>{formatDate(v.spec.createdAt)}</time> by {v.by ?? "Twinleaf"} · {v.spec.steps.length} steps ·{" "}
-                              {pairsText(pairsOn.get(v.spec.id) ?? 0)} on it
+                              {pairsText(v.pairs)} on it
                             </span>
                             {v.spec.note ? <span className="block">“{v.spec.note}”</span> : null}
                           </summary>

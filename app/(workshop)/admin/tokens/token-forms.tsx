@@ -1,5 +1,6 @@
 "use client";
-import { useActionState, useEffect, useRef, useState } from "react";
+import { useActionState, useRef, useState } from "react";
+import { useActionStateThen } from "@/components/ui/kept-form";
 import { Button } from "@/components/ui/button";
 import { Dialog } from "@/components/ui/dialog";
 import { TextField } from "@/components/ui/field";
@@ -94,14 +95,11 @@ export function CreateTokenForm() {
  */
 export function RevokeTokenDialog({ tokenId, name, revoked }: { tokenId: string; name: string; revoked: boolean }) {
   const [open, setOpen] = useState(false);
-  const [state, action] = useActionState(revokeTokenAction, initialFormState);
   const toast = useToast();
-  useEffect(() => {
-    if (state.ok && state.message) {
-      toast(state.message);
-      setOpen(false);
-    }
-  }, [state, toast]);
+  const [state, action] = useActionStateThen(revokeTokenAction, initialFormState, (s) => {
+    if (s.message) toast(s.message);
+    setOpen(false);
+  });
   if (revoked) return null;
   return (
     <Dialog

@@ -1,5 +1,6 @@
 "use client";
-import { useActionState, useEffect, useState } from "react";
+import { useState } from "react";
+import { useActionStateThen } from "@/components/ui/kept-form";
 import { Dialog } from "@/components/ui/dialog";
 import { CheckboxGroup, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
@@ -13,14 +14,11 @@ const roleOptions = ROLES.map((r) => ({ value: r, label: ROLE_LABELS[r] }));
 
 export function InviteDialog() {
   const [open, setOpen] = useState(false);
-  const [state, action] = useActionState(inviteAction, initialFormState);
   const toast = useToast();
-  useEffect(() => {
-    if (state.ok && state.message) {
-      toast(state.message);
-      setOpen(false);
-    }
-  }, [state, toast]);
+  const [state, action] = useActionStateThen(inviteAction, initialFormState, (s) => {
+    if (s.message) toast(s.message);
+    setOpen(false);
+  });
   const v = (k: string) => (typeof state.values?.[k] === "string" ? (state.values[k] as string) : "");
   const roles = state.ok ? [] : ([] as string[]).concat(state.values?.roles ?? []);
   return (

@@ -1,4 +1,5 @@
 "use client";
+import type { Side } from "@/lib/vocabulary/sides";
 import { useActionState, useEffect, useRef, useState } from "react";
 import { PrintLabels } from "@/components/register/print-labels";
 import { SerialLink } from "@/components/register/serial-link";
@@ -6,10 +7,9 @@ import { controlClasses } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
 import { cx } from "@/components/ui/cx";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState, type FormState } from "@/lib/forms";
 import { buildSpeakersAction, checkScanAction } from "../actions";
 
-type Side = "L" | "R";
 const SIDES: Side[] = ["L", "R"];
 const SIDE_NAME: Record<Side, string> = { L: "Left speaker", R: "Right speaker" };
 
@@ -28,7 +28,7 @@ type FieldState =
 const keyOf = (side: Side, slot: string) => `${side}.${slot}`;
 
 /** The two new speakers, with links and their labels: shown after the build and on a built pair's page. */
-export function BuiltSpeakers({ left, right, station = "assembly" }: { left: string; right: string; station?: string }) {
+export function BuiltSpeakers({ left, right }: { left: string; right: string }) {
   const [printing, setPrinting] = useState(false);
   return (
     <div className="flex flex-col gap-4" data-testid="built-speakers">
@@ -41,7 +41,7 @@ export function BuiltSpeakers({ left, right, station = "assembly" }: { left: str
         </li>
       </ul>
       {printing ? (
-        <PrintLabels identities={[left, right]} station={station} />
+        <PrintLabels identities={[left, right]} />
       ) : (
         <p>
           <a
@@ -68,7 +68,6 @@ export function BuiltSpeakers({ left, right, station = "assembly" }: { left: str
  * in state, so a refused build keeps them; the build itself checks every scan again.
  */
 export function BuildForm({ pair, pairId, slots }: { pair: string; pairId: string; slots: SlotOption[] }) {
-  const [state, action] = useActionState(buildSpeakersAction, initialFormState);
   const [codes, setCodes] = useState<Record<string, string>>({});
   const [fields, setFields] = useState<Record<string, FieldState>>({});
   const [clean, setClean] = useState(false);
@@ -76,12 +75,18 @@ export function BuildForm({ pair, pairId, slots }: { pair: string; pairId: strin
   const [note, setNote] = useState("");
   /** Fields changed since the last build was refused: the build's answer no longer applies to them. */
   const [edited, setEdited] = useState<Set<string>>(new Set());
-  useEffect(() => setEdited(new Set()), [state]);
+  const [state, action] = useActionState(async (prev: FormState, formData: FormData) => {
+    const answer = await buildSpeakersAction(prev, formData);
+    setEdited(new Set());
+    return answer;
+  }, initialFormState);
   const inputs = useRef<Record<string, HTMLInputElement | null>>({});
   /** The newest check asked for each field, so a slow answer to an older scan is dropped. */
   const asked = useRef<Record<string, number>>({});
   const fieldsRef = useRef(fields);
-  fieldsRef.current = fields;
+  useEffect(() => {
+    fieldsRef.current = fields;
+  }, [fields]);
 
   const order = SIDES.flatMap((side) => slots.map((s) => keyOf(side, s.slot)));
 

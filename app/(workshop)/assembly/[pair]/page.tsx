@@ -1,3 +1,4 @@
+import { paths } from "@/lib/paths";
 import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
@@ -9,9 +10,10 @@ import { Notice } from "@/components/ui/notice";
 import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
 import { areaByKey } from "@/lib/areas";
-import { assemblyView, reservedSets, sideWord } from "@/lib/assembly";
+import { assemblyView, reservedSets } from "@/lib/assembly";
+import { sideWord } from "@/lib/vocabulary/sides";
 import { requirePage } from "@/lib/auth/guard";
-import { KIND_LABEL, stateLabel } from "@/lib/genealogy/kinds";
+import { kindLabel, stateLabel } from "@/lib/vocabulary/item-kinds";
 import { BuildForm, BuiltSpeakers } from "./build-form";
 
 export async function generateMetadata({ params }: { params: Promise<{ pair: string }> }): Promise<Metadata> {
@@ -86,7 +88,7 @@ export default async function AssemblyPairPage({ params }: { params: Promise<{ p
                   <ul className="flex flex-col gap-1">
                     {s.parts.map((p) => (
                       <li key={p.position}>
-                        <span className="inline-block w-12 font-bold">{p.position}</span> <SerialLink identity={p.identity} bold={false} /> <span className="text-sm text-ink-soft">{p.partType ?? KIND_LABEL[p.kind] ?? p.kind}</span>
+                        <span className="inline-block w-12 font-bold">{p.position}</span> <SerialLink identity={p.identity} bold={false} /> <span className="text-sm text-ink-soft">{p.partType ?? kindLabel(p.kind)}</span>
                       </li>
                     ))}
                   </ul>
@@ -99,7 +101,7 @@ export default async function AssemblyPairPage({ params }: { params: Promise<{ p
         <Notice tone={view.openNcs.length ? "danger" : "caution"} testId="assembly-blocked">
           {view.blocked}{" "}
           {!view.routeFinished || view.openNcs.length ? (
-            <Link href={`/pairs/${encodeURIComponent(pair.identity)}`} className="font-bold text-leaf-dark underline">
+            <Link href={paths.cabinetPair(pair.identity)} className="font-bold text-leaf-dark underline">
               See its route
             </Link>
           ) : null}

@@ -1,15 +1,23 @@
 "use client";
-import { useActionState, useEffect, useId, useRef, useState } from "react";
+import { useId, useRef, useState } from "react";
+import { useActionStateThen } from "@/components/ui/kept-form";
 import { Button } from "@/components/ui/button";
 import { controlClasses } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
-import { parseValue, TOLERANCE_LETTERS, type Unit } from "@/lib/components";
+import { parseValue, TOLERANCE_LETTERS, type Unit } from "@/lib/crossover-parts";
 import { initialFormState } from "@/lib/forms";
 import { buildCrossoverAction } from "./actions";
 import { MAX_ROWS, type PartRow } from "./schemas";
 
 type Row = PartRow & { key: number };
+
+/** A row as the server takes it: without the key that only tells rows apart on screen. */
+function partOf(row: Row): PartRow {
+  const { key, ...part } = row;
+  void key;
+  return part;
+}
 
 export interface LotOption {
   identity: string;
@@ -49,26 +57,23 @@ function preview(text: string, position: string): { ok: boolean; text: string } 
  * so the keys of the rows as submitted are remembered to put each error on its row.
  */
 export function BuildForm({ models, lots }: { models: { id: string; code: string; name: string }[]; lots: LotOption[] }) {
-  const [state, action] = useActionState(buildCrossoverAction, initialFormState);
   const [rows, setRows] = useState<Row[]>(() => START.map((p) => emptyRow(p)));
   const [modelId, setModelId] = useState(models[0]?.id ?? "");
   const [file, setFile] = useState<{ name: string; text: string } | null>(null);
   const fileInput = useRef<HTMLInputElement>(null);
-  const submitted = useRef<number[]>([]);
-  const id = useId();
-  const lotsId = `${id}-lots`;
-
+  const [submitted, setSubmitted] = useState<number[]>([]);
   // After a board is saved: keep the rows for its twin (same parts, same lots), clear what was measured.
-  useEffect(() => {
-    if (!state.ok) return;
+  const [state, action] = useActionStateThen(buildCrossoverAction, initialFormState, () => {
     setRows((list) => list.map((r) => ({ ...r, reading: "" })));
     setFile(null);
     if (fileInput.current) fileInput.current.value = "";
-  }, [state]);
+  });
+  const id = useId();
+  const lotsId = `${id}-lots`;
 
   const errorsFor = (key: number) => {
     if (state.ok) return undefined;
-    const i = submitted.current.indexOf(key);
+    const i = submitted.indexOf(key);
     return i === -1 ? undefined : state.fieldErrors?.[`parts.${i}`];
   };
   const update = (key: number, patch: Partial<PartRow>) => setRows((list) => list.map((r) => (r.key === key ? { ...r, ...patch } : r)));
@@ -88,7 +93,7 @@ export function BuildForm({ models, lots }: { models: { id: string; code: string
     <form
       action={action}
       onSubmit={() => {
-        submitted.current = rows.map((r) => r.key);
+        setSubmitted(rows.map((r) => r.key));
       }}
       className="flex flex-col gap-4"
       noValidate
@@ -107,7 +112,7 @@ export function BuildForm({ models, lots }: { models: { id: string; code: string
         </Notice>
       ) : null}
 
-      <input type="hidden" name="parts" value={JSON.stringify(rows.map(({ key: _key, ...r }) => r))} />
+      <input type="hidden" name="parts" value={JSON.stringify(rows.map((r) => partOf(r)))} />
       <input type="hidden" name="responseName" value={file?.name ?? ""} />
       <input type="hidden" name="responseText" value={file?.text ?? ""} />
 

@@ -14,7 +14,7 @@ import { areaByKey } from "@/lib/areas";
 import { AppError } from "@/lib/auth/errors";
 import { requirePage } from "@/lib/auth/guard";
 import { formatWhen } from "@/lib/format";
-import { stateLabel } from "@/lib/genealogy/kinds";
+import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { crossoverBoards, crossoverModels, lotsInStock, matchCrossovers, type CrossoverMatchView } from "@/lib/lab/crossovers";
 import { AcceptCrossovers } from "./accept-crossovers";
 import { BuildForm } from "./build-form";

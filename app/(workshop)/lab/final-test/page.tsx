@@ -6,12 +6,11 @@ import { DataTable } from "@/components/ui/data-table";
 import { Notice } from "@/components/ui/notice";
 import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
-import { models } from "@/db/schema";
-import { eq } from "drizzle-orm";
 import { compareResponses } from "@/lib/acoustics";
 import { requirePage } from "@/lib/auth/guard";
 import { formatDay } from "@/lib/format";
 import { itemByIdentity } from "@/lib/genealogy/graph";
+import { modelById } from "@/lib/workshop/queries";
 import { latestFinalTest, pairsAwaitingTest } from "@/lib/lab/final-test";
 import { FinalTestForm } from "./test-form";
 
@@ -24,7 +23,7 @@ export default async function Page({ searchParams }: { searchParams: Promise<{ p
   const waiting = await pairsAwaitingTest(db);
   const pair = sp.pair ? await itemByIdentity(db, sp.pair) : null;
   const last = pair ? await latestFinalTest(db, pair.id) : null;
-  const [model] = pair?.modelId ? await db.select().from(models).where(eq(models.id, pair.modelId)).limit(1) : [];
+  const model = pair?.modelId ? await modelById(db, pair.modelId) : null;
   const pts = (r: { points: number[][] }) => r.points.map((p) => ({ hz: p[0]!, db: p[1]! }));
   const comparison = last && model ? compareResponses(pts(last.left), pts(last.right), { minHz: model.responseMinHz, maxHz: model.responseMaxHz, limitDb: last.test.limitDb }) : null;
   return (

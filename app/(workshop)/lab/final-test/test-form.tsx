@@ -34,7 +34,7 @@ export function FinalTestForm({ pair }: { pair: string }) {
       <TextField label="Pair" name="pair" defaultValue={pair} errors={state.fieldErrors?.pair} className="serial" />
       {(["left", "right"] as const).map((side) => (
         <label key={side} className="flex flex-col gap-1">
-          <span className="font-bold">{side === "left" ? "Left" : "Right"} speaker's response</span>
+          <span className="font-bold">{side === "left" ? "Left" : "Right"} speaker’s response</span>
           <input type="file" accept=".txt,.frd,.csv,.dat,text/plain" className={fileClasses} onChange={pick(side)} data-testid={`final-${side}`} />
           <input type="hidden" name={`${side}Name`} value={files[side]?.name ?? ""} />
           <input type="hidden" name={`${side}Text`} value={files[side]?.text ?? ""} />

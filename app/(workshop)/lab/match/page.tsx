@@ -1,13 +1,12 @@
 import type { Metadata } from "next";
-import { and, eq } from "drizzle-orm";
 import { BackLink } from "@/components/ui/back-link";
 import { buttonClasses } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import { Panel, PageHeader } from "@/components/ui/panel";
 import { MatchPlan } from "@/components/lab/match-plan";
 import { getDb } from "@/db";
-import { modelTolerances, models } from "@/db/schema";
 import { requirePage } from "@/lib/auth/guard";
+import { modelsTakingPartType } from "@/lib/lab/queries";
 import { batchByCode, listBatches, matchBatch, PASSBANDS } from "@/lib/lab/units";
 import { AcceptPlan } from "./accept-plan";
 
@@ -20,13 +19,7 @@ export default async function MatchPage({ searchParams }: { searchParams: Promis
   const sp = await searchParams;
   const batches = (await listBatches(db)).filter((b) => b.ready >= 2 || b.code === sp.batch);
   const batch = sp.batch ? await batchByCode(db, sp.batch) : batches[0] ? await batchByCode(db, batches[0].code) : null;
-  const modelsFor = batch
-    ? await db
-        .select({ id: models.id, code: models.code, name: models.name, limit: modelTolerances.mismatchLimitDb })
-        .from(modelTolerances)
-        .innerJoin(models, eq(models.id, modelTolerances.modelId))
-        .where(and(eq(modelTolerances.partType, batch.partType), eq(models.active, true)))
-    : [];
+  const modelsFor = batch ? await modelsTakingPartType(db, batch.partType) : [];
   const model = modelsFor.find((m) => m.code === sp.model) ?? modelsFor[0];
   const weight = (v: string | undefined) => {
     const n = Number(v ?? "0");
@@ -75,7 +68,7 @@ export default async function MatchPage({ searchParams }: { searchParams: Promis
             Work out the plan
           </button>
         </form>
-        <p className="mt-3 text-sm text-ink-soft">A weight adds weight × |ΔFs| / mean Fs (or the same for Qts) to a pair's cost, where both units have the parameter.</p>
+        <p className="mt-3 text-sm text-ink-soft">A weight adds weight × |ΔFs| / mean Fs (or the same for Qts) to a pair’s cost, where both units have the parameter.</p>
       </Panel>
 
       {sp.accepted ? (

@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { getDb } from "@/db";
+import { homeStation } from "@/lib/areas";
 import { AppError } from "@/lib/auth/errors";
 import { appBaseUrl, guardedRoute } from "@/lib/auth/guard";
 import { itemsWithNames } from "@/lib/genealogy/queries";
@@ -15,7 +16,6 @@ const labelRequest = z.object({
   startAt: z.number().int().min(0).max(23).default(0),
   /** Bars are sized in whole printer dots; thermal printers are usually 203 or 300 dpi. */
   printerDpi: z.union([z.literal(203), z.literal(300), z.literal(600)], { error: "printerDpi is 203, 300 or 600." }).optional(),
-  station: z.string().trim().min(1).max(40).default("labels"),
 });
 
 /**
@@ -36,7 +36,7 @@ export const POST = guardedRoute("labels.print", { body: labelRequest }, async (
     items: details.map((d, i) => ({ id: d.item.id, identity: d.item.identity, symbology: specs[i]!.barcode.symbology })),
     layout: body.layout,
     actorId: user.id,
-    station: body.station,
+    station: homeStation(user.roles),
   });
   return new Response(new Uint8Array(pdf), {
     headers: {

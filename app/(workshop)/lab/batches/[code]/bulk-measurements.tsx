@@ -94,7 +94,7 @@ export function TsCsvImport({ batch }: { batch: string }) {
       ) : null}
       <input type="hidden" name="batch" value={batch} />
       <p className="text-ink-soft">
-        Columns: <code>{TS_CSV_TEMPLATE.trim()}</code>. The serial is the Twinleaf serial or the maker's.
+        Columns: <code>{TS_CSV_TEMPLATE.trim()}</code>. The serial is the Twinleaf serial or the maker’s.
       </p>
       <label className="flex flex-col gap-1">
         <span className="font-bold">Choose a CSV file</span>

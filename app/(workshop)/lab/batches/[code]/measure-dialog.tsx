@@ -1,5 +1,6 @@
 "use client";
-import { useActionState, useEffect, useState } from "react";
+import { useState } from "react";
+import { useActionStateThen } from "@/components/ui/kept-form";
 import { Dialog } from "@/components/ui/dialog";
 import { controlClasses, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
@@ -22,22 +23,16 @@ const TS = [
 export function MeasureDialog({ batch, unit }: { batch: string; unit: { id: string; identity: string } }) {
   const [open, setOpen] = useState(false);
   const [file, setFile] = useState<{ name: string; text: string } | null>(null);
-  const [state, action] = useActionState(measurementAction, initialFormState);
-  const [failed, fail] = useActionState(failUnitAction, initialFormState);
   const toast = useToast();
-  useEffect(() => {
-    if (state.ok && state.message) {
-      toast(`${unit.identity}: ${state.message}`);
-      setOpen(false);
-      setFile(null);
-    }
-  }, [state, toast, unit.identity]);
-  useEffect(() => {
-    if (failed.ok && failed.message) {
-      toast(`${unit.identity}: ${failed.message}`);
-      setOpen(false);
-    }
-  }, [failed, toast, unit.identity]);
+  const [state, action] = useActionStateThen(measurementAction, initialFormState, (s) => {
+    if (s.message) toast(`${unit.identity}: ${s.message}`);
+    setOpen(false);
+    setFile(null);
+  });
+  const [failed, fail] = useActionStateThen(failUnitAction, initialFormState, (s) => {
+    if (s.message) toast(`${unit.identity}: ${s.message}`);
+    setOpen(false);
+  });
   const v = (k: string) => (typeof state.values?.[k] === "string" ? (state.values[k] as string) : "");
   return (
     <Dialog open={open} onOpenChange={setOpen} trigger="Measure…" triggerLabel={`Measure ${unit.identity}`} title={`Measure ${unit.identity}`} description="A response file (frequency, level, optional phase), its Thiele–Small parameters, or both.">

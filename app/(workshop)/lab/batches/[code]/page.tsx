@@ -12,7 +12,7 @@ import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
 import { requirePage } from "@/lib/auth/guard";
 import { formatDate, formatWhen } from "@/lib/format";
-import { stateLabel } from "@/lib/genealogy/kinds";
+import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { batchByCode, batchUnitsView } from "@/lib/lab/units";
 import { BulkTabs } from "./bulk-tabs";
 import { MeasureDialog } from "./measure-dialog";
@@ -89,7 +89,7 @@ export default async function BatchPage({ params, searchParams }: { params: Prom
         <BulkTabs batch={batch.code} />
       </Panel>
       <Panel title="Labels">
-        <PrintLabels identities={units.map((u) => u.identity)} station="lab" />
+        <PrintLabels identities={units.map((u) => u.identity)} />
       </Panel>
     </div>
   );

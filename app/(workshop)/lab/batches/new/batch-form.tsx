@@ -31,9 +31,9 @@ export function BatchForm({ today }: { today: string }) {
         <TextField label="Number of units" name="count" type="number" min={1} max={500} defaultValue={v("count")} errors={e("count")} hint="Leave empty when you scan the makers' serials below." />
       </div>
       <label className="flex flex-col gap-1">
-        <span className="font-bold">Makers' serials (optional)</span>
+        <span className="font-bold">Makers’ serials (optional)</span>
         <span className="text-sm text-ink-soft" id="maker-serials-hint">
-          Scan each unit's label, one per line. Each unit still gets its own Twinleaf serial; the maker's is kept beside it and found by search and in response files.
+          Scan each unit’s label, one per line. Each unit still gets its own Twinleaf serial; the maker’s is kept beside it and found by search and in response files.
         </span>
         <textarea name="makerSerials" rows={6} defaultValue={v("makerSerials")} aria-describedby="maker-serials-hint" className="rounded-md border border-line-strong bg-surface p-2 font-mono text-sm" />
         {e("makerSerials")?.map((m) => (

@@ -9,7 +9,7 @@ import { requirePage } from "@/lib/auth/guard";
 import { formatDate } from "@/lib/format";
 import { dealerWithShipments } from "@/lib/genealogy/queries";
 import { SerialLink } from "@/components/register/serial-link";
-import { stateLabel } from "@/lib/genealogy/kinds";
+import { stateLabel } from "@/lib/vocabulary/item-kinds";
 
 export const metadata: Metadata = { title: "Dealer" };
 

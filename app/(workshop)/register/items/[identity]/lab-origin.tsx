@@ -1,25 +1,13 @@
 import Link from "next/link";
-import { and, eq, ne } from "drizzle-orm";
 import { SerialLink } from "@/components/register/serial-link";
 import { getDb } from "@/db";
-import { batchUnits, items, matchedSets, setMembers, unitBatches, type Item } from "@/db/schema";
+import type { Item } from "@/lib/genealogy/graph";
+import { labOrigin } from "@/lib/lab/queries";
 import { formatDay } from "@/lib/format";
 
 /** A drive unit's batch and the matched set it is reserved in (or was), with its partner. */
 export async function LabOrigin({ item, inLab }: { item: Item; inLab: boolean }) {
-  const db = getDb();
-  const [batch] = await db.select({ code: unitBatches.code, lot: unitBatches.lot, maker: unitBatches.maker, makerSerial: batchUnits.makerSerial }).from(batchUnits).innerJoin(unitBatches, eq(unitBatches.id, batchUnits.batchId)).where(eq(batchUnits.itemId, item.id)).limit(1);
-  const sets = await db
-    .select({ set: matchedSets, side: setMembers.side, endedAt: setMembers.endedAt, endReason: setMembers.endReason })
-    .from(setMembers)
-    .innerJoin(matchedSets, eq(matchedSets.id, setMembers.setId))
-    .where(eq(setMembers.itemId, item.id));
-  const partners = await Promise.all(
-    sets.map(async (s) => {
-      const [p] = await db.select({ identity: items.identity }).from(setMembers).innerJoin(items, eq(items.id, setMembers.itemId)).where(and(eq(setMembers.setId, s.set.id), ne(setMembers.itemId, item.id))).limit(1);
-      return p?.identity ?? null;
-    }),
-  );
+  const { batch, sets } = await labOrigin(getDb(), item.id);
   if (!batch && !sets.length) return null;
   return (
     <div className="flex flex-col gap-1" data-testid="lab-origin">
@@ -36,15 +24,15 @@ export async function LabOrigin({ item, inLab }: { item: Item; inLab: boolean })
           ({batch.maker}, lot {batch.lot}){batch.makerSerial ? `; maker's serial ${batch.makerSerial}` : ""}
         </p>
       ) : null}
-      {sets.map((s, i) => (
-        <p key={s.set.id}>
-          {s.endedAt ? "Was" : "Reserved"} in matched set <span className="serial font-bold">{s.set.code}</span> as the {s.side === "L" ? "left" : "right"} unit
-          {partners[i] ? (
+      {sets.map((s) => (
+        <p key={s.id}>
+          {s.endedAt ? "Was" : "Reserved"} in matched set <span className="serial font-bold">{s.code}</span> as the {s.side === "L" ? "left" : "right"} unit
+          {s.partner ? (
             <>
-              , with <SerialLink identity={partners[i]!} bold={false} />
+              , with <SerialLink identity={s.partner} bold={false} />
             </>
           ) : null}{" "}
-          ({s.set.maxDiffDb.toFixed(2)} dB at most against a {s.set.limitDb} dB limit, {formatDay(s.set.createdAt)}){s.endedAt ? `: ${s.endReason}` : ""}.
+          ({s.maxDiffDb.toFixed(2)} dB at most against a {s.limitDb} dB limit, {formatDay(s.createdAt)}){s.endedAt ? `: ${s.endReason}` : ""}.
         </p>
       ))}
     </div>

@@ -1,3 +1,4 @@
+import { paths } from "@/lib/paths";
 import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
@@ -17,7 +18,7 @@ import { requirePage } from "@/lib/auth/guard";
 import { recentEvents } from "@/lib/events/queries";
 import { formatDay, formatWhen } from "@/lib/format";
 import { momentParam, resolveMoment } from "@/lib/genealogy/moment";
-import { KIND_LABEL, stateLabel } from "@/lib/genealogy/kinds";
+import { kindLabel, stateLabel } from "@/lib/vocabulary/item-kinds";
 import { dealersOf, itemDetails } from "@/lib/genealogy/queries";
 import { toTree, traceBackward, traceForward } from "@/lib/genealogy/trace";
 import { PairVeneer } from "./pair-veneer";
@@ -32,7 +33,7 @@ function VeneerOrigin({ identity, kind, inVeneerRoom }: { identity: string; kind
   return (
     <p data-testid="veneer-origin">
       {leafNo ? <>Leaf {leafNo} of flitch </> : null}
-      <SerialLink identity={flitch} href={inVeneerRoom ? `/flitches/${encodeURIComponent(flitch)}` : undefined} />
+      <SerialLink identity={flitch} href={inVeneerRoom ? paths.flitch(flitch) : undefined} />
       {inVeneerRoom ? " (opens in the veneer room, with its leaf table, plan and photos)" : ""}
     </p>
   );
@@ -55,7 +56,7 @@ function HolderSummary({ holders }: { holders: { kind: string }[] }) {
     <div className="mb-4 flex flex-col gap-1" data-testid="holder-summary">
       {[...counts].map(([kind, n]) => (
         <div key={kind} className="flex items-center gap-3">
-          <span className="w-32 text-sm font-bold">{KIND_LABEL[kind] ?? kind}</span>
+          <span className="w-32 text-sm font-bold">{kindLabel(kind)}</span>
           <span className="h-4 rounded bg-leaf" style={{ width: `${Math.max(2, (n / max) * 60)}%` }} aria-hidden="true" />
           <span className="text-sm tabular-nums">{n.toLocaleString("en")}</span>
         </div>
@@ -91,13 +92,13 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
       <BackLink href="/register">Register</BackLink>
       <PageHeader
         title={<span className="serial" data-testid="item-identity">{item.identity}</span>}
-        lead={[KIND_LABEL[item.kind] ?? item.kind, model?.name, finish?.name, item.partType].filter(Boolean).join(" · ")}
+        lead={[kindLabel(item.kind), model?.name, finish?.name, item.partType].filter(Boolean).join(" · ")}
         actions={<Badge tone={item.state === "failed" || item.state === "scrapped" ? "danger" : item.state === "shipped" ? "leaf" : "info"}>{stateLabel(item.state)}</Badge>}
       />
 
       {item.kind === "pair" ? (
         <p>
-          <Link className="font-bold text-leaf-dark underline" href={`/pairs/${encodeURIComponent(item.identity)}`} data-testid="route-link">
+          <Link className="font-bold text-leaf-dark underline" href={paths.cabinetPair(item.identity)} data-testid="route-link">
             Its cabinet route: the steps recorded, holds and nonconformances
           </Link>
         </p>
@@ -201,7 +202,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
               id: h.id,
               cells: {
                 identity: { value: h.identity, display: <SerialLink identity={h.identity} /> },
-                kind: { value: KIND_LABEL[h.kind] ?? h.kind },
+                kind: { value: kindLabel(h.kind) },
               },
             }))}
         />
@@ -214,7 +215,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
             {/* eslint-disable-next-line @next/next/no-img-element -- a generated barcode, not a photo */}
             <img src={`/api/v1/items/${encodeURIComponent(item.identity)}/barcode?format=svg`} alt={`Barcode of ${item.identity}`} className="h-20 w-auto bg-white p-2" />
           </div>
-          <PrintLabels identities={[item.identity]} station={user.roles.find((r) => r !== "admin") ?? "labels"} />
+          <PrintLabels identities={[item.identity]} />
         </Panel>
       ) : null}
 

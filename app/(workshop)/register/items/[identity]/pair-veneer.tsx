@@ -1,7 +1,7 @@
 import { SerialLink } from "@/components/register/serial-link";
 import { leafList } from "@/lib/veneer/plan";
 import { getDb } from "@/db";
-import type { Item } from "@/db/schema";
+import type { Item } from "@/lib/genealogy/graph";
 import { pairVeneer } from "@/lib/veneer/flitches";
 import { ReserveForms } from "./reserve-forms";
 

@@ -4,7 +4,7 @@ import { SelectField, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
 import { initialFormState } from "@/lib/forms";
-import { releaseReserveAction, returnReserveAction } from "@/app/(workshop)/flitches/actions/reserves";
+import { releaseReserveAction, returnReserveAction } from "@/app/(workshop)/veneer/actions/reserves";
 
 type Option = { id: string; label: string };
 

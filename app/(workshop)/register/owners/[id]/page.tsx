@@ -8,7 +8,7 @@ import { requirePage } from "@/lib/auth/guard";
 import { formatDate } from "@/lib/format";
 import { ownerWithItems } from "@/lib/genealogy/queries";
 import { SerialLink } from "@/components/register/serial-link";
-import { KIND_LABEL, stateLabel } from "@/lib/genealogy/kinds";
+import { kindLabel, stateLabel } from "@/lib/vocabulary/item-kinds";
 
 export const metadata: Metadata = { title: "Owner" };
 
@@ -35,7 +35,7 @@ export default async function OwnerPage({ params }: { params: Promise<{ id: stri
             id: h.identity,
             cells: {
               identity: { value: h.identity, display: <SerialLink identity={h.identity} /> },
-              kind: { value: KIND_LABEL[h.kind] ?? h.kind },
+              kind: { value: kindLabel(h.kind) },
               since: { value: h.since.getTime(), display: formatDate(h.since) },
               state: { value: stateLabel(h.state) },
             },

@@ -7,9 +7,11 @@ import { Notice } from "@/components/ui/notice";
 import { cx } from "@/components/ui/cx";
 import { initialFormState, type FormState } from "@/lib/forms";
 import { windowText } from "@/lib/route/rules";
-import { STATIONS, type ReadingSpec, type StepSpec } from "@/lib/route/types";
+import type { ReadingSpec, StepSpec } from "@/lib/route/types";
+import { ROUTE_STATIONS } from "@/lib/vocabulary/stations";
 import { saveRouteVersionAction } from "../../actions";
-import { holdText, STATION_LABELS } from "../../schemas";
+import { STATION_NAME } from "@/lib/vocabulary/stations";
+import { holdText } from "@/lib/route/spec-rules";
 
 // ---- the draft: what the form edits, as typed ---------------------------------------------------
 
@@ -241,7 +243,7 @@ function ErrorList({ messages, testId }: { messages: string[]; testId?: string }
   );
 }
 
-const STATION_OPTIONS = [{ value: "", label: "Choose a station…" }, ...STATIONS.map((s) => ({ value: s, label: STATION_LABELS[s] }))];
+const STATION_OPTIONS = [{ value: "", label: "Choose a station…" }, ...ROUTE_STATIONS.map((s) => ({ value: s, label: STATION_NAME[s] }))];
 const KIND_OPTIONS = [
   { value: "number", label: "A number" },
   { value: "check", label: "Inspector's check (pass or fail)" },

@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { getDb } from "@/db";
+import { homeStation } from "@/lib/areas";
 import { AppError } from "@/lib/auth/errors";
 import { appBaseUrl, guardedRoute } from "@/lib/auth/guard";
 import { certificateData, certificatePrinted, issueCertificate, pairByIdentity, recordCertificatePrint, renderCertificate } from "@/lib/certificates";
@@ -7,7 +8,6 @@ import { certificateData, certificatePrinted, issueCertificate, pairByIdentity, 
 const query = z.object({
   /** `copy=1` asks for a copy even of a certificate never printed (a spare for the service desk). */
   copy: z.enum(["0", "1"], { error: "copy is 0 or 1." }).optional(),
-  station: z.string().trim().min(1).max(40).default("packing"),
 });
 
 /**
@@ -25,7 +25,7 @@ export const GET = guardedRoute("labels.print", { query }, async ({ params, quer
   const copy = query.copy === "1" || (await certificatePrinted(db, certificate));
   // Rendered before the print is recorded, so a failure records nothing.
   const pdf = await renderCertificate(await certificateData(db, pair.id, { baseUrl: await appBaseUrl(), copy }));
-  await recordCertificatePrint(db, certificate.id, { actorId: user.id, copy, station: query.station });
+  await recordCertificatePrint(db, certificate.id, { actorId: user.id, copy, station: homeStation(user.roles) });
   return new Response(new Uint8Array(pdf), {
     headers: {
       "content-type": "application/pdf",

@@ -1,0 +1,122 @@
+import { paths } from "@/lib/paths";
+import type { Metadata } from "next";
+import Link from "next/link";
+import { AreaOverview } from "@/components/shell/area-overview";
+import { ModelTable } from "@/components/workshop/reference-tables";
+import { SerialLink } from "@/components/register/serial-link";
+import { buttonClasses } from "@/components/ui/button";
+import { Panel } from "@/components/ui/panel";
+import { getDb } from "@/db";
+import { listModels } from "@/lib/workshop/queries";
+import { areaByKey } from "@/lib/areas";
+import { requirePage } from "@/lib/auth/guard";
+import { now } from "@/lib/clock";
+import { formatWhen } from "@/lib/format";
+import { shopBoard, shopPairs, type ShopPair } from "@/lib/route/shop";
+import { openNonconformances } from "@/lib/route/nonconformances";
+import { STATION_NAME } from "@/lib/vocabulary/stations";
+import { AutoRefresh } from "./auto-refresh";
+import { ScanForm } from "./scan-form";
+
+export const metadata: Metadata = { title: "Cabinet shop" };
+
+const route = (p: string) => paths.cabinetPair(p);
+const side = (s: ShopPair["sides"]) => (s.length === 2 ? "both" : s[0] === "L" ? "left only" : "right only");
+
+export default async function Page() {
+  await requirePage("cabinet.work");
+  const db = getDb();
+  const at = now();
+  const [models, pairs, ncs] = await Promise.all([listModels(db), shopPairs(db, at), openNonconformances(db)]);
+  const endOfDay = new Date(at);
+  endOfDay.setUTCHours(23, 59, 59, 999);
+  const { releasingToday, overdue, stations } = shopBoard(pairs, at, endOfDay);
+  return (
+    <AreaOverview area={areaByKey("cabinet")}>
+      <div className="flex flex-wrap items-end justify-between gap-4">
+        <ScanForm />
+        <div className="flex flex-col items-end gap-2">
+          <Link href={paths.lacquer} className={buttonClasses("secondary")}>
+            Lacquer cabinets
+          </Link>
+          <AutoRefresh />
+        </div>
+      </div>
+      <div className="grid gap-6 lg:grid-cols-3">
+        <Panel title="Holds that release today">
+          {releasingToday.length ? (
+            <ul className="flex flex-col gap-1" data-testid="holds-today">
+              {releasingToday.map((p) => (
+                <li key={p.pair}>
+                  <SerialLink identity={p.pair} href={route(p.pair)} /> at {formatWhen(p.holdUntil!).split(", ").pop()} UTC: {p.holdLabel}, then {p.next?.name.toLowerCase()}
+                </li>
+              ))}
+            </ul>
+          ) : (
+            <p className="text-ink-soft">No hold ends later today.</p>
+          )}
+        </Panel>
+        <Panel title="Overdue">
+          {overdue.length ? (
+            <ul className="flex flex-col gap-1" data-testid="overdue">
+              {overdue.map((p) => (
+                <li key={p.pair}>
+                  <SerialLink identity={p.pair} href={route(p.pair)} />: {p.next?.name} waiting since {formatWhen(p.readySince!)}
+                </li>
+              ))}
+            </ul>
+          ) : (
+            <p className="text-ink-soft">Nothing has waited more than two days.</p>
+          )}
+        </Panel>
+        <Panel title="Open nonconformances">
+          {ncs.length ? (
+            <ul className="flex flex-col gap-1" data-testid="shop-ncs">
+              {ncs.map(({ nc, pair }) => (
+                <li key={nc.id}>
+                  <span className="font-bold">{nc.code}</span> <SerialLink identity={pair} href={route(pair)} bold={false} />: {nc.finding}
+                </li>
+              ))}
+            </ul>
+          ) : (
+            <p className="text-ink-soft">None open.</p>
+          )}
+        </Panel>
+      </div>
+      <Panel title="Work at each station">
+        {stations.length ? (
+          <div className="grid gap-4 md:grid-cols-2 xl:grid-cols-3" data-testid="station-work">
+            {stations.map(({ station: s, ready: go, waiting }) => {
+              return (
+                <section key={s} className="rounded-lg border border-line bg-paper p-3" data-testid={`station-${s}`}>
+                  <h3 className="mb-2 font-bold">
+                    {STATION_NAME[s]} <span className="text-sm font-normal text-ink-soft">({go.length} ready)</span>
+                  </h3>
+                  <ul className="flex flex-col gap-1">
+                    {go.map((p) => (
+                      <li key={p.pair}>
+                        <SerialLink identity={p.pair} href={route(p.pair)} /> {p.model}: {p.next?.name}
+                        {p.lone ? " (lacquer cabinet, not yet paired)" : p.sides.length < 2 ? ` (${side(p.sides)})` : ""}
+                        {p.unpartnered ? " · unpartnered" : ""}
+                      </li>
+                    ))}
+                    {waiting.map((p) => (
+                      <li key={p.pair} className="text-ink-soft">
+                        <SerialLink identity={p.pair} href={route(p.pair)} bold={false} /> {p.next?.name}: {p.openNcs.length ? `on hold (${p.openNcs.join(", ")})` : `hold until ${formatWhen(p.holdUntil!)}`}
+                      </li>
+                    ))}
+                  </ul>
+                </section>
+              );
+            })}
+          </div>
+        ) : (
+          <p className="text-ink-soft">No pair is on the cabinet route.</p>
+        )}
+      </Panel>
+      <Panel title="Models built here">
+        <ModelTable models={models} show="veneer" />
+      </Panel>
+    </AreaOverview>
+  );
+}

@@ -1,0 +1,183 @@
+import { paths } from "@/lib/paths";
+import type { Metadata } from "next";
+import { notFound } from "next/navigation";
+import { SafetyCautions } from "@/components/shell/safety-cautions";
+import { SerialLink } from "@/components/register/serial-link";
+import { Badge } from "@/components/ui/badge";
+import { BackLink } from "@/components/ui/back-link";
+import { DataTable } from "@/components/ui/data-table";
+import { Notice } from "@/components/ui/notice";
+import { Panel, PageHeader } from "@/components/ui/panel";
+import { getDb } from "@/db";
+import { requirePage } from "@/lib/auth/guard";
+import { now } from "@/lib/clock";
+import { formatWhen } from "@/lib/format";
+import { itemByIdentity } from "@/lib/genealogy/graph";
+import { stateLabel } from "@/lib/vocabulary/item-kinds";
+import { STATION_CAUTIONS } from "@/lib/route/cautions";
+import { windowText } from "@/lib/route/rules";
+import { isLoneLacquerCabinet, pairRoute } from "@/lib/route/pair-route";
+import { DispositionForm } from "@/app/(workshop)/quality/disposition-form";
+import { RepartnerForm } from "./repartner-form";
+import { StepForm } from "./step-form";
+
+export async function generateMetadata({ params }: { params: Promise<{ identity: string }> }): Promise<Metadata> {
+  return { title: `Route of ${decodeURIComponent((await params).identity)}` };
+}
+
+export default async function PairRoutePage({ params }: { params: Promise<{ identity: string }> }) {
+  const user = await requirePage("register.read");
+  const db = getDb();
+  const identity = decodeURIComponent((await params).identity);
+  const pair = await itemByIdentity(db, identity);
+  if (!pair || (pair.kind !== "pair" && !(await isLoneLacquerCabinet(db, pair)))) notFound();
+  // A lacquer cabinet made in a batch travels the route alone until assembly pairs it.
+  const lone = pair.kind === "cabinet";
+  const at = now();
+  const route = await pairRoute(db, pair, at);
+  const steps = route.spec.steps;
+  const pos = route.position;
+  const nextSeq = Math.min(...pos.cabinets.map((c) => c.next?.seq ?? Infinity));
+  // A lacquer pair is made at assembly from cabinets that already finished: nothing to record here.
+  const pairedAtAssembly = pair.attrs.pairedAt === "assembly";
+  const next = Number.isFinite(nextSeq) && !pairedAtAssembly ? steps.find((s) => s.seq === nextSeq)! : null;
+  const hold = pos.cabinets.filter((c) => c.next?.seq === nextSeq && c.holdUntil).map((c) => c.holdUntil!)[0];
+  const canWork = user.permissions.has("cabinet.work");
+  const openNcs = route.ncs.filter((n) => !n.disposition);
+  const cabinetOf = (side: "L" | "R") => route.cabinets.find((c) => c.side === side);
+  return (
+    <div className="flex flex-col gap-6" data-testid="route-page">
+      <BackLink href={paths.cabinet}>Cabinet shop</BackLink>
+      <PageHeader
+        title={<span className="serial" data-testid="route-pair">{pair.identity}</span>}
+        lead={`${route.model.code} ${route.model.name}${route.finishName ? ` · ${route.finishName}` : ""} · route version ${route.spec.version}${route.started ? "" : " (fixed when the first step is recorded)"}`}
+        actions={<Badge tone={pos.openNcs.length ? "danger" : pos.finished ? "leaf" : "info"}>{pos.openNcs.length ? "on hold" : pos.finished ? "route finished" : stateLabel(pair.state)}</Badge>}
+      />
+      {lone ? <Notice tone="info">A lacquer cabinet made in a batch: it travels the route on its own, and assembly pairs it with another finished cabinet of its model and colour.</Notice> : null}
+      <div className="grid gap-4 md:grid-cols-2" data-testid="route-cabinets">
+        {(lone ? (["L"] as const) : (["L", "R"] as const)).map((side) => {
+          const c = cabinetOf(side);
+          const p = pos.cabinets.find((x) => x.side === side);
+          return (
+            <div key={side} className="rounded-lg border border-line bg-surface p-4">
+              <p className="font-bold">{lone ? "This cabinet" : side === "L" ? "Left cabinet" : "Right cabinet"}</p>
+              {c ? (
+                <>
+                  <SerialLink identity={c.item.identity} />
+                  <p className="mt-1">{p?.next ? `Next: ${p.next.seq}. ${p.next.name}` : "Route finished."}</p>
+                  {p?.holdUntil ? <p className="text-caution">Hold ({p.holdLabel}) until {formatWhen(p.holdUntil)} UTC</p> : null}
+                  <p className="text-sm text-ink-soft">{p?.done.length ?? 0} of {steps.length} steps done</p>
+                </>
+              ) : (
+                <p className="text-danger" data-testid="unpartnered">No cabinet: the pair is unpartnered until quality signs off a new partner.</p>
+              )}
+            </div>
+          );
+        })}
+      </div>
+
+      {openNcs.length ? (
+        <Notice tone="danger" testId="route-hold">
+          On hold: {openNcs.map((n) => `${n.code} (${n.finding})`).join("; ")}. Quality dispositions it before the next step.
+        </Notice>
+      ) : null}
+
+      {next ? (
+        <Panel title={`Next step: ${next.seq}. ${next.name}`}>
+          {next.note ? <p className="mb-3 text-ink-soft">{next.note}</p> : null}
+          <div className="mb-4">
+            <SafetyCautions cautions={STATION_CAUTIONS[next.station] ?? []} />
+          </div>
+          {hold ? <Notice tone="caution" className="mb-4">Not before {formatWhen(hold)} UTC: the hold after the last step runs until then.</Notice> : null}
+          {canWork ? (
+            <StepForm
+              pair={pair.identity}
+              pairId={pair.id}
+              step={next}
+              sides={(["L", "R"] as const).filter((s) => cabinetOf(s)).map((s) => ({ side: s, identity: cabinetOf(s)!.item.identity, ready: pos.cabinets.find((c) => c.side === s)?.next?.seq === next.seq }))}
+              window={Object.fromEntries(next.readings.map((r) => [r.key, windowText(r)]))}
+            />
+          ) : (
+            <p className="text-ink-soft">Steps are recorded by the cabinet shop.</p>
+          )}
+        </Panel>
+      ) : (
+        <Notice tone="leaf">{pairedAtAssembly ? "Paired at assembly from two finished lacquer cabinets." : "Both cabinets have finished the route: the pair is ready for assembly."}</Notice>
+      )}
+
+      {user.permissions.has("quality.work") && openNcs.length ? (
+        <Panel title="Disposition">
+          {openNcs.map((n) => (
+            <div key={n.id} className="mb-4">
+              <p className="mb-2 font-bold">
+                {n.code}: {n.finding}
+              </p>
+              <DispositionForm nc={{ id: n.id, code: n.code, seq: n.seq }} steps={steps.filter((s) => s.seq <= n.seq).map((s) => ({ seq: s.seq, name: s.name }))} sides={route.cabinets.map((c) => ({ side: c.side, identity: c.item.identity }))} back={paths.cabinetPair(pair.identity)} />
+            </div>
+          ))}
+        </Panel>
+      ) : null}
+
+      {user.permissions.has("quality.work") && !lone && route.cabinets.length < 2 ? (
+        <Panel title="A new partner">
+          <RepartnerForm pair={pair.identity} pairId={pair.id} />
+        </Panel>
+      ) : null}
+
+      <Panel title="Route">
+        <ol className="grid gap-1 sm:grid-cols-2 lg:grid-cols-3" data-testid="route-steps">
+          {steps.map((s) => {
+            const doneBy = pos.cabinets.filter((c) => c.done.includes(s.seq)).map((c) => c.side);
+            return (
+              <li key={s.seq} className={doneBy.length === pos.cabinets.length && doneBy.length ? "text-ink-soft" : s.seq === nextSeq ? "font-bold" : ""}>
+                {doneBy.length === pos.cabinets.length && doneBy.length ? "✓" : doneBy.length ? "½" : s.seq === nextSeq ? "→" : "·"} {s.seq}. {s.name}
+                {s.holdAfter ? <span className="text-sm text-ink-soft"> (then {s.holdAfter.label})</span> : null}
+              </li>
+            );
+          })}
+        </ol>
+      </Panel>
+
+      <Panel title="Recorded steps">
+        <DataTable
+          caption={`Steps recorded for ${pair.identity}`}
+          testId="route-records"
+          empty="No step recorded yet."
+          initialSort={{ key: "at", dir: "desc" }}
+          columns={[
+            { key: "at", label: "Recorded" },
+            { key: "step", label: "Step" },
+            { key: "sides", label: "Cabinets" },
+            { key: "readings", label: "Readings" },
+          ]}
+          rows={route.records.map((r) => {
+            const step = steps.find((s) => s.seq === r.seq);
+            return {
+              id: String(r.id),
+              cells: {
+                at: { value: r.recordedAt.getTime(), display: formatWhen(r.recordedAt) },
+                step: { value: r.seq, display: `${r.seq}. ${step?.name ?? ""}` },
+                sides: { value: r.cabinets.map((c) => c.side).join("+") },
+                readings: {
+                  value: JSON.stringify(r.readings),
+                  display: (
+                    <span className={r.outOfWindow ? "text-danger" : undefined}>
+                      {Object.entries(r.readings)
+                        .map(([k, v]) => {
+                          const spec = step?.readings.find((x) => x.key === k);
+                          return `${spec?.label ?? k}: ${typeof v === "boolean" ? (v ? "passed" : "not passed") : `${v}${spec?.unit ? ` ${spec.unit}` : ""}`}`;
+                        })
+                        .join(" · ") || "none"}
+                      {r.outOfWindow ? " (out of window)" : ""}
+                    </span>
+                  ),
+                },
+              },
+            };
+          })}
+        />
+        <p className="mt-2 text-sm text-ink-soft">Times in UTC. Now: {formatWhen(at)}.</p>
+      </Panel>
+    </div>
+  );
+}

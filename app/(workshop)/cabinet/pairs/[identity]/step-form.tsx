@@ -1,0 +1,75 @@
+"use client";
+import { useActionState } from "react";
+import { SelectField, TextField } from "@/components/ui/field";
+import { Notice } from "@/components/ui/notice";
+import { SubmitButton } from "@/components/ui/submit-button";
+import { initialFormState } from "@/lib/forms";
+import type { StepSpec } from "@/lib/route/types";
+import { recordStepAction } from "../../actions/steps";
+
+/** The form for the pair's next step: which cabinets, when it started, and the step's readings. */
+export function StepForm({ pair, pairId, step, sides, window }: { pair: string; pairId: string; step: StepSpec; sides: { side: "L" | "R"; identity: string; ready: boolean }[]; window: Record<string, string> }) {
+  const [state, action] = useActionState(recordStepAction, initialFormState);
+  const v = (k: string) => (typeof state.values?.[k] === "string" ? (state.values[k] as string) : "");
+  const failed = !state.ok && state.message;
+  return (
+    <form action={action} className="flex flex-col gap-4" noValidate data-testid="step-form">
+      {state.ok && state.message ? <Notice tone={/nonconformance/.test(state.message) ? "caution" : "leaf"} testId="step-done">{state.message}</Notice> : null}
+      {failed ? (
+        <Notice tone="danger" testId="step-refused">
+          {state.message}
+        </Notice>
+      ) : null}
+      <input type="hidden" name="pair" value={pair} />
+      <input type="hidden" name="pairId" value={pairId} />
+      <input type="hidden" name="seq" value={step.seq} />
+      <fieldset className="flex flex-col gap-2">
+        <legend className="mb-1 font-bold">Done on</legend>
+        <div className="flex flex-wrap gap-3">
+          {sides.map((s) => (
+            <label key={s.side} className="flex min-h-12 cursor-pointer items-center gap-3 rounded-lg border border-line bg-surface px-3 has-checked:border-leaf has-checked:bg-leaf-soft">
+              <input type="checkbox" name="sides" value={s.side} defaultChecked={s.ready} disabled={!s.ready} className="size-5 accent-leaf" />
+              <span>
+                {sides.length === 1 ? "Cabinet" : s.side === "L" ? "Left" : "Right"} <span className="serial text-sm">{s.identity}</span>
+                {s.ready ? "" : " (not at this step)"}
+              </span>
+            </label>
+          ))}
+        </div>
+        {state.fieldErrors?.sides ? <p className="text-sm text-danger">{state.fieldErrors.sides[0]}</p> : null}
+      </fieldset>
+      <div className="grid gap-4 sm:grid-cols-3">
+        {step.readings.map((r) =>
+          r.kind === "check" ? (
+            <SelectField
+              key={r.key}
+              label={r.label}
+              name={`reading.${r.key}`}
+              defaultValue={v(`reading.${r.key}`)}
+              options={[
+                { value: "", label: "Choose…" },
+                { value: "pass", label: "Passed" },
+                { value: "fail", label: "Not passed" },
+              ]}
+              errors={state.fieldErrors?.[r.key]}
+            />
+          ) : (
+            <TextField
+              key={r.key}
+              label={`${r.label}${r.unit ? ` (${r.unit})` : ""}`}
+              name={`reading.${r.key}`}
+              inputMode="decimal"
+              defaultValue={v(`reading.${r.key}`) || (r.equals !== undefined ? String(r.equals) : "")}
+              hint={window[r.key] ? `Window: ${window[r.key]}` : undefined}
+              errors={state.fieldErrors?.[r.key]}
+            />
+          ),
+        )}
+        <TextField label="Started, minutes ago" name="startedMinutesAgo" type="number" min={0} max={1440} defaultValue={v("startedMinutesAgo") || "0"} hint="0 when it starts now; e.g. when the clamp went on." errors={state.fieldErrors?.startedMinutesAgo} />
+      </div>
+      <div>
+        <SubmitButton pendingLabel="Recording…">Record {step.name.toLowerCase()}</SubmitButton>
+      </div>
+    </form>
+  );
+}

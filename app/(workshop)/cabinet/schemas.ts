@@ -1,0 +1,22 @@
+import { z } from "zod";
+
+export const scanSchema = z.object({
+  code: z.string().trim().min(3, "Scan or type a cabinet or pair serial.").max(80),
+  station: z.string().trim().max(30).default(""),
+});
+
+export const stepSchema = z.object({
+  pair: z.string().min(1),
+  pairId: z.string().min(1),
+  seq: z.coerce.number().int().min(1),
+  sides: z.preprocess((v) => (v === undefined || v === "" ? [] : Array.isArray(v) ? v : [v]), z.array(z.enum(["L", "R"]))).refine((s) => s.length > 0, "Tick the cabinets the step was done on."),
+  /** Minutes ago the step started (e.g. when the clamp went on); 0 = now. */
+  startedMinutesAgo: z.preprocess((v) => (v === "" || v === undefined ? 0 : v), z.coerce.number({ error: "Give minutes as a number." }).int("Whole minutes.").min(0, "Not in the future.").max(24 * 60, "At most 24 hours ago; record steps the day they are done.")),
+});
+
+export const repartnerSchema = z.object({
+  pair: z.string().min(1),
+  pairId: z.string().min(1),
+  cabinet: z.string().trim().min(3, "Scan or type the new cabinet's serial.").max(60),
+  reason: z.string().trim().min(5, "Give the reason for the new partner.").max(500),
+});

@@ -1,0 +1,112 @@
+import { paths } from "@/lib/paths";
+import type { Metadata } from "next";
+import Link from "next/link";
+import { notFound } from "next/navigation";
+import { SafetyCautions } from "@/components/shell/safety-cautions";
+import { BackLink } from "@/components/ui/back-link";
+import { buttonClasses } from "@/components/ui/button";
+import { Notice } from "@/components/ui/notice";
+import { Panel, PageHeader } from "@/components/ui/panel";
+import { getDb } from "@/db";
+import { areaByKey } from "@/lib/areas";
+import { requirePage } from "@/lib/auth/guard";
+import { knownLocations, packingList, pairForPacking, PACKABLE_STATES } from "@/lib/dispatch";
+import { stateLabel } from "@/lib/vocabulary/item-kinds";
+import { PackForm } from "./pack-form";
+
+export const metadata: Metadata = { title: "Pack a pair" };
+
+const certificateHref = (pair: string) => `/api/v1/pairs/${encodeURIComponent(pair)}/certificate`;
+const labelHref = (carton: string) => `/api/v1/cartons/${encodeURIComponent(carton)}/label`;
+
+export default async function Page({ params, searchParams }: { params: Promise<{ pair: string }>; searchParams: Promise<{ packed?: string }> }) {
+  await requirePage("packing.work");
+  const db = getDb();
+  const { pair: raw } = await params;
+  const sp = await searchParams;
+  let serial: string;
+  try {
+    serial = decodeURIComponent(raw);
+  } catch {
+    notFound();
+  }
+  const pair = await pairForPacking(db, serial);
+  if (!pair) notFound();
+  const packable = (PACKABLE_STATES as readonly string[]).includes(pair.state);
+  const [items, locations] = await Promise.all([pair.modelId ? packingList(db, pair.modelId) : Promise.resolve([]), knownLocations(db)]);
+  // A pair tested before final tests were recorded gets its certificate when it is packed.
+  const certificateReady = pair.hasCertificate || pair.finalTestPassed;
+  const pdfLink = `${buttonClasses("secondary")} no-underline`;
+
+  return (
+    <div className="flex flex-col gap-6" data-testid="pack-page">
+      <BackLink href={paths.packing}>Packing</BackLink>
+      <PageHeader
+        title={<span className="serial">{pair.identity}</span>}
+        lead={[`${pair.modelCode} ${pair.model}`.trim(), pair.finish, stateLabel(pair.state)].filter(Boolean).join(" · ")}
+      />
+      <SafetyCautions cautions={areaByKey("packing").cautions} />
+
+      <Panel title="The pair">
+        <dl className="grid gap-x-6 gap-y-2 sm:grid-cols-[auto_1fr]">
+          <dt className="text-ink-soft">Left speaker</dt>
+          <dd className="serial font-bold">{pair.left ?? "—"}</dd>
+          <dt className="text-ink-soft">Right speaker</dt>
+          <dd className="serial font-bold">{pair.right ?? "—"}</dd>
+          {pair.carton ? (
+            <>
+              <dt className="text-ink-soft">Carton</dt>
+              <dd className="serial font-bold" data-testid="packed-carton">
+                {pair.carton}
+              </dd>
+              <dt className="text-ink-soft">Stored at</dt>
+              <dd>{pair.location ?? "not recorded"}</dd>
+            </>
+          ) : null}
+        </dl>
+      </Panel>
+
+      {pair.carton ? (
+        <Panel title="Packed">
+          {sp.packed ? (
+            <Notice tone="leaf" testId="packed" className="mb-4">
+              {pair.identity} is packed in carton {pair.carton}
+              {pair.location ? `, stored at ${pair.location}` : ""}. Print the carton label and stick it on the carton.
+            </Notice>
+          ) : null}
+          <div className="flex flex-wrap gap-3">
+            <a href={labelHref(pair.carton)} target="_blank" rel="noopener" className={buttonClasses("primary")} data-testid="print-carton-label">
+              Print the carton label
+            </a>
+            <a href={certificateHref(pair.identity)} target="_blank" rel="noopener" className={pdfLink} data-testid="print-certificate">
+              Print the certificate
+            </a>
+            <Link href={paths.packing} className={buttonClasses("quiet")}>
+              Back to dispatch
+            </Link>
+          </div>
+        </Panel>
+      ) : packable ? (
+        <Panel title="Pack it">
+          <div className="mb-5 flex flex-wrap items-center gap-3">
+            {certificateReady ? (
+              <a href={certificateHref(pair.identity)} target="_blank" rel="noopener" className={pdfLink} data-testid="print-certificate">
+                Print the certificate
+              </a>
+            ) : null}
+            <p className="text-sm text-ink-soft">
+              {certificateReady
+                ? "Print the certificate first: it goes into the carton with the speakers. It opens as a PDF in a new tab."
+                : "This pair was tested before final tests were recorded: its certificate is issued when it is packed. Pack it, then print the certificate and put it in before the carton is closed."}
+            </p>
+          </div>
+          <PackForm pair={pair.identity} items={items} locations={locations} />
+        </Panel>
+      ) : (
+        <Notice tone="caution" testId="not-packable">
+          {pair.state === "shipped" ? `${pair.identity} has already shipped.` : `${pair.identity} is ${stateLabel(pair.state)}: only a pair that has passed its final test can be packed.`}
+        </Notice>
+      )}
+    </div>
+  );
+}

@@ -1,0 +1,136 @@
+"use client";
+import Link from "next/link";
+import { useId, useState } from "react";
+import { submitKeepingFields, useActionStateThen } from "@/components/ui/kept-form";
+import { controlClasses } from "@/components/ui/field";
+import { Notice } from "@/components/ui/notice";
+import { Button } from "@/components/ui/button";
+import { initialFormState } from "@/lib/forms";
+import { shipCartonsAction } from "./actions";
+
+export interface ShipCarton {
+  carton: string;
+  pair: string | null;
+  model: string;
+  finish: string | null;
+  location: string | null;
+  packedOn: string;
+}
+
+const labelHref = (carton: string) => `/api/v1/cartons/${encodeURIComponent(carton)}/label`;
+
+/**
+ * The cartons waiting to ship, each with a box to tick, and the shipment's particulars. Every
+ * field is kept in state, so nothing typed is lost when the action answers with a problem.
+ */
+export function ShipForm({ cartons, dealers, today }: { cartons: ShipCarton[]; dealers: { id: string; name: string; city: string }[]; today: string }) {
+  const [picked, setPicked] = useState<string[]>([]);
+  const [dealerId, setDealerId] = useState("");
+  const [shippedOn, setShippedOn] = useState(today);
+  const [carrier, setCarrier] = useState("");
+  const [tracking, setTracking] = useState("");
+  // Shipped: the cartons have left the list, and the next shipment starts from a blank form.
+  const [state, action, pending] = useActionStateThen(shipCartonsAction, initialFormState, () => {
+    setPicked([]);
+    setDealerId("");
+    setShippedOn(today);
+    setCarrier("");
+    setTracking("");
+  });
+  const id = useId();
+  const submit = submitKeepingFields(action, pending);
+
+  const errors = (field: string) => (!state.ok ? state.fieldErrors?.[field] : undefined);
+  const describe = (field: string) => (errors(field)?.length ? `${id}-${field}-error` : undefined);
+  const errorLine = (field: string) =>
+    errors(field)?.length ? (
+      <p id={`${id}-${field}-error`} className="text-sm font-bold text-danger">
+        {errors(field)!.join(" ")}
+      </p>
+    ) : null;
+  const toggle = (carton: string, on: boolean) => setPicked((list) => (on ? [...list, carton] : list.filter((c) => c !== carton)));
+
+  if (cartons.length === 0 && !state.message) return <p className="text-ink-soft" data-testid="nothing-to-ship">No packed cartons are waiting to ship.</p>;
+
+  return (
+    <form onSubmit={submit} aria-busy={pending} className="flex flex-col gap-4" noValidate data-testid="ship-form">
+      {state.message ? (
+        <Notice tone={state.ok ? "leaf" : "danger"} testId={state.ok ? "shipped" : "ship-refused"}>
+          {state.message}
+        </Notice>
+      ) : null}
+      {cartons.length ? (
+        <fieldset className="flex flex-col gap-2" aria-describedby={describe("cartons")}>
+          <legend className="mb-1 font-bold">Cartons to ship</legend>
+          <ul className="flex flex-col gap-2" data-testid="waiting-cartons">
+            {cartons.map((c) => (
+              <li key={c.carton} className="flex flex-wrap items-center gap-3 rounded-lg border border-line bg-surface px-3 py-2 has-checked:border-leaf has-checked:bg-leaf-soft" data-testid="waiting-carton">
+                <label className="flex min-h-12 flex-1 cursor-pointer items-center gap-3">
+                  <input type="checkbox" name="cartons" value={c.carton} checked={picked.includes(c.carton)} onChange={(e) => toggle(c.carton, e.currentTarget.checked)} className="size-6 accent-leaf" />
+                  <span className="flex flex-col">
+                    <span className="serial font-bold">{c.carton}</span>
+                    <span className="text-sm text-ink-soft">
+                      {[c.model, c.finish, c.pair ? `pair ${c.pair}` : null].filter(Boolean).join(" · ")}
+                    </span>
+                  </span>
+                </label>
+                <span className="text-sm">
+                  <span className="text-ink-soft">At </span>
+                  <span className="font-bold">{c.location ?? "not recorded"}</span>
+                  <span className="text-ink-soft"> · packed {c.packedOn}</span>
+                </span>
+                <Link href={labelHref(c.carton)} target="_blank" rel="noopener" className="text-sm font-bold text-leaf-dark underline underline-offset-4">
+                  Carton label
+                </Link>
+              </li>
+            ))}
+          </ul>
+          {errorLine("cartons")}
+        </fieldset>
+      ) : null}
+      <div className="grid gap-4 sm:grid-cols-2">
+        <div className="flex flex-col gap-1.5">
+          <label htmlFor={`${id}-dealer`} className="font-bold">
+            Dealer
+          </label>
+          <select id={`${id}-dealer`} name="dealerId" value={dealerId} onChange={(e) => setDealerId(e.currentTarget.value)} className={controlClasses} aria-invalid={errors("dealerId")?.length ? true : undefined} aria-describedby={describe("dealerId")}>
+            <option value="">Choose the dealer…</option>
+            {dealers.map((d) => (
+              <option key={d.id} value={d.id}>
+                {d.name}, {d.city}
+              </option>
+            ))}
+          </select>
+          {errorLine("dealerId")}
+        </div>
+        <div className="flex flex-col gap-1.5">
+          <label htmlFor={`${id}-date`} className="font-bold">
+            Shipped on
+          </label>
+          <input id={`${id}-date`} type="date" name="shippedOn" value={shippedOn} max={today} onChange={(e) => setShippedOn(e.currentTarget.value)} className={controlClasses} aria-invalid={errors("shippedOn")?.length ? true : undefined} aria-describedby={describe("shippedOn")} />
+          {errorLine("shippedOn")}
+        </div>
+        <div className="flex flex-col gap-1.5">
+          <label htmlFor={`${id}-carrier`} className="font-bold">
+            Carrier
+          </label>
+          <input id={`${id}-carrier`} name="carrier" value={carrier} onChange={(e) => setCarrier(e.currentTarget.value)} className={controlClasses} autoComplete="off" aria-invalid={errors("carrier")?.length ? true : undefined} aria-describedby={describe("carrier")} />
+          {errorLine("carrier")}
+        </div>
+        <div className="flex flex-col gap-1.5">
+          <label htmlFor={`${id}-tracking`} className="font-bold">
+            Tracking number
+          </label>
+          <input id={`${id}-tracking`} name="tracking" value={tracking} onChange={(e) => setTracking(e.currentTarget.value)} className={`${controlClasses} serial`} autoComplete="off" spellCheck={false} aria-invalid={errors("tracking")?.length ? true : undefined} aria-describedby={describe("tracking")} />
+          {errorLine("tracking")}
+        </div>
+      </div>
+      <p className="text-sm text-ink-soft">The dealer gets one e-mail listing every pair with the tracking number, and each pair&apos;s certificate attached as a PDF copy.</p>
+      <div>
+        <Button type="submit" disabled={pending || cartons.length === 0} aria-busy={pending}>
+          {pending ? "Shipping…" : `Ship ${picked.length ? `${picked.length} carton${picked.length === 1 ? "" : "s"}` : "the ticked cartons"}`}
+        </Button>
+      </div>
+    </form>
+  );
+}

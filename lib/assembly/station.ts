@@ -1,0 +1,2 @@
+/** Where assembly records its work. */
+export const ASSEMBLY_STATION = "assembly";

@@ -1,0 +1,82 @@
+import "server-only";
+import { and, desc, eq, inArray, ne } from "drizzle-orm";
+import { alias } from "drizzle-orm/sqlite-core";
+import type { DbOrTx } from "@/db";
+import { batchUnits, events, items, matchedSets, models, modelTolerances, setMembers, unitBatches } from "@/db/schema";
+import type { PartType } from "@/lib/vocabulary/part-types";
+import type { Side } from "@/lib/vocabulary/sides";
+
+export interface FailedPart {
+  id: string;
+  identity: string;
+  kind: string;
+  partType: string | null;
+  /** The reason given when it was set aside, and when. */
+  reason: string | null;
+  at: Date | null;
+}
+
+/** Drive units and crossover boards set aside as failed, each with the reason of its newest state change. */
+export async function failedParts(db: DbOrTx, limit = 100): Promise<FailedPart[]> {
+  const failed = await db
+    .select({ id: items.id, identity: items.identity, partType: items.partType, kind: items.kind })
+    .from(items)
+    .where(and(inArray(items.kind, ["drive_unit", "crossover"]), eq(items.state, "failed")))
+    .limit(limit);
+  if (!failed.length) return [];
+  const reasons = await db
+    .select({ subjectId: events.subjectId, reason: events.reason, at: events.at })
+    .from(events)
+    .where(and(eq(events.type, "item.state_changed"), inArray(events.subjectId, failed.map((f) => f.id))))
+    .orderBy(desc(events.id));
+  return failed.map((f) => {
+    const r = reasons.find((x) => x.subjectId === f.id);
+    return { ...f, reason: r?.reason ?? null, at: r?.at ?? null };
+  });
+}
+
+/** Active models that take units of this part type, with their mismatch limit for it. */
+export function modelsTakingPartType(db: DbOrTx, partType: PartType) {
+  return db
+    .select({ id: models.id, code: models.code, name: models.name, limit: modelTolerances.mismatchLimitDb })
+    .from(modelTolerances)
+    .innerJoin(models, eq(models.id, modelTolerances.modelId))
+    .where(and(eq(modelTolerances.partType, partType), eq(models.active, true)));
+}
+
+export interface LabOrigin {
+  batch: { code: string; lot: string; maker: string; makerSerial: string | null } | null;
+  sets: { id: string; code: string; side: Side; endedAt: Date | null; endReason: string | null; maxDiffDb: number; limitDb: number; createdAt: Date; partner: string | null }[];
+}
+
+/** A drive unit's batch and the matched sets it is or was reserved in, each with its partner (two queries). */
+export async function labOrigin(db: DbOrTx, itemId: string): Promise<LabOrigin> {
+  const [batch] = await db
+    .select({ code: unitBatches.code, lot: unitBatches.lot, maker: unitBatches.maker, makerSerial: batchUnits.makerSerial })
+    .from(batchUnits)
+    .innerJoin(unitBatches, eq(unitBatches.id, batchUnits.batchId))
+    .where(eq(batchUnits.itemId, itemId))
+    .limit(1);
+  const mine = alias(setMembers, "mine");
+  const rows = await db
+    .select({ set: matchedSets, side: mine.side, endedAt: mine.endedAt, endReason: mine.endReason, partner: items.identity })
+    .from(mine)
+    .innerJoin(matchedSets, eq(matchedSets.id, mine.setId))
+    .leftJoin(setMembers, and(eq(setMembers.setId, mine.setId), ne(setMembers.itemId, itemId)))
+    .leftJoin(items, eq(items.id, setMembers.itemId))
+    .where(eq(mine.itemId, itemId));
+  return {
+    batch: batch ?? null,
+    sets: rows.map((r) => ({
+      id: r.set.id,
+      code: r.set.code,
+      side: r.side,
+      endedAt: r.endedAt,
+      endReason: r.endReason,
+      maxDiffDb: r.set.maxDiffDb,
+      limitDb: r.set.limitDb,
+      createdAt: r.set.createdAt,
+      partner: r.partner,
+    })),
+  };
+}

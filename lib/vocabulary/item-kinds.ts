@@ -1,0 +1,42 @@
+/** Every kind of thing the register follows. Serialised kinds carry a MOD 37-2 checked serial. */
+export const ITEM_KINDS = ["flitch", "leaf", "cabinet", "drive_unit", "crossover", "component_lot", "speaker", "pair", "carton", "shipment"] as const;
+export type ItemKind = (typeof ITEM_KINDS)[number];
+
+/** Kinds that name a quantity rather than one physical part: they may sit in many parents at once. */
+export const SHARED_KINDS: readonly ItemKind[] = ["component_lot"];
+
+/** A kind as a heading or table cell: "Drive unit". */
+export const KIND_LABEL: Record<ItemKind, string> = {
+  flitch: "Flitch",
+  leaf: "Veneer leaf",
+  cabinet: "Cabinet",
+  drive_unit: "Drive unit",
+  crossover: "Crossover",
+  component_lot: "Component lot",
+  speaker: "Speaker",
+  pair: "Pair",
+  carton: "Carton",
+  shipment: "Shipment",
+};
+
+/** A kind inside a sentence: "a crossover board". */
+export const KIND_WORD: Record<ItemKind, string> = {
+  flitch: "flitch",
+  leaf: "veneer leaf",
+  cabinet: "cabinet",
+  drive_unit: "drive unit",
+  crossover: "crossover board",
+  component_lot: "component lot",
+  speaker: "speaker",
+  pair: "pair",
+  carton: "carton",
+  shipment: "shipment",
+};
+
+export const isItemKind = (v: string): v is ItemKind => (ITEM_KINDS as readonly string[]).includes(v);
+
+/** A kind's label; a kind recorded before this list existed shows as it is. */
+export const kindLabel = (kind: string): string => (isItemKind(kind) ? KIND_LABEL[kind] : kind);
+
+/** A state as people read it: "in_assembly" → "in assembly". */
+export const stateLabel = (state: string) => state.replace(/_/g, " ");
