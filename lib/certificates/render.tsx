@@ -5,6 +5,7 @@ import { CERT_MONO_FONT as MONO_FONT, CERT_TEXT_FONT as TEXT_FONT, registerCerti
 import type { Side } from "@/lib/vocabulary/sides";
 import type { CertificateData, FinalTestFigure, PositionRow, VeneerOrigin } from "./data";
 import { formatDb, formatHz } from "./data";
+import { formatLongDate, formatMonthYear } from "@/lib/format";
 
 // Twinleaf's palette (app/globals.css).
 const PAPER = "#f6f3ec";
@@ -30,9 +31,9 @@ const PAGE_W = 595.28;
 const MARGIN_X = 36;
 const CONTENT_W = PAGE_W - 2 * MARGIN_X;
 
-const zone = () => process.env.TZ || "UTC";
-const longDate = (d: Date) => new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "long", year: "numeric", timeZone: zone() }).format(d);
-const monthYear = (d: Date) => new Intl.DateTimeFormat("en-GB", { month: "long", year: "numeric", timeZone: zone() }).format(d);
+// A certificate is kept for years: its dates always carry the year, in the workshop's time zone.
+const longDate = formatLongDate;
+const monthYear = formatMonthYear;
 
 const PART_NAMES: Record<string, string> = { tweeter: "tweeter", midrange: "midrange", bass: "bass", crossover: "crossover" };
 

@@ -1,12 +1,9 @@
-/** Calendar dates as the workshop reads them: in the server's time zone (TZ, default UTC), like lib/format.ts. */
-const zone = () => process.env.TZ || "UTC";
+/** Calendar dates as the workshop reads them: in its one time zone (TWINLEAF_TIME_ZONE, lib/workshop-time.ts). */
+import { formatMonthYear } from "@/lib/format";
+import { workshopDay } from "@/lib/workshop-time";
 
 /** The calendar date of `d` as YYYY-MM-DD in the workshop's time zone. */
-export function isoDay(d: Date, timeZone = zone()): string {
-  const parts = new Intl.DateTimeFormat("en-GB", { timeZone, year: "numeric", month: "2-digit", day: "2-digit" }).formatToParts(d);
-  const part = (type: string) => parts.find((p) => p.type === type)?.value ?? "";
-  return `${part("year")}-${part("month")}-${part("day")}`;
-}
+export const isoDay = (d: Date): string => workshopDay(d);
 
 /** True for a real calendar date written YYYY-MM-DD (no 31 February). */
 export function isCalendarDay(text: string): boolean {
@@ -20,6 +17,4 @@ export function isCalendarDay(text: string): boolean {
 export const noonUtc = (day: string) => new Date(`${day}T12:00:00Z`);
 
 /** "November 2026": the month of `d` in the workshop's time zone. */
-export function monthName(d: Date, timeZone = zone()): string {
-  return new Intl.DateTimeFormat("en-GB", { timeZone, month: "long", year: "numeric" }).format(d);
-}
+export const monthName = (d: Date): string => formatMonthYear(d);

@@ -2,6 +2,8 @@
  * GS1 check digits and the element string a carton label carries: (01) GTIN, (11) production
  * date, (21) serial and optionally (10) lot. Rules from the GS1 General Specifications.
  */
+import { TZDate } from "@date-fns/tz";
+import { inWorkshopZone } from "@/lib/workshop-time";
 
 /**
  * Mod-10 check digit of the data digits (everything but the check digit): weights 3, 1, 3, …
@@ -33,10 +35,10 @@ export interface CartonElementInput {
   gtin: string;
   /** The carton's serial, usually the register's K-… serial. */
   serial: string;
-  /** Printed as YYMMDD in `timeZone`. */
+  /** Printed as YYMMDD: its calendar date in `timeZone`. */
   productionDate: Date;
   lot?: string;
-  /** The calendar the date is read in; defaults to the server's (TZ, else UTC), as lib/format.ts does. */
+  /** The calendar the date is read in; defaults to the workshop's (TWINLEAF_TIME_ZONE, lib/workshop-time.ts). */
   timeZone?: string;
 }
 
@@ -94,9 +96,10 @@ function checkCset82(label: string, value: string): void {
   if (/[()]/.test(value)) throw new Error(`GS1 ${label}: "${value}" holds a parenthesis, which the bracketed label text cannot carry`);
 }
 
-function yymmdd(date: Date, timeZone = process.env.TZ || "UTC"): string {
+/** GS1 AI (11) date, YYMMDD, of the calendar date of `date` in `timeZone` (default the workshop's). */
+function yymmdd(date: Date, timeZone?: string): string {
   if (Number.isNaN(date.getTime())) throw new Error("GS1 (11): the production date is not a valid date");
-  const parts = new Intl.DateTimeFormat("en-GB", { timeZone, year: "numeric", month: "2-digit", day: "2-digit" }).formatToParts(date);
-  const part = (type: string) => parts.find((p) => p.type === type)?.value ?? "";
-  return part("year").slice(-2) + part("month") + part("day");
+  const t = timeZone ? new TZDate(date.getTime(), timeZone) : inWorkshopZone(date);
+  const two = (n: number) => String(n).padStart(2, "0");
+  return two(t.getFullYear() % 100) + two(t.getMonth() + 1) + two(t.getDate());
 }
