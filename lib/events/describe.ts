@@ -1,5 +1,8 @@
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { EVENT_PHRASES, isEventType } from "@/lib/vocabulary/event-types";
+import { dispositionPhrase, ncWhere, type Disposition } from "@/lib/route/words";
+
+const DISPOSITIONS: readonly string[] = ["rework", "use_as_is", "scrap"] satisfies Disposition[];
 
 /** A short sentence for an event; a type recorded before this list existed shows as it is. */
 export function describeEvent(type: string, data: Record<string, unknown> = {}): string {
@@ -12,8 +15,18 @@ export function describeEvent(type: string, data: Record<string, unknown> = {}):
   if (type === "veneer.run_confirmed") return `confirmed a run for ${s("pair")}: left ${String(data.left ?? "")}, right ${String(data.right ?? "")} turned${Array.isArray(data.reserve) && data.reserve.length ? `, reserve ${String(data.reserve)}` : ""}`;
   if (type === "veneer.reserve_released") return `re-veneered ${s("cabinet")} at ${s("position")} with ${s("leaf")} (replacing ${s("replaces")})`;
   if (type === "route.step_recorded") return `recorded step ${String(data.seq ?? "")}, ${s("step").toLowerCase()}${Array.isArray(data.outOfWindow) && data.outOfWindow.length ? " (out of window)" : ""}`;
-  if (type === "nc.opened") return `opened ${s("code")}: ${s("finding")}`;
-  if (type === "nc.dispositioned") return `dispositioned ${s("code")}: ${s("disposition").replace(/_/g, " ")}`;
+  if (type === "nc.opened") {
+    const where = typeof data.seq === "number" ? ` ${ncWhere(data.seq, s("step") || null)}` : "";
+    return `opened ${s("code")}${where}: ${s("finding")}`;
+  }
+  if (type === "nc.dispositioned") {
+    const d = s("disposition");
+    if (!DISPOSITIONS.includes(d)) return `dispositioned ${s("code")}`;
+    const reworkToSeq = typeof data.reworkToSeq === "number" ? data.reworkToSeq : null;
+    // Rework "back to" seq 0 is the final pair test's: adjust and test again.
+    const phrase = dispositionPhrase({ disposition: d as Disposition, reworkToSeq, scrapped: s("scrapped") ? { side: null, identity: s("scrapped") } : null });
+    return `dispositioned ${s("code")}: ${phrase}`;
+  }
   if (type === "pair.final_tested") return data.pass ? "passed the final pair test" : "failed the final pair test";
   if (type === "certificate.printed") return data.copy ? "printed a copy of the certificate" : "printed the certificate";
   if (type === "label.printed") return data.reprint ? "reprinted a label" : phrase;
