@@ -12,18 +12,19 @@ import type { Actor } from "@/lib/vocabulary/actor";
 import { PAIR_CABINET_POSITION as CAB_POSITION, sideOfCabinetPosition } from "@/lib/vocabulary/positions";
 import type { Side } from "./types";
 import { pairRoute } from "./pair-route";
+import { DISPOSITION_WORDS, dispositionSentence } from "./words";
 
 /** Quality's decision on a nonconformance, once: rework to a named step, use as is, or scrap one cabinet. */
 export async function dispositionNc(
   db: DbOrTx,
   input: { ncId: string; disposition: "rework" | "use_as_is" | "scrap"; reworkToSeq?: number | null; scrapSide?: Side | null; reason: string },
   actor: Actor,
-): Promise<void> {
-  await db.transaction(async (tx) => {
+): Promise<{ code: string }> {
+  return db.transaction(async (tx) => {
     const at = clockNow();
     const [nc] = await tx.select().from(nonconformances).where(eq(nonconformances.id, input.ncId)).limit(1);
     if (!nc) throw new AppError(404, "That nonconformance is not in the register.");
-    if (nc.disposition) throw new AppError(409, `${nc.code} was already dispositioned (${nc.disposition.replace(/_/g, " ")}).`);
+    if (nc.disposition) throw new AppError(409, `${nc.code} was already dispositioned (${DISPOSITION_WORDS[nc.disposition]}).`);
     const [pair] = await tx.select().from(items).where(eq(items.id, nc.pairId)).limit(1);
     const route = await pairRoute(tx, pair!, at);
     let reworkToSeq: number | null = null;
@@ -68,6 +69,43 @@ export async function dispositionNc(
       await changeState(tx, scrapCabinet, "scrapped", by, { nc: nc.code });
       await changeState(tx, pair!, "unpartnered", by, { scrapped: scrapCabinet.identity });
     }
+    return { code: nc.code };
+  });
+}
+
+/**
+ * The confirmation of a recorded disposition, from the register as it is now: "NC-2612-003:
+ * rework back to step 4, Sanding. The pair is released." Null when no such nonconformance has a
+ * disposition (or, with `pairId`, when it is another pair's).
+ */
+export async function dispositionSummary(db: DbOrTx, code: string, opts: { pairId?: string } = {}): Promise<string | null> {
+  const [nc] = await db.select().from(nonconformances).where(eq(nonconformances.code, code)).limit(1);
+  if (!nc?.disposition || (opts.pairId && nc.pairId !== opts.pairId)) return null;
+  const [holder] = await db.select().from(items).where(eq(items.id, nc.pairId)).limit(1);
+  if (!holder) return null;
+  const stillOpen = await db
+    .select({ code: nonconformances.code })
+    .from(nonconformances)
+    .where(and(eq(nonconformances.pairId, nc.pairId), isNull(nonconformances.disposition)))
+    .orderBy(asc(nonconformances.openedAt));
+  let reworkToName: string | null = null;
+  if (nc.reworkToSeq) {
+    try {
+      reworkToName = (await pairRoute(db, holder)).spec.steps.find((s) => s.seq === nc.reworkToSeq)?.name ?? null;
+    } catch {
+      // A pair whose route cannot be read now (no spec): the step's number alone.
+    }
+  }
+  const [scrapped] = nc.scrapCabinetId ? await db.select({ identity: items.identity }).from(items).where(eq(items.id, nc.scrapCabinetId)).limit(1) : [];
+  return dispositionSentence({
+    code: nc.code,
+    disposition: nc.disposition,
+    seq: nc.seq,
+    reworkToSeq: nc.reworkToSeq,
+    reworkToName,
+    scrapped: scrapped ? { identity: scrapped.identity, side: holder.kind === "cabinet" ? null : (nc.cabinets.find((c) => c.id === nc.scrapCabinetId)?.side ?? null) } : null,
+    holder: holder.kind === "cabinet" ? "cabinet" : "pair",
+    stillOpen: stillOpen.map((o) => o.code),
   });
 }
 

@@ -6,13 +6,19 @@ import { SubmitButton } from "@/components/ui/submit-button";
 import { initialFormState } from "@/lib/forms";
 import { dispositionAction } from "./actions";
 
-/** Quality's one decision on a nonconformance. */
+/** Quality's one decision on a nonconformance. `back` is the page to return to (a path of this site). */
 export function DispositionForm({ nc, steps, sides, back }: { nc: { id: string; code: string; seq: number }; steps: { seq: number; name: string }[]; sides: { side: "L" | "R"; identity: string }[]; back: string }) {
   const [state, action] = useActionState(dispositionAction, initialFormState);
   const [kind, setKind] = useState("");
   return (
     <form action={action} className="flex flex-col gap-4 rounded-lg border border-line p-4" data-testid={`disposition-${nc.code}`}>
-      {state.message ? <Notice tone={state.ok ? "leaf" : "danger"}>{state.message}</Notice> : null}
+      {/* Success returns to the page, which says what was recorded; only a refusal shows here. */}
+      {!state.ok && state.message ? (
+        <Notice tone="danger" testId={`disposition-refused-${nc.code}`}>
+          {state.message}
+          {state.fieldErrors?.back?.[0] ? ` ${state.fieldErrors.back[0]}` : ""}
+        </Notice>
+      ) : null}
       <input type="hidden" name="ncId" value={nc.id} />
       <input type="hidden" name="back" value={back} />
       <div className="grid gap-4 sm:grid-cols-3">

@@ -7,27 +7,37 @@ import { Panel } from "@/components/ui/panel";
 import { getDb } from "@/db";
 import { areaByKey } from "@/lib/areas";
 import { requirePage } from "@/lib/auth/guard";
-import { formatWhen } from "@/lib/format";
-import { dispositionedNonconformances, ncsToDisposition } from "@/lib/route/nonconformances";
+import { Notice } from "@/components/ui/notice";
+import { now } from "@/lib/clock";
+import { formatWhen, timesNote } from "@/lib/format";
+import { dispositionedNonconformances, dispositionSummary, ncsToDisposition } from "@/lib/route/nonconformances";
+import { DISPOSITION_WORDS, dispositionPhrase, ncWhere } from "@/lib/route/words";
 import { DispositionForm } from "./disposition-form";
 
 export const metadata: Metadata = { title: "Quality" };
 
-const DISPOSITION: Record<string, string> = { rework: "rework", use_as_is: "use as is", scrap: "scrap" };
-
-export default async function Page() {
+export default async function Page({ searchParams }: { searchParams: Promise<Record<string, string | string[] | undefined>> }) {
   await requirePage("quality.work");
   const db = getDb();
+  const at = now();
   const [forms, closed] = await Promise.all([ncsToDisposition(db), dispositionedNonconformances(db)]);
+  // What the disposition form just recorded, read back from the register (the code alone comes from the address).
+  const { dispositioned } = await searchParams;
+  const recorded = typeof dispositioned === "string" ? await dispositionSummary(db, dispositioned) : null;
   return (
     <AreaOverview area={areaByKey("quality")}>
+      {recorded ? (
+        <Notice tone="leaf" testId="disposition-recorded">
+          {recorded}
+        </Notice>
+      ) : null}
       <Panel title="Open nonconformances">
         {forms.length ? (
           <div className="flex flex-col gap-6" data-testid="open-ncs">
             {forms.map(({ nc, pair, steps, sides }) => (
               <div key={nc.id}>
                 <p className="mb-2">
-                  <span className="font-bold">{nc.code}</span> on <SerialLink identity={pair} href={paths.cabinetPair(pair)} />, opened {formatWhen(nc.openedAt)} at step {nc.seq}: {nc.finding}
+                  <span className="font-bold">{nc.code}</span> on <SerialLink identity={pair} href={paths.cabinetPair(pair)} />, opened {formatWhen(nc.openedAt, at)} {ncWhere(nc.seq, steps.find((s) => s.seq === nc.seq)?.name)}: {nc.finding}
                 </p>
                 <DispositionForm nc={{ id: nc.id, code: nc.code, seq: nc.seq }} steps={steps} sides={sides} back={paths.quality} />
               </div>
@@ -55,12 +65,15 @@ export default async function Page() {
             cells: {
               code: { value: n.code },
               finding: { value: n.finding },
-              disposition: { value: n.disposition ?? "", display: `${DISPOSITION[n.disposition!]}${n.reworkToSeq ? ` to step ${n.reworkToSeq}` : ""}` },
+              disposition: { value: n.disposition ? DISPOSITION_WORDS[n.disposition] : "", display: n.disposition ? dispositionPhrase({ disposition: n.disposition, seq: n.seq, reworkToSeq: n.reworkToSeq }) : "" },
               reason: { value: n.reason ?? "" },
-              at: { value: n.dispositionedAt?.getTime() ?? 0, display: n.dispositionedAt ? formatWhen(n.dispositionedAt) : "" },
+              at: { value: n.dispositionedAt?.getTime() ?? 0, display: n.dispositionedAt ? formatWhen(n.dispositionedAt, at) : "" },
             },
           }))}
         />
+        <p className="mt-2 text-sm text-ink-soft" data-testid="times-note">
+          {timesNote()}
+        </p>
       </Panel>
     </AreaOverview>
   );
