@@ -7,7 +7,8 @@ import { getDb } from "@/db";
 import { AREAS } from "@/lib/areas";
 import { requirePage } from "@/lib/auth/guard";
 import { recentEvents } from "@/lib/events/queries";
-import { formatDay } from "@/lib/format";
+import { now } from "@/lib/clock";
+import { formatDay, timesNote } from "@/lib/format";
 import { listUsers } from "@/lib/users/queries";
 
 export const metadata: Metadata = { title: "Today" };
@@ -21,10 +22,11 @@ export default async function TodayPage() {
   const stations = [...new Set(mine.flatMap((a) => a.stations))];
   const events = isAdmin ? await recentEvents(db, { limit: 20 }) : stations.length ? await recentEvents(db, { stations, limit: 20 }) : [];
   const people = isAdmin ? await listUsers(db) : [];
+  const at = now();
 
   return (
     <div className="flex flex-col gap-6" data-testid="today">
-      <PageHeader title={`Hello, ${user.name.split(" ")[0]}`} lead={formatDay(new Date())} />
+      <PageHeader title={`Hello, ${user.name.split(" ")[0]}`} lead={formatDay(at, at)} />
       {mine.length === 0 ? (
         <Panel>
           <p>Your account has no roles yet, so there is no station work for you. You can still read the register. An administrator can give you roles.</p>
@@ -51,6 +53,9 @@ export default async function TodayPage() {
       ) : null}
       <Panel title={isAdmin ? "Latest in the register" : "Latest at your stations"}>
         <EventTable events={events} caption="Latest events" empty="Nothing recorded at your stations yet." />
+        <p className="mt-2 text-sm text-ink-soft" data-testid="times-note">
+          {timesNote()}
+        </p>
       </Panel>
     </div>
   );

@@ -10,7 +10,8 @@ import { appendEvent } from "@/lib/events/queries";
 import { changeState, itemByIdentity } from "@/lib/genealogy/graph";
 import { parseSerial } from "@/lib/serials/format";
 import type { Actor } from "@/lib/vocabulary/actor";
-import { checkReadings, checkStep, position } from "./rules";
+import { workshopDay } from "@/lib/workshop-time";
+import { cabinetsPhrase, checkReadings, checkStep, outOfWindowConfirmation, outOfWindowQuestion, position, type OutOfWindow } from "./rules";
 import type { PairPosition, RouteEntry, Side, StepSpec } from "./types";
 import { currentSpec } from "./specs";
 
@@ -100,20 +101,39 @@ export async function pairRoute(db: DbOrTx, pair: Item, at: Date = clockNow()): 
   return { pair, model: model!, finishName: finish?.name ?? null, spec, started: Boolean(start), cabinets, history, records, ncs, position: pos };
 }
 
+/** "NC-2612-": the year and month of the workshop's calendar. */
 async function nextNcCode(tx: DbOrTx, at: Date) {
-  const prefix = `NC-${at.toISOString().slice(2, 4)}${at.toISOString().slice(5, 7)}-`;
+  const day = workshopDay(at);
+  const prefix = `NC-${day.slice(2, 4)}${day.slice(5, 7)}-`;
   const [row] = await tx.select({ n: sql<number>`count(*)` }).from(nonconformances).where(like(nonconformances.code, `${prefix}%`));
   return `${prefix}${String(Number(row?.n ?? 0) + 1).padStart(3, "0")}`;
 }
 
 /**
+ * Readings out of their window that the person recording has not confirmed: nothing is written.
+ * `confirmation` is what to send back (as `confirmOutOfWindow`) to record them and open a
+ * nonconformance; the message is the question to ask.
+ */
+export class OutOfWindowUnconfirmed extends AppError {
+  constructor(
+    public readonly outOfWindow: OutOfWindow[],
+    public readonly confirmation: string,
+  ) {
+    super(409, outOfWindowQuestion(outOfWindow), Object.fromEntries(outOfWindow.map((o) => [o.key, [`Out of its window (${o.window}).`]])));
+    this.name = "OutOfWindowUnconfirmed";
+  }
+}
+
+/**
  * Records a step for one or both cabinets of a pair. Refuses a step out of order or one started
  * before a hold releases (with the time it becomes allowed), and a reading that is not a number.
- * A reading out of its window is recorded, and opens a nonconformance that holds the pair.
+ * A reading out of its window is recorded only when `confirmOutOfWindow` names it and its value
+ * (`outOfWindowConfirmation`; otherwise OutOfWindowUnconfirmed asks, and nothing is written); it
+ * then opens a nonconformance that holds the pair.
  */
 export async function recordStep(
   db: DbOrTx,
-  input: { pairId: string; seq: number; sides: Side[]; startedAt?: Date; readings: Record<string, string | boolean | undefined> },
+  input: { pairId: string; seq: number; sides: Side[]; startedAt?: Date; readings: Record<string, string | boolean | undefined>; confirmOutOfWindow?: string | null },
   actor: Actor,
 ): Promise<{ recordId: number; nc: string | null }> {
   return db.transaction(async (tx) => {
@@ -131,6 +151,8 @@ export async function recordStep(
     const station = step.station;
     const readings = checkReadings(step, input.readings);
     if (!readings.ok) throw new AppError(400, "Some readings need attention.", readings.fieldErrors);
+    const confirmation = outOfWindowConfirmation(readings.outOfWindow);
+    if (readings.outOfWindow.length && input.confirmOutOfWindow !== confirmation) throw new OutOfWindowUnconfirmed(readings.outOfWindow, confirmation);
     if (!route.started) {
       const eventId = await appendEvent(tx, { actorId: actor.id, station, type: "route.started", subjectKind: "item", subjectId: pair.id, data: { identity: pair.identity, specVersion: route.spec.version } });
       await tx.insert(routeStarts).values({ pairId: pair.id, specId: route.spec.id, eventId });
@@ -184,3 +206,21 @@ function unitOf(step: StepSpec, key: string) {
   return u ? ` ${u}` : "";
 }
 
+
+/**
+ * What a page says after a step is recorded, from the record itself: "Recorded step 3, Brace
+ * fitting, for the left and right cabinets." and the nonconformance it opened. Null for a record
+ * that is not this pair's.
+ */
+export function recordedNotice(route: PairRoute, recordId: number): { text: string; nc: string | null } | null {
+  const record = route.records.find((r) => r.id === recordId);
+  if (!record) return null;
+  const step = route.spec.steps.find((s) => s.seq === record.seq);
+  const sides = record.cabinets.map((c) => c.side);
+  const who = route.pair.kind === "cabinet" ? "" : `, for ${cabinetsPhrase(sides)}`;
+  const nc = route.ncs.find((n) => n.recordId === record.id) ?? null;
+  const text = `Recorded step ${record.seq}${step ? `, ${step.name}` : ""}${who}.`;
+  return nc
+    ? { text: `${text} A reading was out of its window: nonconformance ${nc.code} holds ${route.pair.kind === "cabinet" ? "the cabinet" : "the pair"} until quality dispositions it.`, nc: nc.code }
+    : { text, nc: null };
+}

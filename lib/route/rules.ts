@@ -3,10 +3,13 @@
  * and whether a step's readings are complete and inside their windows. Pure TypeScript: no server,
  * no Node APIs and no clock — every function that needs the time takes `now` explicitly.
  *
- * Times in messages are shown in UTC, like "14:05 on 3 Dec" (the year is added only when it is not
- * the year of `now`), because the app shows UTC times everywhere else. A release time is rounded up
- * to the whole minute for display, so the time shown is never earlier than the real release.
+ * Times in messages come from lib/format.ts, in the workshop's time zone with its name, like
+ * "14:05 on 3 Dec (Europe/London)" (the year only when it is not the year of `now`). A hold is
+ * allowed from its release rounded up to the whole minute (`allowedFromMinute`): the rules enforce
+ * that minute and every page shows it, so the caution and the refusal name the same time.
  */
+import { formatShopTime } from "@/lib/format";
+import { allowedFromMinute } from "@/lib/workshop-time";
 import type { CabinetPosition, PairPosition, ReadingSpec, RouteEntry, RouteSpec, Side, StepSpec } from "./types";
 
 /** Readings are compared with their windows with this tolerance, so "0.20" typed for 0.2 is in. */
@@ -29,7 +32,11 @@ export interface OutOfWindow {
   key: string;
   label: string;
   value: number | boolean;
+  /** "°C", "mm"…; null for a check. */
+  unit: string | null;
   window: string;
+  /** Which side of the window the value fell: "outside 135–140 °C", "below the minimum of 120 min", "not passed". */
+  miss: string;
 }
 
 export type ReadingsCheck =
@@ -41,7 +48,7 @@ export interface CabinetHold {
   side: Side;
   /** The step whose hold it is. */
   step: StepSpec;
-  /** When the hold releases: a step may start at exactly this time. */
+  /** When the hold releases, rounded up to the minute (`allowedFromMinute`): a step may start at exactly this time. */
   until: Date;
   label: string;
 }
@@ -62,21 +69,6 @@ export function cabinetsPhrase(sides: Side[]): string {
 function joinAnd(words: string[]): string {
   if (words.length <= 1) return words.join("");
   return `${words.slice(0, -1).join(", ")} and ${words[words.length - 1]}`;
-}
-
-const MONTHS = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"] as const;
-
-/**
- * A time for the shop floor, in UTC: "14:05 on 3 Dec". The year is added ("14:05 on 3 Jan 2027")
- * when `now` is given and is in another year. `roundUp` rounds up to the whole minute (for release
- * times: never show a time earlier than the real one).
- */
-export function formatShopTime(d: Date, now?: Date, roundUp = false): string {
-  const t = roundUp ? new Date(Math.ceil(d.getTime() / MINUTE_MS) * MINUTE_MS) : d;
-  const hh = String(t.getUTCHours()).padStart(2, "0");
-  const mm = String(t.getUTCMinutes()).padStart(2, "0");
-  const year = now && now.getUTCFullYear() !== t.getUTCFullYear() ? ` ${t.getUTCFullYear()}` : "";
-  return `${hh}:${mm} on ${t.getUTCDate()} ${MONTHS[t.getUTCMonth()]}${year}`;
 }
 
 /** "Step 9 (Lacquer coat 4, stoved)". */
@@ -158,7 +150,7 @@ function holdOf(side: Side, state: CabinetState, steps: StepSpec[]): CabinetHold
   const entry = state.entries.get(lastSeq);
   if (!step?.holdAfter || !entry) return null;
   const from = step.holdAfter.from === "start" ? entry.startedAt : entry.recordedAt;
-  return { side, step, until: new Date(from.getTime() + step.holdAfter.minutes * MINUTE_MS), label: step.holdAfter.label };
+  return { side, step, until: allowedFromMinute(new Date(from.getTime() + step.holdAfter.minutes * MINUTE_MS)), label: step.holdAfter.label };
 }
 
 /**
@@ -238,7 +230,7 @@ export function checkStep(spec: RouteSpec | StepSpec[], history: RouteEntry[], i
   if (started.getTime() > now.getTime() + FUTURE_TOLERANCE_MS) {
     return {
       ok: false,
-      reason: `The start time ${formatShopTime(started, now)} is in the future (it is now ${formatShopTime(now, now)}). Enter when the step really started.`,
+      reason: `The start time ${formatShopTime(started, now)} is in the future (it is now ${formatShopTime(now, now, { zone: true })}). Enter when the step really started.`,
     };
   }
 
@@ -278,7 +270,7 @@ export function checkStep(spec: RouteSpec | StepSpec[], history: RouteEntry[], i
   if (held.length > 0) {
     const allowedAt = new Date(Math.max(...held.map((h) => h.until.getTime())));
     const groups = groupBy(held, (h) => `${h.until.getTime()}|${h.label}`);
-    const when = formatShopTime(allowedAt, now, true);
+    const when = formatShopTime(allowedAt, now, { zone: true });
     let reason: string;
     if (groups.length === 1) {
       const group = groups[0]![1];
@@ -286,7 +278,7 @@ export function checkStep(spec: RouteSpec | StepSpec[], history: RouteEntry[], i
       const who = cabinetsPhrase(group.map((g) => g.side));
       reason = `Not before ${when}: ${who} ${group.length === 1 ? "is" : "are"} on hold (${h.label}) until then.`;
     } else {
-      const parts = held.map((h) => `${cabinetsPhrase([h.side])} is on hold (${h.label}) until ${formatShopTime(h.until, now, true)}`);
+      const parts = held.map((h) => `${cabinetsPhrase([h.side])} is on hold (${h.label}) until ${formatShopTime(h.until, now)}`);
       reason = `Not before ${when}: ${joinAnd(parts)}.`;
     }
     return { ok: false, reason, allowedAt };
@@ -319,6 +311,16 @@ export function windowText(r: ReadingSpec): string {
   else if (r.max !== undefined) parts.push(`at most ${formatNumber(r.max)}${unit}`);
   if (r.absMax !== undefined) parts.push(`±${formatNumber(r.absMax)}${unit}`);
   return parts.length > 0 ? parts.join(", ") : "any value";
+}
+
+/** How a number misses its window, for the question asked before it is recorded. */
+function missText(r: ReadingSpec, v: number): string {
+  const unit = r.unit ? ` ${r.unit}` : "";
+  if (r.absMax !== undefined && Math.abs(v) > r.absMax + READING_EPSILON) return `outside ±${formatNumber(r.absMax)}${unit}`;
+  if (r.min !== undefined && r.max !== undefined) return `outside ${formatNumber(r.min)}–${formatNumber(r.max)}${unit}`;
+  if (r.min !== undefined) return `below the minimum of ${formatNumber(r.min)}${unit}`;
+  if (r.max !== undefined) return `above the maximum of ${formatNumber(r.max)}${unit}`;
+  return `outside ${windowText(r)}`;
 }
 
 const NUMBER_RE = /^[+-]?(\d+([.,]\d*)?|[.,]\d+)$/;
@@ -378,7 +380,7 @@ export function checkReadings(step: StepSpec, raw: Record<string, string | boole
         continue;
       }
       values[r.key] = pass;
-      if (!pass) outOfWindow.push({ key: r.key, label: r.label, value: false, window: windowText(r) });
+      if (!pass) outOfWindow.push({ key: r.key, label: r.label, value: false, unit: null, window: windowText(r), miss: "not passed" });
       continue;
     }
 
@@ -402,9 +404,63 @@ export function checkReadings(step: StepSpec, raw: Record<string, string | boole
       continue;
     }
     values[r.key] = n;
-    if (!inWindow(r, n)) outOfWindow.push({ key: r.key, label: r.label, value: n, window: windowText(r) });
+    if (!inWindow(r, n)) outOfWindow.push({ key: r.key, label: r.label, value: n, unit: r.unit, window: windowText(r), miss: missText(r, n) });
   }
 
   if (Object.keys(fieldErrors).length > 0) return { ok: false, fieldErrors };
   return { ok: true, values, outOfWindow };
+}
+
+// ——— asking before an out-of-window reading is recorded ———
+
+/** "Platen temperature 141 °C is outside 135–140 °C", "Inspector's check: surface fit for lacquer not passed". */
+export function outOfWindowText(o: OutOfWindow): string {
+  if (typeof o.value === "boolean") return `${o.label}: ${o.miss}`;
+  return `${o.label} ${formatNumber(o.value)}${o.unit ? ` ${o.unit}` : ""} is ${o.miss}`;
+}
+
+/** The one question asked before readings out of their window are recorded and open a nonconformance. */
+export function outOfWindowQuestion(out: OutOfWindow[]): string {
+  const parts = out.map((o, i) => (i === 0 ? outOfWindowText(o) : lcFirst(outOfWindowText(o))));
+  return `${joinAnd(parts)}: record ${out.length === 1 ? "it" : "them"} and open a nonconformance?`;
+}
+
+/**
+ * What a confirmation names: each out-of-window reading and its value. The server records only
+ * when the confirmation sent names exactly the readings it is about to record, so a reading changed
+ * after the question is asked about again.
+ */
+export function outOfWindowConfirmation(out: OutOfWindow[]): string {
+  return out
+    .map((o) => `${o.key}=${String(o.value)}`)
+    .sort()
+    .join("&");
+}
+
+// ——— the next step, now ———
+
+export interface NextStepNow {
+  /** The pair's next step: the earliest next step of its cabinets (null when the route is finished). */
+  step: StepSpec | null;
+  /** The cabinets at that step that may start it now. */
+  ready: Side[];
+  /**
+   * The cabinets at that step that may not start it now, and why: the very refusal `checkStep`
+   * gives a step started now (an open nonconformance, or a hold and the minute it is allowed from).
+   */
+  blocked: { sides: Side[]; reason: string; allowedAt?: Date } | null;
+}
+
+/** What a page offers for the pair's next step now: which cabinets may do it, and why the others may not. */
+export function nextStepNow(spec: RouteSpec | StepSpec[], history: RouteEntry[], sides: Side[], now: Date): NextStepNow {
+  const pos = position(spec, history, sides, now);
+  const step = pos.cabinets.map((c) => c.next).filter((s): s is StepSpec => s !== null).sort((a, b) => a.seq - b.seq)[0] ?? null;
+  if (!step) return { step: null, ready: [], blocked: null };
+  const at = pos.cabinets.filter((c) => c.next?.seq === step.seq).map((c) => c.side);
+  const ready = at.filter((side) => checkStep(spec, history, { seq: step.seq, cabinets: [side], startedAt: now }, now).ok);
+  const held = at.filter((side) => !ready.includes(side));
+  if (!held.length) return { step, ready, blocked: null };
+  const check = checkStep(spec, history, { seq: step.seq, cabinets: held, startedAt: now }, now);
+  if (check.ok) return { step, ready: at, blocked: null };
+  return { step, ready, blocked: { sides: held, reason: check.reason, ...(check.allowedAt ? { allowedAt: check.allowedAt } : {}) } };
 }

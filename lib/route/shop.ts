@@ -7,6 +7,7 @@ import { finishes, items } from "@/db/schema";
 import { now as clockNow } from "@/lib/clock";
 import type { Side } from "./types";
 import { pairRoute, type PairRoute } from "./pair-route";
+import { holdsOf } from "./rules";
 
 export interface ShopPair {
   pair: string;
@@ -56,7 +57,10 @@ export async function shopPairs(db: DbOrTx, at: Date = clockNow()): Promise<Shop
     const holdUntil = withNext.filter((c) => sides.includes(c.side)).map((c) => c.holdUntil).filter((d): d is Date => d !== null).sort((a, b) => b.getTime() - a.getTime())[0] ?? null;
     const lastRecord = route.records.at(-1);
     const lastHold = route.position.cabinets.map((c) => c.holdUntil).filter(Boolean) as Date[];
-    const readySince = holdUntil ? null : lastHold.length ? null : (lastRecord?.recordedAt ?? pair.createdAt);
+    // Allowed since the later of the last record and the end of a hold that has run out.
+    const released = holdsOf(route.spec.steps, route.history, sides).map((h) => h.until.getTime());
+    const recordedSince = (lastRecord?.recordedAt ?? pair.createdAt).getTime();
+    const readySince = holdUntil || lastHold.length ? null : new Date(Math.max(recordedSince, ...released));
     out.push({
       pair: pair.identity,
       model: route.model.code,
@@ -87,7 +91,10 @@ export interface ShopBoard {
   stations: { station: RouteStation; ready: ShopPair[]; waiting: ShopPair[] }[];
 }
 
-/** Sorts the shop's pairs into what its home shows. Pure: `at` and the end of the workshop's day are given. */
+/**
+ * Sorts the shop's pairs into what its home shows. Pure: `at` and `dayEnd`, the last moment of the
+ * workshop's day in its own time zone (`workshopDayEnd` in lib/workshop-time.ts), are given.
+ */
 export function shopBoard(pairs: ShopPair[], at: Date, dayEnd: Date): ShopBoard {
   const releasingToday = pairs
     .filter((p) => p.holdUntil && p.holdUntil > at && p.holdUntil <= dayEnd && !p.openNcs.length)

@@ -42,7 +42,8 @@ afterAll(async () => {
   await browser?.close();
 });
 
-async function record(page: Page, readings: Record<string, string>, expectNc = false) {
+/** Fills the step form and records it; a refusal throws. `expectQuestion`: readings out of window, so the form asks first. */
+async function record(page: Page, readings: Record<string, string>, expectQuestion = false) {
   const form = page.getByTestId("step-form");
   await form.waitFor();
   const title = await page.locator("h2", { hasText: "Next step:" }).textContent();
@@ -51,11 +52,20 @@ async function record(page: Page, readings: Record<string, string>, expectNc = f
     if ((await field.evaluate((el) => el.tagName)) === "SELECT") await field.selectOption(value);
     else await field.fill(value);
   }
+  const before = page.url();
   await form.getByRole("button", { name: /^Record / }).click();
-  await expect.poll(async () => (await page.getByTestId("step-done").count()) > 0 || (await page.getByTestId("step-refused").count()) > 0).toBe(true);
+  // A record returns to the pair's page with what it recorded; a refusal or the question stays on the form.
+  await expect.poll(async () => page.url() !== before || (await page.getByTestId("step-refused").count()) > 0 || (await page.getByTestId("step-confirm").count()) > 0, { timeout: 15_000 }).toBe(true);
   if (await page.getByTestId("step-refused").count()) throw new Error(`${title}: ${await page.getByTestId("step-refused").textContent()}`);
-  if (!expectNc) await expect.poll(() => page.locator("h2", { hasText: "Next step:" }).first().textContent().catch(() => "")).not.toBe(title);
+  if (expectQuestion) return;
+  if (await page.getByTestId("step-confirm").count()) throw new Error(`${title}: asked ${await page.getByTestId("step-confirm").textContent()}`);
+  await page.getByTestId("step-done").waitFor();
+  // The page has moved on to the next step (or to the hold, or to the end of the route).
+  await expect.poll(() => page.locator("h2", { hasText: "Next step:" }).first().textContent({ timeout: 500 }).catch(() => ""), { timeout: 15_000 }).not.toBe(title);
 }
+
+/** "14:05 on 3 Dec (UTC)" from a line that names a time. */
+const minuteIn = (text: string | null) => /\d\d:\d\d on \d+ \w+( \d{4})? \(UTC\)/.exec(text ?? "")?.[0] ?? null;
 
 describe("the cabinet route, walked by a cabinet user", () => {
   test("scans a cabinet label and walks the pair from the press to the hand finish as the clock moves", async () => {
@@ -71,12 +81,22 @@ describe("the cabinet route, walked by a cabinet user", () => {
     await record(cabinet, { "Platen temperature": "137", "Time in the press": "22" });
     await record(cabinet, { "Trim deviation": "0.15" });
     await record(cabinet, { "Time under clamp": "120" });
-    // Straight after the clamp: the next step is refused with the time it becomes allowed.
-    await cabinet.getByTestId("step-form").getByRole("button", { name: /^Record / }).click();
-    await expect(cabinet.getByTestId("step-refused").textContent()).resolves.toMatch(/^Not before/);
+    await expect(cabinet.getByTestId("step-done").textContent()).resolves.toBe("Recorded step 3, Brace fitting, for the left and right cabinets.");
+    // Straight after the clamp: no step form, but why and the minute it is allowed from, the same
+    // minute on the cabinets' cards, on the shop's home, and in the workshop's zone named on the page.
+    const blocked = await cabinet.getByTestId("step-blocked").textContent();
+    expect(blocked).toMatch(/^Not before \d\d:\d\d on \d+ \w+ \(UTC\): the left and right cabinets are on hold \(clamp 2 h and rest 2 h\) until then\.$/);
+    await expect(cabinet.getByTestId("step-form").count()).resolves.toBe(0);
+    const minute = minuteIn(blocked)!;
+    await expect(cabinet.getByTestId("route-cabinets").textContent()).resolves.toContain(`On hold (clamp 2 h and rest 2 h) until ${minute}`);
+    await expect(cabinet.getByTestId("times-note").textContent()).resolves.toMatch(/^Times in UTC\./);
+    await cabinet.goto(url("/cabinet"));
+    await expect(cabinet.getByTestId("station-sanding").textContent()).resolves.toContain(`on hold until ${minute}`);
+    await cabinet.goto(url(`/cabinet/pairs/${pair}`));
 
     moveClock(4 * HOUR + 60_000);
     await cabinet.reload();
+    await expect(cabinet.getByTestId("step-blocked").count()).resolves.toBe(0);
     await record(cabinet, {});
     await record(cabinet, { "Inspector's check": "pass" });
     for (const n of [1, 2, 3, 4]) await record(cabinet, { "Coat number": String(n) });
@@ -93,22 +113,35 @@ describe("the cabinet route, walked by a cabinet user", () => {
 });
 
 describe("nonconformances, dispositioned by quality", () => {
-  test("a press reading out of window holds the pair; quality accepts it as a deviation and the pair goes on", async () => {
+  test("a press reading out of window is asked about once; confirmed, it holds the pair; quality accepts it and the pair goes on", async () => {
     moveClock(0);
     const { pair } = made[1]!;
     await cabinet.goto(url(`/cabinet/pairs/${pair}`));
     await record(cabinet, { "Platen temperature": "141", "Time in the press": "22" }, true);
-    await expect(cabinet.getByTestId("step-done").textContent()).resolves.toMatch(/nonconformance NC-/);
-    await cabinet.reload();
-    await expect(cabinet.getByTestId("route-hold").textContent()).resolves.toMatch(/Platen temperature 141 °C/);
+    // Asked, with the readings kept; nothing is recorded yet.
+    await expect(cabinet.getByTestId("step-confirm").textContent()).resolves.toContain("Platen temperature 141 °C is outside 135–140 °C: record it and open a nonconformance?");
+    await expect(cabinet.getByTestId("step-form").getByLabel("Platen temperature", { exact: false }).inputValue()).resolves.toBe("141");
+    await expect(cabinet.getByTestId("route-records").textContent()).resolves.toMatch(/No step recorded yet/);
+    await cabinet.getByRole("button", { name: "Record it and open a nonconformance" }).click();
+    await cabinet.getByTestId("step-done").waitFor();
+    await expect(cabinet.getByTestId("step-done").textContent()).resolves.toMatch(/^Recorded step 1, Forming press, for the left and right cabinets\. A reading was out of its window: nonconformance NC-\d{4}-\d{3} holds the pair/);
+    await expect(cabinet.getByTestId("route-hold").textContent()).resolves.toMatch(/NC-\d{4}-\d{3}, opened at step 1, Forming press \(Platen temperature 141 °C/);
+    // On hold: no step form, and the reason in its place.
+    await expect(cabinet.getByTestId("step-form").count()).resolves.toBe(0);
+    await expect(cabinet.getByTestId("step-blocked").textContent()).resolves.toMatch(/^The pair is on hold: nonconformance NC-\d{4}-\d{3} is open\. Quality must disposition it first\.$/);
 
     await quality.goto(url("/quality"));
     // The newest open nonconformance is listed last.
-    const form = quality.locator('[data-testid^="disposition-"]').last();
+    await expect(quality.getByTestId("open-ncs").textContent()).resolves.toMatch(/at step 1, Forming press: Platen temperature 141 °C/);
+    const form = quality.locator('[data-testid^="disposition-NC"]').last();
+    const code = (await form.getAttribute("data-testid"))!.replace("disposition-", "");
     await form.getByLabel("Disposition").selectOption("use_as_is");
     await form.getByLabel(/Reason for the deviation/).fill("1 °C over briefly; the bond tested sound");
     await form.getByRole("button", { name: /Record the disposition/ }).click();
-    await expect.poll(() => quality.getByTestId("closed-ncs").textContent()).toMatch(/use as is/);
+    await quality.getByTestId("disposition-recorded").waitFor();
+    await expect(quality.getByTestId("disposition-recorded").textContent()).resolves.toBe(`${code}: use as is (deviation approved). The pair is released.`);
+    expect(new URL(quality.url()).pathname).toBe("/quality");
+    await expect(quality.getByTestId("closed-ncs").textContent()).resolves.toMatch(/use as is/);
 
     await cabinet.goto(url(`/cabinet/pairs/${pair}`));
     await record(cabinet, { "Trim deviation": "0.05" });
@@ -118,12 +151,17 @@ describe("nonconformances, dispositioned by quality", () => {
     const { pair, right } = made[2]!;
     await cabinet.goto(url(`/cabinet/pairs/${pair}`));
     await record(cabinet, { "Platen temperature": "152", "Time in the press": "22" }, true);
+    await cabinet.getByRole("button", { name: "Record it and open a nonconformance" }).click();
+    await cabinet.getByTestId("route-hold").waitFor();
     await quality.goto(url(`/cabinet/pairs/${pair}`));
-    const form = quality.locator('[data-testid^="disposition-"]').first();
+    const form = quality.locator('[data-testid^="disposition-NC"]').first();
     await form.getByLabel("Disposition").selectOption("scrap");
     await form.getByLabel("Cabinet to scrap").selectOption("R");
     await form.getByLabel("Reason").fill("veneer blistered across the right side panel");
     await form.getByRole("button", { name: /Record the disposition/ }).click();
+    // Back on the pair's page, which says what was recorded.
+    await quality.getByTestId("disposition-recorded").waitFor();
+    await expect(quality.getByTestId("disposition-recorded").textContent()).resolves.toMatch(new RegExp(`^NC-\\d{4}-\\d{3}: scrap the right cabinet ${right}\\. The pair is unpartnered until quality signs off a new partner\\.$`));
     await quality.getByTestId("unpartnered").waitFor();
     await quality.getByTestId("repartner-form").waitFor();
     await quality.goto(url(`/register/items/${right}`));

@@ -148,7 +148,9 @@ beforeAll(async () => {
   w.E = e.pair;
   w.cabA = { L: a.left, R: a.right };
   const walked = await walkToTheEnd([w.A, w.B]);
-  await step(w.D, 1, T0, { platenC: "150", minutes: "22" }); // out of window: opens a nonconformance
+  // Out of window: confirmed as the cabinet shop would after being asked, it opens a nonconformance.
+  setClock(T0);
+  await recordStep(db(), { pairId: w.D.id, seq: 1, sides: ["L", "R"], startedAt: T0, readings: { platenC: "150", minutes: "22" }, confirmOutOfWindow: "platenC=150" }, { id: ids.cabinet });
   await step(w.E, 1, T0);
   setClock(walked);
 

@@ -1,6 +1,7 @@
-import { describe, expect, test } from "vitest";
+import { describe, expect, test, vi } from "vitest";
 import { defaultRoute } from "@/lib/route/default-spec";
-import { checkReadings, checkStep, formatShopTime, holdsOf, parseReadingNumber, position, windowText } from "@/lib/route/rules";
+import { formatAllowedFrom, formatShopTime } from "@/lib/format";
+import { checkReadings, checkStep, holdsOf, nextStepNow, outOfWindowConfirmation, outOfWindowQuestion, outOfWindowText, parseReadingNumber, position, windowText } from "@/lib/route/rules";
 import type { RouteEntry, Side, StepSpec } from "@/lib/route/types";
 
 // The spec under test is the demo workshop's default route. Its values (press 135–140 °C for
@@ -327,12 +328,12 @@ describe("checkStep: holds", () => {
     const r = checkStep(spec, h, { seq: SANDING, cabinets: ["R"], startedAt }, startedAt);
     expect(r).toEqual({
       ok: false,
-      reason: "Not before 14:05 on 3 Dec: the right cabinet is on hold (clamp 2 h and rest 2 h) until then.",
+      reason: "Not before 14:05 on 3 Dec (UTC): the right cabinet is on hold (clamp 2 h and rest 2 h) until then.",
       allowedAt: new Date(braceStart.getTime() + 4 * HOUR),
     });
     const rBoth = checkStep(spec, h, { seq: SANDING, cabinets: both, startedAt }, startedAt);
     expect(rBoth.ok).toBe(false);
-    if (!rBoth.ok) expect(rBoth.reason).toBe("Not before 14:05 on 3 Dec: the left and right cabinets are on hold (clamp 2 h and rest 2 h) until then.");
+    if (!rBoth.ok) expect(rBoth.reason).toBe("Not before 14:05 on 3 Dec (UTC): the left and right cabinets are on hold (clamp 2 h and rest 2 h) until then.");
   });
 
   test("and allowed at exactly 4 h", () => {
@@ -368,7 +369,7 @@ describe("checkStep: holds", () => {
     expect(r.ok).toBe(false);
     if (!r.ok) {
       expect(r.allowedAt).toEqual(new Date(coat8Done.getTime() + 14 * DAY));
-      expect(r.reason).toContain(`Not before ${formatShopTime(new Date(coat8Done.getTime() + 14 * DAY))}:`);
+      expect(r.reason).toContain(`Not before ${formatShopTime(new Date(coat8Done.getTime() + 14 * DAY), startedAt, { zone: true })}:`);
       expect(r.reason).toContain("curing, 2 weeks after the last coat");
     }
   });
@@ -385,7 +386,7 @@ describe("checkStep: holds", () => {
     const justAfterStartPlus14d = new Date(c8Start.getTime() + 14 * DAY);
     const r = checkStep(spec, hist, { seq: POLISH, cabinets: both, startedAt: justAfterStartPlus14d }, justAfterStartPlus14d);
     expect(r.ok).toBe(false);
-    if (!r.ok) expect(r.reason).toBe("Not before 09:30 on 24 Dec: the left and right cabinets are on hold (curing, 2 weeks after the last coat) until then.");
+    if (!r.ok) expect(r.reason).toBe("Not before 09:30 on 24 Dec (UTC): the left and right cabinets are on hold (curing, 2 weeks after the last coat) until then.");
   });
 
   test("cabinets with different holds: allowedAt is the later release", () => {
@@ -400,7 +401,7 @@ describe("checkStep: holds", () => {
     const r = checkStep(spec, hist, { seq: SANDING, cabinets: both, startedAt }, startedAt);
     expect(r).toEqual({
       ok: false,
-      reason: "Not before 15:00 on 3 Dec: the right cabinet is on hold (clamp 2 h and rest 2 h) until then.",
+      reason: "Not before 15:00 on 3 Dec (UTC): the right cabinet is on hold (clamp 2 h and rest 2 h) until then.",
       allowedAt: new Date(Date.UTC(2025, 11, 3, 15, 0)),
     });
     // The left cabinet alone may go on.
@@ -408,17 +409,110 @@ describe("checkStep: holds", () => {
   });
 });
 
-describe("formatShopTime", () => {
-  test("UTC, day and short month; the year only when it is not this year", () => {
-    const d = new Date(Date.UTC(2025, 11, 3, 14, 5));
-    expect(formatShopTime(d)).toBe("14:05 on 3 Dec");
-    expect(formatShopTime(d, new Date(Date.UTC(2025, 0, 1)))).toBe("14:05 on 3 Dec");
-    expect(formatShopTime(d, new Date(Date.UTC(2026, 0, 1)))).toBe("14:05 on 3 Dec 2025");
+describe("one minute for a hold: the rule, the refusal and the caution", () => {
+  // The workshop's rule (no published source): a hold is allowed from its release rounded up to
+  // the whole minute, so 2 h clamp + 2 h rest from 10:18:31 is allowed from 14:19, not 14:18.
+  const braceStart = new Date(Date.UTC(2025, 11, 3, 10, 18, 31));
+  const h = recordThrough(BRACE, { times: { [BRACE]: { startedAt: braceStart, recordedAt: new Date(braceStart.getTime() + 2 * HOUR) } }, start: at(-2 * DAY) });
+  const release = new Date(Date.UTC(2025, 11, 3, 14, 18, 31));
+  const allowed = new Date(Date.UTC(2025, 11, 3, 14, 19, 0));
+
+  test.each([
+    // [now, why, the step may start, position's hold]
+    ["14:18:00", "before the release", false, allowed],
+    ["14:18:31", "at the exact release, still inside its minute", false, allowed],
+    ["14:18:59", "the last second of that minute", false, allowed],
+    ["14:19:00", "the minute shown", true, null],
+  ] as const)("at %s (%s) the step after brace fitting may start: %s", (time, _why, ok, hold) => {
+    const now = new Date(`2025-12-03T${time}Z`);
+    expect(checkStep(spec, h, { seq: SANDING, cabinets: both, startedAt: now }, now).ok).toBe(ok);
+    expect(position(spec, h, undefined, now).cabinets[0]!.holdUntil).toEqual(hold);
   });
-  test("a release time is rounded up to the minute", () => {
-    const d = new Date(Date.UTC(2025, 11, 3, 14, 5, 30));
-    expect(formatShopTime(d)).toBe("14:05 on 3 Dec");
-    expect(formatShopTime(d, undefined, true)).toBe("14:06 on 3 Dec");
+
+  test("holdsOf, allowedAt, the refusal and the caution all name 14:19", () => {
+    const now = new Date(release.getTime() - 5 * MIN);
+    expect(holdsOf(spec, h)[0]!.until).toEqual(allowed);
+    const refusal = checkStep(spec, h, { seq: SANDING, cabinets: both, startedAt: now }, now);
+    expect(refusal).toEqual({ ok: false, reason: "Not before 14:19 on 3 Dec (UTC): the left and right cabinets are on hold (clamp 2 h and rest 2 h) until then.", allowedAt: allowed });
+    const caution = nextStepNow(spec, h, both, now);
+    expect(caution.step?.seq).toBe(SANDING);
+    expect(caution.ready).toEqual([]);
+    expect(caution.blocked).toEqual({ sides: both, reason: refusal.ok ? "" : refusal.reason, allowedAt: allowed });
+    // The page's own line for the hold says the same minute.
+    expect(formatAllowedFrom(position(spec, h, undefined, now).cabinets[0]!.holdUntil!, now)).toBe("14:19 on 3 Dec (UTC)");
+  });
+
+  test("in the workshop's zone: the same hold reads 15:19 in Berlin (CET, UTC+1 in December)", () => {
+    // Offsets per the IANA time zone database: Europe/Berlin is UTC+1 in winter.
+    vi.stubEnv("TWINLEAF_TIME_ZONE", "Europe/Berlin");
+    try {
+      const now = new Date(release.getTime() - 5 * MIN);
+      const refusal = checkStep(spec, h, { seq: SANDING, cabinets: both, startedAt: now }, now);
+      expect(refusal.ok ? "" : refusal.reason).toMatch(/^Not before 15:19 on 3 Dec \(Europe\/Berlin\):/);
+      expect(nextStepNow(spec, h, both, now).blocked?.reason).toBe(refusal.ok ? "" : refusal.reason);
+    } finally {
+      vi.unstubAllEnvs();
+    }
+  });
+
+  test("one cabinet held and one ready: the ready one is offered, the held one named with the refusal's words", () => {
+    const lStart = new Date(Date.UTC(2025, 11, 3, 10, 0));
+    const rStart = new Date(Date.UTC(2025, 11, 3, 11, 0, 30));
+    const hist: RouteEntry[] = [
+      ...recordThrough(TRIM, { start: at(-DAY) }),
+      ...recordThrough(BRACE, { from: BRACE, cabinets: ["L"], times: { [BRACE]: { startedAt: lStart, recordedAt: lStart } } }),
+      ...recordThrough(BRACE, { from: BRACE, cabinets: ["R"], times: { [BRACE]: { startedAt: rStart, recordedAt: rStart } } }),
+    ];
+    const now = new Date(Date.UTC(2025, 11, 3, 14, 30));
+    const r = nextStepNow(spec, hist, both, now);
+    expect(r.ready).toEqual(["L"]);
+    const refusal = checkStep(spec, hist, { seq: SANDING, cabinets: both, startedAt: now }, now);
+    expect(r.blocked?.reason).toBe(refusal.ok ? "" : refusal.reason);
+    expect(r.blocked?.reason).toBe("Not before 15:01 on 3 Dec (UTC): the right cabinet is on hold (clamp 2 h and rest 2 h) until then.");
+  });
+
+  test("an open nonconformance: nothing is offered, and the page says why and until when", () => {
+    const hist: RouteEntry[] = [...recordThrough(TRIM), { kind: "nc_opened", id: nextId++, ncId: "NC-2512-004", cabinets: both, at: at(3 * HOUR) }];
+    const now = at(4 * HOUR);
+    const r = nextStepNow(spec, hist, both, now);
+    expect(r.ready).toEqual([]);
+    expect(r.blocked?.reason).toBe("The pair is on hold: nonconformance NC-2512-004 is open. Quality must disposition it first.");
+  });
+
+  test("a finished route offers nothing", () => {
+    const done = recordThrough(LAST);
+    expect(nextStepNow(spec, done, both, after(done))).toEqual({ step: null, ready: [], blocked: null });
+  });
+});
+
+describe("asking before an out-of-window reading is recorded", () => {
+  const press = stepOf("press");
+  test.each([
+    // Windows from the default route (common practice); the words are Twinleaf's.
+    [{ platenC: "141", minutes: "22" }, "Platen temperature 141 °C is outside 135–140 °C: record it and open a nonconformance?", "platenC=141"],
+    [{ platenC: "134.5", minutes: "26" }, "Platen temperature 134.5 °C is outside 135–140 °C and time in the press 26 min is outside 20–25 min: record them and open a nonconformance?", "minutes=26&platenC=134.5"],
+  ])("%j", (readings, question, confirmation) => {
+    const r = checkReadings(press, readings);
+    if (!r.ok) throw new Error("expected readings");
+    expect(outOfWindowQuestion(r.outOfWindow)).toBe(question);
+    expect(outOfWindowConfirmation(r.outOfWindow)).toBe(confirmation);
+  });
+
+  test.each([
+    [stepOf("brace"), { clampMinutes: "100" }, "Time under clamp 100 min is below the minimum of 120 min"],
+    [stepOf("trim"), { deviationMm: "0.3" }, "Trim deviation 0.3 mm is outside ±0.2 mm"],
+    [stepOf("check-sanding"), { pass: false }, "Inspector's check: surface fit for lacquer: not passed"],
+  ] as const)("%#: %s", (step, readings, text) => {
+    const r = checkReadings(step, readings);
+    if (!r.ok) throw new Error("expected readings");
+    expect(outOfWindowText(r.outOfWindow[0]!)).toBe(text);
+  });
+
+  test("a changed value is a different confirmation", () => {
+    const a = checkReadings(press, { platenC: "141", minutes: "22" });
+    const b = checkReadings(press, { platenC: "142", minutes: "22" });
+    if (!a.ok || !b.ok) throw new Error("expected readings");
+    expect(outOfWindowConfirmation(a.outOfWindow)).not.toBe(outOfWindowConfirmation(b.outOfWindow));
   });
 });
 
@@ -475,18 +569,19 @@ describe("checkReadings", () => {
       ok: true,
       values: { platenC: 141, minutes: 19 },
       outOfWindow: [
-        { key: "platenC", label: "Platen temperature", value: 141, window: "135–140 °C" },
-        { key: "minutes", label: "Time in the press", value: 19, window: "20–25 min" },
+        { key: "platenC", label: "Platen temperature", value: 141, unit: "°C", window: "135–140 °C", miss: "outside 135–140 °C" },
+        { key: "minutes", label: "Time in the press", value: 19, unit: "min", window: "20–25 min", miss: "outside 20–25 min" },
       ],
     });
     const t = checkReadings(trim, { deviationMm: "-0,21" });
-    expect(t).toEqual({ ok: true, values: { deviationMm: -0.21 }, outOfWindow: [{ key: "deviationMm", label: "Trim deviation", value: -0.21, window: "±0.2 mm" }] });
+    expect(t).toEqual({ ok: true, values: { deviationMm: -0.21 }, outOfWindow: [{ key: "deviationMm", label: "Trim deviation", value: -0.21, unit: "mm", window: "±0.2 mm", miss: "outside ±0.2 mm" }] });
   });
 
   test("brace clamp time: at least 120 min (common practice)", () => {
     expect(outKeys(brace, { clampMinutes: "120" })).toEqual([]);
     const r = checkReadings(brace, { clampMinutes: "119" });
     expect(r.ok && r.outOfWindow[0]?.window).toBe("at least 120 min");
+    expect(r.ok && r.outOfWindow[0]?.miss).toBe("below the minimum of 120 min");
   });
 
   test("every reading is required", () => {
@@ -524,7 +619,7 @@ describe("checkReadings", () => {
     expect(fail).toEqual({
       ok: true,
       values: { pass: false },
-      outOfWindow: [{ key: "pass", label: "Inspector's check: surface fit for lacquer", value: false, window: "pass" }],
+      outOfWindow: [{ key: "pass", label: "Inspector's check: surface fit for lacquer", value: false, unit: null, window: "pass", miss: "not passed" }],
     });
     expect(checkReadings(checkSanding, { pass: "fail" }).ok).toBe(true);
     expect(checkReadings(checkSanding, {}).ok).toBe(false);

@@ -11,9 +11,11 @@ import { listModels } from "@/lib/workshop/queries";
 import { areaByKey } from "@/lib/areas";
 import { requirePage } from "@/lib/auth/guard";
 import { now } from "@/lib/clock";
-import { formatWhen } from "@/lib/format";
+import { formatAllowedFrom, formatTimeOfDay, formatWhen, timesNote } from "@/lib/format";
 import { shopBoard, shopPairs, type ShopPair } from "@/lib/route/shop";
-import { openNonconformances } from "@/lib/route/nonconformances";
+import { ncsToDisposition } from "@/lib/route/nonconformances";
+import { ncWhere } from "@/lib/route/words";
+import { workshopDayEnd } from "@/lib/workshop-time";
 import { STATION_NAME } from "@/lib/vocabulary/stations";
 import { AutoRefresh } from "./auto-refresh";
 import { ScanForm } from "./scan-form";
@@ -27,10 +29,9 @@ export default async function Page() {
   await requirePage("cabinet.work");
   const db = getDb();
   const at = now();
-  const [models, pairs, ncs] = await Promise.all([listModels(db), shopPairs(db, at), openNonconformances(db)]);
-  const endOfDay = new Date(at);
-  endOfDay.setUTCHours(23, 59, 59, 999);
-  const { releasingToday, overdue, stations } = shopBoard(pairs, at, endOfDay);
+  const [models, pairs, ncs] = await Promise.all([listModels(db), shopPairs(db, at), ncsToDisposition(db)]);
+  // "Today" is the workshop's day, in its own time zone.
+  const { releasingToday, overdue, stations } = shopBoard(pairs, at, workshopDayEnd(at));
   return (
     <AreaOverview area={areaByKey("cabinet")}>
       <div className="flex flex-wrap items-end justify-between gap-4">
@@ -48,7 +49,7 @@ export default async function Page() {
             <ul className="flex flex-col gap-1" data-testid="holds-today">
               {releasingToday.map((p) => (
                 <li key={p.pair}>
-                  <SerialLink identity={p.pair} href={route(p.pair)} /> at {formatWhen(p.holdUntil!).split(", ").pop()} UTC: {p.holdLabel}, then {p.next?.name.toLowerCase()}
+                  <SerialLink identity={p.pair} href={route(p.pair)} /> at {formatTimeOfDay(p.holdUntil!)}: {p.holdLabel}, then {p.next?.name.toLowerCase()}
                 </li>
               ))}
             </ul>
@@ -61,7 +62,7 @@ export default async function Page() {
             <ul className="flex flex-col gap-1" data-testid="overdue">
               {overdue.map((p) => (
                 <li key={p.pair}>
-                  <SerialLink identity={p.pair} href={route(p.pair)} />: {p.next?.name} waiting since {formatWhen(p.readySince!)}
+                  <SerialLink identity={p.pair} href={route(p.pair)} />: {p.next?.name} waiting since {formatWhen(p.readySince!, at)}
                 </li>
               ))}
             </ul>
@@ -72,9 +73,9 @@ export default async function Page() {
         <Panel title="Open nonconformances">
           {ncs.length ? (
             <ul className="flex flex-col gap-1" data-testid="shop-ncs">
-              {ncs.map(({ nc, pair }) => (
+              {ncs.map(({ nc, pair, steps }) => (
                 <li key={nc.id}>
-                  <span className="font-bold">{nc.code}</span> <SerialLink identity={pair} href={route(pair)} bold={false} />: {nc.finding}
+                  <span className="font-bold">{nc.code}</span> <SerialLink identity={pair} href={route(pair)} bold={false} /> {ncWhere(nc.seq, steps.find((s) => s.seq === nc.seq)?.name)}: {nc.finding}
                 </li>
               ))}
             </ul>
@@ -83,6 +84,9 @@ export default async function Page() {
           )}
         </Panel>
       </div>
+      <p className="-mt-3 text-sm text-ink-soft" data-testid="times-note">
+        {timesNote()}
+      </p>
       <Panel title="Work at each station">
         {stations.length ? (
           <div className="grid gap-4 md:grid-cols-2 xl:grid-cols-3" data-testid="station-work">
@@ -102,7 +106,7 @@ export default async function Page() {
                     ))}
                     {waiting.map((p) => (
                       <li key={p.pair} className="text-ink-soft">
-                        <SerialLink identity={p.pair} href={route(p.pair)} bold={false} /> {p.next?.name}: {p.openNcs.length ? `on hold (${p.openNcs.join(", ")})` : `hold until ${formatWhen(p.holdUntil!)}`}
+                        <SerialLink identity={p.pair} href={route(p.pair)} bold={false} /> {p.next?.name}: {p.openNcs.length ? `on hold (${p.openNcs.join(", ")})` : `on hold until ${formatAllowedFrom(p.holdUntil!, at)}`}
                       </li>
                     ))}
                   </ul>

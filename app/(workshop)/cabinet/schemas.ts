@@ -12,6 +12,8 @@ export const stepSchema = z.object({
   sides: z.preprocess((v) => (v === undefined || v === "" ? [] : Array.isArray(v) ? v : [v]), z.array(z.enum(["L", "R"]))).refine((s) => s.length > 0, "Tick the cabinets the step was done on."),
   /** Minutes ago the step started (e.g. when the clamp went on); 0 = now. */
   startedMinutesAgo: z.preprocess((v) => (v === "" || v === undefined ? 0 : v), z.coerce.number({ error: "Give minutes as a number." }).int("Whole minutes.").min(0, "Not in the future.").max(24 * 60, "At most 24 hours ago; record steps the day they are done.")),
+  /** Sent only by the button that answers "record it and open a nonconformance?": names the readings confirmed. */
+  confirmOutOfWindow: z.string().max(2000).optional(),
 });
 
 export const repartnerSchema = z.object({

@@ -3,7 +3,7 @@ import { getDb } from "@/db";
 import { AppError } from "@/lib/auth/errors";
 import { guardedAction } from "@/lib/auth/guard";
 import { formDataValues } from "@/lib/route/form";
-import { pairOf, recordStep } from "@/lib/route/pair-route";
+import { OutOfWindowUnconfirmed, pairOf, recordStep } from "@/lib/route/pair-route";
 import { repartner } from "@/lib/route/nonconformances";
 import { now } from "@/lib/clock";
 import { paths } from "@/lib/paths";
@@ -17,15 +17,31 @@ export const scanAction = guardedAction("cabinet.work", scanSchema, async (input
   return { ok: true, redirectTo: pairPage(pair.identity, input.station || undefined) };
 });
 
-/** The step form sends its readings as `reading.<key>` fields; the rest as the schema says. */
+/** The fields the step form shows, sent back so the person sees what they typed while they are asked. */
+function keptFields(input: Record<string, unknown>, sides: string[]): Record<string, string | string[]> {
+  const fields = Object.entries(input).filter(([k, v]) => (k.startsWith("reading.") || k === "startedMinutesAgo") && (typeof v === "string" || typeof v === "number"));
+  return { ...Object.fromEntries(fields.map(([k, v]) => [k, String(v)])), sides };
+}
+
+/**
+ * The step form sends its readings as `reading.<key>` fields; the rest as the schema says. Readings
+ * out of their window are recorded only when the answer to the question names them; until then
+ * the form asks (nothing is written). On success, the pair's page says what was recorded.
+ */
 export const recordStepAction = guardedAction("cabinet.work", stepSchema.passthrough(), async (input, user) => {
   const readings = formDataValues(input as Record<string, unknown>, "reading.");
   const startedAt = new Date(now().getTime() - input.startedMinutesAgo * 60_000);
-  const result = await recordStep(getDb(), { pairId: input.pairId, seq: input.seq, sides: input.sides, startedAt, readings }, { id: user.id });
+  let result: Awaited<ReturnType<typeof recordStep>>;
+  try {
+    result = await recordStep(getDb(), { pairId: input.pairId, seq: input.seq, sides: input.sides, startedAt, readings, confirmOutOfWindow: input.confirmOutOfWindow ?? null }, { id: user.id });
+  } catch (e) {
+    if (!(e instanceof OutOfWindowUnconfirmed)) throw e;
+    return { ok: false, status: e.status, message: e.message, fieldErrors: e.fieldErrors, values: keptFields(input as Record<string, unknown>, input.sides), data: { confirmOutOfWindow: e.confirmation } };
+  }
   return {
     ok: true,
-    message: result.nc ? `Recorded. A reading is out of its window: nonconformance ${result.nc} holds the pair until quality dispositions it.` : "Recorded.",
     revalidate: [pairPage(input.pair), paths.cabinet],
+    redirectTo: `${pairPage(input.pair)}?recorded=${result.recordId}`,
   };
 });
 

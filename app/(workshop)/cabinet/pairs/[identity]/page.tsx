@@ -11,12 +11,14 @@ import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
 import { requirePage } from "@/lib/auth/guard";
 import { now } from "@/lib/clock";
-import { formatWhen } from "@/lib/format";
+import { formatAllowedFrom, formatWhen, timesNote } from "@/lib/format";
 import { itemByIdentity } from "@/lib/genealogy/graph";
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { STATION_CAUTIONS } from "@/lib/route/cautions";
-import { windowText } from "@/lib/route/rules";
-import { isLoneLacquerCabinet, pairRoute } from "@/lib/route/pair-route";
+import { nextStepNow, windowText } from "@/lib/route/rules";
+import { isLoneLacquerCabinet, pairRoute, recordedNotice } from "@/lib/route/pair-route";
+import { dispositionSummary } from "@/lib/route/nonconformances";
+import { ncWhere } from "@/lib/route/words";
 import { DispositionForm } from "@/app/(workshop)/quality/disposition-form";
 import { RepartnerForm } from "./repartner-form";
 import { StepForm } from "./step-form";
@@ -25,7 +27,10 @@ export async function generateMetadata({ params }: { params: Promise<{ identity:
   return { title: `Route of ${decodeURIComponent((await params).identity)}` };
 }
 
-export default async function PairRoutePage({ params }: { params: Promise<{ identity: string }> }) {
+type Search = Promise<Record<string, string | string[] | undefined>>;
+const one = (v: string | string[] | undefined) => (typeof v === "string" ? v : undefined);
+
+export default async function PairRoutePage({ params, searchParams }: { params: Promise<{ identity: string }>; searchParams: Search }) {
   const user = await requirePage("register.read");
   const db = getDb();
   const identity = decodeURIComponent((await params).identity);
@@ -41,10 +46,18 @@ export default async function PairRoutePage({ params }: { params: Promise<{ iden
   // A lacquer pair is made at assembly from cabinets that already finished: nothing to record here.
   const pairedAtAssembly = pair.attrs.pairedAt === "assembly";
   const next = Number.isFinite(nextSeq) && !pairedAtAssembly ? steps.find((s) => s.seq === nextSeq)! : null;
-  const hold = pos.cabinets.filter((c) => c.next?.seq === nextSeq && c.holdUntil).map((c) => c.holdUntil!)[0];
+  // Who may do the next step now, and why the others may not: the words of the refusal a record would get.
+  const allowed = nextStepNow(steps, route.history, route.cabinets.map((c) => c.side), at);
   const canWork = user.permissions.has("cabinet.work");
   const openNcs = route.ncs.filter((n) => !n.disposition);
   const cabinetOf = (side: "L" | "R") => route.cabinets.find((c) => c.side === side);
+  const stepName = (seq: number) => steps.find((s) => s.seq === seq)?.name ?? null;
+  // What the last form recorded (a step, or quality's disposition), read back from the register.
+  const search = await searchParams;
+  const recordedId = Number(one(search.recorded));
+  const recorded = Number.isInteger(recordedId) && recordedId > 0 ? recordedNotice(route, recordedId) : null;
+  const dispositioned = one(search.dispositioned);
+  const disposedText = dispositioned ? await dispositionSummary(db, dispositioned, { pairId: pair.id }) : null;
   return (
     <div className="flex flex-col gap-6" data-testid="route-page">
       <BackLink href={paths.cabinet}>Cabinet shop</BackLink>
@@ -53,6 +66,16 @@ export default async function PairRoutePage({ params }: { params: Promise<{ iden
         lead={`${route.model.code} ${route.model.name}${route.finishName ? ` · ${route.finishName}` : ""} · route version ${route.spec.version}${route.started ? "" : " (fixed when the first step is recorded)"}`}
         actions={<Badge tone={pos.openNcs.length ? "danger" : pos.finished ? "leaf" : "info"}>{pos.openNcs.length ? "on hold" : pos.finished ? "route finished" : stateLabel(pair.state)}</Badge>}
       />
+      {recorded ? (
+        <Notice tone={recorded.nc ? "caution" : "leaf"} testId="step-done">
+          {recorded.text}
+        </Notice>
+      ) : null}
+      {disposedText ? (
+        <Notice tone="leaf" testId="disposition-recorded">
+          {disposedText}
+        </Notice>
+      ) : null}
       {lone ? <Notice tone="info">A lacquer cabinet made in a batch: it travels the route on its own, and assembly pairs it with another finished cabinet of its model and colour.</Notice> : null}
       <div className="grid gap-4 md:grid-cols-2" data-testid="route-cabinets">
         {(lone ? (["L"] as const) : (["L", "R"] as const)).map((side) => {
@@ -65,7 +88,11 @@ export default async function PairRoutePage({ params }: { params: Promise<{ iden
                 <>
                   <SerialLink identity={c.item.identity} />
                   <p className="mt-1">{p?.next ? `Next: ${p.next.seq}. ${p.next.name}` : "Route finished."}</p>
-                  {p?.holdUntil ? <p className="text-caution">Hold ({p.holdLabel}) until {formatWhen(p.holdUntil)} UTC</p> : null}
+                  {p?.holdUntil ? (
+                    <p className="text-caution">
+                      On hold ({p.holdLabel}) until {formatAllowedFrom(p.holdUntil, at)}
+                    </p>
+                  ) : null}
                   <p className="text-sm text-ink-soft">{p?.done.length ?? 0} of {steps.length} steps done</p>
                 </>
               ) : (
@@ -78,7 +105,7 @@ export default async function PairRoutePage({ params }: { params: Promise<{ iden
 
       {openNcs.length ? (
         <Notice tone="danger" testId="route-hold">
-          On hold: {openNcs.map((n) => `${n.code} (${n.finding})`).join("; ")}. Quality dispositions it before the next step.
+          On hold: {openNcs.map((n) => `${n.code}, opened ${ncWhere(n.seq, stepName(n.seq))} (${n.finding})`).join("; ")}. Quality dispositions {openNcs.length === 1 ? "it" : "them"} before the next step.
         </Notice>
       ) : null}
 
@@ -88,16 +115,28 @@ export default async function PairRoutePage({ params }: { params: Promise<{ iden
           <div className="mb-4">
             <SafetyCautions cautions={STATION_CAUTIONS[next.station] ?? []} />
           </div>
-          {hold ? <Notice tone="caution" className="mb-4">Not before {formatWhen(hold)} UTC: the hold after the last step runs until then.</Notice> : null}
-          {canWork ? (
+          {allowed.blocked ? (
+            <Notice tone="caution" className="mb-4" testId="step-blocked">
+              {allowed.blocked.reason}
+            </Notice>
+          ) : null}
+          {canWork && allowed.ready.length ? (
             <StepForm
+              // A new form after each record: a refusal shown before it does not outlive it.
+              key={`${next.seq}:${route.records.length}`}
               pair={pair.identity}
               pairId={pair.id}
               step={next}
-              sides={(["L", "R"] as const).filter((s) => cabinetOf(s)).map((s) => ({ side: s, identity: cabinetOf(s)!.item.identity, ready: pos.cabinets.find((c) => c.side === s)?.next?.seq === next.seq }))}
+              sides={(["L", "R"] as const)
+                .filter((s) => cabinetOf(s))
+                .map((s) => {
+                  const c = pos.cabinets.find((x) => x.side === s);
+                  const note = c?.next?.seq !== next.seq ? "not at this step" : c.holdUntil ? `on hold until ${formatAllowedFrom(c.holdUntil, at)}` : "on hold";
+                  return { side: s, identity: cabinetOf(s)!.item.identity, ready: allowed.ready.includes(s), note };
+                })}
               window={Object.fromEntries(next.readings.map((r) => [r.key, windowText(r)]))}
             />
-          ) : (
+          ) : canWork ? null : (
             <p className="text-ink-soft">Steps are recorded by the cabinet shop.</p>
           )}
         </Panel>
@@ -155,7 +194,7 @@ export default async function PairRoutePage({ params }: { params: Promise<{ iden
             return {
               id: String(r.id),
               cells: {
-                at: { value: r.recordedAt.getTime(), display: formatWhen(r.recordedAt) },
+                at: { value: r.recordedAt.getTime(), display: formatWhen(r.recordedAt, at) },
                 step: { value: r.seq, display: `${r.seq}. ${step?.name ?? ""}` },
                 sides: { value: r.cabinets.map((c) => c.side).join("+") },
                 readings: {
@@ -176,7 +215,9 @@ export default async function PairRoutePage({ params }: { params: Promise<{ iden
             };
           })}
         />
-        <p className="mt-2 text-sm text-ink-soft">Times in UTC. Now: {formatWhen(at)}.</p>
+        <p className="mt-2 text-sm text-ink-soft" data-testid="times-note">
+          {timesNote()} Now: {formatWhen(at, at)}.
+        </p>
       </Panel>
     </div>
   );

@@ -7,17 +7,28 @@ import { initialFormState } from "@/lib/forms";
 import type { StepSpec } from "@/lib/route/types";
 import { recordStepAction } from "../../actions/steps";
 
-/** The form for the pair's next step: which cabinets, when it started, and the step's readings. */
-export function StepForm({ pair, pairId, step, sides, window }: { pair: string; pairId: string; step: StepSpec; sides: { side: "L" | "R"; identity: string; ready: boolean }[]; window: Record<string, string> }) {
+/**
+ * The form for the pair's next step: which cabinets, when it started, and the step's readings.
+ * Readings out of their window are not recorded at the first press: the server sends back the
+ * question, and only the button that answers it records them and opens a nonconformance.
+ */
+export function StepForm({ pair, pairId, step, sides, window }: { pair: string; pairId: string; step: StepSpec; sides: { side: "L" | "R"; identity: string; ready: boolean; note?: string }[]; window: Record<string, string> }) {
   const [state, action] = useActionState(recordStepAction, initialFormState);
   const v = (k: string) => (typeof state.values?.[k] === "string" ? (state.values[k] as string) : "");
-  const failed = !state.ok && state.message;
+  const keptSides = Array.isArray(state.values?.sides) ? state.values.sides : null;
+  const confirm = !state.ok ? state.data?.confirmOutOfWindow : undefined;
+  const failed = !state.ok && state.message && !confirm;
   return (
     <form action={action} className="flex flex-col gap-4" noValidate data-testid="step-form">
-      {state.ok && state.message ? <Notice tone={/nonconformance/.test(state.message) ? "caution" : "leaf"} testId="step-done">{state.message}</Notice> : null}
       {failed ? (
         <Notice tone="danger" testId="step-refused">
           {state.message}
+        </Notice>
+      ) : null}
+      {confirm ? (
+        <Notice tone="caution" title="A reading is out of its window" testId="step-confirm">
+          <p>{state.message}</p>
+          <p className="mt-1 text-ink-soft">Correct the reading and record again, or record it as it is: the nonconformance then holds the pair until quality dispositions it.</p>
         </Notice>
       ) : null}
       <input type="hidden" name="pair" value={pair} />
@@ -28,10 +39,10 @@ export function StepForm({ pair, pairId, step, sides, window }: { pair: string; 
         <div className="flex flex-wrap gap-3">
           {sides.map((s) => (
             <label key={s.side} className="flex min-h-12 cursor-pointer items-center gap-3 rounded-lg border border-line bg-surface px-3 has-checked:border-leaf has-checked:bg-leaf-soft">
-              <input type="checkbox" name="sides" value={s.side} defaultChecked={s.ready} disabled={!s.ready} className="size-5 accent-leaf" />
+              <input type="checkbox" name="sides" value={s.side} defaultChecked={s.ready && (!keptSides || keptSides.includes(s.side))} disabled={!s.ready} className="size-5 accent-leaf" />
               <span>
                 {sides.length === 1 ? "Cabinet" : s.side === "L" ? "Left" : "Right"} <span className="serial text-sm">{s.identity}</span>
-                {s.ready ? "" : " (not at this step)"}
+                {s.ready ? "" : ` (${s.note ?? "not at this step"})`}
               </span>
             </label>
           ))}
@@ -67,8 +78,14 @@ export function StepForm({ pair, pairId, step, sides, window }: { pair: string; 
         )}
         <TextField label="Started, minutes ago" name="startedMinutesAgo" type="number" min={0} max={1440} defaultValue={v("startedMinutesAgo") || "0"} hint="0 when it starts now; e.g. when the clamp went on." errors={state.fieldErrors?.startedMinutesAgo} />
       </div>
-      <div>
+      <div className="flex flex-wrap gap-3">
+        {/* The plain button comes first, so Enter in a field never answers the question. */}
         <SubmitButton pendingLabel="Recording…">Record {step.name.toLowerCase()}</SubmitButton>
+        {confirm ? (
+          <SubmitButton pendingLabel="Recording…" variant="danger" name="confirmOutOfWindow" value={confirm}>
+            Record it and open a nonconformance
+          </SubmitButton>
+        ) : null}
       </div>
     </form>
   );
