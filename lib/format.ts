@@ -51,6 +51,7 @@ export function formatShopTime(d: Date, now: Date = new Date(), opts: { zone?: b
 
 /**
  * When something held becomes allowed, rounded up to the minute by the one rule
- * (`allowedFromMinute`), with the zone's name: "06:23 on 5 Dec (Europe/London)".
+ * (`allowedFromMinute`), with the zone's name: "06:23 on 5 Dec (Europe/London)". Lists on a page
+ * that names the zone once (`timesNote`) may leave it out with `{ zone: false }`.
  */
-export const formatAllowedFrom = (release: Date, now: Date = new Date()) => formatShopTime(allowedFromMinute(release), now, { zone: true });
+export const formatAllowedFrom = (release: Date, now: Date = new Date(), opts: { zone?: boolean } = {}) => formatShopTime(allowedFromMinute(release), now, { zone: opts.zone ?? true });

@@ -40,7 +40,7 @@ export default async function Page() {
           <Link href={paths.lacquer} className={buttonClasses("secondary")}>
             Lacquer cabinets
           </Link>
-          <AutoRefresh />
+          <AutoRefresh readAt={formatTimeOfDay(at)} />
         </div>
       </div>
       <div className="grid gap-6 lg:grid-cols-3">
@@ -106,7 +106,7 @@ export default async function Page() {
                     ))}
                     {waiting.map((p) => (
                       <li key={p.pair} className="text-ink-soft">
-                        <SerialLink identity={p.pair} href={route(p.pair)} bold={false} /> {p.next?.name}: {p.openNcs.length ? `on hold (${p.openNcs.join(", ")})` : `on hold until ${formatAllowedFrom(p.holdUntil!, at)}`}
+                        <SerialLink identity={p.pair} href={route(p.pair)} bold={false} /> {p.next?.name}: {p.openNcs.length ? `on hold (${p.openNcs.join(", ")})` : `on hold until ${formatAllowedFrom(p.holdUntil!, at, { zone: false })}`}
                       </li>
                     ))}
                   </ul>
