@@ -126,6 +126,34 @@ describe("building a board", () => {
     expect(verdict.reasons).toEqual(["L1 has no reading"]);
   });
 
+  test("a reading typed without a unit takes the nominal's unit, prefix included, and the board passes", async () => {
+    const parts = goodParts("U");
+    // 4.72 against 4.7 µF is 4.72 µF (+0.4 %), 0.81 against 0.82 mH is 0.81 mH (−1.2 %).
+    parts[0] = { ...parts[0]!, reading: "4.72" };
+    parts[1] = { ...parts[1]!, reading: "0.81" };
+    const { crossover, verdict } = await buildCrossover(db(), { modelId: pw2.id, parts }, actor);
+    expect(verdict).toMatchObject({ pass: true, reasons: [] });
+    const stored = await db().select().from(crossoverParts).where(eq(crossoverParts.crossoverId, crossover.id)).orderBy(crossoverParts.position);
+    expect(stored[0]!.reading).toBe(4.72e-6);
+    expect(stored[1]!.reading).toBe(0.81e-3);
+  });
+
+  test.each([
+    ["4.72F", /Row 1 \(C1\): Reading: "4\.72F" reads as 4\.72 F, more than ten times its 4\.7 µF nominal/],
+    ["47.5", /Row 1 \(C1\): Reading: "47\.5" reads as 47\.5 µF \(a number alone is read in µF, as the nominal is written\), more than ten times its 4\.7 µF nominal/],
+    ["0.47n", /Row 1 \(C1\): Reading: "0\.47n" reads as 0\.47 nF, less than a tenth of its 4\.7 µF nominal/],
+  ])("a reading %j, more than ten times away from its nominal, is refused as a slip and nothing is written", async (reading, message) => {
+    const before = await counts();
+    const parts = goodParts("S");
+    parts[0] = { ...parts[0]!, reading };
+    const e = await appErrorOf(() => buildCrossover(db(), { modelId: pw2.id, parts }, actor));
+    expect(e.status).toBe(400);
+    expect(e.message).toMatch(/^Nothing was saved: 1 row needs attention\./);
+    expect(e.fieldErrors?.parts?.join("\n")).toMatch(message);
+    expect(e.fieldErrors?.["parts.0"]?.[0]).toMatch(/^Reading: .*That looks like a slip of the unit or the decimal point/);
+    expect(await counts()).toEqual(before);
+  });
+
   test("a nominal off the E24 series (4.8 µF) is refused as a typing error, naming its neighbours, and nothing is written", async () => {
     const before = await counts();
     const parts = goodParts("C");
