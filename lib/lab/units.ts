@@ -8,9 +8,11 @@ import { AppError, isConstraintError } from "@/lib/auth/errors";
 import { newId } from "@/lib/auth/tokens";
 import { appendEvent } from "@/lib/events/queries";
 import { changeState, createItem, type Recorder } from "@/lib/genealogy/graph";
-import { bandLevels, checkTsParams, parseResponseFile, thirdOctaveBands } from "@/lib/acoustics";
+import { bandLevels, checkTsParams, parseResponseFile, thirdOctaveBands, TS_FIELDS } from "@/lib/acoustics";
 import { LIMIT_EPSILON_DB, pairCost, planPairs } from "@/lib/matching";
 import { allocateSerial } from "@/lib/serials/allocator";
+import { batchCountMismatch } from "./batch-count";
+import { readTsCsv } from "./ts-csv";
 import { PART_TYPE_CODES, parseSerial } from "@/lib/serials/format";
 
 export const LAB_STATION = "lab";
@@ -43,9 +45,15 @@ export interface BatchIntake {
   count: number;
 }
 
-/** Registers a batch and its units, each with a Twinleaf serial (and the maker's serial where scanned). */
+/**
+ * Registers a batch and its units, each with a Twinleaf serial (and the maker's serial where scanned).
+ * With serials scanned the batch holds one unit per serial; a number of units that disagrees with
+ * them is refused and nothing is written.
+ */
 export async function registerBatch(db: DbOrTx, input: BatchIntake, actor: LabActor) {
   const serials = input.makerSerials.map((s) => s.trim()).filter(Boolean);
+  const mismatch = batchCountMismatch(input.count, serials.length);
+  if (mismatch) throw new AppError(400, `Nothing was registered: ${mismatch}`, { count: [mismatch] });
   const count = serials.length || input.count;
   if (count < 1 || count > 500) throw new AppError(400, "A batch holds 1 to 500 units.", { count: ["1 to 500 units."] });
   const dup = serials.find((s, i) => serials.indexOf(s) !== i);
@@ -264,7 +272,9 @@ export function checkedTs(input: TsInput): { ok: true; value: TsInput } | { ok: 
   const result = checkTsParams({ fs: input.fsHz, qts: input.qts, qes: input.qes, qms: input.qms, re: input.reOhm, vas: input.vasL, sensitivity: input.sensitivityDb });
   if (!result.ok) {
     const map: Record<string, string> = { fs: "fsHz", re: "reOhm", vas: "vasL", sensitivity: "sensitivityDb" };
-    return { ok: false, fieldErrors: Object.fromEntries(Object.entries(result.fieldErrors).map(([k, v]) => [map[k] ?? k, v])) };
+    // In the form's order (Fs, Qts, Qes, Qms, Re, Vas, sensitivity), so a row's problems read left to right.
+    const ordered = TS_FIELDS.filter((f) => result.fieldErrors[f.key]).map((f) => [map[f.key] ?? f.key, result.fieldErrors[f.key]!]);
+    return { ok: false, fieldErrors: Object.fromEntries(ordered) };
   }
   return { ok: true, value: { ...input, qts: result.values.qts ?? input.qts } };
 }
@@ -307,28 +317,62 @@ export async function recordMeasurement(db: DbOrTx, input: { itemId: string; res
   });
 }
 
-/** Thiele–Small sets for many units at once (CSV or JSON): every row checked first, then all written. */
-export async function importTsRows(db: DbOrTx, rows: { line: number; serial: string; ts: TsInput }[], opts: { batchId?: string; source: "csv" | "api" }, actor: LabActor) {
-  const problems: string[] = [];
+/** One row of Thiele–Small parameters for a unit named by its Twinleaf or maker serial; `problems` are what its reading already found. */
+export interface TsRowInput {
+  line: number;
+  serial: string;
+  ts: TsInput;
+  problems?: string[];
+}
+
+/** "Fs (Hz) must be between 5 and 40000 Hz; 0 looks mistyped" → the same, ending in one full stop. */
+const sentence = (m: string) => (/[.!?]$/.test(m) ? m : `${m}.`);
+
+/**
+ * Thiele–Small sets for many units at once (CSV or JSON), in one pass: every row is checked in
+ * full (its own problems, whether its serial names a unit, whether it names a unit another row
+ * names too, and every parameter), and every problem of every row is reported together, with its
+ * line, under `csv`. Nothing is written unless every row is good; then all rows in one transaction.
+ * `fileProblems` (a CSV's columns, say) are reported first and also refuse the whole lot.
+ */
+export async function importTsRows(db: DbOrTx, rows: TsRowInput[], opts: { batchId?: string; source: "csv" | "api" }, actor: LabActor, fileProblems: string[] = []) {
+  const problems: { line: number; text: string }[] = [];
   const ready: { unit: Item; ts: TsInput }[] = [];
+  const lineOfUnit = new Map<string, number>();
   for (const r of rows) {
-    const unit = await findUnit(db, r.serial, opts.batchId);
-    if (!unit) {
-      problems.push(`Line ${r.line}: ${r.serial} is not a unit of ${opts.batchId ? "this batch" : "the register"}.`);
-      continue;
+    const at = r.serial ? `Line ${r.line} (${r.serial})` : `Line ${r.line}`;
+    const own = (r.problems ?? []).map((p) => ({ line: r.line, text: `Line ${r.line}: ${sentence(p)}` }));
+    const found: { line: number; text: string }[] = [...own];
+    const unit = r.serial ? await findUnit(db, r.serial, opts.batchId) : null;
+    if (r.serial && !unit) found.push({ line: r.line, text: `Line ${r.line}: ${r.serial} is not a unit of ${opts.batchId ? "this batch" : "the register"}.` });
+    if (unit) {
+      // The same unit under its Twinleaf serial on one line and its maker's on another.
+      const earlier = lineOfUnit.get(unit.id);
+      if (earlier !== undefined && !own.some((p) => p.text.includes("already has a row"))) found.push({ line: r.line, text: `${at}: ${unit.identity} is also on line ${earlier}; give each unit one row.` });
+      else if (earlier === undefined) lineOfUnit.set(unit.id, r.line);
     }
     const checked = checkedTs(r.ts);
-    if (!checked.ok) {
-      problems.push(`Line ${r.line} (${r.serial}): ${Object.values(checked.fieldErrors).flat().join(" ")}`);
-      continue;
-    }
-    ready.push({ unit, ts: checked.value });
+    if (!checked.ok) for (const m of Object.values(checked.fieldErrors).flat()) found.push({ line: r.line, text: `${at}: ${sentence(m)}` });
+    if (found.length) problems.push(...found);
+    else if (unit && checked.ok) ready.push({ unit, ts: checked.value });
   }
-  if (problems.length) throw new AppError(400, `Nothing was saved: ${problems.length} row${problems.length === 1 ? "" : "s"} need attention.`, { csv: problems });
+  const all = [...fileProblems, ...problems.sort((x, y) => x.line - y.line).map((p) => p.text)];
+  if (all.length) {
+    const badRows = new Set(problems.map((p) => p.line)).size;
+    const where = [fileProblems.length ? "the columns" : "", badRows ? `${badRows} row${badRows === 1 ? "" : "s"}` : ""].filter(Boolean).join(" and ");
+    throw new AppError(400, `Nothing was saved: ${all.length} problem${all.length === 1 ? "" : "s"} in ${where}. Correct them all and bring the file in again.`, { csv: all });
+  }
   await db.transaction(async (tx) => {
     for (const r of ready) await insertTs(tx, r.unit.id, r.ts, opts.source, actor);
   });
   return ready.length;
+}
+
+/** A Thiele–Small CSV brought in from the batch page: read, checked against the register, and saved only when all of it is good. */
+export async function importTsCsv(db: DbOrTx, text: string, opts: { batchId: string }, actor: LabActor) {
+  const read = readTsCsv(text);
+  if (read.rows.length === 0 && read.fileProblems.length === 0) throw new AppError(400, "Nothing was saved: the CSV has a header but no rows.", { csv: ["Add one row per unit under the header."] });
+  return importTsRows(db, read.rows, { batchId: opts.batchId, source: "csv" }, actor, read.fileProblems);
 }
 
 /** A unit that fails the bench is set aside with its reason. */

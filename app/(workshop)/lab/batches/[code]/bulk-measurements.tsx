@@ -84,9 +84,10 @@ export function TsCsvImport({ batch }: { batch: string }) {
         <Notice tone="danger" testId="ts-csv-error">
           {state.message}
           {state.fieldErrors?.csv ? (
-            <ul className="mt-1 list-disc pl-5">
-              {state.fieldErrors.csv.map((p) => (
-                <li key={p}>{p}</li>
+            // Every problem of the file at once: a long list scrolls rather than pushing the form away.
+            <ul className="mt-1 max-h-72 list-disc overflow-y-auto pl-5" data-testid="ts-csv-problems" tabIndex={0} aria-label="Problems in the CSV">
+              {state.fieldErrors.csv.map((p, i) => (
+                <li key={`${i}-${p}`}>{p}</li>
               ))}
             </ul>
           ) : null}
@@ -94,7 +95,7 @@ export function TsCsvImport({ batch }: { batch: string }) {
       ) : null}
       <input type="hidden" name="batch" value={batch} />
       <p className="text-ink-soft">
-        Columns: <code>{TS_CSV_TEMPLATE.trim()}</code>. The serial is the Twinleaf serial or the maker’s.
+        Columns: <code>{TS_CSV_TEMPLATE.trim()}</code>. The serial is the Twinleaf serial or the maker’s. Every row is checked before anything is saved, and every problem is listed at once.
       </p>
       <label className="flex flex-col gap-1">
         <span className="font-bold">Choose a CSV file</span>
