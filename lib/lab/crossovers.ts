@@ -6,7 +6,7 @@ import { AppError, isConstraintError } from "@/lib/auth/errors";
 import { newId } from "@/lib/auth/tokens";
 import { appendEvent } from "@/lib/events/queries";
 import { changeState, createItem, fit, itemByIdentity, type Recorder } from "@/lib/genealogy/graph";
-import { bandLevels, parseResponseFile, thirdOctaveBands, type ResponseFilePoint } from "@/lib/acoustics";
+import { bandLabel, bandLevels, formatDb, formatLimitDb, parseResponseFile, thirdOctaveBands, type ResponseFilePoint } from "@/lib/acoustics";
 import { boardVerdict, checkNominal, formatValue, parseNominal, parseValue, readPartValues, TOLERANCE_LETTERS, type BoardVerdict, type Unit } from "@/lib/crossover-parts";
 import { pairCost, planPairs } from "@/lib/matching";
 import { allocateSerial } from "@/lib/serials/allocator";
@@ -404,7 +404,7 @@ function checkLimit(model: Model, limitDb: number) {
   if (typeof limitDb !== "number" || !Number.isFinite(limitDb) || limitDb <= 0) throw new AppError(400, "The limit is a number of dB greater than 0.", { limitDb: ["A number of dB greater than 0."] });
   // Boards further apart than the finished pair may differ would only make a pair that fails its final test.
   if (limitDb > model.pairResponseLimitDb + 1e-9) {
-    throw new AppError(400, `The limit cannot be looser than ${model.code}'s finished-pair limit of ${model.pairResponseLimitDb} dB.`, { limitDb: [`At most ${model.pairResponseLimitDb} dB for ${model.code}.`] });
+    throw new AppError(400, `The limit cannot be looser than ${model.code}'s finished-pair limit of ${formatLimitDb(model.pairResponseLimitDb)}.`, { limitDb: [`At most ${formatLimitDb(model.pairResponseLimitDb)} for ${model.code}.`] });
   }
 }
 
@@ -451,7 +451,7 @@ export async function matchCrossovers(db: DbOrTx, input: { modelId: string; limi
       notReady.push({ identity: b.identity, reason: (e as Error).message });
     }
   }
-  const plan = planPairs(units, { limitDb: input.limitDb });
+  const plan = planPairs(units, { limitDb: input.limitDb, bandLabels: bands.map((b) => bandLabel(b.nominal)) });
   return { model, bands, units, notReady, plan, limitDb: input.limitDb };
 }
 
@@ -503,7 +503,7 @@ export async function acceptCrossoverPlan(db: DbOrTx, input: { modelId: string; 
         const b = byId.get(p.b)!;
         const c = pairCost(a, b);
         if (c.maxDiffDb > input.limitDb + 1e-9) {
-          throw new AppError(400, `${a.identity} and ${b.identity} differ by ${c.maxDiffDb.toFixed(2)} dB in the ${view.bands[c.worstBand]?.nominal ?? "?"} Hz band, over the ${input.limitDb} dB limit. Nothing was saved.`);
+          throw new AppError(400, `${a.identity} and ${b.identity} differ by ${formatDb(c.maxDiffDb)} at ${bandLabel(view.bands[c.worstBand]?.nominal ?? "?")}, over the ${formatLimitDb(input.limitDb)} limit. Nothing was saved.`);
         }
         const id = newId();
         const code = `M-X-${model.code}-${String(++n).padStart(3, "0")}`;

@@ -3,16 +3,19 @@ import type { LabActor } from "@/lib/vocabulary/actor";
 import { and, asc, desc, eq, inArray, isNull, like, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { batchUnits, items, matchedSets, modelTolerances, models, responses, setMembers, tsParams, unitBatches, type Item } from "@/db/schema";
-import type { PartType } from "@/lib/vocabulary/part-types";
+import { partWord, type PartType } from "@/lib/vocabulary/part-types";
 import { AppError, isConstraintError } from "@/lib/auth/errors";
 import { newId } from "@/lib/auth/tokens";
 import { appendEvent } from "@/lib/events/queries";
 import { changeState, createItem, type Recorder } from "@/lib/genealogy/graph";
-import { bandLevels, checkTsParams, parseResponseFile, thirdOctaveBands, TS_FIELDS } from "@/lib/acoustics";
+import { bandLabel, bandLevels, checkTsParams, formatDb, formatLimitDb, parseResponseFile, thirdOctaveBands, TS_FIELDS } from "@/lib/acoustics";
 import { LIMIT_EPSILON_DB, pairCost, planPairs } from "@/lib/matching";
 import { allocateSerial } from "@/lib/serials/allocator";
 import { batchCountMismatch } from "./batch-count";
+import { whyNoPairs } from "./plan-words";
+import { modelsTakingPartType } from "./queries";
 import { readTsCsv } from "./ts-csv";
+import { countUnits, type UnitCounts } from "./unit-counts";
 import { PART_TYPE_CODES, parseSerial } from "@/lib/serials/format";
 
 export const LAB_STATION = "lab";
@@ -432,8 +435,37 @@ export async function matchBatch(db: DbOrTx, batch: { id: string; partType: Part
       notReady.push({ identity: r.identity, reason: (e as Error).message });
     }
   }
-  const plan = planPairs(units, opts);
+  const plan = planPairs(units, { ...opts, bandLabels: bands.map((b) => bandLabel(b.nominal)) });
   return { bands, units, notReady, plan, limitDb: opts.limitDb };
+}
+
+export interface MatchReadiness {
+  /** Measured units free to pair. */
+  free: number;
+  /** Whether matching can pair anything, under the loosest limit of a model that takes the part type. */
+  canMatch: boolean;
+  /** Why not, in the lab's words, when it cannot and there is something to say. */
+  why: string | null;
+}
+
+/**
+ * Whether matching a batch can make a pair, so that it is offered only when it can: worked out
+ * under the loosest limit of any active model that takes the part type (if no pair is allowed
+ * there, none is under a tighter one).
+ */
+export async function matchReadiness(db: DbOrTx, batch: { id: string; partType: PartType }): Promise<MatchReadiness> {
+  const limits = await modelsTakingPartType(db, batch.partType);
+  const loosest = limits.sort((a, b) => b.limit - a.limit)[0];
+  if (!loosest) {
+    const free = (await batchUnitsView(db, batch.id)).filter((u) => !u.setCode && (u.state === "measured" || u.state === "in_stock") && u.responseId !== null).length;
+    return { free, canMatch: false, why: free >= 2 ? `No model in production has a mismatch limit for ${partWord(batch.partType)}s, so there is nothing to match them against.` : null };
+  }
+  const view = await matchBatch(db, batch, { limitDb: loosest.limit });
+  const free = view.units.length;
+  if (view.plan.pairs.length) return { free, canMatch: true, why: null };
+  const why = free >= 2 ? whyNoPairs(view.plan, { free, limitDb: loosest.limit, noun: "units", bandLabels: view.bands.map((b) => bandLabel(b.nominal)) }) : null;
+  const several = new Set(limits.map((l) => l.limit)).size > 1;
+  return { free, canMatch: false, why: why && several ? `${why} That is the loosest limit of any model, the ${loosest.code}'s.` : why };
 }
 
 /** Thrown when units of a plan were reserved by someone else first. */
@@ -476,7 +508,9 @@ export async function acceptPlan(
         const a = byId.get(p.a)!;
         const b = byId.get(p.b)!;
         const c = pairCost(a, b, { limitDb: limit.limit, fsWeight: input.fsWeight, qtsWeight: input.qtsWeight });
-        if (c.maxDiffDb > limit.limit + LIMIT_EPSILON_DB) throw new AppError(400, `${a.identity} and ${b.identity} differ by ${c.maxDiffDb.toFixed(2)} dB, over the ${limit.limit} dB limit.`);
+        if (c.maxDiffDb > limit.limit + LIMIT_EPSILON_DB) {
+          throw new AppError(400, `${a.identity} and ${b.identity} differ by ${formatDb(c.maxDiffDb)} at ${bandLabel(view.bands[c.worstBand]?.nominal ?? "?")}, over the ${formatLimitDb(limit.limit)} limit. Nothing was saved.`);
+        }
         const id = newId();
         const code = `M-${batch.code}-${String(++n).padStart(3, "0")}`;
         const eventId = await appendEvent(tx, {
@@ -530,16 +564,25 @@ export async function openSets(db: DbOrTx, limit = 200) {
   return [...sets.values()];
 }
 
-/** Batches with how many units wait for measurement, are ready to match, are reserved or failed. */
-export async function listBatches(db: DbOrTx) {
-  return db.all<{ id: string; code: string; partType: PartType; partNumber: string; maker: string; lot: string; receivedOn: string; units: number; awaiting: number; ready: number; reserved: number; failed: number }>(sql`
-    SELECT b.id, b.code, b.part_type AS partType, b.part_number AS partNumber, b.maker, b.lot, b.received_on AS receivedOn,
-      count(*) AS units,
-      sum(i.state = 'awaiting_measurement') AS awaiting,
-      sum(i.state = 'measured' AND EXISTS (SELECT 1 FROM responses r WHERE r.item_id = i.id)) AS ready,
-      sum(i.state = 'reserved') AS reserved,
-      sum(i.state = 'failed') AS failed
-    FROM unit_batches b JOIN batch_units bu ON bu.batch_id = b.id JOIN items i ON i.id = bu.item_id
-    GROUP BY b.id ORDER BY b.received_on DESC, b.code DESC`);
+/**
+ * Batches, newest first, with their units counted by where they stand (lib/lab/unit-counts: waiting,
+ * measured and free, reserved, fitted, failed, other), so the counts add up to the batch's units.
+ */
+export async function listBatches(db: DbOrTx): Promise<(typeof unitBatches.$inferSelect & UnitCounts)[]> {
+  const [batches, groups] = await Promise.all([
+    db.select().from(unitBatches).orderBy(desc(unitBatches.receivedOn), desc(unitBatches.code)),
+    db.all<{ batchId: string; state: string; inOpenSet: number; n: number }>(sql`
+      SELECT bu.batch_id AS batchId, i.state AS state,
+        EXISTS (SELECT 1 FROM set_members sm WHERE sm.item_id = i.id AND sm.ended_at IS NULL) AS inOpenSet,
+        count(*) AS n
+      FROM batch_units bu JOIN items i ON i.id = bu.item_id
+      GROUP BY bu.batch_id, i.state, inOpenSet`),
+  ]);
+  const byBatch = new Map<string, { state: string; inOpenSet: boolean; n: number }[]>();
+  for (const g of groups) {
+    const list = byBatch.get(g.batchId) ?? [];
+    list.push({ state: g.state, inOpenSet: Boolean(g.inOpenSet), n: Number(g.n) });
+    byBatch.set(g.batchId, list);
+  }
+  return batches.map((b) => ({ ...b, ...countUnits(byBatch.get(b.id) ?? []) }));
 }
-

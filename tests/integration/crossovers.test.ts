@@ -279,7 +279,8 @@ describe("pairing boards", () => {
     expect(view.plan.pairs).toHaveLength(1);
     expect([view.plan.pairs[0]!.a, view.plan.pairs[0]!.b].sort()).toEqual([boards[0], boards[1]].sort());
     expect(view.plan.pairs[0]!.maxDiffDb).toBeLessThan(0.2);
-    expect(view.plan.single).toEqual([{ id: boards[2], reason: expect.stringMatching(/no partner within 0\.5 dB/) }]);
+    // The band named by its ISO 266 name and unit, never by its index ("at band 13").
+    expect(view.plan.single).toEqual([{ id: boards[2], reason: expect.stringMatching(/^no partner within 0\.5 dB: the closest, X-PW2-.*, differs by 1\.\d+ dB at \d+(\.\d+)? k?Hz$/), closest: expect.objectContaining({ maxDiffDb: expect.any(Number) }) }]);
     // The failed board is not offered; boards without a response are listed as not ready.
     expect(view.units.find((u) => u.id === boards[3])).toBeUndefined();
     expect(view.notReady.every((n) => n.reason === "no response measured yet")).toBe(true);
@@ -287,13 +288,13 @@ describe("pairing boards", () => {
 
   test("a limit looser than the model's finished-pair limit is refused", async () => {
     const e = await appErrorOf(() => matchCrossovers(db(), { modelId: pw2.id, limitDb: 3 }));
-    expect(e.message).toMatch(/finished-pair limit of 1 dB/);
+    expect(e.message).toMatch(/finished-pair limit of 1\.0 dB/);
   });
 
   test("a pair over the limit cannot be accepted, whatever is sent", async () => {
     const before = await counts();
     const e = await appErrorOf(() => acceptCrossoverPlan(db(), { modelId: pw2.id, limitDb: 0.5, pairs: [{ a: boards[0]!, b: boards[2]! }] }, actor));
-    expect(e.message).toMatch(/differ by 1\.\d\d dB .* over the 0\.5 dB limit/);
+    expect(e.message).toMatch(/differ by 1\.\d\d dB at \d+(\.\d+)? k?Hz, over the 0\.5 dB limit/);
     expect(await counts()).toEqual(before);
   });
 

@@ -3,7 +3,9 @@ import { beforeAll, describe, expect, test } from "vitest";
 import { getDb } from "@/db";
 import { items, models, modelTolerances, responses, setMembers, tsParams, users } from "@/db/schema";
 import { seedDemo } from "@/db/seed/seed";
-import { acceptPlan, batchUnitsView, failUnit, importResponseFiles, importTsCsv, importTsRows, matchBatch, recordMeasurement, registerBatch, UnitsTakenError } from "@/lib/lab/units";
+import { acceptPlan, batchUnitsView, failUnit, importResponseFiles, importTsCsv, importTsRows, listBatches, matchBatch, matchReadiness, recordMeasurement, registerBatch, UnitsTakenError } from "@/lib/lab/units";
+import { UNIT_CLASSES } from "@/lib/lab/unit-counts";
+import { changeState } from "@/lib/genealogy/graph";
 import { AppError } from "@/lib/auth/errors";
 import type { LabActor } from "@/lib/vocabulary/actor";
 import { failureText } from "./helpers";
@@ -201,6 +203,44 @@ describe("matching and reserving", () => {
     const { batch, units } = await measuredBatch([90, 93]);
     const msg = await failureText(() => acceptPlan(db(), { batchId: batch.id, modelId: model.id, pairs: [{ a: units[0]!.identity, b: units[1]!.identity }] }, actor));
     expect(msg).toMatch(/over the .* dB limit/);
+  });
+
+  test("matching is not offered when no two units are within the limit, and the page is told why, with the band by its name", async () => {
+    // Two invented flat responses, the second 1.43 dB louder in the 2 kHz band only (IEC 61260-1 edges 1778.28–2238.72 Hz).
+    const b = await newBatch(2);
+    const units = await batchUnitsView(db(), b.id);
+    const bumped = (serial: string, bump: number) =>
+      responseFile(serial, 90)
+        .split("\n")
+        .map((l) => {
+          const [hz, level, phase] = l.split("\t");
+          return phase !== undefined && Number(hz) >= 1778.28 && Number(hz) < 2238.72 ? `${hz}\t${(Number(level) + bump).toFixed(3)}\t${phase}` : l;
+        })
+        .join("\n");
+    await importResponseFiles(db(), units.map((u, i) => ({ name: `${u.identity}.txt`, text: bumped(u.identity, i === 1 ? 1.43 : 0) })), { batchId: b.id, source: "upload" }, actor);
+    const r = await matchReadiness(db(), { id: b.id, partType: "tweeter" });
+    // Every demo model allows tweeters 0.5 dB apart (the seed's model tolerances).
+    expect(r).toEqual({ free: 2, canMatch: false, why: `No two of the 2 measured units are within the 0.5 dB limit: the closest two, ${units[0]!.identity} and ${units[1]!.identity}, differ by 1.43 dB at 2 kHz.` });
+
+    const close = await measuredBatch([90, 90.05]);
+    expect(await matchReadiness(db(), { id: close.batch.id, partType: "tweeter" })).toEqual({ free: 2, canMatch: true, why: null });
+  });
+
+  test("a batch's columns add up to its units: waiting, measured and free, reserved, fitted, failed and other", async () => {
+    const { batch, units } = await measuredBatch([90, 90.02, 90.04, 93, 95, 97]);
+    // Another batch whose one unit waits for measurement, so every class is somewhere in the list.
+    await registerBatch(db(), { partType: "tweeter", partNumber: "T-TEST", maker: "Test maker", lot: "L1", receivedOn: "2026-11-30", makerSerials: [], count: 1 }, actor);
+    const view = await matchBatch(db(), { id: batch.id, partType: "tweeter" }, { limitDb: tweeterLimit });
+    await acceptPlan(db(), { batchId: batch.id, modelId: model.id, pairs: [view.plan.pairs[0]!] }, actor);
+    await failUnit(db(), { itemId: units[3]!.id, reason: "buzz at 3 kHz" }, actor);
+    // A unit fitted outside a set (as a service replacement is) and one scrapped: the states the lab does not set itself.
+    await changeState(db(), (await db().select().from(items).where(eq(items.id, units[4]!.id)))[0]!, "fitted", { actorId: actor.id, station: "lab" });
+    await changeState(db(), (await db().select().from(items).where(eq(items.id, units[5]!.id)))[0]!, "scrapped", { actorId: actor.id, station: "lab", reason: "dropped" });
+
+    const all = await listBatches(db());
+    for (const b of all) expect(UNIT_CLASSES.reduce((sum, c) => sum + b[c], 0)).toBe(b.units);
+    const mine = all.find((b) => b.id === batch.id)!;
+    expect(mine).toMatchObject({ units: 6, waiting: 0, free: 1, reserved: 2, fitted: 1, failed: 1, other: 1 });
   });
 
   test("a failed unit is not matched and says why", async () => {

@@ -13,6 +13,7 @@ import { getDb } from "@/db";
 import { areaByKey } from "@/lib/areas";
 import { AppError } from "@/lib/auth/errors";
 import { requirePage } from "@/lib/auth/guard";
+import { formatHzRange, formatLimitDb } from "@/lib/acoustics";
 import { formatWhen } from "@/lib/format";
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { crossoverBoards, crossoverModels, lotsInStock, matchCrossovers, type CrossoverMatchView } from "@/lib/lab/crossovers";
@@ -135,8 +136,8 @@ export default async function CrossoversPage({ searchParams }: { searchParams: P
         </form>
         <p className="mt-3 text-sm text-ink-soft">
           Two boards may pair when their levels differ by no more than the limit in every one-third-octave band over the model&apos;s range
-          {model ? ` (${model.responseMinHz}–${model.responseMaxHz} Hz)` : ""}. The limit starts at the model&apos;s tightest drive-unit limit and may not exceed its finished-pair limit
-          {model ? ` of ${model.pairResponseLimitDb} dB` : ""}.
+          {model ? ` (${formatHzRange(model.responseMinHz, model.responseMaxHz)})` : ""}. The limit starts at the model&apos;s tightest drive-unit limit and may not exceed its finished-pair limit
+          {model ? ` of ${formatLimitDb(model.pairResponseLimitDb)}` : ""}.
         </p>
         {limitProblem ? (
           <Notice tone="caution" className="mt-3">
