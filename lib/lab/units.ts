@@ -166,11 +166,20 @@ export async function batchUnitsView(db: DbOrTx, batchId: string, opts: { withPo
 
 // ---- measurements -------------------------------------------------------------------------------
 
-/** Finds a unit by its Twinleaf serial, or by the maker's serial (within a batch when one is given). */
-export async function findUnit(db: DbOrTx, text: string, batchId?: string): Promise<Item | null> {
+/**
+ * Finds a unit by its Twinleaf serial, or by the maker's serial (within a batch when one is given).
+ * With `boards`, a crossover board's serial is found too (boards have no batch and no maker's
+ * serial): its response may be measured after it was built.
+ */
+export async function findUnit(db: DbOrTx, text: string, batchId?: string, opts: { boards?: boolean } = {}): Promise<Item | null> {
   const parsed = parseSerial(text);
-  if (parsed?.valid && parsed.kind === "drive_unit") {
-    const [row] = await db.select().from(items).where(and(eq(items.identity, parsed.canonical), eq(items.kind, "drive_unit"))).limit(1);
+  if (parsed?.valid && (parsed.kind === "drive_unit" || (opts.boards && parsed.kind === "crossover"))) {
+    const [row] = await db.select().from(items).where(and(eq(items.identity, parsed.canonical), eq(items.kind, parsed.kind))).limit(1);
+    // On a batch's page a serial of another batch is not "a unit of this batch".
+    if (row && batchId) {
+      const [member] = await db.select({ id: batchUnits.itemId }).from(batchUnits).where(and(eq(batchUnits.itemId, row.id), eq(batchUnits.batchId, batchId))).limit(1);
+      return member ? row : null;
+    }
     if (row) return row;
   }
   const byMaker = await db
@@ -189,6 +198,8 @@ async function measurableUnit(tx: DbOrTx, itemId: string) {
   const [unit] = await tx.select().from(items).where(eq(items.id, itemId)).limit(1);
   if (!unit || (unit.kind !== "drive_unit" && unit.kind !== "crossover")) throw new AppError(404, "That unit is not in the register.");
   if (unit.kind === "drive_unit" && !MEASURABLE.has(unit.state)) throw new AppError(409, `${unit.identity} is ${unit.state.replace(/_/g, " ")}: it can no longer be measured as a loose unit.`);
+  // A board is measured while it waits in stock: once paired, its pairing rests on the response it had.
+  if (unit.kind === "crossover" && unit.state !== "in_stock") throw new AppError(409, `${unit.identity} is ${unit.state.replace(/_/g, " ")}: a board is measured while it is in stock, before it is paired.`);
   return unit;
 }
 
@@ -222,8 +233,9 @@ async function insertResponse(tx: DbOrTx, input: ResponseInput, actor: LabActor)
 
 /**
  * Reads response files and records each for the unit it names (Twinleaf or maker serial in the
- * first line or the file name). Every file is checked first: if any is bad or names no unit,
- * nothing is written and each problem is reported with its file and line.
+ * first line or the file name; outside a batch, a crossover board's serial too). Every file is
+ * checked first: if any is bad or names no unit, nothing is written and each problem is reported
+ * with its file and line.
  */
 export async function importResponseFiles(db: DbOrTx, files: { name: string; text: string }[], opts: { batchId?: string; source: "upload" | "api" }, actor: LabActor) {
   if (!files.length) throw new AppError(400, "Choose at least one response file.");
@@ -237,9 +249,15 @@ export async function importResponseFiles(db: DbOrTx, files: { name: string; tex
       continue;
     }
     const hint = result.serialHint ?? f.name.replace(/\.[A-Za-z0-9]+$/, "");
-    const unit = (result.serialHint ? await findUnit(db, result.serialHint, opts.batchId) : null) ?? (await findUnit(db, hint, opts.batchId));
+    // Outside a batch a file may be a crossover board's, named by its serial.
+    const find = (text: string) => findUnit(db, text, opts.batchId, { boards: !opts.batchId });
+    const unit = (result.serialHint ? await find(result.serialHint) : null) ?? (await find(hint));
     if (!unit) {
       problems.push(`${f.name}: names no unit of ${opts.batchId ? "this batch" : "the register"} (put the unit's serial or the maker's serial in the first line or the file name).`);
+      continue;
+    }
+    if (unit.kind === "crossover" && unit.state !== "in_stock") {
+      problems.push(`${f.name}: ${unit.identity} is ${unit.state.replace(/_/g, " ")}; a board is measured while it is in stock, before it is paired.`);
       continue;
     }
     if (seen.has(unit.id)) {
