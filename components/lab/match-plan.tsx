@@ -51,29 +51,29 @@ export function MatchPlan({ plan, units, notReady, bands, limitDb, minHz, maxHz,
       </div>
       {nothing ? (
         <Notice tone="caution" testId={`${testPrefix}plan-nothing`}>
-          {nothing} Nothing can be reserved until {noun === "boards" ? "closer boards are measured" : "closer units are measured"}.
+          {nothing} Nothing can be reserved until {units.length >= 2 ? `closer ${noun} are measured` : `more ${noun} are measured`}.
         </Notice>
       ) : null}
       <DataTable
         caption="Pairs of the plan"
         testId={`${testPrefix}plan-pairs`}
-        empty={`No pair: no two ${noun} are within the ${formatLimitDb(limitDb)} limit.`}
+        empty="No pair in this plan."
         initialSort={{ key: "cost", dir: "asc" }}
         columns={[
           { key: "n", label: "#", numeric: true },
           { key: "a", label: "Left" },
           { key: "b", label: "Right" },
           { key: "cost", label: "Cost", numeric: true },
-          { key: "max", label: "Largest difference", numeric: true },
+          { key: "max", label: `Largest difference (limit ${formatLimitDb(limitDb)})`, numeric: true },
         ]}
         rows={plan.pairs.map((p, i) => ({
           id: `${p.a}:${p.b}`,
           cells: {
             n: { value: i + 1 },
-            a: { value: serial(p.a), display: <span className="serial">{serial(p.a)}</span> },
-            b: { value: serial(p.b), display: <span className="serial">{serial(p.b)}</span> },
-            cost: { value: p.cost, display: `${db2(p.cost)} dB RMS` },
-            max: { value: p.maxDiffDb, display: `${formatDb(p.maxDiffDb)} at ${labels[p.worstBand] ?? "?"} (limit ${formatLimitDb(limitDb)})` },
+            a: { value: serial(p.a), display: <span className="serial whitespace-nowrap">{serial(p.a)}</span> },
+            b: { value: serial(p.b), display: <span className="serial whitespace-nowrap">{serial(p.b)}</span> },
+            cost: { value: p.cost, display: <span className="whitespace-nowrap">{db2(p.cost)} dB RMS</span> },
+            max: { value: p.maxDiffDb, display: <span className="whitespace-nowrap">{`${formatDb(p.maxDiffDb)} at ${labels[p.worstBand] ?? "?"}`}</span> },
           },
         }))}
       />

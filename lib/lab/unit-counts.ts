@@ -10,7 +10,7 @@ export type UnitClass = (typeof UNIT_CLASSES)[number];
 /** Each class as a column heading and inside a sentence. */
 export const UNIT_CLASS_WORDS: Record<UnitClass, { column: string; sentence: string }> = {
   waiting: { column: "Waiting", sentence: "waiting for measurement" },
-  free: { column: "Measured, free", sentence: "measured and free to match" },
+  free: { column: "Measured", sentence: "measured and free to match" },
   reserved: { column: "Reserved", sentence: "reserved in sets" },
   fitted: { column: "Fitted", sentence: "fitted in speakers" },
   failed: { column: "Failed", sentence: "failed" },

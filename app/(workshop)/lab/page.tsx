@@ -129,28 +129,42 @@ export default async function Page() {
         )}
       </Panel>
       <Panel title="Batches">
+        <p className="mb-3 text-sm text-ink-soft">
+          Each batch&apos;s units, counted by where they stand now: {classes.map((c) => UNIT_CLASS_WORDS[c].sentence).join(", ")}. The counts add up to the units.
+        </p>
         <DataTable
           caption="Batches of drive units"
           testId="lab-batches"
           empty="No batch registered yet."
-          initialSort={{ key: "received", dir: "desc" }}
+          initialSort={{ key: "code", dir: "desc" }}
           columns={[
-            { key: "code", label: "Batch" },
-            { key: "part", label: "Part" },
-            { key: "number", label: "Part number" },
-            { key: "lot", label: "Lot" },
-            { key: "received", label: "Received" },
+            { key: "code", label: "Batch, received" },
+            { key: "part", label: "Units of" },
             { key: "units", label: "Units", numeric: true },
             ...classes.map((c) => ({ key: c, label: UNIT_CLASS_WORDS[c].column, numeric: true })),
           ]}
           rows={batches.map((b) => ({
             id: b.id,
             cells: {
-              code: { value: b.code, display: batchLink(b.code) },
-              part: { value: b.partType, display: PART_TYPE_LABEL[b.partType] },
-              number: { value: `${b.maker} ${b.partNumber}` },
-              lot: { value: b.lot },
-              received: { value: b.receivedOn, display: formatDate(new Date(`${b.receivedOn}T12:00:00Z`)) },
+              // Sorted by when it came in; the date sits under the code to leave room for the counts.
+              code: {
+                value: `${b.receivedOn} ${b.code}`,
+                display: (
+                  <span>
+                    {batchLink(b.code)}
+                    <span className="block text-sm whitespace-nowrap text-ink-soft">{formatDate(new Date(`${b.receivedOn}T12:00:00Z`))}</span>
+                  </span>
+                ),
+              },
+              part: {
+                value: `${b.partType} ${b.maker} ${b.partNumber}`,
+                display: (
+                  <span className="text-sm">
+                    <span className="font-bold">{PART_TYPE_LABEL[b.partType]}</span> {b.maker} {b.partNumber}
+                    <span className="block text-ink-soft">lot {b.lot}</span>
+                  </span>
+                ),
+              },
               units: { value: b.units },
               ...Object.fromEntries(classes.map((c) => [c, { value: b[c] }])),
             },

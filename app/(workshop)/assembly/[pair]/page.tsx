@@ -23,6 +23,8 @@ export async function generateMetadata({ params }: { params: Promise<{ pair: str
 }
 
 const capitalised = (text: string) => `${text.charAt(0).toUpperCase()}${text.slice(1)}`;
+/** A speaker's parts from the cabinet down the baffle to the crossover: CAB, T, M, B, XO. */
+const partRank = (position: string) => ({ CAB: 0, T: 1, M: 2, B: 3, XO: 9 })[position.replace(/-?\d+$/, "")] ?? 5;
 const PART_TYPE_NAME: Record<string, string> = { tweeter: "Tweeters", midrange: "Midrange units", bass: "Bass units", crossover: "Crossover boards" };
 
 export default async function AssemblyPairPage({ params }: { params: Promise<{ pair: string }> }) {
@@ -89,11 +91,13 @@ export default async function AssemblyPairPage({ params }: { params: Promise<{ p
                     {s.side === "L" ? "Left" : "Right"} speaker <SerialLink identity={s.item.identity} />
                   </h3>
                   <dl className="grid grid-cols-[max-content_1fr] gap-x-3 gap-y-1">
-                    {s.parts.map((p) => (
+                    {[...s.parts].sort((x, y) => partRank(x.position) - partRank(y.position) || x.position.localeCompare(y.position, undefined, { numeric: true })).map((p) => (
                       <div key={p.position} className="contents">
                         <dt className="font-bold">{capitalised(positionName(p.position))}</dt>
                         <dd>
-                          <SerialLink identity={p.identity} bold={false} /> <span className="text-sm text-ink-soft">{p.partType && isPartType(p.partType) ? PART_TYPE_LABEL[p.partType] : kindLabel(p.kind)}</span>
+                          <SerialLink identity={p.identity} bold={false} />
+                          {/* A position the vocabulary does not name says what sits there instead. */}
+                          {positionName(p.position) === p.position ? <span className="text-sm text-ink-soft"> {p.partType && isPartType(p.partType) ? PART_TYPE_LABEL[p.partType] : kindLabel(p.kind)}</span> : null}
                         </dd>
                       </div>
                     ))}

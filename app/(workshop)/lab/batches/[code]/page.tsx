@@ -70,12 +70,11 @@ export default async function BatchPage({ params, searchParams }: { params: Prom
           columns={[
             { key: "identity", label: "Serial" },
             { key: "maker", label: "Maker's serial" },
-            { key: "state", label: "State" },
-            { key: "response", label: "Response" },
+            { key: "state", label: "State, response" },
             { key: "fs", label: "Fs, Hz", numeric: true },
             { key: "qts", label: "Qts", numeric: true },
             { key: "re", label: "Re, Ω", numeric: true },
-            { key: "spl", label: "Sensitivity, dB", numeric: true },
+            { key: "spl", label: "SPL, dB", numeric: true },
             { key: "set", label: "Set" },
             { key: "act", label: "", sortable: false },
           ]}
@@ -84,8 +83,15 @@ export default async function BatchPage({ params, searchParams }: { params: Prom
             cells: {
               identity: { value: u.identity, display: <SerialLink identity={u.identity} /> },
               maker: { value: u.makerSerial ?? "" },
-              state: { value: u.state, display: <Badge tone={TONE[u.state] ?? "neutral"}>{stateLabel(u.state)}</Badge> },
-              response: { value: u.responseAt?.getTime() ?? 0, display: u.responseAt ? formatWhen(u.responseAt) : "none" },
+              state: {
+                value: u.state,
+                display: (
+                  <span>
+                    <Badge tone={TONE[u.state] ?? "neutral"}>{stateLabel(u.state)}</Badge>
+                    <span className="block text-sm whitespace-nowrap text-ink-soft">{u.responseAt ? `response ${formatWhen(u.responseAt)}` : "no response yet"}</span>
+                  </span>
+                ),
+              },
               fs: { value: u.fsHz, display: ts("fs", u.fsHz) },
               qts: { value: u.qts, display: ts("qts", u.qts) },
               re: { value: u.reOhm, display: ts("re", u.reOhm) },
