@@ -138,30 +138,25 @@ export default async function Page() {
           empty="No batch registered yet."
           initialSort={{ key: "code", dir: "desc" }}
           columns={[
-            { key: "code", label: "Batch, received" },
-            { key: "part", label: "Units of" },
+            { key: "code", label: "Batch" },
             { key: "units", label: "Units", numeric: true },
             ...classes.map((c) => ({ key: c, label: UNIT_CLASS_WORDS[c].column, numeric: true })),
           ]}
           rows={batches.map((b) => ({
             id: b.id,
             cells: {
-              // Sorted by when it came in; the date sits under the code to leave room for the counts.
+              // Sorted by when it came in; what and when sit under the code, to leave room for the counts.
               code: {
                 value: `${b.receivedOn} ${b.code}`,
                 display: (
-                  <span>
-                    {batchLink(b.code)}
-                    <span className="block text-sm whitespace-nowrap text-ink-soft">{formatDate(new Date(`${b.receivedOn}T12:00:00Z`))}</span>
-                  </span>
-                ),
-              },
-              part: {
-                value: `${b.partType} ${b.maker} ${b.partNumber}`,
-                display: (
                   <span className="text-sm">
-                    <span className="font-bold">{PART_TYPE_LABEL[b.partType]}</span> {b.maker} {b.partNumber}
-                    <span className="block text-ink-soft">lot {b.lot}</span>
+                    {batchLink(b.code)}
+                    <span className="block">
+                      <span className="font-bold">{PART_TYPE_LABEL[b.partType]}</span> <span className="whitespace-nowrap">{b.partNumber}</span>
+                    </span>
+                    <span className="block whitespace-nowrap text-ink-soft">
+                      lot {b.lot} · {formatDate(new Date(`${b.receivedOn}T12:00:00Z`))}
+                    </span>
                   </span>
                 ),
               },

@@ -68,21 +68,28 @@ export default async function BatchPage({ params, searchParams }: { params: Prom
           caption={`Units of batch ${batch.code}`}
           testId="units-table"
           columns={[
-            { key: "identity", label: "Serial" },
-            { key: "maker", label: "Maker's serial" },
+            { key: "identity", label: "Serial, maker's serial" },
             { key: "state", label: "State, response" },
             { key: "fs", label: "Fs, Hz", numeric: true },
             { key: "qts", label: "Qts", numeric: true },
             { key: "re", label: "Re, Ω", numeric: true },
-            { key: "spl", label: "SPL, dB", numeric: true },
-            { key: "set", label: "Set" },
+            // Columns nobody has filled yet are left out, so the ones that matter fit the page.
+            ...(units.some((u) => u.sensitivityDb !== null) ? [{ key: "spl", label: "SPL, dB", numeric: true }] : []),
+            ...(units.some((u) => u.setCode) ? [{ key: "set", label: "Set" }] : []),
             { key: "act", label: "", sortable: false },
           ]}
           rows={units.map((u) => ({
             id: u.id,
             cells: {
-              identity: { value: u.identity, display: <SerialLink identity={u.identity} /> },
-              maker: { value: u.makerSerial ?? "" },
+              identity: {
+                value: u.identity,
+                display: (
+                  <span>
+                    <SerialLink identity={u.identity} />
+                    {u.makerSerial ? <span className="block text-sm text-ink-soft">maker&apos;s {u.makerSerial}</span> : null}
+                  </span>
+                ),
+              },
               state: {
                 value: u.state,
                 display: (
