@@ -1,5 +1,6 @@
 "use client";
 import { Area, CartesianGrid, ComposedChart, Legend, Line, ResponsiveContainer, Tooltip, XAxis, YAxis } from "recharts";
+import { formatDb, formatHz, formatHzRange, formatLimitDb } from "@/lib/acoustics/format";
 
 export interface PairChartProps {
   /** The two units' measured responses, in Hz and dB. */
@@ -14,7 +15,6 @@ export interface PairChartProps {
 }
 
 const TICKS = [20, 50, 100, 200, 500, 1000, 2000, 5000, 10000, 20000];
-const hzLabel = (hz: number) => (hz >= 1000 ? `${hz / 1000}k` : String(hz));
 
 /**
  * Two responses overlaid on a log-frequency axis. The shaded band is where both must lie for the
@@ -31,15 +31,15 @@ export function PairChart({ a, b, bands, limitDb, minHz, maxHz, title }: PairCha
   return (
     <figure className="rounded-lg border border-line bg-surface p-3" data-testid="pair-chart">
       <figcaption className="mb-1 text-sm font-bold">{title}</figcaption>
-      <div className="h-56 w-full" role="img" aria-label={`${title}: responses of ${a.label} and ${b.label} from ${hzLabel(minHz)} to ${hzLabel(maxHz)} Hz, with the ±${(limitDb / 2).toFixed(2)} dB band around their mean shaded.`}>
+      <div className="h-56 w-full" role="img" aria-label={`${title}: responses of ${a.label} and ${b.label}, ${formatHzRange(minHz, maxHz)}, with the ±${formatDb(limitDb / 2)} band around their mean shaded.`}>
         <ResponsiveContainer width="100%" height="100%">
           <ComposedChart margin={{ top: 4, right: 8, bottom: 4, left: 0 }}>
             <CartesianGrid stroke="#d6cfc2" strokeDasharray="2 3" />
-            <XAxis dataKey="hz" type="number" scale="log" domain={[minHz, maxHz]} ticks={TICKS.filter((t) => t >= minHz && t <= maxHz)} tickFormatter={hzLabel} allowDataOverflow fontSize={11} label={{ value: "Hz", position: "insideBottomRight", offset: -2, fontSize: 11 }} />
+            <XAxis dataKey="hz" type="number" scale="log" domain={[minHz, maxHz]} ticks={TICKS.filter((t) => t >= minHz && t <= maxHz)} tickFormatter={(hz: number) => formatHz(hz)} allowDataOverflow fontSize={11} />
             <YAxis type="number" domain={[lo, hi]} allowDataOverflow fontSize={11} width={36} label={{ value: "dB", angle: -90, position: "insideLeft", fontSize: 11 }} />
-            <Tooltip formatter={(v) => (Array.isArray(v) ? `${Number(v[0]).toFixed(2)}–${Number(v[1]).toFixed(2)} dB` : `${Number(v).toFixed(2)} dB`)} labelFormatter={(hz) => `${Math.round(Number(hz))} Hz`} />
+            <Tooltip formatter={(v) => (Array.isArray(v) ? `${Number(v[0]).toFixed(2)}–${formatDb(Number(v[1]))}` : formatDb(Number(v)))} labelFormatter={(hz) => formatHz(Number(hz))} />
             <Legend verticalAlign="bottom" height={24} iconSize={10} wrapperStyle={{ fontSize: 12 }} />
-            <Area data={band} dataKey="range" name={`allowed band (limit ${limitDb} dB)`} type="monotone" stroke="none" fill="#2e6a57" fillOpacity={0.16} isAnimationActive={false} />
+            <Area data={band} dataKey="range" name={`allowed band (limit ${formatLimitDb(limitDb)})`} type="monotone" stroke="none" fill="#2e6a57" fillOpacity={0.16} isAnimationActive={false} />
             <Line data={series(a.points)} dataKey="db" name={a.label} type="monotone" stroke="#2e6a57" strokeWidth={1.8} dot={false} isAnimationActive={false} />
             <Line data={series(b.points)} dataKey="db" name={b.label} type="monotone" stroke="#7b4f32" strokeWidth={1.8} strokeDasharray="5 3" dot={false} isAnimationActive={false} />
           </ComposedChart>

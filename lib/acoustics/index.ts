@@ -1,4 +1,5 @@
-/** Pure acoustics for the lab: one-third-octave bands, response files and Thiele–Small parameters. */
+/** Pure acoustics for the lab: one-third-octave bands, response files, Thiele–Small parameters, and how frequencies and levels are written. */
 export * from "./bands";
 export * from "./response";
 export * from "./thiele-small";
+export * from "./format";

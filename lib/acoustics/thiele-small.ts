@@ -165,3 +165,35 @@ export function checkTsParams(input: TsInput): TsCheckResult {
   if (Object.keys(fieldErrors).length > 0) return { ok: false, fieldErrors };
   return { ok: true, values, derived };
 }
+
+/**
+ * A Thiele–Small value as the lab reads it, with the precision the measurement carries rather than
+ * a fixed number of decimals (a house rule of the lab's pages): Fs to 0.1 Hz below 100 Hz and to
+ * the hertz above (a bass unit's 37.5 Hz, a tweeter's 905 Hz); the Qs to three decimals below 1 and
+ * two above (0.378, 2.99); Re to 0.01 Ω; Vas to three significant figures (30.1 L, 0.052 L); the
+ * sensitivity to 0.1 dB. Without its unit: see `formatTsWithUnit`.
+ */
+export function formatTs(field: TsField, value: number): string {
+  if (!Number.isFinite(value)) return String(value);
+  switch (field) {
+    case "fs":
+      return value.toFixed(Math.abs(value) < 100 ? 1 : 0);
+    case "qts":
+    case "qes":
+    case "qms":
+      return value.toFixed(Math.abs(value) < 1 ? 3 : 2);
+    case "re":
+      return value.toFixed(2);
+    case "vas":
+      return String(Number(value.toPrecision(3)));
+    case "sensitivity":
+      return value.toFixed(1);
+  }
+}
+
+/** The same with its unit where it has one: "37.5 Hz" (Fs), "0.378" (Qts), "6.02 Ω" (Re), "30.1 L" (Vas), "88.5 dB". */
+export function formatTsWithUnit(field: TsField, value: number): string {
+  const info = TS_FIELDS.find((f) => f.key === field)!;
+  const unit = field === "sensitivity" ? "dB" : info.unit;
+  return `${formatTs(field, value)}${unit ? ` ${unit}` : ""}`;
+}

@@ -5,6 +5,7 @@ import type { DbOrTx } from "@/db";
 import { items, models, type Item } from "@/db/schema";
 import { KIND_WORD, stateLabel } from "@/lib/vocabulary/item-kinds";
 import { partWord } from "@/lib/vocabulary/part-types";
+import { positionName } from "@/lib/vocabulary/positions";
 import { sideWord, type Side } from "@/lib/vocabulary/sides";
 import { pairContext, type PairContext } from "./context";
 import { failureReason, findScanned, hasUnitResponse, holderOf, openMembership } from "./lookups";
@@ -35,21 +36,24 @@ export async function checkScanIn(db: DbOrTx, ctx: PairContext, input: Omit<Scan
   if (side !== "L" && side !== "R") return refuse("A speaker is either left or right.");
   const wanted = input.slot.trim().toUpperCase();
   const slot = ctx.slots.find((s) => s.slot === wanted);
-  if (!slot) return refuse(`${input.slot} is not a position of the ${ctx.model.code}: its positions are ${ctx.slots.map((s) => s.slot).join(", ")}.`);
+  if (!slot) {
+    const names = ctx.slots.map((s) => positionName(s.slot));
+    return refuse(`${input.slot} is not a position of the ${ctx.model.code}: its positions are ${names.slice(0, -1).join(", ")} and ${names.at(-1) ?? ""}.`);
+  }
   const found = await findScanned(db, input.code);
   if ("reason" in found) return refuse(found.reason);
   const item = found.item;
-  const here = `position ${slot.slot}`;
+  const here = `this field is for the ${positionName(slot.slot)}`;
 
   if (slot.kind === "crossover") {
-    if (item.kind !== "crossover") return refuse(`${item.identity} is a ${item.kind === "drive_unit" ? partWord(item.partType) : KIND_WORD[item.kind] ?? item.kind}; the XO slot takes a crossover board.`);
+    if (item.kind !== "crossover") return refuse(`${item.identity} is a ${item.kind === "drive_unit" ? partWord(item.partType) : KIND_WORD[item.kind] ?? item.kind}; ${here}: scan a crossover board.`);
     if (item.modelId !== ctx.model.id) {
       const [other] = item.modelId ? await db.select({ code: models.code }).from(models).where(eq(models.id, item.modelId)).limit(1) : [];
       return refuse(`${item.identity} is a crossover for the ${other?.code ?? "another model"}; this pair is a ${ctx.model.code}.`);
     }
   } else {
-    if (item.kind !== "drive_unit") return refuse(`${item.identity} is a ${KIND_WORD[item.kind] ?? item.kind}; ${here} takes a ${partWord(slot.partType)}.`);
-    if (item.partType !== slot.partType) return refuse(`${item.identity} is a ${partWord(item.partType)}; ${here} takes a ${partWord(slot.partType)}.`);
+    if (item.kind !== "drive_unit") return refuse(`${item.identity} is a ${KIND_WORD[item.kind] ?? item.kind}; ${here}: scan a ${partWord(slot.partType)}.`);
+    if (item.partType !== slot.partType) return refuse(`${item.identity} is a ${partWord(item.partType)}; ${here}: scan a ${partWord(slot.partType)}.`);
   }
 
   const others = input.chosen.filter((c) => !(c.side === side && c.slot === slot.slot));
@@ -64,21 +68,30 @@ export async function checkScanIn(db: DbOrTx, ctx: PairContext, input: Omit<Scan
     return refuse(`${item.identity} failed on the bench: ${why ?? "no reason was recorded"}. It cannot be fitted.`);
   }
   const holder = await holderOf(db, item.id);
-  if (holder) return refuse(`${item.identity} is already in ${holder.parent} at ${holder.position}.`);
+  if (holder) return refuse(`${item.identity} is already fitted, as the ${positionName(holder.position)} of ${holder.parent}.`);
   if (item.state === "scrapped") return refuse(`${item.identity} is scrapped.`);
 
+  // Drive units and crossover boards alike: measured, matched left and right by the lab, and
+  // reserved in a set of this model. A board that passed its check is in stock until the lab
+  // pairs it; one in no set would let a speaker pair carry two boards nobody compared.
   const set = await openMembership(db, item.id);
-  if (slot.kind === "drive_unit") {
-    if (!(await hasUnitResponse(db, item.id))) return refuse(`${item.identity} has no measured response: the lab measures every unit before it is matched and fitted.`);
-    if (!set || set.kind !== "drive_unit") return refuse(`${item.identity} is not in a matched set; the lab reserves units in sets before assembly.`);
-    if (set.modelId && set.modelId !== ctx.model.id) return refuse(`${item.identity} is in set ${set.code}, matched for the ${set.modelCode ?? "another model"}; this pair is a ${ctx.model.code}.`);
-    if (item.state !== "reserved") return refuse(`${item.identity} is ${stateLabel(item.state)}: only a unit reserved in a matched set is fitted.`);
-  } else if (set) {
-    if (set.modelId && set.modelId !== ctx.model.id) return refuse(`${item.identity} is in set ${set.code}, matched for the ${set.modelCode ?? "another model"}; this pair is a ${ctx.model.code}.`);
-    if (item.state !== "reserved") return refuse(`${item.identity} is ${stateLabel(item.state)}: it cannot be fitted.`);
-  } else if (item.state !== "in_stock") {
-    return refuse(`${item.identity} is ${stateLabel(item.state)}: only a board that passed its check and is in stock, or reserved in a crossover set, is fitted.`);
+  const noun = slot.kind === "drive_unit" ? "unit" : "board";
+  if (!(await hasUnitResponse(db, item.id))) {
+    return refuse(
+      slot.kind === "drive_unit"
+        ? `${item.identity} has no measured response: the lab measures every unit before it is matched and fitted.`
+        : `${item.identity} has no measured response: the lab measures every board and pairs it left and right before it is fitted.`,
+    );
   }
+  if (!set || set.kind !== slot.kind) {
+    return refuse(
+      slot.kind === "drive_unit"
+        ? `${item.identity} is not in a matched set; the lab reserves units in sets before assembly.`
+        : `${item.identity} is not in a matched set of boards; the lab pairs boards left and right in sets before assembly, as it does drive units.`,
+    );
+  }
+  if (set.modelId && set.modelId !== ctx.model.id) return refuse(`${item.identity} is in set ${set.code}, matched for the ${set.modelCode ?? "another model"}; this pair is a ${ctx.model.code}.`);
+  if (item.state !== "reserved") return refuse(`${item.identity} is ${stateLabel(item.state)}: only a ${noun} reserved in a matched set is fitted.`);
 
   // Left and right of a position come from one matched set: the partner rule, from both ends.
   const other = others.find((c) => c.side !== side && c.slot === slot.slot);
@@ -89,7 +102,7 @@ export async function checkScanIn(db: DbOrTx, ctx: PairContext, input: Omit<Scan
       if (otherSet.partner?.itemId !== item.id) {
         return refuse(`The ${sideWord(other.side)} ${slot.label} is from set ${otherSet.code}; the ${sideWord(side)} one must be its partner ${otherSet.partner?.identity ?? "(none recorded)"}.`);
       }
-    } else if (set) {
+    } else {
       return refuse(`${item.identity} is in set ${set.code}: its partner ${set.partner?.identity ?? "(none recorded)"} goes on the ${sideWord(other.side)}, but the ${sideWord(other.side)} ${slot.label} is ${otherItem?.identity ?? "another part"}.`);
     }
   }
@@ -101,9 +114,9 @@ export async function checkScanIn(db: DbOrTx, ctx: PairContext, input: Omit<Scan
  * at the bench: a pair on hold or whose cabinets have not finished their route (or already built);
  * an unknown or misread serial; the wrong kind of part for the field; the wrong part type for the
  * position; a crossover of another model; a part failed on the bench or never measured; a part
- * already fitted elsewhere; a drive unit not reserved in a matched set (or in one matched for
- * another model); a part that is not the set partner of the one chosen at the same position on
- * the other side; a part scanned twice in this build.
+ * already fitted elsewhere; a drive unit or crossover board not reserved in a matched set (or in
+ * one matched for another model); a part that is not the set partner of the one chosen at the
+ * same position on the other side; a part scanned twice in this build.
  */
 export async function checkScan(db: DbOrTx, input: ScanInput): Promise<ScanCheck> {
   const [pair] = await db.select().from(items).where(eq(items.id, input.pairId)).limit(1);

@@ -30,6 +30,7 @@ const QUANTITY_NOUN: Record<Unit, string> = { F: "capacitance", H: "inductance",
 // SI prefixes
 
 type Prefix = "p" | "n" | "µ" | "m" | "" | "k" | "M";
+const PREFIXES: readonly Prefix[] = ["p", "n", "µ", "m", "", "k", "M"];
 
 const PREFIX_EXPONENT: Record<Prefix, number> = { p: -12, n: -9, µ: -6, m: -3, "": 0, k: 3, M: 6 };
 const PREFIX_NAME: Record<Prefix, string> = {
@@ -135,6 +136,8 @@ function normalise(text: string): string {
   );
 }
 
+type ReadValue = (ParsedValue & { ok: false }) | { ok: true; value: number; unit: Unit; display: string; prefix: Prefix; bare: boolean };
+
 /**
  * Read a component value as the lab writes it. Accepts a decimal point or comma ("4.7µF",
  * "4,7 µF", "0.47 mH"), the SI prefixes p n µ/u m k M, the IEC 60062 RKM code where the letter is
@@ -144,8 +147,80 @@ function normalise(text: string): string {
  * quantity and a unit that disagrees with the expected one, each with a message for the lab.
  *
  * A comma is a decimal mark ("4,7" is 4.7). "4,700" is refused as ambiguous (4.7 or 4700?).
+ * A bare number is read in the base unit here ("4.7" for F is 4.7 F); what the lab types into a
+ * board's rows goes through `parseNominal` and `parseReading`, which read it as the lab means it.
  */
 export function parseValue(text: string, unit?: Unit): ParsedValue {
+  const r = readValue(text, unit, null);
+  return r.ok ? { ok: true, value: r.value, unit: r.unit, display: r.display } : r;
+}
+
+/** A value as typed, with the prefix it is written in: what a bare reading against it is read in. */
+export type ParsedNominal = { ok: true; value: number; unit: Unit; display: string; prefix: string } | { ok: false; message: string };
+
+/**
+ * A nominal as typed into a board's row. A number with no prefix and no unit is read in the unit
+ * the lab writes that quantity in (µF, mH, Ω: see HOME), so "4.7" on a capacitor is 4.7 µF, never
+ * 4.7 F. `prefix` is the prefix the nominal is written in ("4700n" → n, "4u7" → µ, "8R2" → none).
+ */
+export function parseNominal(text: string, unit?: Unit): ParsedNominal {
+  const r = readValue(text, unit, unit !== undefined && isUnit(unit) ? HOME[unit].prefix : null);
+  return r.ok ? { ok: true, value: r.value, unit: r.unit, display: r.display, prefix: r.prefix } : r;
+}
+
+/**
+ * How far a reading may lie from its nominal before it is refused as a slip rather than judged:
+ * ten times, either way. A part that far off is not a part out of tolerance but a reading typed in
+ * the wrong unit (4.72 F for 4.72 µF) or with the decimal point in the wrong place.
+ */
+export const READING_SLIP_FACTOR = 10;
+
+/**
+ * A reading as typed into a board's row, against its nominal. A number with no prefix and no unit
+ * takes the nominal's unit, prefix included ("4.72" against 4.7 µF is 4.72 µF; against 4700 nF it
+ * is 4.72 nF, and so refused as a slip). A reading more than READING_SLIP_FACTOR times away from
+ * the nominal, either way, is refused with what was read and what was expected: nothing should be
+ * recorded from it. Without a usable nominal (`nominal` null) a bare number is read as a nominal
+ * would be and no slip can be told.
+ */
+export function parseReading(text: string, unit: Unit | undefined, nominal: { value: number; unit: Unit; prefix: string } | null): ParsedValue {
+  const usable = nominal !== null && isUnit(nominal.unit) && Number.isFinite(nominal.value) && nominal.value > 0 && (PREFIXES as readonly string[]).includes(nominal.prefix);
+  if (!usable) {
+    const r = parseNominal(text, unit);
+    return r.ok ? { ok: true, value: r.value, unit: r.unit, display: r.display } : r;
+  }
+  const r = readValue(text, unit ?? nominal.unit, nominal.prefix as Prefix);
+  if (!r.ok) return r;
+  const ratio = r.value / nominal.value;
+  const limit = READING_SLIP_FACTOR * (1 + TOLERANCE_EPSILON);
+  if (r.unit === nominal.unit && (ratio > limit || 1 / ratio > limit)) {
+    const shown = text.trim();
+    // Both as written, so the lab sees its own figures: "4.72 F" against "4.7 µF".
+    const read = formatIn(r.value, r.unit, r.prefix, 6);
+    const expected = formatIn(nominal.value, nominal.unit, nominal.prefix as Prefix, 6);
+    const how = ratio > 1 ? "more than ten times" : "less than a tenth of";
+    const bareNote = r.bare ? ` (a number alone is read in ${nominal.prefix}${nominal.unit}, as the nominal is written)` : "";
+    return {
+      ok: false,
+      message: `"${shown}" reads as ${read}${bareNote}, ${how} its ${expected} nominal. That looks like a slip of the unit or the decimal point: check the reading and type it again.`,
+    };
+  }
+  return { ok: true, value: r.value, unit: r.unit, display: r.display };
+}
+
+/**
+ * A board row's nominal and reading as the lab typed them, read the way the server records them:
+ * the one function both the bench form's preview and `buildCrossover` call, so they never
+ * disagree. Either is null when its text is empty.
+ */
+export function readPartValues(input: { nominal: string; reading: string; unit?: Unit }): { nominal: ParsedNominal | null; reading: ParsedValue | null } {
+  const nominal = input.nominal.trim() ? parseNominal(input.nominal, input.unit) : null;
+  const unit = nominal?.ok ? nominal.unit : input.unit;
+  const reading = input.reading.trim() ? parseReading(input.reading, unit, nominal?.ok ? nominal : null) : null;
+  return { nominal, reading };
+}
+
+function readValue(text: string, unit: Unit | undefined, barePrefix: Prefix | null): ReadValue {
   if (typeof text !== "string" || text.trim() === "") {
     return { ok: false, message: `Enter a value, for example ${EXAMPLES}.` };
   }
@@ -194,7 +269,9 @@ export function parseValue(text: string, unit?: Unit): ParsedValue {
     };
   }
 
-  const prefix: Prefix = letter === "R" ? "" : letter === "K" ? "k" : (letter as Prefix);
+  // A bare number ("4.72") with a quantity known is written in `barePrefix` (the nominal's, say).
+  const bare = letter === "" && textUnit === "" && unit !== undefined && barePrefix !== null;
+  const prefix: Prefix = bare ? barePrefix : letter === "R" ? "" : letter === "K" ? "k" : (letter as Prefix);
   const value = Number(`${intPart || "0"}.${fracPart || "0"}e${PREFIX_EXPONENT[prefix]}`);
   if (!Number.isFinite(value)) {
     return { ok: false, message: `"${shown}" is too large to be a component value.` };
@@ -236,7 +313,7 @@ export function parseValue(text: string, unit?: Unit): ParsedValue {
       message: `"${shown}": ${PREFIX_NAME[prefix]} is not used for ${QUANTITY_NOUN[resolved]}; use ${allowed}.`,
     };
   }
-  return { ok: true, value, unit: resolved, display: formatValue(value, resolved, 12) };
+  return { ok: true, value, unit: resolved, display: formatValue(value, resolved, 12), prefix, bare };
 }
 
 // ---------------------------------------------------------------------------------------------

@@ -6,8 +6,8 @@ import { AppError, isConstraintError } from "@/lib/auth/errors";
 import { newId } from "@/lib/auth/tokens";
 import { appendEvent } from "@/lib/events/queries";
 import { changeState, createItem, fit, itemByIdentity, type Recorder } from "@/lib/genealogy/graph";
-import { bandLevels, parseResponseFile, thirdOctaveBands, type ResponseFilePoint } from "@/lib/acoustics";
-import { boardVerdict, checkNominal, formatValue, parseValue, TOLERANCE_LETTERS, type BoardVerdict, type Unit } from "@/lib/crossover-parts";
+import { bandLabel, bandLevels, formatDb, formatLimitDb, parseResponseFile, thirdOctaveBands, type ResponseFilePoint } from "@/lib/acoustics";
+import { boardVerdict, checkNominal, formatValue, parseNominal, parseValue, readPartValues, TOLERANCE_LETTERS, type BoardVerdict, type Unit } from "@/lib/crossover-parts";
 import { pairCost, planPairs } from "@/lib/matching";
 import { allocateSerial } from "@/lib/serials/allocator";
 import type { LabActor } from "@/lib/vocabulary/actor";
@@ -16,7 +16,7 @@ import { LAB_STATION, UnitsTakenError } from "./units";
 /**
  * Crossover boards: built from component lots at the bench, checked part by part against IEC 60063
  * preferred values and IEC 60062 tolerance letters (see ../shared/REFERENCES.md, "Crossover
- * networks"; the checks themselves live in lib/components), and paired left/right on their
+ * networks"; the checks themselves live in lib/crossover-parts), and paired left/right on their
  * measured responses the way lib/lab/units.ts pairs drive units.
  */
 
@@ -125,9 +125,11 @@ async function checkBuild(db: DbOrTx, input: BuildInput) {
     if (!partNumber) problems.push("Give the part number.");
     else if (partNumber.length > 60) problems.push("A part number has at most 60 characters.");
 
+    // One reading of the row for the form's preview and for the record (lib/crossover-parts).
+    const read = readPartValues({ nominal: String(raw.nominal ?? ""), reading: String(raw.reading ?? ""), unit });
     let nominal: number | null = null;
     let parsedUnit: Unit | undefined = unit;
-    const n = parseValue(String(raw.nominal ?? ""), unit);
+    const n = read.nominal ?? parseNominal("", unit);
     if (!n.ok) problems.push(`Nominal: ${n.message}`);
     else {
       parsedUnit = n.unit;
@@ -144,12 +146,11 @@ async function checkBuild(db: DbOrTx, input: BuildInput) {
       problems.push(`"${raw.tolerance}" is not an IEC 60062 tolerance letter; use one of ${known}.`);
     }
 
+    // A reading ten times away from the nominal is a slip, refused here before anything is recorded.
     let reading: number | null = null;
-    const readingText = String(raw.reading ?? "").trim();
-    if (readingText) {
-      const r = parseValue(readingText, parsedUnit);
-      if (!r.ok) problems.push(`Reading: ${r.message}`);
-      else reading = r.value;
+    if (read.reading) {
+      if (!read.reading.ok) problems.push(`Reading: ${read.reading.message}`);
+      else reading = read.reading.value;
     }
 
     let existing: Item | null = null;
@@ -197,9 +198,10 @@ async function checkBuild(db: DbOrTx, input: BuildInput) {
 
 /**
  * Builds a crossover board. Everything is checked first (the model; 1–40 parts with unique
- * positions like C1, L2, R3; each nominal read with lib/components `parseValue` and on the E24
- * series (IEC 60063), so "4.8µF" is refused as a typing error; a known IEC 60062 tolerance
- * letter; the reading in the same unit; the response file); any problem refuses the whole board
+ * positions like C1, L2, R3; each nominal read with lib/crossover-parts `readPartValues` and on
+ * the E24 series (IEC 60063), so "4.8µF" is refused as a typing error; a known IEC 60062 tolerance
+ * letter; the reading in the same unit, a bare number in the nominal's unit, and refused as a
+ * slip when more than ten times away from the nominal; the response file); any problem refuses the whole board
  * and nothing is written. Then, in one transaction: the board with its serial, each lot fitted
  * at its position (a lot not yet registered is registered first), a `crossover_parts` row per
  * part, the response if given, the event "crossover.built" and the verdict as a state change:
@@ -402,7 +404,7 @@ function checkLimit(model: Model, limitDb: number) {
   if (typeof limitDb !== "number" || !Number.isFinite(limitDb) || limitDb <= 0) throw new AppError(400, "The limit is a number of dB greater than 0.", { limitDb: ["A number of dB greater than 0."] });
   // Boards further apart than the finished pair may differ would only make a pair that fails its final test.
   if (limitDb > model.pairResponseLimitDb + 1e-9) {
-    throw new AppError(400, `The limit cannot be looser than ${model.code}'s finished-pair limit of ${model.pairResponseLimitDb} dB.`, { limitDb: [`At most ${model.pairResponseLimitDb} dB for ${model.code}.`] });
+    throw new AppError(400, `The limit cannot be looser than ${model.code}'s finished-pair limit of ${formatLimitDb(model.pairResponseLimitDb)}.`, { limitDb: [`At most ${formatLimitDb(model.pairResponseLimitDb)} for ${model.code}.`] });
   }
 }
 
@@ -449,7 +451,7 @@ export async function matchCrossovers(db: DbOrTx, input: { modelId: string; limi
       notReady.push({ identity: b.identity, reason: (e as Error).message });
     }
   }
-  const plan = planPairs(units, { limitDb: input.limitDb });
+  const plan = planPairs(units, { limitDb: input.limitDb, bandLabels: bands.map((b) => bandLabel(b.nominal)) });
   return { model, bands, units, notReady, plan, limitDb: input.limitDb };
 }
 
@@ -501,7 +503,7 @@ export async function acceptCrossoverPlan(db: DbOrTx, input: { modelId: string; 
         const b = byId.get(p.b)!;
         const c = pairCost(a, b);
         if (c.maxDiffDb > input.limitDb + 1e-9) {
-          throw new AppError(400, `${a.identity} and ${b.identity} differ by ${c.maxDiffDb.toFixed(2)} dB in the ${view.bands[c.worstBand]?.nominal ?? "?"} Hz band, over the ${input.limitDb} dB limit. Nothing was saved.`);
+          throw new AppError(400, `${a.identity} and ${b.identity} differ by ${formatDb(c.maxDiffDb)} at ${bandLabel(view.bands[c.worstBand]?.nominal ?? "?")}, over the ${formatLimitDb(input.limitDb)} limit. Nothing was saved.`);
         }
         const id = newId();
         const code = `M-X-${model.code}-${String(++n).padStart(3, "0")}`;

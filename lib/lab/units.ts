@@ -3,14 +3,19 @@ import type { LabActor } from "@/lib/vocabulary/actor";
 import { and, asc, desc, eq, inArray, isNull, like, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { batchUnits, items, matchedSets, modelTolerances, models, responses, setMembers, tsParams, unitBatches, type Item } from "@/db/schema";
-import type { PartType } from "@/lib/vocabulary/part-types";
+import { partWord, type PartType } from "@/lib/vocabulary/part-types";
 import { AppError, isConstraintError } from "@/lib/auth/errors";
 import { newId } from "@/lib/auth/tokens";
 import { appendEvent } from "@/lib/events/queries";
 import { changeState, createItem, type Recorder } from "@/lib/genealogy/graph";
-import { bandLevels, checkTsParams, parseResponseFile, thirdOctaveBands } from "@/lib/acoustics";
+import { bandLabel, bandLevels, checkTsParams, formatDb, formatLimitDb, parseResponseFile, thirdOctaveBands, TS_FIELDS } from "@/lib/acoustics";
 import { LIMIT_EPSILON_DB, pairCost, planPairs } from "@/lib/matching";
 import { allocateSerial } from "@/lib/serials/allocator";
+import { batchCountMismatch } from "./batch-count";
+import { whyNoPairs } from "./plan-words";
+import { modelsTakingPartType } from "./queries";
+import { readTsCsv } from "./ts-csv";
+import { countUnits, type UnitCounts } from "./unit-counts";
 import { PART_TYPE_CODES, parseSerial } from "@/lib/serials/format";
 
 export const LAB_STATION = "lab";
@@ -43,9 +48,15 @@ export interface BatchIntake {
   count: number;
 }
 
-/** Registers a batch and its units, each with a Twinleaf serial (and the maker's serial where scanned). */
+/**
+ * Registers a batch and its units, each with a Twinleaf serial (and the maker's serial where scanned).
+ * With serials scanned the batch holds one unit per serial; a number of units that disagrees with
+ * them is refused and nothing is written.
+ */
 export async function registerBatch(db: DbOrTx, input: BatchIntake, actor: LabActor) {
   const serials = input.makerSerials.map((s) => s.trim()).filter(Boolean);
+  const mismatch = batchCountMismatch(input.count, serials.length);
+  if (mismatch) throw new AppError(400, `Nothing was registered: ${mismatch}`, { count: [mismatch] });
   const count = serials.length || input.count;
   if (count < 1 || count > 500) throw new AppError(400, "A batch holds 1 to 500 units.", { count: ["1 to 500 units."] });
   const dup = serials.find((s, i) => serials.indexOf(s) !== i);
@@ -155,11 +166,20 @@ export async function batchUnitsView(db: DbOrTx, batchId: string, opts: { withPo
 
 // ---- measurements -------------------------------------------------------------------------------
 
-/** Finds a unit by its Twinleaf serial, or by the maker's serial (within a batch when one is given). */
-export async function findUnit(db: DbOrTx, text: string, batchId?: string): Promise<Item | null> {
+/**
+ * Finds a unit by its Twinleaf serial, or by the maker's serial (within a batch when one is given).
+ * With `boards`, a crossover board's serial is found too (boards have no batch and no maker's
+ * serial): its response may be measured after it was built.
+ */
+export async function findUnit(db: DbOrTx, text: string, batchId?: string, opts: { boards?: boolean } = {}): Promise<Item | null> {
   const parsed = parseSerial(text);
-  if (parsed?.valid && parsed.kind === "drive_unit") {
-    const [row] = await db.select().from(items).where(and(eq(items.identity, parsed.canonical), eq(items.kind, "drive_unit"))).limit(1);
+  if (parsed?.valid && (parsed.kind === "drive_unit" || (opts.boards && parsed.kind === "crossover"))) {
+    const [row] = await db.select().from(items).where(and(eq(items.identity, parsed.canonical), eq(items.kind, parsed.kind))).limit(1);
+    // On a batch's page a serial of another batch is not "a unit of this batch".
+    if (row && batchId) {
+      const [member] = await db.select({ id: batchUnits.itemId }).from(batchUnits).where(and(eq(batchUnits.itemId, row.id), eq(batchUnits.batchId, batchId))).limit(1);
+      return member ? row : null;
+    }
     if (row) return row;
   }
   const byMaker = await db
@@ -178,6 +198,8 @@ async function measurableUnit(tx: DbOrTx, itemId: string) {
   const [unit] = await tx.select().from(items).where(eq(items.id, itemId)).limit(1);
   if (!unit || (unit.kind !== "drive_unit" && unit.kind !== "crossover")) throw new AppError(404, "That unit is not in the register.");
   if (unit.kind === "drive_unit" && !MEASURABLE.has(unit.state)) throw new AppError(409, `${unit.identity} is ${unit.state.replace(/_/g, " ")}: it can no longer be measured as a loose unit.`);
+  // A board is measured while it waits in stock: once paired, its pairing rests on the response it had.
+  if (unit.kind === "crossover" && unit.state !== "in_stock") throw new AppError(409, `${unit.identity} is ${unit.state.replace(/_/g, " ")}: a board is measured while it is in stock, before it is paired.`);
   return unit;
 }
 
@@ -211,8 +233,9 @@ async function insertResponse(tx: DbOrTx, input: ResponseInput, actor: LabActor)
 
 /**
  * Reads response files and records each for the unit it names (Twinleaf or maker serial in the
- * first line or the file name). Every file is checked first: if any is bad or names no unit,
- * nothing is written and each problem is reported with its file and line.
+ * first line or the file name; outside a batch, a crossover board's serial too). Every file is
+ * checked first: if any is bad or names no unit, nothing is written and each problem is reported
+ * with its file and line.
  */
 export async function importResponseFiles(db: DbOrTx, files: { name: string; text: string }[], opts: { batchId?: string; source: "upload" | "api" }, actor: LabActor) {
   if (!files.length) throw new AppError(400, "Choose at least one response file.");
@@ -226,9 +249,15 @@ export async function importResponseFiles(db: DbOrTx, files: { name: string; tex
       continue;
     }
     const hint = result.serialHint ?? f.name.replace(/\.[A-Za-z0-9]+$/, "");
-    const unit = (result.serialHint ? await findUnit(db, result.serialHint, opts.batchId) : null) ?? (await findUnit(db, hint, opts.batchId));
+    // Outside a batch a file may be a crossover board's, named by its serial.
+    const find = (text: string) => findUnit(db, text, opts.batchId, { boards: !opts.batchId });
+    const unit = (result.serialHint ? await find(result.serialHint) : null) ?? (await find(hint));
     if (!unit) {
       problems.push(`${f.name}: names no unit of ${opts.batchId ? "this batch" : "the register"} (put the unit's serial or the maker's serial in the first line or the file name).`);
+      continue;
+    }
+    if (unit.kind === "crossover" && unit.state !== "in_stock") {
+      problems.push(`${f.name}: ${unit.identity} is ${unit.state.replace(/_/g, " ")}; a board is measured while it is in stock, before it is paired.`);
       continue;
     }
     if (seen.has(unit.id)) {
@@ -264,7 +293,9 @@ export function checkedTs(input: TsInput): { ok: true; value: TsInput } | { ok: 
   const result = checkTsParams({ fs: input.fsHz, qts: input.qts, qes: input.qes, qms: input.qms, re: input.reOhm, vas: input.vasL, sensitivity: input.sensitivityDb });
   if (!result.ok) {
     const map: Record<string, string> = { fs: "fsHz", re: "reOhm", vas: "vasL", sensitivity: "sensitivityDb" };
-    return { ok: false, fieldErrors: Object.fromEntries(Object.entries(result.fieldErrors).map(([k, v]) => [map[k] ?? k, v])) };
+    // In the form's order (Fs, Qts, Qes, Qms, Re, Vas, sensitivity), so a row's problems read left to right.
+    const ordered = TS_FIELDS.filter((f) => result.fieldErrors[f.key]).map((f) => [map[f.key] ?? f.key, result.fieldErrors[f.key]!]);
+    return { ok: false, fieldErrors: Object.fromEntries(ordered) };
   }
   return { ok: true, value: { ...input, qts: result.values.qts ?? input.qts } };
 }
@@ -307,28 +338,62 @@ export async function recordMeasurement(db: DbOrTx, input: { itemId: string; res
   });
 }
 
-/** Thiele–Small sets for many units at once (CSV or JSON): every row checked first, then all written. */
-export async function importTsRows(db: DbOrTx, rows: { line: number; serial: string; ts: TsInput }[], opts: { batchId?: string; source: "csv" | "api" }, actor: LabActor) {
-  const problems: string[] = [];
+/** One row of Thiele–Small parameters for a unit named by its Twinleaf or maker serial; `problems` are what its reading already found. */
+export interface TsRowInput {
+  line: number;
+  serial: string;
+  ts: TsInput;
+  problems?: string[];
+}
+
+/** "Fs (Hz) must be between 5 and 40000 Hz; 0 looks mistyped" → the same, ending in one full stop. */
+const sentence = (m: string) => (/[.!?]$/.test(m) ? m : `${m}.`);
+
+/**
+ * Thiele–Small sets for many units at once (CSV or JSON), in one pass: every row is checked in
+ * full (its own problems, whether its serial names a unit, whether it names a unit another row
+ * names too, and every parameter), and every problem of every row is reported together, with its
+ * line, under `csv`. Nothing is written unless every row is good; then all rows in one transaction.
+ * `fileProblems` (a CSV's columns, say) are reported first and also refuse the whole lot.
+ */
+export async function importTsRows(db: DbOrTx, rows: TsRowInput[], opts: { batchId?: string; source: "csv" | "api" }, actor: LabActor, fileProblems: string[] = []) {
+  const problems: { line: number; text: string }[] = [];
   const ready: { unit: Item; ts: TsInput }[] = [];
+  const lineOfUnit = new Map<string, number>();
   for (const r of rows) {
-    const unit = await findUnit(db, r.serial, opts.batchId);
-    if (!unit) {
-      problems.push(`Line ${r.line}: ${r.serial} is not a unit of ${opts.batchId ? "this batch" : "the register"}.`);
-      continue;
+    const at = r.serial ? `Line ${r.line} (${r.serial})` : `Line ${r.line}`;
+    const own = (r.problems ?? []).map((p) => ({ line: r.line, text: `Line ${r.line}: ${sentence(p)}` }));
+    const found: { line: number; text: string }[] = [...own];
+    const unit = r.serial ? await findUnit(db, r.serial, opts.batchId) : null;
+    if (r.serial && !unit) found.push({ line: r.line, text: `Line ${r.line}: ${r.serial} is not a unit of ${opts.batchId ? "this batch" : "the register"}.` });
+    if (unit) {
+      // The same unit under its Twinleaf serial on one line and its maker's on another.
+      const earlier = lineOfUnit.get(unit.id);
+      if (earlier !== undefined && !own.some((p) => p.text.includes("already has a row"))) found.push({ line: r.line, text: `${at}: ${unit.identity} is also on line ${earlier}; give each unit one row.` });
+      else if (earlier === undefined) lineOfUnit.set(unit.id, r.line);
     }
     const checked = checkedTs(r.ts);
-    if (!checked.ok) {
-      problems.push(`Line ${r.line} (${r.serial}): ${Object.values(checked.fieldErrors).flat().join(" ")}`);
-      continue;
-    }
-    ready.push({ unit, ts: checked.value });
+    if (!checked.ok) for (const m of Object.values(checked.fieldErrors).flat()) found.push({ line: r.line, text: `${at}: ${sentence(m)}` });
+    if (found.length) problems.push(...found);
+    else if (unit && checked.ok) ready.push({ unit, ts: checked.value });
   }
-  if (problems.length) throw new AppError(400, `Nothing was saved: ${problems.length} row${problems.length === 1 ? "" : "s"} need attention.`, { csv: problems });
+  const all = [...fileProblems, ...problems.sort((x, y) => x.line - y.line).map((p) => p.text)];
+  if (all.length) {
+    const badRows = new Set(problems.map((p) => p.line)).size;
+    const where = [fileProblems.length ? "the columns" : "", badRows ? `${badRows} row${badRows === 1 ? "" : "s"}` : ""].filter(Boolean).join(" and ");
+    throw new AppError(400, `Nothing was saved: ${all.length} problem${all.length === 1 ? "" : "s"} in ${where}. Correct them all and bring the file in again.`, { csv: all });
+  }
   await db.transaction(async (tx) => {
     for (const r of ready) await insertTs(tx, r.unit.id, r.ts, opts.source, actor);
   });
   return ready.length;
+}
+
+/** A Thiele–Small CSV brought in from the batch page: read, checked against the register, and saved only when all of it is good. */
+export async function importTsCsv(db: DbOrTx, text: string, opts: { batchId: string }, actor: LabActor) {
+  const read = readTsCsv(text);
+  if (read.rows.length === 0 && read.fileProblems.length === 0) throw new AppError(400, "Nothing was saved: the CSV has a header but no rows.", { csv: ["Add one row per unit under the header."] });
+  return importTsRows(db, read.rows, { batchId: opts.batchId, source: "csv" }, actor, read.fileProblems);
 }
 
 /** A unit that fails the bench is set aside with its reason. */
@@ -388,8 +453,37 @@ export async function matchBatch(db: DbOrTx, batch: { id: string; partType: Part
       notReady.push({ identity: r.identity, reason: (e as Error).message });
     }
   }
-  const plan = planPairs(units, opts);
+  const plan = planPairs(units, { ...opts, bandLabels: bands.map((b) => bandLabel(b.nominal)) });
   return { bands, units, notReady, plan, limitDb: opts.limitDb };
+}
+
+export interface MatchReadiness {
+  /** Measured units free to pair. */
+  free: number;
+  /** Whether matching can pair anything, under the loosest limit of a model that takes the part type. */
+  canMatch: boolean;
+  /** Why not, in the lab's words, when it cannot and there is something to say. */
+  why: string | null;
+}
+
+/**
+ * Whether matching a batch can make a pair, so that it is offered only when it can: worked out
+ * under the loosest limit of any active model that takes the part type (if no pair is allowed
+ * there, none is under a tighter one).
+ */
+export async function matchReadiness(db: DbOrTx, batch: { id: string; partType: PartType }): Promise<MatchReadiness> {
+  const limits = await modelsTakingPartType(db, batch.partType);
+  const loosest = limits.sort((a, b) => b.limit - a.limit)[0];
+  if (!loosest) {
+    const free = (await batchUnitsView(db, batch.id)).filter((u) => !u.setCode && (u.state === "measured" || u.state === "in_stock") && u.responseId !== null).length;
+    return { free, canMatch: false, why: free >= 2 ? `No model in production has a mismatch limit for ${partWord(batch.partType)}s, so there is nothing to match them against.` : null };
+  }
+  const view = await matchBatch(db, batch, { limitDb: loosest.limit });
+  const free = view.units.length;
+  if (view.plan.pairs.length) return { free, canMatch: true, why: null };
+  const why = free >= 2 ? whyNoPairs(view.plan, { free, limitDb: loosest.limit, noun: "units", bandLabels: view.bands.map((b) => bandLabel(b.nominal)) }) : null;
+  const several = new Set(limits.map((l) => l.limit)).size > 1;
+  return { free, canMatch: false, why: why && several ? `${why} That is the loosest limit of any model, the ${loosest.code}'s.` : why };
 }
 
 /** Thrown when units of a plan were reserved by someone else first. */
@@ -432,7 +526,9 @@ export async function acceptPlan(
         const a = byId.get(p.a)!;
         const b = byId.get(p.b)!;
         const c = pairCost(a, b, { limitDb: limit.limit, fsWeight: input.fsWeight, qtsWeight: input.qtsWeight });
-        if (c.maxDiffDb > limit.limit + LIMIT_EPSILON_DB) throw new AppError(400, `${a.identity} and ${b.identity} differ by ${c.maxDiffDb.toFixed(2)} dB, over the ${limit.limit} dB limit.`);
+        if (c.maxDiffDb > limit.limit + LIMIT_EPSILON_DB) {
+          throw new AppError(400, `${a.identity} and ${b.identity} differ by ${formatDb(c.maxDiffDb)} at ${bandLabel(view.bands[c.worstBand]?.nominal ?? "?")}, over the ${formatLimitDb(limit.limit)} limit. Nothing was saved.`);
+        }
         const id = newId();
         const code = `M-${batch.code}-${String(++n).padStart(3, "0")}`;
         const eventId = await appendEvent(tx, {
@@ -486,16 +582,25 @@ export async function openSets(db: DbOrTx, limit = 200) {
   return [...sets.values()];
 }
 
-/** Batches with how many units wait for measurement, are ready to match, are reserved or failed. */
-export async function listBatches(db: DbOrTx) {
-  return db.all<{ id: string; code: string; partType: PartType; partNumber: string; maker: string; lot: string; receivedOn: string; units: number; awaiting: number; ready: number; reserved: number; failed: number }>(sql`
-    SELECT b.id, b.code, b.part_type AS partType, b.part_number AS partNumber, b.maker, b.lot, b.received_on AS receivedOn,
-      count(*) AS units,
-      sum(i.state = 'awaiting_measurement') AS awaiting,
-      sum(i.state = 'measured' AND EXISTS (SELECT 1 FROM responses r WHERE r.item_id = i.id)) AS ready,
-      sum(i.state = 'reserved') AS reserved,
-      sum(i.state = 'failed') AS failed
-    FROM unit_batches b JOIN batch_units bu ON bu.batch_id = b.id JOIN items i ON i.id = bu.item_id
-    GROUP BY b.id ORDER BY b.received_on DESC, b.code DESC`);
+/**
+ * Batches, newest first, with their units counted by where they stand (lib/lab/unit-counts: waiting,
+ * measured and free, reserved, fitted, failed, other), so the counts add up to the batch's units.
+ */
+export async function listBatches(db: DbOrTx): Promise<(typeof unitBatches.$inferSelect & UnitCounts)[]> {
+  const [batches, groups] = await Promise.all([
+    db.select().from(unitBatches).orderBy(desc(unitBatches.receivedOn), desc(unitBatches.code)),
+    db.all<{ batchId: string; state: string; inOpenSet: number; n: number }>(sql`
+      SELECT bu.batch_id AS batchId, i.state AS state,
+        EXISTS (SELECT 1 FROM set_members sm WHERE sm.item_id = i.id AND sm.ended_at IS NULL) AS inOpenSet,
+        count(*) AS n
+      FROM batch_units bu JOIN items i ON i.id = bu.item_id
+      GROUP BY bu.batch_id, i.state, inOpenSet`),
+  ]);
+  const byBatch = new Map<string, { state: string; inOpenSet: boolean; n: number }[]>();
+  for (const g of groups) {
+    const list = byBatch.get(g.batchId) ?? [];
+    list.push({ state: g.state, inOpenSet: Boolean(g.inOpenSet), n: Number(g.n) });
+    byBatch.set(g.batchId, list);
+  }
+  return batches.map((b) => ({ ...b, ...countUnits(byBatch.get(b.id) ?? []) }));
 }
-

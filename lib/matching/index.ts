@@ -10,8 +10,8 @@
  * and whose edges are the allowed pairs. It is solved exactly by Edmonds' blossom algorithm
  * (`./blossom.ts`, a port of van Rantwijk's mwmatching.py).
  *
- * Band numbers in messages and in `worstBand` are indices into `levels` (0 = the first band); the
- * caller maps them to the names of its bands.
+ * `worstBand` is an index into `levels` (0 = the first band). Messages name a band by
+ * `MatchOptions.bandLabels` ("1.6 kHz") when the caller gives them, else by its place ("band 14 of 20").
  */
 import { solveMatching } from "./blossom";
 
@@ -34,6 +34,8 @@ export interface MatchOptions {
   fsWeight?: number;
   /** Weight of the relative Qts difference |ΔQts| / mean(Qts) in the cost (default 0). */
   qtsWeight?: number;
+  /** The bands' names for messages, one per level ("1.6 kHz"); words only, never used to compute. */
+  bandLabels?: readonly string[];
 }
 
 export interface PlannedPair {
@@ -42,11 +44,15 @@ export interface PlannedPair {
   b: string;
   cost: number;
   maxDiffDb: number;
+  /** The band of the largest difference (an index into `levels`). */
+  worstBand: number;
 }
 
 export interface SingleUnit {
   id: string;
   reason: string;
+  /** When no unit is within the limit of it: the closest one, how far and where (so a page can say why nothing pairs). */
+  closest?: { id: string; maxDiffDb: number; worstBand: number };
 }
 
 export interface PairPlan {
@@ -507,7 +513,7 @@ export function planPairsWith(units: Unit[], opts: MatchOptions, tuning: PlanTun
   let totalCost = 0;
   const pairs: PlannedPair[] = planned.map((p) => {
     totalCost += p.cost;
-    return { a: units[p.i]!.id, b: units[p.j]!.id, cost: p.cost, maxDiffDb: p.maxDiffDb };
+    return { a: units[p.i]!.id, b: units[p.j]!.id, cost: p.cost, maxDiffDb: p.maxDiffDb, worstBand: p.worstBand };
   });
 
   // The workshop's way: take the cheapest allowed pair of two unpaired units, again and again
@@ -527,28 +533,31 @@ export function planPairsWith(units: Unit[], opts: MatchOptions, tuning: PlanTun
   }
 
   // Why the others are single.
+  const bandName = (i: number) => opts.bandLabels?.[i] ?? `band ${i + 1} of ${bands}`;
   const singles: number[] = [];
   for (let i = 0; i < n; i++) if (mate[i] === -1) singles.push(i);
   const single: SingleUnit[] = singles.map((i) => {
     const u = units[i]!;
     let reason: string;
+    let closest: SingleUnit["closest"];
     if (n === 1) {
       reason = "odd one out: no other unit in the batch";
     } else if (cheapest[i] === -1) {
       const other = units[nearest[i]!]!;
       const c = costOf(u, other, w);
-      reason = `no partner within ${limitDb} dB: the closest, ${other.id}, differs by ${over(c.maxDiffDb, limitDb)} dB at band ${c.worstBand}`;
+      closest = { id: other.id, maxDiffDb: c.maxDiffDb, worstBand: c.worstBand };
+      reason = `no partner within ${limitDb} dB: the closest, ${other.id}, differs by ${over(c.maxDiffDb, limitDb)} dB at ${bandName(c.worstBand)}`;
     } else {
       const other = units[cheapest[i]!]!;
-      const closest = `the closest allowed was ${other.id} (cost ${num(cheapestCost[i]!)})`;
+      const closestAllowed = `the closest allowed was ${other.id} (cost ${num(cheapestCost[i]!)} dB RMS)`;
       // A maximum matching leaves no two single units with an allowed pair between them, so every
       // allowed partner of this unit is in another pair.
       reason =
         n % 2 === 1 && singles.length === 1
-          ? `odd one out: with an odd number of units one stays unpaired; ${closest}`
-          : `its possible partners are better used elsewhere; ${closest}`;
+          ? `odd one out: with an odd number of units one stays unpaired; ${closestAllowed}`
+          : `its possible partners are better used elsewhere; ${closestAllowed}`;
     }
-    return { id: u.id, reason };
+    return closest ? { id: u.id, reason, closest } : { id: u.id, reason };
   });
 
   return { pairs, single, totalCost, greedyTotalCost, greedyPairs };

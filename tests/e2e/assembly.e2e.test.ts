@@ -13,7 +13,7 @@ import { openDb } from "@/db";
 import { finishes, models, users } from "@/db/schema";
 import { setClock } from "@/lib/clock";
 import { changeState } from "@/lib/genealogy/graph";
-import { buildCrossover } from "@/lib/lab/crossovers";
+import { acceptCrossoverPlan, buildCrossover } from "@/lib/lab/crossovers";
 import { acceptPlan, importResponseFiles, registerBatch } from "@/lib/lab/units";
 import { pairRoute, recordStep } from "@/lib/route/pair-route";
 import { confirmRuns, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
@@ -23,7 +23,7 @@ import { goodReadings } from "../fixtures/route";
 
 let browser: Browser;
 let page: Page;
-const w = { pair: "", tweeter: [] as string[], bass: [] as string[], xo: [] as string[], lacquer: [] as string[] };
+const w = { pair: "", tweeter: [] as string[], bass: [] as string[], xo: [] as string[], xoLoose: "", lacquer: [] as string[] };
 
 
 const flat = (serial: string) => [`* ${serial}`, "Freq(Hz) SPL(dB)", ...Array.from({ length: 121 }, (_, k) => `${(20 * 2 ** (k / 12)).toFixed(2)}\t90`)].join("\n");
@@ -56,7 +56,11 @@ beforeAll(async () => {
     w[partType] = b.units.map((u) => u.identity);
   }
   const parts = [{ position: "C1", lot: "LOT-E2E-ASM-C47", partNumber: "PP-475", nominal: "4.7µF", tolerance: "J", reading: "4.72µF" }];
-  for (let i = 0; i < 2; i++) w.xo.push((await buildCrossover(db, { modelId: pw2.id, parts }, { id: lab })).crossover.identity);
+  // Boards are measured and paired in a set, as drive units are, before assembly fits them.
+  for (let i = 0; i < 2; i++) w.xo.push((await buildCrossover(db, { modelId: pw2.id, parts, response: { name: `xo-${i}.txt`, text: flat(`xo-${i}`) } }, { id: lab })).crossover.identity);
+  await acceptCrossoverPlan(db, { modelId: pw2.id, limitDb: 0.5, pairs: [{ a: w.xo[0]!, b: w.xo[1]! }] }, { id: lab });
+  // Measured and passed, but in no set: refused at the station.
+  w.xoLoose = (await buildCrossover(db, { modelId: pw2.id, parts, response: { name: "xo-loose.txt", text: flat("xo-loose") } }, { id: lab })).crossover.identity;
   const lacquer = await makeLacquerCabinets(db, { modelId: pw2.id, finishId: fs.find((f) => f.kind === "lacquer")!.id, count: 2 }, { id: cabinet });
   for (const c of lacquer) await changeState(db, c, "finished", { actorId: cabinet, station: "cabinet" });
   w.lacquer = lacquer.map((c) => c.identity);
@@ -105,9 +109,10 @@ describe("the assembly station", () => {
     expect(await scanInto("R.T", w.tweeter[2]!)).toMatch(/The left tweeter is from set M-.*; the right one must be its partner/);
     expect(await violations()).toEqual([]);
     expect(await scanInto("R.T", w.tweeter[1]!)).toContain(`✓ ${w.tweeter[1]}`);
-    expect(await scanInto("L.B", w.xo[0]!)).toContain("is a crossover board; position B takes a bass unit.");
+    expect(await scanInto("L.B", w.xo[0]!)).toContain("is a crossover board; this field is for the bass (B): scan a bass unit.");
     expect(await scanInto("L.B", w.bass[0]!)).toContain("✓");
     expect(await scanInto("R.B", w.bass[1]!)).toContain("✓");
+    expect(await scanInto("L.XO", w.xoLoose)).toContain("is not in a matched set of boards; the lab pairs boards left and right in sets before assembly");
     expect(await scanInto("L.XO", w.xo[0]!)).toContain("✓");
     expect(await scanInto("R.XO", w.xo[1]!)).toContain("✓");
 

@@ -61,4 +61,30 @@ describe("crossover boards, as the lab builds them", () => {
     await expect(row.getByTestId("board-reasons").textContent()).resolves.toMatch(/L1 reads 0\.7 mH/);
     await expect(row.textContent()).resolves.toMatch(/yes/);
   });
+
+  test("a reading typed without a unit is read in the nominal's unit, as the preview shows; one ten times away is refused as a slip", async () => {
+    await page.goto(url("/lab/crossovers"));
+    const form = page.getByTestId("build-form");
+    for (const name of ["Remove part 5 (R1)", "Remove part 4 (L2)", "Remove part 3 (L1)", "Remove part 2 (C2)"]) await form.getByRole("button", { name }).click();
+    const row = form.getByTestId("part-row").first();
+    const fill = async (values: Record<string, string>) => {
+      for (const [field, value] of Object.entries(values)) await row.locator(`input[data-field="${field}"]`).fill(value);
+    };
+    await fill({ lot: "LOT-E2E-C47B", partNumber: "PP-475-E2E", nominal: "4.7µF", reading: "4.72" });
+    // The preview under each field is what the server will record (lib/crossover-parts readPartValues).
+    await expect.poll(() => row.getByTestId("nominal-preview").textContent()).toBe("= 4.7 µF");
+    await expect.poll(() => row.getByTestId("reading-preview").textContent()).toBe("= 4.72 µF");
+
+    await fill({ reading: "4.72F" });
+    await expect.poll(() => row.getByTestId("reading-preview").textContent()).toMatch(/^"4\.72F" reads as 4\.72 F, more than ten times its 4\.7 µF nominal/);
+    await form.getByRole("button", { name: "Build and check the board" }).click();
+    await page.getByTestId("build-refused").waitFor();
+    await expect(row.getByTestId("row-errors").textContent()).resolves.toMatch(/Reading: "4\.72F" reads as 4\.72 F, more than ten times its 4\.7 µF nominal/);
+    await expect(page.getByTestId("boards-table").textContent()).resolves.not.toMatch(/LOT-E2E-C47B/);
+
+    await fill({ reading: "4.72" });
+    await form.getByRole("button", { name: "Build and check the board" }).click();
+    await page.getByTestId("board-built").waitFor();
+    await expect(page.getByTestId("board-built").textContent()).resolves.toMatch(/X-PW2-\d{2}-\d{5}-[0-9A-Z*] built: every part is within its tolerance/);
+  });
 });

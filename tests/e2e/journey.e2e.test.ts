@@ -14,7 +14,7 @@ import { afterAll, beforeAll, describe, expect, inject, test } from "vitest";
 import { openDb } from "@/db";
 import { certificates, dealers, finishes, items, models, users } from "@/db/schema";
 import { setClock } from "@/lib/clock";
-import { buildCrossover } from "@/lib/lab/crossovers";
+import { acceptCrossoverPlan, buildCrossover } from "@/lib/lab/crossovers";
 import { acceptPlan, importResponseFiles, registerBatch } from "@/lib/lab/units";
 import { pairRoute, recordStep } from "@/lib/route/pair-route";
 import { confirmRuns, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
@@ -54,7 +54,9 @@ beforeAll(async () => {
     w[partType] = b.units.map((u) => u.identity);
   }
   const parts = [{ position: "C1", lot: "LOT-JOURNEY-C47", partNumber: "PP-475", nominal: "4.7µF", tolerance: "J", reading: "4.71µF" }];
-  for (let i = 0; i < 2; i++) w.xo.push((await buildCrossover(db, { modelId: pw2.id, parts }, { id: lab })).crossover.identity);
+  // Boards are measured and paired in a set before assembly fits them (lib/assembly/checks.ts).
+  for (let i = 0; i < 2; i++) w.xo.push((await buildCrossover(db, { modelId: pw2.id, parts, response: { name: `xo-${i}.txt`, text: flat(`xo-${i}`) } }, { id: lab })).crossover.identity);
+  await acceptCrossoverPlan(db, { modelId: pw2.id, limitDb: 0.5, pairs: [{ a: w.xo[0]!, b: w.xo[1]! }] }, { id: lab });
   client.close();
   browser = await launchBrowser();
 });

@@ -36,7 +36,7 @@ let sl3: typeof models.$inferSelect;
 /** The world: pairs, units and boards, by the names the tests use. */
 const w = {
   A: null as unknown as Item, // finished, built in the full build
-  B: null as unknown as Item, // finished, used for the refusals, then built with loose boards
+  B: null as unknown as Item, // finished, used for the refusals, then built
   D: null as unknown as Item, // on hold: a nonconformance is open
   E: null as unknown as Item, // on its route: trimming is next
   cabA: { L: null as unknown as Item, R: null as unknown as Item },
@@ -45,6 +45,8 @@ const w = {
   xo: [] as Item[],
   xoFailed: null as unknown as Item,
   xoSl3: null as unknown as Item,
+  xoLoose: null as unknown as Item, // measured, passed, in stock, in no set
+  xoUnmeasured: null as unknown as Item, // passed, in stock, never measured
   setCodes: new Map<string, string>(),
 };
 
@@ -166,9 +168,9 @@ beforeAll(async () => {
   w.bs = bsBatch.units;
   await reserve(bsBatch, "bass", pw2.id, [[w.bs[0]!, w.bs[1]!], [w.bs[2]!, w.bs[3]!], [w.bs[4]!, w.bs[5]!]]);
 
-  // Boards: 0–1 a set for A, 2–3 a set (partner rule on B), 4–5 loose for B, 6–7 loose for the lacquer pair.
+  // Boards, each pair a matched set: 0–1 for A, 2–3 for the partner rule on B, 4–5 for B, 6–7 for the lacquer pair.
   for (let i = 0; i < 8; i++) w.xo.push((await buildCrossover(db(), { modelId: pw2.id, parts: goodParts(), response: { name: `xo-${i}.txt`, text: boardResponse() } }, lab)).crossover);
-  const xsets = await acceptCrossoverPlan(db(), { modelId: pw2.id, limitDb: 0.5, pairs: [{ a: w.xo[0]!.identity, b: w.xo[1]!.identity }, { a: w.xo[2]!.identity, b: w.xo[3]!.identity }] }, lab);
+  const xsets = await acceptCrossoverPlan(db(), { modelId: pw2.id, limitDb: 0.5, pairs: [0, 2, 4, 6].map((i) => ({ a: w.xo[i]!.identity, b: w.xo[i + 1]!.identity })) }, lab);
   for (const s of xsets) {
     w.setCodes.set(s.left, s.code);
     w.setCodes.set(s.right, s.code);
@@ -177,6 +179,8 @@ beforeAll(async () => {
   bad[0] = { ...bad[0]!, reading: "5.3µF" };
   w.xoFailed = (await buildCrossover(db(), { modelId: pw2.id, parts: bad }, lab)).crossover;
   w.xoSl3 = (await buildCrossover(db(), { modelId: sl3.id, parts: goodParts() }, lab)).crossover;
+  w.xoLoose = (await buildCrossover(db(), { modelId: pw2.id, parts: goodParts(), response: { name: "xo-loose.txt", text: boardResponse() } }, lab)).crossover;
+  w.xoUnmeasured = (await buildCrossover(db(), { modelId: pw2.id, parts: goodParts() }, lab)).crossover;
 });
 afterAll(() => setClock(null));
 
@@ -294,13 +298,14 @@ describe("checkScan refuses, each with a plain reason", () => {
   });
 
   test("the wrong kind of part for the field", async () => {
-    expect(await reasonOf(scan(w.B, "L", "T", w.xo[4]!.identity))).toBe(`${w.xo[4]!.identity} is a crossover board; position T takes a tweeter.`);
-    expect(await reasonOf(scan(w.B, "L", "XO", w.tw[2]!.identity))).toBe(`${w.tw[2]!.identity} is a tweeter; the XO slot takes a crossover board.`);
-    expect(await reasonOf(scan(w.B, "L", "B", w.cabA.L.identity))).toBe(`${w.cabA.L.identity} is a cabinet; position B takes a bass unit.`);
+    // Positions spelled out with positionName (lib/vocabulary/positions): T is the tweeter, XO the crossover.
+    expect(await reasonOf(scan(w.B, "L", "T", w.xo[4]!.identity))).toBe(`${w.xo[4]!.identity} is a crossover board; this field is for the tweeter (T): scan a tweeter.`);
+    expect(await reasonOf(scan(w.B, "L", "XO", w.tw[2]!.identity))).toBe(`${w.tw[2]!.identity} is a tweeter; this field is for the crossover (XO): scan a crossover board.`);
+    expect(await reasonOf(scan(w.B, "L", "B", w.cabA.L.identity))).toBe(`${w.cabA.L.identity} is a cabinet; this field is for the bass (B): scan a bass unit.`);
   });
 
   test("the wrong part type for the position", async () => {
-    expect(await reasonOf(scan(w.B, "L", "T", w.bs[2]!.identity))).toBe(`${w.bs[2]!.identity} is a bass unit; position T takes a tweeter.`);
+    expect(await reasonOf(scan(w.B, "L", "T", w.bs[2]!.identity))).toBe(`${w.bs[2]!.identity} is a bass unit; this field is for the tweeter (T): scan a tweeter.`);
   });
 
   test("a crossover of another model", async () => {
@@ -321,8 +326,8 @@ describe("checkScan refuses, each with a plain reason", () => {
 
   test("a part already fitted elsewhere names where it sits", async () => {
     const speakerL = (await assemblyView(db(), w.A.identity))!.speakers.find((s) => s.side === "L")!.item;
-    expect(await reasonOf(scan(w.B, "L", "T", w.tw[0]!.identity))).toBe(`${w.tw[0]!.identity} is already in ${speakerL.identity} at T.`);
-    expect(await reasonOf(scan(w.B, "L", "XO", w.xo[0]!.identity))).toBe(`${w.xo[0]!.identity} is already in ${speakerL.identity} at XO.`);
+    expect(await reasonOf(scan(w.B, "L", "T", w.tw[0]!.identity))).toBe(`${w.tw[0]!.identity} is already fitted, as the tweeter (T) of ${speakerL.identity}.`);
+    expect(await reasonOf(scan(w.B, "L", "XO", w.xo[0]!.identity))).toBe(`${w.xo[0]!.identity} is already fitted, as the crossover (XO) of ${speakerL.identity}.`);
   });
 
   test("a measured unit in no matched set", async () => {
@@ -345,14 +350,39 @@ describe("checkScan refuses, each with a plain reason", () => {
     await expect(scan(w.B, "L", "T", w.tw[2]!.identity, [chose("L", "T", w.tw[2]!)])).resolves.toMatchObject({ ok: true });
   });
 
-  test("crossovers: a board in a set needs its partner on the other side, from either end; loose boards in stock go anywhere", async () => {
+  test("crossovers: a board in a set needs its partner on the other side", async () => {
     const code = w.setCodes.get(w.xo[2]!.identity);
     expect(await reasonOf(scan(w.B, "R", "XO", w.xo[4]!.identity, [chose("L", "XO", w.xo[2]!)]))).toBe(`The left crossover is from set ${code}; the right one must be its partner ${w.xo[3]!.identity}.`);
-    expect(await reasonOf(scan(w.B, "R", "XO", w.xo[2]!.identity, [chose("L", "XO", w.xo[4]!)]))).toBe(
-      `${w.xo[2]!.identity} is in set ${code}: its partner ${w.xo[3]!.identity} goes on the left, but the left crossover is ${w.xo[4]!.identity}.`,
-    );
+    expect(await reasonOf(scan(w.B, "R", "XO", w.xo[2]!.identity, [chose("L", "XO", w.xo[4]!)]))).toBe(`The left crossover is from set ${w.setCodes.get(w.xo[4]!.identity)}; the right one must be its partner ${w.xo[5]!.identity}.`);
     await expect(scan(w.B, "R", "XO", w.xo[3]!.identity, [chose("L", "XO", w.xo[2]!)])).resolves.toMatchObject({ ok: true });
     await expect(scan(w.B, "R", "XO", w.xo[5]!.identity, [chose("L", "XO", w.xo[4]!)])).resolves.toMatchObject({ ok: true });
+  });
+
+  test("crossovers are refused as drive units are: a board never measured, or measured but in no matched set", async () => {
+    expect(await reasonOf(scan(w.B, "L", "XO", w.xoUnmeasured.identity))).toBe(`${w.xoUnmeasured.identity} has no measured response: the lab measures every board and pairs it left and right before it is fitted.`);
+    expect(await reasonOf(scan(w.B, "L", "XO", w.xoLoose.identity))).toBe(
+      `${w.xoLoose.identity} is not in a matched set of boards; the lab pairs boards left and right in sets before assembly, as it does drive units.`,
+    );
+    // A whole build with the two loose boards is refused, and writes nothing.
+    const before = await snapshot();
+    const scans = [
+      { side: "L" as const, slot: "T", code: w.tw[2]!.identity },
+      { side: "R" as const, slot: "T", code: w.tw[3]!.identity },
+      { side: "L" as const, slot: "B", code: w.bs[2]!.identity },
+      { side: "R" as const, slot: "B", code: w.bs[3]!.identity },
+      { side: "L" as const, slot: "XO", code: w.xoLoose.identity },
+      { side: "R" as const, slot: "XO", code: w.xoUnmeasured.identity },
+    ];
+    const err = await appErrorOf(() => buildSpeakers(db(), { pairId: w.B.id, scans, inspection: INSPECTED }, { id: ids.assembly }));
+    expect(Object.keys(err.fieldErrors ?? {}).sort()).toEqual(["L.XO", "R.XO"]);
+    expect(await snapshot()).toEqual(before);
+  });
+
+  test("a board measured after it was built can then be paired and fitted", async () => {
+    await importResponseFiles(db(), [{ name: `${w.xoUnmeasured.identity}.txt`, text: boardResponse() }], { source: "upload" }, lab);
+    const [set] = await acceptCrossoverPlan(db(), { modelId: pw2.id, limitDb: 0.5, pairs: [{ a: w.xoLoose.identity, b: w.xoUnmeasured.identity }] }, lab);
+    expect(set).toMatchObject({ left: w.xoLoose.identity, right: w.xoUnmeasured.identity });
+    await expect(scan(w.B, "R", "XO", w.xoUnmeasured.identity, [chose("L", "XO", w.xoLoose)])).resolves.toMatchObject({ ok: true });
   });
 
   test("a pair on hold: an open nonconformance", async () => {
@@ -364,7 +394,7 @@ describe("checkScan refuses, each with a plain reason", () => {
   });
 
   test("a field that is not a position of the model", async () => {
-    expect(await reasonOf(scan(w.B, "L", "M", w.tw[2]!.identity))).toBe("M is not a position of the PW2: its positions are T, B, XO.");
+    expect(await reasonOf(scan(w.B, "L", "M", w.tw[2]!.identity))).toBe("M is not a position of the PW2: its positions are tweeter (T), bass (B) and crossover (XO).");
   });
 });
 
@@ -398,7 +428,7 @@ describe("a build with one scan wrong", () => {
     expect(await snapshot()).toEqual(before);
   });
 
-  test("with every scan right, the same pair builds with loose boards in stock", async () => {
+  test("with every scan right, the same pair builds, its boards from their matched set", async () => {
     const { speakers } = await buildSpeakers(db(), { pairId: w.B.id, scans: goodB(), inspection: INSPECTED }, { id: ids.assembly });
     expect((await fresh(w.B)).state).toBe("awaiting_test");
     expect((await fresh(w.xo[4]!)).state).toBe("fitted");

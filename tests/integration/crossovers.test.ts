@@ -126,6 +126,34 @@ describe("building a board", () => {
     expect(verdict.reasons).toEqual(["L1 has no reading"]);
   });
 
+  test("a reading typed without a unit takes the nominal's unit, prefix included, and the board passes", async () => {
+    const parts = goodParts("U");
+    // 4.72 against 4.7 µF is 4.72 µF (+0.4 %), 0.81 against 0.82 mH is 0.81 mH (−1.2 %).
+    parts[0] = { ...parts[0]!, reading: "4.72" };
+    parts[1] = { ...parts[1]!, reading: "0.81" };
+    const { crossover, verdict } = await buildCrossover(db(), { modelId: pw2.id, parts }, actor);
+    expect(verdict).toMatchObject({ pass: true, reasons: [] });
+    const stored = await db().select().from(crossoverParts).where(eq(crossoverParts.crossoverId, crossover.id)).orderBy(crossoverParts.position);
+    expect(stored[0]!.reading).toBe(4.72e-6);
+    expect(stored[1]!.reading).toBe(0.81e-3);
+  });
+
+  test.each([
+    ["4.72F", /Row 1 \(C1\): Reading: "4\.72F" reads as 4\.72 F, more than ten times its 4\.7 µF nominal/],
+    ["47.5", /Row 1 \(C1\): Reading: "47\.5" reads as 47\.5 µF \(a number alone is read in µF, as the nominal is written\), more than ten times its 4\.7 µF nominal/],
+    ["0.47n", /Row 1 \(C1\): Reading: "0\.47n" reads as 0\.47 nF, less than a tenth of its 4\.7 µF nominal/],
+  ])("a reading %j, more than ten times away from its nominal, is refused as a slip and nothing is written", async (reading, message) => {
+    const before = await counts();
+    const parts = goodParts("S");
+    parts[0] = { ...parts[0]!, reading };
+    const e = await appErrorOf(() => buildCrossover(db(), { modelId: pw2.id, parts }, actor));
+    expect(e.status).toBe(400);
+    expect(e.message).toMatch(/^Nothing was saved: 1 row needs attention\./);
+    expect(e.fieldErrors?.parts?.join("\n")).toMatch(message);
+    expect(e.fieldErrors?.["parts.0"]?.[0]).toMatch(/^Reading: .*That looks like a slip of the unit or the decimal point/);
+    expect(await counts()).toEqual(before);
+  });
+
   test("a nominal off the E24 series (4.8 µF) is refused as a typing error, naming its neighbours, and nothing is written", async () => {
     const before = await counts();
     const parts = goodParts("C");
@@ -251,7 +279,8 @@ describe("pairing boards", () => {
     expect(view.plan.pairs).toHaveLength(1);
     expect([view.plan.pairs[0]!.a, view.plan.pairs[0]!.b].sort()).toEqual([boards[0], boards[1]].sort());
     expect(view.plan.pairs[0]!.maxDiffDb).toBeLessThan(0.2);
-    expect(view.plan.single).toEqual([{ id: boards[2], reason: expect.stringMatching(/no partner within 0\.5 dB/) }]);
+    // The band named by its ISO 266 name and unit, never by its index ("at band 13").
+    expect(view.plan.single).toEqual([{ id: boards[2], reason: expect.stringMatching(/^no partner within 0\.5 dB: the closest, X-PW2-.*, differs by 1\.\d+ dB at \d+(\.\d+)? k?Hz$/), closest: expect.objectContaining({ maxDiffDb: expect.any(Number) }) }]);
     // The failed board is not offered; boards without a response are listed as not ready.
     expect(view.units.find((u) => u.id === boards[3])).toBeUndefined();
     expect(view.notReady.every((n) => n.reason === "no response measured yet")).toBe(true);
@@ -259,13 +288,13 @@ describe("pairing boards", () => {
 
   test("a limit looser than the model's finished-pair limit is refused", async () => {
     const e = await appErrorOf(() => matchCrossovers(db(), { modelId: pw2.id, limitDb: 3 }));
-    expect(e.message).toMatch(/finished-pair limit of 1 dB/);
+    expect(e.message).toMatch(/finished-pair limit of 1\.0 dB/);
   });
 
   test("a pair over the limit cannot be accepted, whatever is sent", async () => {
     const before = await counts();
     const e = await appErrorOf(() => acceptCrossoverPlan(db(), { modelId: pw2.id, limitDb: 0.5, pairs: [{ a: boards[0]!, b: boards[2]! }] }, actor));
-    expect(e.message).toMatch(/differ by 1\.\d\d dB .* over the 0\.5 dB limit/);
+    expect(e.message).toMatch(/differ by 1\.\d\d dB at \d+(\.\d+)? k?Hz, over the 0\.5 dB limit/);
     expect(await counts()).toEqual(before);
   });
 

@@ -63,6 +63,8 @@ describe("the final pair test", () => {
     expect(r.comparison.worstBand).toBe("1k");
     expect(r.nc).toMatch(/^NC-/);
     const [nc] = await db().select().from(nonconformances).where(eq(nonconformances.code, r.nc!));
+    // The band by its ISO 266 name with its unit (REFERENCES.md: the 1k band), the figures with theirs.
+    expect(nc!.finding).toBe(`Final test: left and right differ by ${(model.pairResponseLimitDb + 0.01).toFixed(2)} dB at 1 kHz (limit ${model.pairResponseLimitDb.toFixed(1)} dB)`);
     expect(await failureText(() => dispositionNc(db(), { ncId: nc!.id, disposition: "scrap", scrapSide: "L", reason: "try scrap" }, { id: quality }))).toMatch(/reworked .* or used as is/);
     await dispositionNc(db(), { ncId: nc!.id, disposition: "use_as_is", reason: "one band 0.01 dB over; listening test fine" }, { id: quality });
     const [after] = await db().select().from(items).where(eq(items.id, pair.id));

@@ -8,7 +8,11 @@ import {
   formatValue,
   nearestPreferred,
   ON_SERIES_TOLERANCE,
+  parseNominal,
+  parseReading,
   parseValue,
+  readPartValues,
+  READING_SLIP_FACTOR,
   TOLERANCE_LETTERS,
   toleranceOf,
   withinTolerance,
@@ -294,6 +298,73 @@ describe("parseValue reads every notation the lab writes", () => {
     const r = parseValue(text, unit);
     expect(r.ok).toBe(false);
     if (!r.ok) expect(r.message).toMatch(message);
+  });
+});
+
+describe("a board row: a bare number is read as the lab means it", () => {
+  // Prefix values from the SI Brochure (BIPM, 9th edition, Table 7): p 1e-12, n 1e-9, µ 1e-6, m 1e-3, k 1e3.
+  test.each<[string, Unit, number, string, string]>([
+    ["4.7", "F", 4.7e-6, "µ", "4.7 µF"], // a capacitor's nominal alone is in µF, how the lab writes it (HOME)
+    ["0.82", "H", 8.2e-4, "m", "0.82 mH"], // an inductor's in mH
+    ["8.2", "Ω", 8.2, "", "8.2 Ω"], // a resistor's in Ω
+    ["4700n", "F", 4.7e-6, "n", "4.7 µF"], // typed in nF: a bare reading against it is read in nF
+    ["4u7", "F", 4.7e-6, "µ", "4.7 µF"], // IEC 60062 RKM
+    ["1k5", "Ω", 1500, "k", "1.5 kΩ"],
+    ["8R2", "Ω", 8.2, "", "8.2 Ω"],
+    ["4.7 F", "F", 4.7, "", "4.7 F"], // a unit typed is taken as typed
+  ])("nominal %j on a %s position is %d (%s prefix), shown %s", (text, unit, value, prefix, display) => {
+    expect(parseNominal(text, unit)).toEqual({ ok: true, value, unit, display, prefix });
+  });
+
+  test.each<[string, string, Unit, number, string]>([
+    // The case from the lab: nominal 4.7 µF, reading typed 4.72 → 4.72 µF, not 4.72 F.
+    ["4.7µF", "4.72", "F", 4.72e-6, "4.72 µF"],
+    ["4.7µF", "4,72", "F", 4.72e-6, "4.72 µF"],
+    ["4700n", "4710", "F", 4.71e-6, "4.71 µF"], // in the nominal's prefix as typed: nF
+    ["0.82 mH", "0.81", "H", 8.1e-4, "0.81 mH"],
+    ["330 µH", "329", "H", 3.29e-4, "0.329 mH"],
+    ["8R2", "8.19", "Ω", 8.19, "8.19 Ω"],
+    ["1k5", "1.49", "Ω", 1490, "1.49 kΩ"],
+    ["4.7µF", "4.72µF", "F", 4.72e-6, "4.72 µF"], // a prefix typed is taken as typed
+    ["4.7µF", "4720n", "F", 4.72e-6, "4.72 µF"],
+    ["4.7µF", "47", "F", 4.7e-5, "47 µF"], // exactly ten times: not "more than ten times", so judged by the tolerance
+  ])("nominal %j, reading %j on a %s position is %d, shown %s", (nominal, reading, unit, value, display) => {
+    const read = readPartValues({ nominal, reading, unit });
+    expect(read.reading).toEqual({ ok: true, value, unit, display });
+  });
+
+  test.each<[string, string, Unit, RegExp]>([
+    // Read as typed (F, no prefix) and 1,000,000 times the nominal: the slip that failed three boards for good.
+    ["4.7µF", "4.72F", "F", /^"4\.72F" reads as 4\.72 F, more than ten times its 4\.7 µF nominal\. That looks like a slip/],
+    ["4.7µF", "4.72 mF", "F", /reads as 4\.72 mF, more than ten times its 4\.7 µF nominal/],
+    ["4.7µF", "4.72n", "F", /reads as 4\.72 nF, less than a tenth of its 4\.7 µF nominal/],
+    ["4700n", "4.72", "F", /^"4\.72" reads as 4\.72 nF \(a number alone is read in nF, as the nominal is written\), less than a tenth of its 4700 nF nominal/],
+    ["4.7µF", "48", "F", /reads as 48 µF \(a number alone is read in µF, as the nominal is written\), more than ten times its 4\.7 µF nominal/],
+    ["8.2", "0.8", "Ω", /reads as 0\.8 Ω .*less than a tenth of its 8\.2 Ω nominal/],
+    ["0.82mH", "8.2 H", "H", /reads as 8\.2 H, more than ten times its 0\.82 mH nominal/],
+  ])("nominal %j, reading %j on a %s position is refused as a slip", (nominal, reading, unit, message) => {
+    const read = readPartValues({ nominal, reading, unit });
+    expect(read.reading?.ok).toBe(false);
+    if (read.reading && !read.reading.ok) expect(read.reading.message).toMatch(message);
+  });
+
+  test("the slip factor is ten", () => {
+    expect(READING_SLIP_FACTOR).toBe(10);
+  });
+
+  test("without a usable nominal a bare reading is read as a nominal would be, and no slip is told", () => {
+    expect(readPartValues({ nominal: "4.8x", reading: "4.72", unit: "F" }).reading).toEqual({ ok: true, value: 4.72e-6, unit: "F", display: "4.72 µF" });
+    expect(parseReading("4720", "F", null)).toEqual({ ok: true, value: 4.72e-3, unit: "F", display: "4720 µF" });
+  });
+
+  test("empty fields read as nothing; a reading of the wrong quantity is still refused", () => {
+    expect(readPartValues({ nominal: "", reading: " ", unit: "F" })).toEqual({ nominal: null, reading: null });
+    const r = readPartValues({ nominal: "4.7µF", reading: "4.7 mH", unit: "F" }).reading;
+    expect(r?.ok === false && r.message).toMatch(/is an inductance \(H\), but a capacitance \(F\) is expected here/);
+  });
+
+  test("parseValue itself still reads a bare number in the base unit (for lot labels and other callers)", () => {
+    expect(parseValue("4.7", "F")).toEqual({ ok: true, value: 4.7, unit: "F", display: "4.7 F" });
   });
 });
 

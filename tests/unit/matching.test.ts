@@ -439,7 +439,7 @@ describe("the limit", () => {
     // 1.1 − 0.6 is 0.5000000000000001 in binary floating point.
     expect(1.1 - 0.6).toBeGreaterThan(0.5);
     const plan = planPairs([u("A", 1.1), u("B", 0.6)], { limitDb: 0.5 });
-    expect(plan.pairs).toEqual([{ a: "A", b: "B", cost: 1.1 - 0.6, maxDiffDb: 1.1 - 0.6 }]);
+    expect(plan.pairs).toEqual([{ a: "A", b: "B", cost: 1.1 - 0.6, maxDiffDb: 1.1 - 0.6, worstBand: 0 }]);
     expect(LIMIT_EPSILON_DB).toBe(1e-9);
   });
 
@@ -448,7 +448,7 @@ describe("the limit", () => {
     expect(plan.pairs).toEqual([]);
     expect(plan.single.map((s) => s.id)).toEqual(["A", "B"]);
     // Enough decimals that the difference does not read as the limit itself.
-    expect(plan.single[0]!.reason).toBe("no partner within 0.5 dB: the closest, B, differs by 0.500001 dB at band 0");
+    expect(plan.single[0]!.reason).toBe("no partner within 0.5 dB: the closest, B, differs by 0.500001 dB at band 1 of 2");
     expect(rankReplacements(u("A", 0, 0), [u("B", 0.5 + 1e-6, 0)], { limitDb: 0.5 })).toEqual([]);
   });
 });
@@ -461,7 +461,18 @@ describe("why a unit is single", () => {
     const plan = planPairs(units, { limitDb: 0.5 });
     expect(plan.pairs.map((p) => [p.a, p.b])).toEqual([["U1", "U2"]]);
     const diff = pairCost(units[2]!, units[1]!).maxDiffDb; // 0.92 − 0.1, the closest of the two
-    expect(plan.single).toEqual([{ id: "U3", reason: `no partner within 0.5 dB: the closest, U2, differs by ${diff.toFixed(2)} dB at band 12` }]);
+    expect(plan.single).toEqual([{ id: "U3", reason: `no partner within 0.5 dB: the closest, U2, differs by ${diff.toFixed(2)} dB at band 13 of 13`, closest: { id: "U2", maxDiffDb: diff, worstBand: 12 } }]);
+  });
+
+  test.each<[string, number]>([
+    ["1.6 kHz", 12],
+    ["20 Hz", 0],
+  ])("with the bands' names given, the band is named as people say it: %s", (label, band) => {
+    // Thirteen invented band names; only the one at the worst band matters.
+    const labels = Array.from({ length: 13 }, (_, i) => (i === band ? label : `name ${i}`));
+    const units = [flat("U1", 13), flat("U2", 13, { [band]: 2.22 })];
+    const plan = planPairs(units, { limitDb: 1, bandLabels: labels });
+    expect(plan.single[0]!.reason).toBe(`no partner within 1 dB: the closest, U2, differs by 2.22 dB at ${label}`);
   });
 
   test("partners better used elsewhere: a star whose centre can take one leaf only", () => {
@@ -477,8 +488,8 @@ describe("why a unit is single", () => {
     expect(plan.pairs.map((p) => [p.a, p.b])).toEqual([["A", "B"]]);
     const toA = (i: number) => pairCost(units[i]!, units[0]!).cost.toFixed(2).replace(/0+$/, "").replace(/\.$/, "");
     expect(plan.single).toEqual([
-      { id: "C", reason: `its possible partners are better used elsewhere; the closest allowed was A (cost ${toA(2)})` },
-      { id: "D", reason: `its possible partners are better used elsewhere; the closest allowed was A (cost ${toA(3)})` },
+      { id: "C", reason: `its possible partners are better used elsewhere; the closest allowed was A (cost ${toA(2)} dB RMS)` },
+      { id: "D", reason: `its possible partners are better used elsewhere; the closest allowed was A (cost ${toA(3)} dB RMS)` },
     ]);
   });
 
@@ -491,7 +502,7 @@ describe("why a unit is single", () => {
     const plan = planPairs(units, { limitDb: 1 });
     expect(plan.pairs.map((p) => [p.a, p.b])).toEqual([["X", "Y"]]);
     const cost = pairCost(units[2]!, units[1]!).cost.toFixed(2).replace(/0+$/, "");
-    expect(plan.single).toEqual([{ id: "Z", reason: `odd one out: with an odd number of units one stays unpaired; the closest allowed was Y (cost ${cost})` }]);
+    expect(plan.single).toEqual([{ id: "Z", reason: `odd one out: with an odd number of units one stays unpaired; the closest allowed was Y (cost ${cost} dB RMS)` }]);
     expect(planPairs([units[0]!], { limitDb: 1 }).single).toEqual([{ id: "X", reason: "odd one out: no other unit in the batch" }]);
   });
 

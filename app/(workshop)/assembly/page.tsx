@@ -109,7 +109,7 @@ export default async function Page() {
             ))}
           </div>
         ) : (
-          <p className="text-ink-soft">No set is reserved: the lab matches drive units in sets before assembly.</p>
+          <p className="text-ink-soft">No set is reserved: the lab matches drive units and crossover boards in sets before assembly.</p>
         )}
       </Panel>
 

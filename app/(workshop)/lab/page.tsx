@@ -12,7 +12,10 @@ import { areaByKey } from "@/lib/areas";
 import { requirePage } from "@/lib/auth/guard";
 import { formatDate, formatDay } from "@/lib/format";
 import { failedParts } from "@/lib/lab/queries";
-import { listBatches, openSets } from "@/lib/lab/units";
+import { formatDb, formatLimitDb } from "@/lib/acoustics";
+import { UNIT_CLASS_WORDS, UNIT_CLASSES } from "@/lib/lab/unit-counts";
+import { listBatches, matchReadiness, openSets } from "@/lib/lab/units";
+import { partWord, PART_TYPE_LABEL, isPartType } from "@/lib/vocabulary/part-types";
 
 export const metadata: Metadata = { title: "Lab" };
 
@@ -26,8 +29,11 @@ export default async function Page() {
   await requirePage("lab.work");
   const db = getDb();
   const [models, batches, sets, failedItems] = await Promise.all([listModels(db), listBatches(db), openSets(db), failedParts(db)]);
-  const waiting = batches.filter((b) => Number(b.awaiting) > 0);
-  const ready = batches.filter((b) => Number(b.ready) >= 2);
+  const waiting = batches.filter((b) => b.waiting > 0);
+  // Matching is offered only where it can pair something; elsewhere the page says why not.
+  const ready = await Promise.all(batches.filter((b) => b.free >= 2).map(async (b) => ({ batch: b, readiness: await matchReadiness(db, b) })));
+  // The "Other" column only when some unit is neither waiting, free, reserved, fitted nor failed.
+  const classes = UNIT_CLASSES.filter((c) => c !== "other" || batches.some((b) => b.other > 0));
   return (
     <AreaOverview area={areaByKey("lab")}>
       <div className="flex flex-wrap gap-3">
@@ -50,7 +56,7 @@ export default async function Page() {
             <ul className="flex flex-col gap-1" data-testid="lab-waiting">
               {waiting.map((b) => (
                 <li key={b.id}>
-                  {batchLink(b.code)}: {Number(b.awaiting)} of {b.units} {b.partType} units ({b.partNumber})
+                  {batchLink(b.code)}: {b.waiting} of {b.units} {partWord(b.partType)}s ({b.partNumber})
                 </li>
               ))}
             </ul>
@@ -61,12 +67,16 @@ export default async function Page() {
         <Panel title="Ready to match">
           {ready.length ? (
             <ul className="flex flex-col gap-1" data-testid="lab-ready">
-              {ready.map((b) => (
+              {ready.map(({ batch: b, readiness: r }) => (
                 <li key={b.id}>
-                  {batchLink(b.code)}: {Number(b.ready)} measured units free{" "}
-                  <Link className="font-bold text-leaf-dark underline" href={`/lab/match?batch=${encodeURIComponent(b.code)}`}>
-                    match them
-                  </Link>
+                  {batchLink(b.code)}: {b.free} measured {partWord(b.partType)}s free{" "}
+                  {r.canMatch ? (
+                    <Link className="font-bold text-leaf-dark underline" href={`/lab/match?batch=${encodeURIComponent(b.code)}`}>
+                      match them
+                    </Link>
+                  ) : (
+                    <span className="text-ink-soft">— {r.why ?? "none can be paired yet."}</span>
+                  )}
                 </li>
               ))}
             </ul>
@@ -87,18 +97,18 @@ export default async function Page() {
             { key: "model", label: "For" },
             { key: "L", label: "Left" },
             { key: "R", label: "Right" },
-            { key: "max", label: "Largest difference, dB", numeric: true },
+            { key: "max", label: "Largest difference", numeric: true },
             { key: "made", label: "Reserved" },
           ]}
           rows={sets.map((s) => ({
             id: s.code,
             cells: {
               code: { value: s.code, display: <span className="serial">{s.code}</span> },
-              part: { value: s.partType ?? "" },
+              part: { value: s.partType ?? "crossover", display: s.partType && isPartType(s.partType) ? PART_TYPE_LABEL[s.partType] : "Crossover" },
               model: { value: s.model ?? "" },
               L: { value: s.L ?? "", display: s.L ? <SerialLink identity={s.L} bold={false} /> : "" },
               R: { value: s.R ?? "", display: s.R ? <SerialLink identity={s.R} bold={false} /> : "" },
-              max: { value: s.maxDiffDb, display: `${s.maxDiffDb.toFixed(2)} of ${s.limitDb}` },
+              max: { value: s.maxDiffDb, display: `${formatDb(s.maxDiffDb)} (limit ${formatLimitDb(s.limitDb)})` },
               made: { value: s.createdAt.getTime(), display: formatDay(s.createdAt) },
             },
           }))}
@@ -119,34 +129,39 @@ export default async function Page() {
         )}
       </Panel>
       <Panel title="Batches">
+        <p className="mb-3 text-sm text-ink-soft">
+          Each batch&apos;s units, counted by where they stand now: {classes.map((c) => UNIT_CLASS_WORDS[c].sentence).join(", ")}. The counts add up to the units.
+        </p>
         <DataTable
           caption="Batches of drive units"
           testId="lab-batches"
           empty="No batch registered yet."
-          initialSort={{ key: "received", dir: "desc" }}
+          initialSort={{ key: "code", dir: "desc" }}
           columns={[
             { key: "code", label: "Batch" },
-            { key: "part", label: "Part" },
-            { key: "number", label: "Part number" },
-            { key: "lot", label: "Lot" },
-            { key: "received", label: "Received" },
             { key: "units", label: "Units", numeric: true },
-            { key: "awaiting", label: "Waiting", numeric: true },
-            { key: "reserved", label: "Reserved", numeric: true },
-            { key: "failed", label: "Failed", numeric: true },
+            ...classes.map((c) => ({ key: c, label: UNIT_CLASS_WORDS[c].column, numeric: true })),
           ]}
           rows={batches.map((b) => ({
             id: b.id,
             cells: {
-              code: { value: b.code, display: batchLink(b.code) },
-              part: { value: b.partType },
-              number: { value: `${b.maker} ${b.partNumber}` },
-              lot: { value: b.lot },
-              received: { value: b.receivedOn, display: formatDate(new Date(`${b.receivedOn}T12:00:00Z`)) },
-              units: { value: Number(b.units) },
-              awaiting: { value: Number(b.awaiting) },
-              reserved: { value: Number(b.reserved) },
-              failed: { value: Number(b.failed) },
+              // Sorted by when it came in; what and when sit under the code, to leave room for the counts.
+              code: {
+                value: `${b.receivedOn} ${b.code}`,
+                display: (
+                  <span className="text-sm">
+                    {batchLink(b.code)}
+                    <span className="block">
+                      <span className="font-bold">{PART_TYPE_LABEL[b.partType]}</span> <span className="whitespace-nowrap">{b.partNumber}</span>
+                    </span>
+                    <span className="block whitespace-nowrap text-ink-soft">
+                      lot {b.lot} · {formatDate(new Date(`${b.receivedOn}T12:00:00Z`))}
+                    </span>
+                  </span>
+                ),
+              },
+              units: { value: b.units },
+              ...Object.fromEntries(classes.map((c) => [c, { value: b[c] }])),
             },
           }))}
         />

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { batchCountMismatch, splitMakerSerials } from "@/lib/lab/batch-count";
 import { PART_TYPES } from "@/lib/vocabulary/part-types";
 
 const toNumber = (v: unknown) => {
@@ -22,9 +23,15 @@ export const batchSchema = z.object({
     .string()
     .max(20_000)
     .default("")
-    .transform((t) => t.split(/[\s,;]+/).map((s) => s.trim()).filter(Boolean)),
+    .transform(splitMakerSerials),
   count: z.preprocess(toNumber, z.number({ error: "Give the number of units." }).int("A whole number.").min(0).max(500, "At most 500 units.").nullable()).transform((n) => n ?? 0),
-}).refine((v) => v.makerSerials.length > 0 || v.count > 0, { message: "Give the number of units, or scan the makers' serials.", path: ["count"] });
+})
+  .refine((v) => v.makerSerials.length > 0 || v.count > 0, { message: "Give the number of units, or scan the makers' serials.", path: ["count"] })
+  // Numbers that do not add up are a slip somewhere: refuse rather than guess which one is right.
+  .superRefine((v, ctx) => {
+    const mismatch = batchCountMismatch(v.count, v.makerSerials.length);
+    if (mismatch) ctx.addIssue({ code: "custom", message: mismatch, path: ["count"] });
+  });
 
 export const measurementSchema = z.object({
   batch: z.string().min(1),

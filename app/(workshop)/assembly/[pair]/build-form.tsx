@@ -8,6 +8,7 @@ import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
 import { cx } from "@/components/ui/cx";
 import { initialFormState, type FormState } from "@/lib/forms";
+import { positionName } from "@/lib/vocabulary/positions";
 import { buildSpeakersAction, checkScanAction } from "../actions";
 
 const SIDES: Side[] = ["L", "R"];
@@ -26,6 +27,7 @@ type FieldState =
   | { status: "refused"; code: string; reason: string };
 
 const keyOf = (side: Side, slot: string) => `${side}.${slot}`;
+const capitalised = (text: string) => `${text.charAt(0).toUpperCase()}${text.slice(1)}`;
 
 /** The two new speakers, with links and their labels: shown after the build and on a built pair's page. */
 export function BuiltSpeakers({ left, right }: { left: string; right: string }) {
@@ -188,7 +190,7 @@ export function BuildForm({ pair, pairId, slots }: { pair: string; pairId: strin
               return (
                 <div key={key} className="flex flex-col gap-1.5">
                   <label htmlFor={id} className="font-bold">
-                    {s.kind === "crossover" ? "Crossover (XO)" : `${s.label.charAt(0).toUpperCase()}${s.label.slice(1)} (${s.slot})`}
+                    {capitalised(positionName(s.slot))}
                   </label>
                   <input
                     id={id}

@@ -14,12 +14,17 @@ import { assemblyView, reservedSets } from "@/lib/assembly";
 import { sideWord } from "@/lib/vocabulary/sides";
 import { requirePage } from "@/lib/auth/guard";
 import { kindLabel, stateLabel } from "@/lib/vocabulary/item-kinds";
+import { isPartType, PART_TYPE_LABEL } from "@/lib/vocabulary/part-types";
+import { positionName } from "@/lib/vocabulary/positions";
 import { BuildForm, BuiltSpeakers } from "./build-form";
 
 export async function generateMetadata({ params }: { params: Promise<{ pair: string }> }): Promise<Metadata> {
   return { title: `Assembly of ${decodeURIComponent((await params).pair)}` };
 }
 
+const capitalised = (text: string) => `${text.charAt(0).toUpperCase()}${text.slice(1)}`;
+/** A speaker's parts from the cabinet down the baffle to the crossover: CAB, T, M, B, XO. */
+const partRank = (position: string) => ({ CAB: 0, T: 1, M: 2, B: 3, XO: 9 })[position.replace(/-?\d+$/, "")] ?? 5;
 const PART_TYPE_NAME: Record<string, string> = { tweeter: "Tweeters", midrange: "Midrange units", bass: "Bass units", crossover: "Crossover boards" };
 
 export default async function AssemblyPairPage({ params }: { params: Promise<{ pair: string }> }) {
@@ -85,13 +90,18 @@ export default async function AssemblyPairPage({ params }: { params: Promise<{ p
                   <h3 className="mb-2 font-bold">
                     {s.side === "L" ? "Left" : "Right"} speaker <SerialLink identity={s.item.identity} />
                   </h3>
-                  <ul className="flex flex-col gap-1">
-                    {s.parts.map((p) => (
-                      <li key={p.position}>
-                        <span className="inline-block w-12 font-bold">{p.position}</span> <SerialLink identity={p.identity} bold={false} /> <span className="text-sm text-ink-soft">{p.partType ?? kindLabel(p.kind)}</span>
-                      </li>
+                  <dl className="grid grid-cols-[max-content_1fr] gap-x-3 gap-y-1">
+                    {[...s.parts].sort((x, y) => partRank(x.position) - partRank(y.position) || x.position.localeCompare(y.position, undefined, { numeric: true })).map((p) => (
+                      <div key={p.position} className="contents">
+                        <dt className="font-bold">{capitalised(positionName(p.position))}</dt>
+                        <dd>
+                          <SerialLink identity={p.identity} bold={false} />
+                          {/* A position the vocabulary does not name says what sits there instead. */}
+                          {positionName(p.position) === p.position ? <span className="text-sm text-ink-soft"> {p.partType && isPartType(p.partType) ? PART_TYPE_LABEL[p.partType] : kindLabel(p.kind)}</span> : null}
+                        </dd>
+                      </div>
                     ))}
-                  </ul>
+                  </dl>
                 </section>
               ))}
             </div>
@@ -109,7 +119,7 @@ export default async function AssemblyPairPage({ params }: { params: Promise<{ p
       ) : (
         <Panel title="Build the speakers">
           <p className="mb-4 text-ink-soft">
-            Scan each part&apos;s label into its field. Left and right of a position come from one matched set; a crossover board in a set needs its partner on the other side. Every scan is checked as you enter it, and again when you build.
+            Scan each part&apos;s label into its field. Left and right of every position, the crossover too, come from one matched set the lab reserved: each part needs its partner on the other side. Every scan is checked as you enter it, and again when you build.
           </p>
           <BuildForm pair={pair.identity} pairId={pair.id} slots={view.slots.map((s) => ({ slot: s.slot, label: s.label, kind: s.kind }))} />
         </Panel>
@@ -132,7 +142,7 @@ export default async function AssemblyPairPage({ params }: { params: Promise<{ p
                     ))}
                   </ul>
                 ) : (
-                  <p className="text-sm text-ink-soft">{g.partType === "crossover" ? "None: a board in stock may be fitted loose." : "None reserved: ask the lab."}</p>
+                  <p className="text-sm text-ink-soft">{g.partType === "crossover" ? "None reserved: ask the lab to measure and pair boards." : "None reserved: ask the lab."}</p>
                 )}
               </section>
             ))}

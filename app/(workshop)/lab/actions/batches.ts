@@ -2,8 +2,7 @@
 import { getDb } from "@/db";
 import { AppError } from "@/lib/auth/errors";
 import { guardedAction } from "@/lib/auth/guard";
-import { acceptPlan, batchByCode, failUnit, importTsRows, recordMeasurement, registerBatch } from "@/lib/lab/units";
-import { parseTsCsv } from "@/lib/lab/ts-csv";
+import { acceptPlan, batchByCode, failUnit, importTsCsv, recordMeasurement, registerBatch } from "@/lib/lab/units";
 import { acceptSchema, batchSchema, failSchema, measurementSchema, tsCsvSchema } from "../schemas";
 
 const batchPage = (code: string) => `/lab/batches/${encodeURIComponent(code)}`;
@@ -28,9 +27,7 @@ export const tsCsvAction = guardedAction("lab.work", tsCsvSchema, async (input, 
   const db = getDb();
   const batch = await batchByCode(db, input.batch);
   if (!batch) throw new AppError(404, "That batch is not in the register.");
-  const parsed = parseTsCsv(input.csv);
-  if (!parsed.ok) throw new AppError(400, `Nothing was saved: ${parsed.errors.length} problem${parsed.errors.length === 1 ? "" : "s"}.`, { csv: parsed.errors.slice(0, 30) });
-  const n = await importTsRows(db, parsed.rows, { batchId: batch.id, source: "csv" }, { id: user.id });
+  const n = await importTsCsv(db, input.csv, { batchId: batch.id }, { id: user.id });
   return { ok: true, message: `Thiele–Small parameters saved for ${n} unit${n === 1 ? "" : "s"}.`, revalidate: [batchPage(input.batch), "/lab"] };
 });
 

@@ -5,7 +5,7 @@ import { Button } from "@/components/ui/button";
 import { controlClasses } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
-import { parseValue, TOLERANCE_LETTERS, type Unit } from "@/lib/crossover-parts";
+import { readPartValues, TOLERANCE_LETTERS, type Unit } from "@/lib/crossover-parts";
 import { initialFormState } from "@/lib/forms";
 import { buildCrossoverAction } from "./actions";
 import { MAX_ROWS, type PartRow } from "./schemas";
@@ -44,11 +44,13 @@ let nextKey = 1;
 const emptyRow = (position = ""): Row => ({ key: nextKey++, position, lot: "", partNumber: "", nominal: "", tolerance: "J", reading: "" });
 const START: string[] = ["C1", "C2", "L1", "L2", "R1"];
 
-/** Reads a value as the server will, to show under the field what it will be taken as. */
-function preview(text: string, position: string): { ok: boolean; text: string } | null {
-  if (!text.trim()) return null;
-  const r = parseValue(text, unitOf(position));
-  return r.ok ? { ok: true, text: `= ${r.display}` } : { ok: false, text: r.message };
+type Hint = { ok: boolean; text: string } | null;
+
+/** Reads a row's nominal and reading as the server will (the same function), to show under each field what it will be taken as. */
+function preview(row: PartRow): { nominal: Hint; reading: Hint } {
+  const read = readPartValues({ nominal: row.nominal, reading: row.reading, unit: unitOf(row.position) });
+  const hint = (r: typeof read.nominal | typeof read.reading): Hint => (r === null ? null : r.ok ? { ok: true, text: `= ${r.display}` } : { ok: false, text: r.message });
+  return { nominal: hint(read.nominal), reading: hint(read.reading) };
 }
 
 /**
@@ -177,16 +179,15 @@ export function BuildForm({ models, lots }: { models: { id: string; code: string
       <fieldset className="flex flex-col gap-3">
         <legend className="mb-1 font-bold">Parts, one row per position</legend>
         <p className="text-sm text-ink-soft">
-          Position as printed on the board (C for capacitors, L for inductors, R for resistors). Write values as the lab does: 4.7µF or 4u7, 0.82 mH, 8.2 Ω or 8R2; the unit may be left out. Nominals must be E24 values. A lot code not yet registered is registered with this row&apos;s part.
+          Position as printed on the board (C for capacitors, L for inductors, R for resistors). Write values as the lab does: 4.7µF or 4u7, 0.82 mH, 8.2 Ω or 8R2. A number alone is read in µF, mH or Ω for a nominal, and in the nominal&apos;s unit for a reading (4.72 against 4.7 µF is 4.72 µF); what each value is taken as shows under its field. Nominals must be E24 values. A lot code not yet registered is registered with this row&apos;s part.
         </p>
         <ol className="flex flex-col gap-3">
           {rows.map((r, i) => {
             const errors = errorsFor(r.key);
-            const n = preview(r.nominal, r.position);
-            const m = preview(r.reading, r.position);
+            const { nominal: n, reading: m } = preview(r);
             const rowId = `${id}-row-${r.key}`;
             const example = EXAMPLE[unitOf(r.position) ?? "F"];
-            const cell = (field: keyof PartRow, label: string, extra: Record<string, unknown> = {}, hint?: { ok: boolean; text: string } | null) => (
+            const cell = (field: keyof PartRow, label: string, extra: Record<string, unknown> = {}, hint?: Hint) => (
               <label className="flex min-w-0 flex-col gap-1">
                 <span className="text-sm font-bold">{label}</span>
                 <input
@@ -194,12 +195,16 @@ export function BuildForm({ models, lots }: { models: { id: string; code: string
                   onChange={(e) => update(r.key, { [field]: e.currentTarget.value })}
                   className={controlClasses}
                   aria-invalid={errors?.length ? true : undefined}
-                  aria-describedby={errors?.length ? `${rowId}-errors` : undefined}
+                  aria-describedby={[hint ? `${rowId}-${field}-hint` : "", errors?.length ? `${rowId}-errors` : ""].filter(Boolean).join(" ") || undefined}
                   data-field={field}
                   autoComplete="off"
                   {...extra}
                 />
-                {hint ? <span className={`text-xs ${hint.ok ? "text-ink-soft" : "text-caution"}`}>{hint.text}</span> : null}
+                {hint ? (
+                  <span id={`${rowId}-${field}-hint`} className={`text-xs ${hint.ok ? "text-ink-soft" : "text-caution"}`} data-testid={`${field}-preview`}>
+                    {hint.text}
+                  </span>
+                ) : null}
               </label>
             );
             return (
@@ -268,7 +273,7 @@ export function BuildForm({ models, lots }: { models: { id: string; code: string
         </div>
       </fieldset>
       <p className="text-sm text-ink-soft">
-        Every part needs its reading; a part outside its tolerance, or without a reading, records the board as failed with the reason. A value that is not an E24 value, an unknown lot or any other slip saves nothing.
+        Every part needs its reading; a part outside its tolerance, or without a reading, records the board as failed with the reason. A value that is not an E24 value, a reading more than ten times away from its nominal, an unknown lot or any other slip saves nothing.
       </p>
       <div>
         <SubmitButton pendingLabel="Checking the board…">Build and check the board</SubmitButton>

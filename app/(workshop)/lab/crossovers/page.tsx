@@ -1,5 +1,6 @@
 import type { Metadata } from "next";
 import { MatchPlan } from "@/components/lab/match-plan";
+import { ResponseUpload } from "@/components/lab/response-upload";
 import { SerialLink } from "@/components/register/serial-link";
 import { SafetyCautions } from "@/components/shell/safety-cautions";
 import { BackLink } from "@/components/ui/back-link";
@@ -13,6 +14,7 @@ import { getDb } from "@/db";
 import { areaByKey } from "@/lib/areas";
 import { AppError } from "@/lib/auth/errors";
 import { requirePage } from "@/lib/auth/guard";
+import { formatHzRange, formatLimitDb } from "@/lib/acoustics";
 import { formatWhen } from "@/lib/format";
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { crossoverBoards, crossoverModels, lotsInStock, matchCrossovers, type CrossoverMatchView } from "@/lib/lab/crossovers";
@@ -32,6 +34,8 @@ export default async function CrossoversPage({ searchParams }: { searchParams: P
   const [models, lots, boards] = await Promise.all([crossoverModels(db), lotsInStock(db), crossoverBoards(db, { limit: BOARDS_SHOWN })]);
 
   const model = models.find((m) => m.code === sp.model) ?? models[0] ?? null;
+  // Boards that passed their check but were built without a response: measured here, then paired.
+  const unmeasured = boards.filter((b) => b.state === "in_stock" && !b.hasResponse);
   let limitDb = model?.defaultLimitDb ?? 0.5;
   let limitProblem: string | null = null;
   if (sp.limit !== undefined && sp.limit !== "") {
@@ -113,6 +117,27 @@ export default async function CrossoversPage({ searchParams }: { searchParams: P
         />
       </Panel>
 
+      <Panel title="Measure boards built without a response">
+        <p className="mb-3 text-ink-soft">
+          A board is paired on its measured response, and assembly fits only boards paired in a set. Bring in the response of each board in stock that has none: one file per board, its serial in the first line or the file name.
+        </p>
+        {unmeasured.length ? (
+          <p className="mb-4" data-testid="boards-unmeasured">
+            Waiting for a response:{" "}
+            {unmeasured.map((b, i) => (
+              <span key={b.id}>
+                {i ? ", " : ""}
+                <SerialLink identity={b.identity} bold={false} />
+              </span>
+            ))}
+            .
+          </p>
+        ) : (
+          <p className="mb-4 text-sm text-ink-soft">Every board in stock among the newest {BOARDS_SHOWN} has its response.</p>
+        )}
+        <ResponseUpload noun="board" />
+      </Panel>
+
       <Panel title="Pair boards">
         <form method="get" className="flex flex-wrap items-end gap-4" data-testid="pair-controls">
           <label className="flex flex-col gap-1">
@@ -135,8 +160,8 @@ export default async function CrossoversPage({ searchParams }: { searchParams: P
         </form>
         <p className="mt-3 text-sm text-ink-soft">
           Two boards may pair when their levels differ by no more than the limit in every one-third-octave band over the model&apos;s range
-          {model ? ` (${model.responseMinHz}–${model.responseMaxHz} Hz)` : ""}. The limit starts at the model&apos;s tightest drive-unit limit and may not exceed its finished-pair limit
-          {model ? ` of ${model.pairResponseLimitDb} dB` : ""}.
+          {model ? ` (${formatHzRange(model.responseMinHz, model.responseMaxHz)})` : ""}. The limit starts at the model&apos;s tightest drive-unit limit and may not exceed its finished-pair limit
+          {model ? ` of ${formatLimitDb(model.pairResponseLimitDb)}` : ""}.
         </p>
         {limitProblem ? (
           <Notice tone="caution" className="mt-3">

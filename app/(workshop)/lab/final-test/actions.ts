@@ -2,6 +2,7 @@
 import { z } from "zod";
 import { getDb } from "@/db";
 import { guardedAction } from "@/lib/auth/guard";
+import { bandLabel, formatDb, formatLimitDb } from "@/lib/acoustics";
 import { recordFinalTest } from "@/lib/lab/final-test";
 
 const schema = z.object({
@@ -15,7 +16,7 @@ const schema = z.object({
 export const finalTestAction = guardedAction("lab.work", schema, async (input, user) => {
   const r = await recordFinalTest(getDb(), { pair: input.pair, left: { name: input.leftName, text: input.leftText }, right: { name: input.rightName, text: input.rightText } }, { id: user.id });
   const verdict = r.comparison.pass
-    ? `Passed: the largest difference is ${r.comparison.maxAbsDiffDb.toFixed(2)} dB at ${r.comparison.worstBand} Hz, within ${r.limitDb} dB. The pair is ready to pack.`
-    : `Failed: ${r.comparison.maxAbsDiffDb.toFixed(2)} dB at ${r.comparison.worstBand} Hz, over the ${r.limitDb} dB limit. Nonconformance ${r.nc} is open for quality.`;
+    ? `Passed: the largest difference is ${formatDb(r.comparison.maxAbsDiffDb)} at ${bandLabel(r.comparison.worstBand)}, within the ${formatLimitDb(r.limitDb)} limit. The pair is ready to pack.`
+    : `Failed: ${formatDb(r.comparison.maxAbsDiffDb)} at ${bandLabel(r.comparison.worstBand)}, over the ${formatLimitDb(r.limitDb)} limit. Nonconformance ${r.nc} is open for quality.`;
   return { ok: true, message: verdict, revalidate: ["/lab/final-test", "/lab"], redirectTo: `/lab/final-test?pair=${encodeURIComponent(input.pair.trim().toUpperCase())}&result=${r.comparison.pass ? "pass" : "fail"}` };
 });

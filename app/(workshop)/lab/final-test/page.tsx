@@ -6,7 +6,7 @@ import { DataTable } from "@/components/ui/data-table";
 import { Notice } from "@/components/ui/notice";
 import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
-import { compareResponses } from "@/lib/acoustics";
+import { bandLabel, compareResponses, formatDb, formatHzRange, formatLimitDb } from "@/lib/acoustics";
 import { requirePage } from "@/lib/auth/guard";
 import { formatDay } from "@/lib/format";
 import { itemByIdentity } from "@/lib/genealogy/graph";
@@ -34,11 +34,11 @@ export default async function Page({ searchParams }: { searchParams: Promise<{ p
         <Panel title={`${pair.identity}: ${last.test.pass ? "passed" : "failed"}`}>
           <Notice tone={last.test.pass ? "leaf" : "danger"} testId="final-test-result" className="mb-4">
             {last.test.pass
-              ? `Passed: the largest difference is ${last.test.maxDiffDb.toFixed(2)} dB at ${last.test.worstBand} Hz, within ${last.test.limitDb} dB. The pair is ready to pack.`
-              : `Failed: ${last.test.maxDiffDb.toFixed(2)} dB at ${last.test.worstBand} Hz, over the ${last.test.limitDb} dB limit. A nonconformance is open for quality.`}
+              ? `Passed: the largest difference is ${formatDb(last.test.maxDiffDb)} at ${bandLabel(last.test.worstBand)}, within the ${formatLimitDb(last.test.limitDb)} limit. The pair is ready to pack.`
+              : `Failed: ${formatDb(last.test.maxDiffDb)} at ${bandLabel(last.test.worstBand)}, over the ${formatLimitDb(last.test.limitDb)} limit. A nonconformance is open for quality.`}
           </Notice>
           <PairChart
-            title={`${model.code} ${model.name}: left and right, ${model.responseMinHz}–${model.responseMaxHz} Hz`}
+            title={`${model.code} ${model.name}: left and right, ${formatHzRange(model.responseMinHz, model.responseMaxHz)}`}
             a={{ label: "Left", points: last.left.points.map((p) => [p[0]!, p[1]!] as [number, number]) }}
             b={{ label: "Right", points: last.right.points.map((p) => [p[0]!, p[1]!] as [number, number]) }}
             bands={comparison.bands.map((b) => ({ centreHz: b.centreHz, nominal: b.nominal, low: (b.left + b.right) / 2 - last.test.limitDb / 2, high: (b.left + b.right) / 2 + last.test.limitDb / 2 }))}
@@ -51,7 +51,7 @@ export default async function Page({ searchParams }: { searchParams: Promise<{ p
               caption="Band by band"
               testId="final-test-bands"
               columns={[
-                { key: "band", label: "Band, Hz" },
+                { key: "band", label: "Band" },
                 { key: "left", label: "Left, dB", numeric: true },
                 { key: "right", label: "Right, dB", numeric: true },
                 { key: "diff", label: "|L − R|, dB", numeric: true },
@@ -59,7 +59,7 @@ export default async function Page({ searchParams }: { searchParams: Promise<{ p
               rows={comparison.bands.map((b) => ({
                 id: b.nominal,
                 cells: {
-                  band: { value: b.centreHz, display: b.nominal },
+                  band: { value: b.centreHz, display: bandLabel(b.nominal) },
                   left: { value: b.left, display: b.left.toFixed(2) },
                   right: { value: b.right, display: b.right.toFixed(2) },
                   diff: { value: Math.abs(b.diffDb), display: <span className={Math.abs(b.diffDb) > last.test.limitDb + 1e-9 ? "font-bold text-danger" : undefined}>{Math.abs(b.diffDb).toFixed(2)}</span> },

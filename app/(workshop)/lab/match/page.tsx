@@ -9,6 +9,8 @@ import { requirePage } from "@/lib/auth/guard";
 import { modelsTakingPartType } from "@/lib/lab/queries";
 import { batchByCode, listBatches, matchBatch, PASSBANDS } from "@/lib/lab/units";
 import { AcceptPlan } from "./accept-plan";
+import { formatHzRange, formatLimitDb } from "@/lib/acoustics";
+import { partWord } from "@/lib/vocabulary/part-types";
 
 export const metadata: Metadata = { title: "Match left and right" };
 
@@ -17,7 +19,7 @@ export default async function MatchPage({ searchParams }: { searchParams: Promis
   await requirePage("lab.work");
   const db = getDb();
   const sp = await searchParams;
-  const batches = (await listBatches(db)).filter((b) => b.ready >= 2 || b.code === sp.batch);
+  const batches = (await listBatches(db)).filter((b) => b.free >= 2 || b.code === sp.batch);
   const batch = sp.batch ? await batchByCode(db, sp.batch) : batches[0] ? await batchByCode(db, batches[0].code) : null;
   const modelsFor = batch ? await modelsTakingPartType(db, batch.partType) : [];
   const model = modelsFor.find((m) => m.code === sp.model) ?? modelsFor[0];
@@ -41,7 +43,7 @@ export default async function MatchPage({ searchParams }: { searchParams: Promis
             <select name="batch" defaultValue={batch?.code} className="h-12 rounded-md border border-line-strong bg-surface px-3">
               {batches.map((b) => (
                 <option key={b.id} value={b.code}>
-                  {b.code}: {b.partType}, {b.partNumber} ({b.ready} ready)
+                  {b.code}: {partWord(b.partType)}s, {b.partNumber} ({b.free} measured and free)
                 </option>
               ))}
             </select>
@@ -51,7 +53,7 @@ export default async function MatchPage({ searchParams }: { searchParams: Promis
             <select name="model" defaultValue={model?.code} className="h-12 rounded-md border border-line-strong bg-surface px-3">
               {modelsFor.map((m) => (
                 <option key={m.id} value={m.code}>
-                  {m.code} {m.name}: {m.limit} dB
+                  {m.code} {m.name}: {formatLimitDb(m.limit)}
                 </option>
               ))}
             </select>
@@ -77,10 +79,13 @@ export default async function MatchPage({ searchParams }: { searchParams: Promis
         </Notice>
       ) : null}
       {!batch ? <Notice tone="info">No batch has two measured units free to match yet.</Notice> : null}
-      {batch && !model ? <Notice tone="caution">No model has a mismatch limit for {batch.partType} units.</Notice> : null}
+      {batch && !model ? <Notice tone="caution">No model has a mismatch limit for {partWord(batch.partType)}s.</Notice> : null}
 
       {view && batch && model && pass ? (
           <Panel title="The plan">
+            <p className="mb-4 text-sm text-ink-soft" data-testid="plan-basis">
+              {`${batch.code}'s ${partWord(batch.partType)}s, compared in one-third-octave bands over ${formatHzRange(pass.minHz, pass.maxHz)} (where a ${partWord(batch.partType)} plays in a usual design), against the ${model.code}'s limit of ${formatLimitDb(model.limit)}.`}
+            </p>
             <MatchPlan
               plan={view.plan}
               units={view.units}

@@ -1,7 +1,8 @@
 "use client";
 import { useState } from "react";
 import { cx } from "@/components/ui/cx";
-import { ResponseUpload, TsCsvImport } from "./bulk-measurements";
+import { ResponseUpload } from "@/components/lab/response-upload";
+import { TsCsvImport } from "./bulk-measurements";
 
 /** Response files or a parameters CSV for the whole batch, one at a time. */
 export function BulkTabs({ batch }: { batch: string }) {

@@ -13,7 +13,10 @@ import { getDb } from "@/db";
 import { requirePage } from "@/lib/auth/guard";
 import { formatDate, formatWhen } from "@/lib/format";
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
-import { batchByCode, batchUnitsView } from "@/lib/lab/units";
+import { formatTs } from "@/lib/acoustics";
+import { countUnits, UNIT_CLASS_WORDS, UNIT_CLASSES } from "@/lib/lab/unit-counts";
+import { batchByCode, batchUnitsView, matchReadiness } from "@/lib/lab/units";
+import { partWord } from "@/lib/vocabulary/part-types";
 import { BulkTabs } from "./bulk-tabs";
 import { MeasureDialog } from "./measure-dialog";
 
@@ -21,7 +24,7 @@ export async function generateMetadata({ params }: { params: Promise<{ code: str
   return { title: `Batch ${decodeURIComponent((await params).code)}` };
 }
 
-const fmt = (n: number | null, digits = 2) => (n === null ? "" : n.toFixed(digits));
+const ts = (field: Parameters<typeof formatTs>[0], n: number | null) => (n === null ? "" : formatTs(field, n));
 const TONE: Record<string, "info" | "leaf" | "walnut" | "danger" | "neutral"> = { awaiting_measurement: "neutral", measured: "info", reserved: "leaf", failed: "danger", fitted: "walnut" };
 
 export default async function BatchPage({ params, searchParams }: { params: Promise<{ code: string }>; searchParams: Promise<{ registered?: string }> }) {
@@ -32,53 +35,74 @@ export default async function BatchPage({ params, searchParams }: { params: Prom
   if (!batch) notFound();
   const units = await batchUnitsView(db, batch.id);
   const registered = (await searchParams).registered;
-  const awaiting = units.filter((u) => u.state === "awaiting_measurement").length;
-  const ready = units.filter((u) => u.state === "measured" && u.responseId !== null).length;
+  const counts = countUnits(units.map((u) => ({ state: u.state, inOpenSet: u.setCode !== null, n: 1 })));
+  // Matching is offered only when it can pair something; otherwise the page says why.
+  const readiness = counts.free >= 2 ? await matchReadiness(db, batch) : null;
   return (
     <div className="flex flex-col gap-6" data-testid="batch-page">
       <BackLink href="/lab">Lab</BackLink>
       <PageHeader
         title={<span className="serial" data-testid="batch-code">{batch.code}</span>}
-        lead={`${units.length} ${batch.partType} units · ${batch.maker} ${batch.partNumber} · lot ${batch.lot} · received ${formatDate(new Date(`${batch.receivedOn}T12:00:00Z`))}`}
+        lead={`${units.length} ${partWord(batch.partType)}s · ${batch.maker} ${batch.partNumber} · lot ${batch.lot} · received ${formatDate(new Date(`${batch.receivedOn}T12:00:00Z`))}`}
         actions={
-          ready >= 2 ? (
+          readiness?.canMatch ? (
             <Link className={buttonClasses("primary")} href={`/lab/match?batch=${encodeURIComponent(batch.code)}`} data-testid="match-batch">
-              Match {ready} measured units
+              Match {readiness.free} measured units
             </Link>
           ) : null
         }
       />
       {registered ? <Notice tone="leaf">Batch registered with {units.length} units. Print their labels, then bring in the measurements.</Notice> : null}
-      <p className="text-ink-soft">
-        {awaiting} waiting for measurement · {ready} measured and free to match · {units.filter((u) => u.setCode).length} reserved in sets · {units.filter((u) => u.state === "failed").length} failed
+      <p className="text-ink-soft" data-testid="batch-counts">
+        {UNIT_CLASSES.filter((c) => c !== "other" || counts.other > 0)
+          .map((c) => `${counts[c]} ${UNIT_CLASS_WORDS[c].sentence}`)
+          .join(" · ")}
       </p>
+      {readiness && !readiness.canMatch && readiness.why ? (
+        <Notice tone="caution" testId="match-not-offered">
+          {readiness.why} Matching is offered once two units can pair.
+        </Notice>
+      ) : null}
       <Panel title="Units">
         <DataTable
           caption={`Units of batch ${batch.code}`}
           testId="units-table"
           columns={[
-            { key: "identity", label: "Serial" },
-            { key: "maker", label: "Maker's serial" },
-            { key: "state", label: "State" },
-            { key: "response", label: "Response" },
+            { key: "identity", label: "Serial, maker's serial" },
+            { key: "state", label: "State, response" },
             { key: "fs", label: "Fs, Hz", numeric: true },
             { key: "qts", label: "Qts", numeric: true },
             { key: "re", label: "Re, Ω", numeric: true },
-            { key: "spl", label: "dB", numeric: true },
-            { key: "set", label: "Set" },
+            // Columns nobody has filled yet are left out, so the ones that matter fit the page.
+            ...(units.some((u) => u.sensitivityDb !== null) ? [{ key: "spl", label: "SPL, dB", numeric: true }] : []),
+            ...(units.some((u) => u.setCode) ? [{ key: "set", label: "Set" }] : []),
             { key: "act", label: "", sortable: false },
           ]}
           rows={units.map((u) => ({
             id: u.id,
             cells: {
-              identity: { value: u.identity, display: <SerialLink identity={u.identity} /> },
-              maker: { value: u.makerSerial ?? "" },
-              state: { value: u.state, display: <Badge tone={TONE[u.state] ?? "neutral"}>{stateLabel(u.state)}</Badge> },
-              response: { value: u.responseAt?.getTime() ?? 0, display: u.responseAt ? formatWhen(u.responseAt) : "none" },
-              fs: { value: u.fsHz, display: fmt(u.fsHz, 0) },
-              qts: { value: u.qts, display: fmt(u.qts) },
-              re: { value: u.reOhm, display: fmt(u.reOhm) },
-              spl: { value: u.sensitivityDb, display: fmt(u.sensitivityDb, 1) },
+              identity: {
+                value: u.identity,
+                display: (
+                  <span>
+                    <SerialLink identity={u.identity} />
+                    {u.makerSerial ? <span className="block text-sm text-ink-soft">maker&apos;s {u.makerSerial}</span> : null}
+                  </span>
+                ),
+              },
+              state: {
+                value: u.state,
+                display: (
+                  <span>
+                    <Badge tone={TONE[u.state] ?? "neutral"}>{stateLabel(u.state)}</Badge>
+                    <span className="block text-sm whitespace-nowrap text-ink-soft">{u.responseAt ? `response ${formatWhen(u.responseAt)}` : "no response yet"}</span>
+                  </span>
+                ),
+              },
+              fs: { value: u.fsHz, display: ts("fs", u.fsHz) },
+              qts: { value: u.qts, display: ts("qts", u.qts) },
+              re: { value: u.reOhm, display: ts("re", u.reOhm) },
+              spl: { value: u.sensitivityDb, display: ts("sensitivity", u.sensitivityDb) },
               set: { value: u.setCode ?? "" },
               act: { value: null, display: u.state === "awaiting_measurement" || u.state === "measured" ? <MeasureDialog batch={batch.code} unit={{ id: u.id, identity: u.identity }} /> : null },
             },
