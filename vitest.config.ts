@@ -14,7 +14,7 @@ export default defineConfig({
     reporters: ["default", "json"],
     outputFile: { json: ".tmp/test-results/unit-integration.json" },
     projects: [
-      { resolve: { alias }, test: { name: "unit", include: ["tests/unit/**/*.test.{ts,tsx}"], environment: "node" } },
+      { resolve: { alias }, test: { name: "unit", include: ["tests/unit/**/*.test.{ts,tsx}"], environment: "node", testTimeout: 20_000 } },
       {
         resolve: { alias },
         test: {
