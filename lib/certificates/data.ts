@@ -26,6 +26,9 @@ import { newId } from "@/lib/auth/tokens";
 import { now as clockNow } from "@/lib/clock";
 import { parseSerial } from "@/lib/serials/format";
 import { certificateCode, verifyUrl } from "./code";
+import { formatDb, formatHz } from "./figures";
+
+export { formatDb, formatHz };
 
 
 /** The pair states the demo history leaves a pair in after it shipped with a certificate. */
@@ -127,16 +130,6 @@ export interface CertificateData {
 }
 
 const PART_ORDER: Record<string, number> = { tweeter: 0, midrange: 1, bass: 2, crossover: 3 };
-
-/** "1", "0.5", "0.75": a limit as the workshop writes it. */
-export function formatDb(db: number, digits = 2): string {
-  return String(Number(db.toFixed(digits)));
-}
-
-/** "200 Hz", "10 kHz", "12.5 kHz". */
-export function formatHz(hz: number): string {
-  return hz >= 1000 ? `${Number((hz / 1000).toPrecision(4))} kHz` : `${Number(hz.toPrecision(4))} Hz`;
-}
 
 /** A pair by its serial (checked and canonicalised when it parses), or null. */
 export async function pairByIdentity(db: DbOrTx, identity: string) {
