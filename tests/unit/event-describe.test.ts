@@ -58,7 +58,7 @@ describe("describeEvent", () => {
   });
 
   test("a type recorded before the vocabulary existed still reads as words", () => {
-    expect(describeEvent("reading.recorded", { value: 1 })).toBe("recorded reading recorded");
+    expect(describeEvent("bench.calibrated", { value: 1 })).toBe("recorded bench calibrated");
   });
 });
 
