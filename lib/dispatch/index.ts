@@ -7,11 +7,12 @@ import "server-only";
 import type { Actor } from "@/lib/vocabulary/actor";
 import { and, eq, isNull, sql } from "drizzle-orm";
 import type { Db, DbOrTx, Tx } from "@/db";
-import { cartonLocations, certificates, dealers, finishes, items, links, models, outbox, shipmentDetails, type Item } from "@/db/schema";
+import { cartonLocations, certificates, dealers, finishes, items, links, models, shipmentDetails, type Item } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
 import { issueCertificate } from "@/lib/certificates";
 import { now as clockNow } from "@/lib/clock";
 import { appendEvent } from "@/lib/events/queries";
+import { queueMail } from "@/lib/mail/outbox";
 import { changeState, createItem, fit, itemByIdentity, type Recorder } from "@/lib/genealogy/graph";
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { allocateSerial } from "@/lib/serials/allocator";
@@ -256,6 +257,8 @@ export async function shipCartons(db: Db, input: ShipInput, actor: Actor): Promi
   const [dealer] = input.dealerId ? await db.select().from(dealers).where(eq(dealers.id, input.dealerId)).limit(1) : [];
   if (!dealer) add("dealerId", "Choose the dealer the cartons go to.");
   else if (!dealer.active) add("dealerId", `${dealer.name} is no longer an active dealer.`);
+  // The mail goes in the same transaction: a dealer without a usable address would fail it late.
+  else if (!dealer.email.trim() || /[\r\n]/.test(dealer.email)) add("dealerId", `${dealer.name} has no usable e-mail address; ask an administrator to correct it.`);
 
   const today = isoDay(clockNow());
   const shippedOn = input.shippedOn.trim();
@@ -365,7 +368,7 @@ export async function shipCartons(db: Db, input: ShipInput, actor: Actor): Promi
       tracking,
       lines: lines.map((l) => ({ model: l.model, modelCode: l.modelCode, finish: l.finish, pair: l.pair.identity, carton: l.carton.identity })),
     });
-    const mailId = await queueWithAttachments(tx, {
+    const mailId = await queueMail(tx, {
       to: dealer!.email,
       subject: mail.subject,
       text: mail.text,
@@ -402,23 +405,4 @@ export function shipmentMail(input: {
     "",
   ].join("\n");
   return { subject, text };
-}
-
-type Attachment = { kind: "certificate"; certificateId: string; filename: string };
-
-/**
- * Queues one message with attachments. lib/mail/outbox.ts `queueMail` takes no attachments yet,
- * so this writes the same row with them; it checks what queueMail checks (one-line recipient and
- * subject, a body). Call it inside the transaction of the causing event.
- */
-async function queueWithAttachments(tx: Tx, msg: { to: string; subject: string; text: string; eventId: number; attachments: Attachment[] }): Promise<number> {
-  for (const [what, v] of [["recipient", msg.to], ["subject", msg.subject]] as const) {
-    if (!v.trim() || /[\r\n]/.test(v)) throw new AppError(409, `The e-mail's ${what} is empty or not one line; nothing was shipped.`);
-  }
-  const [row] = await tx
-    .insert(outbox)
-    .values({ to: msg.to.trim(), subject: msg.subject.trim(), text: msg.text, html: null, eventId: msg.eventId, attachments: msg.attachments })
-    .returning({ id: outbox.id });
-  if (!row) throw new Error("mail was not queued");
-  return row.id;
 }
