@@ -24,7 +24,7 @@ import { packingList, sameLabel } from "./packing-list";
 export { cartonLabelPdf, cartonLabelData, renderCartonLabel, CARTON_LABEL_LAYOUT, type CartonLabelData } from "./carton-label";
 export { verifyCertificate, type VerifiedCertificate } from "./verify";
 export { DEFAULT_PACKING_LIST, ensurePackingLists, FIXED_PACKING_ITEMS, packingList } from "./packing-list";
-export { readyToPack, waitingToShip, shippedOn, pairForPacking, knownLocations, type ReadyPair, type WaitingCarton, type ShippedCarton, type PairForPacking } from "./queries";
+export { readyToPack, waitingToShip, shippedOn, pairForPacking, knownLocations, shipmentFacts, type ReadyPair, type WaitingCarton, type ShippedCarton, type PairForPacking, type ShipmentFacts } from "./queries";
 
 export const STATION = "packing";
 
@@ -64,6 +64,16 @@ async function pairIn(db: DbOrTx, cartonId: string): Promise<Item | null> {
     .where(and(eq(links.parentId, cartonId), eq(links.position, "PAIR"), isNull(links.endedAt)))
     .limit(1);
   return row?.pair ?? null;
+}
+
+/** The pair's speakers now: they share the pair's fate, packed and shipped with it. */
+async function speakersOf(db: DbOrTx, pairId: string): Promise<Item[]> {
+  const rows = await db
+    .select({ speaker: items })
+    .from(links)
+    .innerJoin(items, eq(items.id, links.childId))
+    .where(and(eq(links.parentId, pairId), isNull(links.endedAt), eq(items.kind, "speaker")));
+  return rows.map((r) => r.speaker);
 }
 
 /** The shipment a carton sits in now, if any. */
@@ -107,7 +117,8 @@ export interface PackResult {
 /**
  * Packs a pair that passed its final test: checks the ticked list and the location, then in one
  * transaction issues the certificate (if the pair has none yet), registers the carton holding the
- * pair at PAIR, records where it is stored, and marks the pair packed. Bad input writes nothing.
+ * pair at PAIR, records where it is stored, and marks the pair and its two speakers packed (each
+ * with its state-change event). Bad input writes nothing.
  */
 export async function packPair(db: Db, input: { pairIdentity: string; checked: string[]; location: string }, actor: Actor): Promise<PackResult> {
   const pair = await findItem(db, input.pairIdentity);
@@ -153,6 +164,7 @@ export async function packPair(db: Db, input: { pairIdentity: string; checked: s
     await fit(tx, { parent: carton, child: current, position: "PAIR" }, by);
     await storeAt(tx, carton, location, actor, "carton.stored");
     await changeState(tx, current, "packed", by, { carton: identity });
+    for (const speaker of await speakersOf(tx, current.id)) await changeState(tx, speaker, "packed", by, { pair: current.identity, carton: identity });
     await appendEvent(tx, {
       ...by,
       type: "pair.packed",
@@ -245,7 +257,7 @@ interface ShipLine {
 
 /**
  * Ships packed cartons to a dealer: one shipment item (H-<dealer>-…) holding each carton at
- * "1", "2"…, its particulars, cartons and pairs marked shipped, and ONE e-mail to the dealer,
+ * "1", "2"…, its particulars, cartons, pairs and their speakers marked shipped, and ONE e-mail to the dealer,
  * queued in the same transaction, listing every pair with its certificate attached (rendered
  * when the mail is sent). Refuses unknown, unpacked or shipped cartons, a date in the future and
  * an empty carrier or tracking number, writing nothing.
@@ -350,6 +362,7 @@ export async function shipCartons(db: Db, input: ShipInput, actor: Actor): Promi
       await fit(tx, { parent: shipment, child: line.carton, position: String(i + 1) }, by);
       await changeState(tx, line.carton, "shipped", by, { shipment: identity });
       await changeState(tx, line.pair, "shipped", by, { shipment: identity });
+      for (const speaker of await speakersOf(tx, line.pair.id)) await changeState(tx, speaker, "shipped", by, { pair: line.pair.identity, shipment: identity });
       await appendEvent(tx, {
         ...by,
         type: "pair.shipped",

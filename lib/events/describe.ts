@@ -30,22 +30,32 @@ function kindOfSerial(identity: string): string | null {
 }
 
 /**
- * Where a part sits in its holder, in words: "carton K-… (the pair's place)" → "into carton K-…",
- * a speaker's "T" → "into speaker S-… as its tweeter (T)". Position codes never appear bare.
+ * A position in its holder, in words: "tweeter (T)", "left speaker", "left cabinet", "face leaf 2",
+ * "carton 2" (of a shipment); "" where the holder says it all (a pair in its carton).
+ */
+export function positionWords(holderKind: string | null, position: string): string {
+  const cabinetSide = sideOfCabinetPosition(position);
+  if (position === "PAIR" || (holderKind === "carton" && position === "")) return "";
+  if (holderKind === "shipment" && /^\d+$/.test(position)) return `carton ${position}`;
+  if (cabinetSide) return `${sideWord(cabinetSide)} cabinet`;
+  if (isSide(position) && (holderKind === "pair" || holderKind === null)) return `${sideWord(position)} speaker`;
+  if (position === SPEAKER_CABINET_POSITION) return "cabinet";
+  if (position === CROSSOVER_POSITION) return "crossover";
+  if (/^[TMB]-?\d*$/.test(position)) return positionName(position);
+  if (/^F\d+$/.test(position)) return `face leaf ${position.slice(1)}`;
+  return position ? `position ${position}` : "";
+}
+
+/**
+ * Where a part sits, holder included: "carton K-…", "speaker S-…, as its tweeter (T)",
+ * "shipment H-…, as its carton 2". Position codes never appear bare.
  */
 export function placeWords(parent: string, position: string): string {
   const kind = kindOfSerial(parent);
-  const cabinetSide = sideOfCabinetPosition(position);
-  if (kind === "carton") return `carton ${parent}`;
-  if (kind === "shipment") return /^\d+$/.test(position) ? `shipment ${parent}, as its carton ${position}` : `shipment ${parent}`;
-  if (kind === "pair" && cabinetSide) return `pair ${parent}, as its ${sideWord(cabinetSide)} cabinet`;
-  if (kind === "pair" && isSide(position)) return `pair ${parent}, as its ${sideWord(position)} speaker`;
-  if (position === SPEAKER_CABINET_POSITION) return `speaker ${parent}, as its cabinet`;
-  if (position === CROSSOVER_POSITION) return `speaker ${parent}, as its crossover`;
-  if (/^[TMB]-?\d*$/.test(position)) return `speaker ${parent}, as its ${positionName(position)}`;
-  if (/^F\d+$/.test(position)) return `cabinet ${parent}, as face leaf ${position.slice(1)}`;
-  const holder = kind && isItemKind(kind) ? `${KIND_WORD[kind]} ${parent}` : parent;
-  return position ? `${holder}, at position ${position}` : holder;
+  const holder = kind && isItemKind(kind) ? `${kind === "crossover" ? "crossover board" : KIND_WORD[kind]} ${parent}` : parent;
+  const words = positionWords(kind, position);
+  if (!words) return holder;
+  return words.startsWith("position ") ? `${holder}, at ${words}` : `${holder}, as its ${words}`;
 }
 
 /** The Thiele–Small figures an event carries, with their units. */

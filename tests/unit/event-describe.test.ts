@@ -4,7 +4,7 @@
  * (lib/events/describe.ts); the serials are formed by lib/serials and their check characters fit.
  */
 import { describe, expect, test } from "vitest";
-import { describeEvent, placeWords, subjectLabel, subjectWords } from "@/lib/events/describe";
+import { describeEvent, placeWords, positionWords, subjectLabel, subjectWords } from "@/lib/events/describe";
 import { EVENT_TYPES } from "@/lib/vocabulary/event-types";
 
 const PAIR = "P-PW2-26-00042-W";
@@ -31,7 +31,7 @@ describe("describeEvent", () => {
     ["link.fitted", { parent: SPEAKER, child: UNIT, position: "B2", replaces: "D-BS-26-00002-X" }, {}, `fitted it into speaker ${SPEAKER}, as its bass 2 (B2), replacing D-BS-26-00002-X`],
     ["link.fitted", { parent: PAIR, child: CABINET, position: "CAB-L" }, {}, `fitted it into pair ${PAIR}, as its left cabinet`],
     ["link.fitted", { parent: PAIR, child: SPEAKER, position: "R" }, {}, `fitted it into pair ${PAIR}, as its right speaker`],
-    ["link.fitted", { parent: CABINET, child: "F-WAL-26-00012-Z/03", position: "F2" }, {}, `fitted it into cabinet ${CABINET}, as face leaf 2`],
+    ["link.fitted", { parent: CABINET, child: "F-WAL-26-00012-Z/03", position: "F2" }, {}, `fitted it into cabinet ${CABINET}, as its face leaf 2`],
     ["link.removed", { parent: SPEAKER, child: UNIT, position: "T" }, {}, `took it out of speaker ${SPEAKER}, as its tweeter (T)`],
     ["item.state_changed", { identity: SPEAKER, from: "built", to: "shipped", shipment: SHIPMENT }, {}, `changed its state from built to shipped, in shipment ${SHIPMENT}`],
     ["item.state_changed", { identity: PAIR, from: "ready_to_pack", to: "packed", carton: CARTON }, {}, `changed its state from ready to pack to packed, in carton ${CARTON}`],
@@ -67,9 +67,25 @@ describe("placeWords", () => {
     [CARTON, "PAIR", `carton ${CARTON}`],
     [SPEAKER, "XO", `speaker ${SPEAKER}, as its crossover`],
     [SPEAKER, "CAB", `speaker ${SPEAKER}, as its cabinet`],
-    ["X-PW2-26-00003-1", "C4", "X-PW2-26-00003-1, at position C4"],
+    ["X-PW2-26-00003-G", "C4", "crossover board X-PW2-26-00003-G, at position C4"],
+    ["not-a-serial", "", "not-a-serial"],
   ])("%s at %s → %s", (parent, position, words) => {
     expect(placeWords(parent, position)).toBe(words);
+  });
+});
+
+describe("positionWords", () => {
+  test.each([
+    ["speaker", "T", "tweeter (T)"],
+    ["speaker", "B2", "bass 2 (B2)"],
+    ["pair", "CAB-R", "right cabinet"],
+    ["pair", "L", "left speaker"],
+    ["shipment", "3", "carton 3"],
+    ["carton", "PAIR", ""],
+    ["cabinet", "F4", "face leaf 4"],
+    ["crossover", "L1", "position L1"],
+  ])("%s at %s → %j", (kind, position, words) => {
+    expect(positionWords(kind, position)).toBe(words);
   });
 });
 

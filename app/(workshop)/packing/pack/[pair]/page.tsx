@@ -60,7 +60,7 @@ export default async function Page({ params, searchParams }: { params: Promise<{
                 {pair.carton}
               </dd>
               <dt className="text-ink-soft">Stored at</dt>
-              <dd>{pair.location ?? "not recorded"}</dd>
+              <dd>{pair.location ?? <span className="text-ink-soft">place not recorded</span>}</dd>
             </>
           ) : null}
         </dl>
