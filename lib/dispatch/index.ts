@@ -18,7 +18,7 @@ import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { allocateSerial } from "@/lib/serials/allocator";
 import { normaliseScan, parseSerial } from "@/lib/serials/format";
 import { isValidGtin } from "@/lib/serials/gs1";
-import { isCalendarDay, isoDay } from "./dates";
+import { isCalendarDay, isoDay, noonUtc } from "./dates";
 import { packingList, sameLabel } from "./packing-list";
 
 export { cartonLabelPdf, cartonLabelData, renderCartonLabel, CARTON_LABEL_LAYOUT, type CartonLabelData } from "./carton-label";
@@ -243,6 +243,9 @@ export interface ShipResult {
 
 const oneLine = (v: string) => v.trim().replace(/\s+/g, " ");
 
+/** "5 December 2026" for a YYYY-MM-DD day, as a letter writes it. */
+const longDay = (day: string) => (isCalendarDay(day) ? new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "long", year: "numeric", timeZone: "UTC" }).format(noonUtc(day)) : day);
+
 /** Plural for the mail: "1 matched pair", "2 matched pairs". */
 const pairsWord = (n: number) => `${n} matched pair${n === 1 ? "" : "s"}`;
 
@@ -406,7 +409,7 @@ export function shipmentMail(input: {
   const text = [
     `Hello ${input.dealerName},`,
     "",
-    `${pairsWord(n)} left the workshop on ${input.shippedOn} with ${input.carrier}, tracking number ${input.tracking} (shipment ${input.shipment}).`,
+    `${pairsWord(n)} left the workshop on ${longDay(input.shippedOn)} with ${input.carrier}, tracking number ${input.tracking} (shipment ${input.shipment}).`,
     "",
     ...input.lines.map((l, i) => `${i + 1}. ${[l.modelCode, l.model].filter(Boolean).join(" ")}, ${l.finish || "no finish recorded"}: pair ${l.pair} (carton ${l.carton})`),
     "",

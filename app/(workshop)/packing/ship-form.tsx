@@ -70,7 +70,12 @@ export function ShipForm({ cartons, dealers, today }: { cartons: ShipCarton[]; d
                   <span className="flex flex-col">
                     <span className="serial font-bold">{c.carton}</span>
                     <span className="text-sm text-ink-soft">
-                      {[c.model, c.finish, c.pair ? `pair ${c.pair}` : null].filter(Boolean).join(" · ")}
+                      {[c.model, c.finish].filter(Boolean).join(" · ")}
+                      {c.pair ? (
+                        <>
+                          {c.model || c.finish ? " · " : ""}pair <span className="serial">{c.pair}</span>
+                        </>
+                      ) : null}
                     </span>
                   </span>
                 </label>

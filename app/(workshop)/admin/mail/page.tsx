@@ -16,6 +16,20 @@ export const metadata: Metadata = { title: "Mail" };
 
 const TONE = { sent: "leaf", pending: "caution", failed: "danger" } as const;
 
+/** File names whole, one a line (a certificate's name holds a serial, which never breaks). */
+function FileNames({ names, details }: { names: string[]; details?: string[] }) {
+  return (
+    <ul className="text-sm">
+      {names.map((n, i) => (
+        <li key={`${n}-${i}`}>
+          <span className="whitespace-nowrap">{n}</span>
+          {details?.[i] ? <span className="text-ink-soft"> ({details[i]})</span> : null}
+        </li>
+      ))}
+    </ul>
+  );
+}
+
 export default async function MailPage() {
   await requirePage("admin.mail");
   const config = readMailConfig();
@@ -43,7 +57,7 @@ export default async function MailPage() {
               queued: { value: m.createdAt.getTime(), display: <span className="whitespace-nowrap">{formatWhen(m.createdAt)}</span> },
               to: { value: m.to },
               subject: { value: m.subject },
-              files: { value: m.attachments.join(", "), display: m.attachments.length ? <span className="text-sm">{m.attachments.join(", ")}</span> : <span className="text-ink-soft">none</span> },
+              files: { value: m.attachments.join(", "), display: m.attachments.length ? <FileNames names={m.attachments} /> : <span className="text-ink-soft">none</span> },
               status: { value: m.status, display: <Badge tone={TONE[m.status]}>{m.status === "pending" && m.nextAttemptAt ? `retry ${formatWhenExact(m.nextAttemptAt)}` : m.status}</Badge> },
               attempts: { value: m.attempts },
               note: { value: m.lastError ?? "" },
@@ -75,7 +89,7 @@ export default async function MailPage() {
               attachments: {
                 value: m.attachments.length,
                 display: m.attachments.length ? (
-                  <span className="text-sm">{m.attachments.map((a) => `${a.filename} (${attachmentTypeWords(a.contentType)}, ${formatSize(a.size)})`).join("; ")}</span>
+                  <FileNames names={m.attachments.map((a) => a.filename)} details={m.attachments.map((a) => `${attachmentTypeWords(a.contentType)}, ${formatSize(a.size)}`)} />
                 ) : (
                   <span className="text-ink-soft">none</span>
                 ),

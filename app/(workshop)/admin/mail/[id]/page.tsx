@@ -1,6 +1,6 @@
 import type { Metadata } from "next";
 import { notFound } from "next/navigation";
-import { Fragment } from "react";
+import { SerialText } from "@/components/register/serial-text";
 import { BackLink } from "@/components/ui/back-link";
 import { Panel, PageHeader } from "@/components/ui/panel";
 import { requirePage } from "@/lib/auth/guard";
@@ -11,7 +11,7 @@ import { formatSize } from "@/lib/uploads";
 
 export const metadata: Metadata = { title: "Caught message" };
 
-/** Plain text with its web addresses made clickable (the demo's invite and reset links). */
+/** Plain text with its web addresses and serials made clickable (the demo's invite and reset links, a shipment's pairs). */
 function Linkified({ text }: { text: string }) {
   const parts = text.split(/(https?:\/\/[^\s<>"]+)/g);
   return (
@@ -22,7 +22,7 @@ function Linkified({ text }: { text: string }) {
             {p}
           </a>
         ) : (
-          <Fragment key={i}>{p}</Fragment>
+          <SerialText key={i} text={p} />
         ),
       )}
     </pre>
@@ -37,7 +37,7 @@ function Attachments({ id, list }: { id: string; list: MailboxAttachment[] }) {
     <ul className="flex flex-col gap-2" data-testid="mail-attachments">
       {list.map((a) => (
         <li key={a.index} className="flex flex-wrap items-center gap-x-4 gap-y-1 rounded-lg border border-line px-3 py-2" data-testid="mail-attachment">
-          <span className="font-bold break-all">{a.filename}</span>
+          <span className="font-bold whitespace-nowrap">{a.filename}</span>
           <span className="text-sm text-ink-soft">
             {attachmentTypeWords(a.contentType)} · {formatSize(a.size)}
           </span>
