@@ -88,7 +88,14 @@ export interface DescribeContext {
   dealerNames?: Record<string, string>;
 }
 
-type Sentence = (d: Data, ctx: DescribeContext) => string;
+/** The sentence for an event's data; null to say the type's plain phrase instead. */
+type Sentence = (d: Data, ctx: DescribeContext) => string | null;
+
+/** A sentence that needs these fields; without them (data of an older shape) the plain phrase is said. */
+const needs =
+  (keys: string[], say: Sentence): Sentence =>
+  (d, ctx) =>
+    keys.every((k) => d[k] !== undefined && d[k] !== null && d[k] !== "") ? say(d, ctx) : null;
 
 const dealer = (d: Data, ctx: DescribeContext) => {
   const code = str(d, "dealer");
@@ -116,13 +123,14 @@ const SENTENCES: Record<EventType, Sentence> = {
     const kind = str(d, "kind");
     return `registered the ${isItemKind(kind) ? KIND_WORD[kind] : "item"}`;
   },
-  "item.state_changed": (d) => `changed its state from ${stateLabel(str(d, "from"))} to ${stateLabel(str(d, "to"))}${stateContext(d)}`,
-  "link.fitted": (d) => {
+  "item.state_changed": (d) =>
+    str(d, "to") ? `changed its state${str(d, "from") ? ` from ${stateLabel(str(d, "from"))}` : ""} to ${stateLabel(str(d, "to"))}${stateContext(d)}` : "changed its state",
+  "link.fitted": needs(["parent"], (d) => {
     const place = placeWords(str(d, "parent"), str(d, "position"));
     const replaces = str(d, "replaces") ? `, replacing ${str(d, "replaces")}` : "";
     return kindOfSerial(str(d, "parent")) === "carton" ? `packed it into ${place}` : kindOfSerial(str(d, "parent")) === "shipment" ? `loaded it into ${place}` : `fitted it into ${place}${replaces}`;
-  },
-  "link.removed": (d) => `took it out of ${placeWords(str(d, "parent"), str(d, "position"))}${str(d, "replacedBy") ? `, for ${str(d, "replacedBy")}` : ""}`,
+  }),
+  "link.removed": needs(["parent"], (d) => `took it out of ${placeWords(str(d, "parent"), str(d, "position"))}${str(d, "replacedBy") ? `, for ${str(d, "replacedBy")}` : ""}`),
   "label.printed": (d) => (d.reprint ? "reprinted its label" : "printed its label"),
   "ownership.registered": () => "registered the owner",
   "event.corrected": (d) => (str(d, "field") ? `corrected an earlier record: the ${str(d, "field")} now reads "${str(d, "to")}"` : "corrected an earlier record"),
@@ -132,22 +140,22 @@ const SENTENCES: Record<EventType, Sentence> = {
     const size = num(to, "lengthMm") !== null && num(to, "widthMm") !== null ? `: ${num(to, "lengthMm")} × ${num(to, "widthMm")} mm` : "";
     return `recorded leaf ${num(d, "seq") ?? ""}${size}${to.usable === false ? ", not usable" : ""}`;
   },
-  "leaf.defect_noted": (d) => `noted a defect on the leaf: ${str(d, "kind")}${str(d, "note") ? ` (${str(d, "note")})` : ""}`,
-  "leaf.defect_cleared": (d) => `cleared a defect on the leaf: ${str(d, "kind")}`,
-  "veneer.run_confirmed": (d) => {
+  "leaf.defect_noted": needs(["kind"], (d) => `noted a defect on the leaf: ${str(d, "kind")}${str(d, "note") ? ` (${str(d, "note")})` : ""}`),
+  "leaf.defect_cleared": needs(["kind"], (d) => `cleared a defect on the leaf: ${str(d, "kind")}`),
+  "veneer.run_confirmed": needs(["pair"], (d) => {
     const nums = (k: string) => list(d, k).map(String).join(", ");
     const reserve = list(d, "reserve").length ? `; reserve leaf ${nums("reserve")}` : "";
     return `confirmed a bookmatched run for pair ${str(d, "pair")}: leaves ${nums("left")} on the left, ${nums("right")} turned over on the right${reserve}`;
-  },
-  "veneer.reserve_released": (d) => `re-veneered cabinet ${str(d, "cabinet")} at face leaf ${str(d, "position").replace(/^F/, "")} with ${str(d, "leaf")}, replacing ${str(d, "replaces")}`,
-  "veneer.reserve_returned": (d) => `returned reserve leaf ${str(d, "leaf")} from pair ${str(d, "pair")}`,
-  "cabinet.batch_started": (d) => `made ${plural(num(d, "count") ?? 0, "lacquer cabinet")} of ${str(d, "model")}${str(d, "finish") ? ` in ${str(d, "finish")}` : ""}`,
+  }),
+  "veneer.reserve_released": needs(["cabinet", "leaf", "position"], (d) => `re-veneered cabinet ${str(d, "cabinet")} at face leaf ${str(d, "position").replace(/^F/, "")} with ${str(d, "leaf")}, replacing ${str(d, "replaces")}`),
+  "veneer.reserve_returned": needs(["leaf", "pair"], (d) => `returned reserve leaf ${str(d, "leaf")} from pair ${str(d, "pair")}`),
+  "cabinet.batch_started": needs(["model"], (d) => `made ${plural(num(d, "count") ?? 0, "lacquer cabinet")} of ${str(d, "model")}${str(d, "finish") ? ` in ${str(d, "finish")}` : ""}`),
   "upload.stored": (d) => `added ${str(d, "mime").startsWith("image/") ? "a photo" : "a file"}${str(d, "name") ? `, ${str(d, "name")}` : ""}`,
-  "batch.received": (d) => {
+  "batch.received": needs(["code"], (d) => {
     const count = num(d, "count");
     const word = partWord(str(d, "partType"));
     return `received batch ${str(d, "code")}${count !== null ? `: ${plural(count, word)}` : ""}${str(d, "partNumber") ? `, part ${str(d, "partNumber")}` : ""}`;
-  },
+  }),
   "unit.response_measured": (d) => {
     const from = num(d, "fromHz");
     const to = num(d, "toHz");
@@ -155,30 +163,30 @@ const SENTENCES: Record<EventType, Sentence> = {
     return `measured a response${points !== null ? ` of ${plural(points, "point")}` : ""}${from !== null && to !== null ? ` from ${formatHz(from)} to ${formatHz(to)}` : ""}`;
   },
   "unit.ts_measured": (d) => `measured Thiele–Small parameters${tsFigures(d) ? `: ${tsFigures(d)}` : ""}`,
-  "set.matched": (d) => {
+  "set.matched": needs(["left", "right"], (d) => {
     const max = num(d, "maxDiffDb");
     const limit = num(d, "limitDb");
     const figure = max !== null ? `: ${formatDb(max)} dB apart at most${limit !== null ? `, limit ${formatDb(limit)} dB` : ""}` : "";
     return `matched ${str(d, "left")} with ${str(d, "right")}${figure}`;
-  },
-  "set.member_fitted": (d) => `fitted ${str(d, "unit")} into ${placeWords(str(d, "speaker"), str(d, "position"))}`,
+  }),
+  "set.member_fitted": needs(["unit", "speaker"], (d) => `fitted ${str(d, "unit")} into ${placeWords(str(d, "speaker"), str(d, "position"))}`),
   "route.started": (d) => `started the cabinet route${num(d, "specVersion") !== null ? ` (route version ${num(d, "specVersion")})` : ""}`,
-  "route.step_recorded": (d) => {
+  "route.step_recorded": needs(["step"], (d) => {
     const side = str(d, "side");
     const out = list(d, "outOfWindow").length;
     return `recorded step ${num(d, "seq") ?? ""}, ${str(d, "step").toLowerCase()}${isSide(side) ? `, for the ${sideWord(side)} cabinet` : ""}${out ? ` (${plural(out, "reading")} out of window)` : ""}`;
-  },
-  "nc.opened": (d) => `opened nonconformance ${str(d, "code")}: ${str(d, "finding")}`,
-  "nc.dispositioned": (d) => `decided nonconformance ${str(d, "code")}: ${str(d, "disposition").replace(/_/g, " ")}${str(d, "scrapped") ? `, scrapping ${str(d, "scrapped")}` : ""}`,
-  "spec.created": (d) => `saved version ${num(d, "version") ?? ""} of the ${str(d, "model")} route${num(d, "steps") !== null ? ` (${plural(num(d, "steps")!, "step")})` : ""}`,
+  }),
+  "nc.opened": needs(["code"], (d) => `opened nonconformance ${str(d, "code")}: ${str(d, "finding")}`),
+  "nc.dispositioned": needs(["code", "disposition"], (d) => `decided nonconformance ${str(d, "code")}: ${str(d, "disposition").replace(/_/g, " ")}${str(d, "scrapped") ? `, scrapping ${str(d, "scrapped")}` : ""}`),
+  "spec.created": needs(["model"], (d) => `saved version ${num(d, "version") ?? ""} of the ${str(d, "model")} route${num(d, "steps") !== null ? ` (${plural(num(d, "steps")!, "step")})` : ""}`),
   "crossover.built": (d) => {
     const reasons = list(d, "reasons").map(String);
     if (d.pass === false) return `built the crossover board: it failed its checks${reasons.length ? ` (${reasons.join("; ")})` : ""}`;
     return d.pass === true ? "built the crossover board: it passed its checks" : "built the crossover board";
   },
-  "pair.assembled": (d) => `built the pair's speakers: ${str(d, "left")} on the left, ${str(d, "right")} on the right`,
+  "pair.assembled": needs(["left", "right"], (d) => `built the pair's speakers: ${str(d, "left")} on the left, ${str(d, "right")} on the right`),
   "pair.inspected": () => "did the final clean and inspection",
-  "pair.lacquer_paired": (d) => `paired lacquer cabinets ${str(d, "left")} and ${str(d, "right")}${str(d, "colour") ? ` (${str(d, "colour")})` : ""}`,
+  "pair.lacquer_paired": needs(["left", "right"], (d) => `paired lacquer cabinets ${str(d, "left")} and ${str(d, "right")}${str(d, "colour") ? ` (${str(d, "colour")})` : ""}`),
   "pair.final_tested": (d) => {
     const max = num(d, "maxDiffDb");
     const limit = num(d, "limitDb");
@@ -190,12 +198,12 @@ const SENTENCES: Record<EventType, Sentence> = {
   "certificate.issued": () => "issued the pair's certificate",
   "certificate.printed": (d) => (d.copy ? "printed a copy of the certificate" : "printed the certificate"),
   "carton.stored": (d) => `stored the carton${str(d, "location") ? ` at ${str(d, "location")}` : ""}`,
-  "carton.moved": (d) => `moved the carton${str(d, "from") ? ` from ${str(d, "from")}` : ""} to ${str(d, "location")}`,
-  "shipment.dispatched": (d, ctx) => {
+  "carton.moved": needs(["location"], (d) => `moved the carton${str(d, "from") ? ` from ${str(d, "from")}` : ""} to ${str(d, "location")}`),
+  "shipment.dispatched": needs(["identity"], (d, ctx) => {
     const cartons = list(d, "cartons").length;
     const how = [str(d, "carrier") ? `with ${str(d, "carrier")}` : "", str(d, "tracking") ? `tracking ${str(d, "tracking")}` : ""].filter(Boolean).join(", ");
     return `dispatched shipment ${str(d, "identity")} to ${dealer(d, ctx)}${cartons ? `: ${plural(cartons, "carton")}` : ""}${how ? `, ${how}` : ""}${str(d, "shippedOn") ? `, left on ${day(str(d, "shippedOn"))}` : ""}`;
-  },
+  }),
   "machine_token.created": (d) => `created the machine token${str(d, "name") ? ` ${str(d, "name")}` : ""}`,
   "machine_token.revoked": (d) => `revoked the machine token${str(d, "name") ? ` ${str(d, "name")}` : ""}`,
 };
@@ -204,7 +212,7 @@ const SENTENCES: Record<EventType, Sentence> = {
 export function describeEvent(type: string, data: Data = {}, ctx: DescribeContext = {}): string {
   if (!isEventType(type)) return `recorded ${type.replace(/[._]/g, " ")}`;
   try {
-    return SENTENCES[type](data ?? {}, ctx);
+    return SENTENCES[type](data ?? {}, ctx) ?? EVENT_PHRASES[type];
   } catch {
     // Data written by an older version in another shape: the plain phrase is still true.
     return EVENT_PHRASES[type];

@@ -55,6 +55,7 @@ describe("describeEvent", () => {
     expect(sentence).toMatch(/^[a-z]/);
     expect(sentence).not.toContain(type);
     expect(sentence).not.toMatch(/_|\bundefined\b|\bnull\b|\bNaN\b|\[object/);
+    expect(sentence).not.toMatch(/ {2}| ,|from to\b/);
   });
 
   test("a type recorded before the vocabulary existed still reads as words", () => {
