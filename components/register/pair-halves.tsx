@@ -1,3 +1,4 @@
+import { positionWords } from "@/lib/events/describe";
 import type { TraceTree } from "@/lib/genealogy/trace";
 import { SerialLink } from "./serial-link";
 
@@ -7,7 +8,7 @@ function Parts({ node }: { node: TraceTree }) {
     <ul className="ml-4 border-l border-line pl-3">
       {node.children.map((c) => (
         <li key={`${c.id}-${c.linkId}`} className="py-0.5">
-          <span className="inline-block min-w-10 text-sm font-bold text-ink-soft">{c.position}</span>{" "}
+          <span className="inline-block min-w-10 text-sm font-bold text-ink-soft">{positionWords(node.kind, c.position ?? "")}</span>{" "}
           <SerialLink identity={c.identity} bold={false} className="text-sm" />
           <Parts node={c} />
         </li>

@@ -2,6 +2,7 @@
 import { useRouter } from "next/navigation";
 import { useMemo } from "react";
 import Tree, { type CustomNodeElementProps, type RawNodeDatum } from "react-d3-tree";
+import { positionWords } from "@/lib/events/describe";
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { itemHref } from "@/lib/paths";
 import type { TraceTree } from "@/lib/genealogy/trace";
@@ -11,11 +12,11 @@ const KIND_COLOUR: Record<string, string> = {
   drive_unit: "#2b5785", crossover: "#5a4e8a", component_lot: "#7d5200", carton: "#4f585c", shipment: "#1d2326",
 };
 
-function toDatum(n: TraceTree): RawNodeDatum {
+function toDatum(n: TraceTree, holderKind: string | null = null): RawNodeDatum {
   return {
     name: n.identity,
-    attributes: { kind: stateLabel(n.kind), position: n.position ?? "", ended: n.endedAt ? "removed" : "" },
-    children: n.children.map(toDatum),
+    attributes: { kind: stateLabel(n.kind), position: n.position ? positionWords(holderKind, n.position) : "", ended: n.endedAt ? "removed" : "" },
+    children: n.children.map((c) => toDatum(c, n.kind)),
   };
 }
 

@@ -1,8 +1,21 @@
+import { Fragment } from "react";
+import { SerialLink } from "@/components/register/serial-link";
+import { SerialText } from "@/components/register/serial-text";
 import { DataTable } from "@/components/ui/data-table";
-import { describeEvent, subjectLabel } from "@/lib/events/describe";
+import { describeEvent, subjectLabel, subjectWords } from "@/lib/events/describe";
 import type { EventRow } from "@/lib/events/queries";
 import { formatWhen } from "@/lib/format";
+import { stationName } from "@/lib/vocabulary/stations";
 
+function About({ e }: { e: EventRow }) {
+  const w = subjectWords(e);
+  return (
+    <span className="text-sm">
+      {w.kind}{" "}
+      {w.serial ? <SerialLink identity={w.serial} bold={false} /> : w.name ? <Fragment>{w.name}</Fragment> : <span className="text-ink-soft">(no longer in the register)</span>}
+    </span>
+  );
+}
 
 /** The event log as a sortable table: when, who, where, what and why. */
 export function EventTable({ events, caption, empty = "No events recorded here yet." }: { events: EventRow[]; caption: string; empty?: string }) {
@@ -20,17 +33,20 @@ export function EventTable({ events, caption, empty = "No events recorded here y
         { key: "about", label: "About" },
         { key: "why", label: "Why" },
       ]}
-      rows={events.map((e) => ({
-        id: String(e.id),
-        cells: {
-          at: { value: e.at.getTime(), display: <time className="whitespace-nowrap" dateTime={e.at.toISOString()}>{formatWhen(e.at)}</time> },
-          who: { value: e.actorName ?? (typeof e.data.machineTokenName === "string" ? `${e.data.machineTokenName} (machine token)` : "Twinleaf") },
-          station: { value: e.station },
-          what: { value: describeEvent(e.type, e.data), display: <span title={e.type}>{describeEvent(e.type, e.data)}{e.correctsId ? ` (corrects #${e.correctsId})` : ""}</span> },
-          about: { value: subjectLabel(e), display: <span className="text-sm" title={e.subjectId}>{subjectLabel(e)}</span> },
-          why: { value: e.reason ?? "" },
-        },
-      }))}
+      rows={events.map((e) => {
+        const what = `${describeEvent(e.type, e.data, { dealerNames: e.dealerNames })}${e.correctsId ? ` (corrects record ${e.correctsId})` : ""}`;
+        return {
+          id: String(e.id),
+          cells: {
+            at: { value: e.at.getTime(), display: <time className="whitespace-nowrap" dateTime={e.at.toISOString()}>{formatWhen(e.at)}</time> },
+            who: { value: e.actorName ?? (typeof e.data.machineTokenName === "string" ? `${e.data.machineTokenName} (machine token)` : "Twinleaf") },
+            station: { value: stationName(e.station) },
+            what: { value: what, display: <SerialText text={what} /> },
+            about: { value: subjectLabel(e), display: <About e={e} /> },
+            why: { value: e.reason ?? "" },
+          },
+        };
+      })}
     />
   );
 }

@@ -1,7 +1,7 @@
 import "server-only";
 import { SIDES, type Side } from "@/lib/vocabulary/sides";
 import type { Station } from "@/lib/vocabulary/stations";
-import { and, desc, eq, inArray, isNull } from "drizzle-orm";
+import { and, desc, eq, inArray, isNotNull, isNull } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db";
 import {
   certificates,
@@ -24,8 +24,12 @@ import { AppError, isConstraintError } from "@/lib/auth/errors";
 import { appendEvent } from "@/lib/events/queries";
 import { newId } from "@/lib/auth/tokens";
 import { now as clockNow } from "@/lib/clock";
+import { shippedAt } from "@/lib/genealogy/trace";
 import { parseSerial } from "@/lib/serials/format";
 import { certificateCode, verifyUrl } from "./code";
+import { formatDb, formatHz } from "./figures";
+
+export { formatDb, formatHz };
 
 
 /** The pair states the demo history leaves a pair in after it shipped with a certificate. */
@@ -94,11 +98,24 @@ export interface FinalTestFigure {
 
 export type SignatureStep = "tested" | "inspected" | "packed";
 
+/** A part fitted into one of the speakers after the pair was built: a repair. */
+export interface Replacement {
+  side: Side;
+  /** Model position code, "T", "B2", or "XO". */
+  position: string;
+  part: string;
+  /** The serial fitted. */
+  fitted: string;
+  /** The serial it took the place of, when one was taken out there. */
+  replaced: string | null;
+  at: Date;
+}
+
 export interface Signature {
   step: SignatureStep;
   /** "Tested by" */
   label: string;
-  /** Null: "not recorded". */
+  /** Null: recorded without a name (history before people signed in). */
   name: string | null;
   at: Date | null;
   /** What the signature vouches for. */
@@ -123,20 +140,19 @@ export interface CertificateData {
   veneer: VeneerOrigin | null;
   positions: PositionRow[];
   finalTest: FinalTestFigure | null;
+  /** Only the steps done by the time of printing: a pair not yet packed has no packing line. */
   signatures: Signature[];
+  /** When it was packed and into which carton; null while it waits to be packed. */
+  packed: { at: Date; carton: string | null } | null;
+  /** When it first left in a shipment; null while it is still in the workshop. */
+  shipped: { at: Date } | null;
+  /** When the original (the first print that was not a copy) was printed; null if never. */
+  originalPrintedAt: Date | null;
+  /** Parts fitted after the pair was built, oldest first: the certificate shows the pair as it is now. */
+  replacements: Replacement[];
 }
 
 const PART_ORDER: Record<string, number> = { tweeter: 0, midrange: 1, bass: 2, crossover: 3 };
-
-/** "1", "0.5", "0.75": a limit as the workshop writes it. */
-export function formatDb(db: number, digits = 2): string {
-  return String(Number(db.toFixed(digits)));
-}
-
-/** "200 Hz", "10 kHz", "12.5 kHz". */
-export function formatHz(hz: number): string {
-  return hz >= 1000 ? `${Number((hz / 1000).toPrecision(4))} kHz` : `${Number(hz.toPrecision(4))} Hz`;
-}
 
 /** A pair by its serial (checked and canonicalised when it parses), or null. */
 export async function pairByIdentity(db: DbOrTx, identity: string) {
@@ -262,10 +278,43 @@ async function openChildren(db: DbOrTx, parentIds: string[]): Promise<Child[]> {
     .where(and(inArray(links.parentId, parentIds), isNull(links.endedAt)));
 }
 
+/**
+ * Parts fitted into the speakers after the pair was built (a repair), each with the serial it took
+ * the place of: the link at the same speaker and position that ended last before it began.
+ */
+async function replacementsAfter(db: DbOrTx, speakers: Record<Side, Child>, builtAt: Date, current: Child[]): Promise<Replacement[]> {
+  const late = current.filter((c) => (c.kind === "drive_unit" || c.kind === "crossover") && c.startedAt.getTime() > builtAt.getTime());
+  if (late.length === 0) return [];
+  const ended = await db
+    .select({ parentId: links.parentId, position: links.position, endedAt: links.endedAt, identity: items.identity })
+    .from(links)
+    .innerJoin(items, eq(items.id, links.childId))
+    .where(and(inArray(links.parentId, [speakers.L.id, speakers.R.id]), isNotNull(links.endedAt)));
+  return late
+    .map((c) => {
+      const side: Side = c.parentId === speakers.L.id ? "L" : "R";
+      const before = ended
+        .filter((e) => e.parentId === c.parentId && e.position === c.position && e.endedAt!.getTime() <= c.startedAt.getTime())
+        .sort((a, b) => b.endedAt!.getTime() - a.endedAt!.getTime())[0];
+      return { side, position: c.position, part: c.kind === "crossover" ? "crossover" : (c.partType ?? "drive unit"), fitted: c.identity, replaced: before?.identity ?? null, at: c.startedAt };
+    })
+    .sort((a, b) => a.at.getTime() - b.at.getTime() || a.side.localeCompare(b.side));
+}
+
+/** When the original was printed: the first "certificate.printed" of this certificate that was not a copy. */
+async function originalPrint(db: DbOrTx, pairId: string, certificateId: string): Promise<Date | null> {
+  const rows = await db
+    .select({ at: events.at, data: events.data })
+    .from(events)
+    .where(and(eq(events.type, "certificate.printed"), eq(events.subjectKind, "item"), eq(events.subjectId, pairId)))
+    .orderBy(events.id);
+  return rows.find((r) => r.data.certificateId === certificateId && r.data.copy !== true)?.at ?? null;
+}
+
 /** The newest event of each key step on the pair, with who recorded it. */
 async function keySteps(db: DbOrTx, pairId: string) {
   const rows = await db
-    .select({ id: events.id, type: events.type, at: events.at, name: users.name })
+    .select({ id: events.id, type: events.type, at: events.at, name: users.name, data: events.data })
     .from(events)
     .leftJoin(users, eq(users.id, events.actorId))
     .where(and(eq(events.subjectKind, "item"), eq(events.subjectId, pairId), inArray(events.type, ["pair.final_tested", "pair.inspected", "pair.packed"])))
@@ -334,8 +383,10 @@ function pointsOf(raw: unknown): [number, number][] {
 
 /**
  * Everything a pair's certificate prints: both speakers, the veneer origin, the parts at each
- * position with their match, the final test with both responses, and who tested, inspected and
- * packed it. The certificate must have been issued (`issueCertificate`); `copy` marks a reprint.
+ * position with their match, the final test with both responses, who tested, inspected and packed
+ * it, and where the pair stands as it is printed (packed, shipped, repaired), so that every printed
+ * line is true at that moment. The certificate must have been issued (`issueCertificate`); `copy`
+ * marks a reprint.
  */
 export async function certificateData(db: DbOrTx, pairId: string, opts: { baseUrl: string; copy: boolean }): Promise<CertificateData> {
   const pair = await pairById(db, pairId);
@@ -415,15 +466,23 @@ export async function certificateData(db: DbOrTx, pairId: string, opts: { baseUr
 
   const steps = await keySteps(db, pair.id);
   const limit = formatDb(finalTest?.limitDb ?? model.pairResponseLimitDb);
-  const sign = (step: SignatureStep, type: string, label: string, meaning: string): Signature => {
+  // A line only for a step the register holds: printed before packing, there is no packing line.
+  const sign = (step: SignatureStep, type: string, label: string, meaning: string): Signature[] => {
     const e = steps.get(type);
-    return { step, label, name: e?.name ?? null, at: e?.at ?? null, meaning };
+    return e ? [{ step, label, name: e.name ?? null, at: e.at, meaning }] : [];
   };
   const signatures: Signature[] = [
-    sign("tested", "pair.final_tested", "Tested by", `measured both speakers and found them within ±${limit} dB of each other from ${formatHz(model.responseMinHz)} to ${formatHz(model.responseMaxHz)}`),
-    sign("inspected", "pair.inspected", "Inspected by", "checked the finish and the build after the final clean"),
-    sign("packed", "pair.packed", "Packed by", "packed the pair with the items on the model's packing list"),
+    ...sign("tested", "pair.final_tested", "Tested by", `measured both speakers and found them within ±${limit} dB of each other from ${formatHz(model.responseMinHz)} to ${formatHz(model.responseMaxHz)}`),
+    ...sign("inspected", "pair.inspected", "Inspected by", "checked the finish and the build after the final clean"),
+    ...sign("packed", "pair.packed", "Packed by", "packed the pair with the items on the model's packing list"),
   ];
+  const packedEvent = steps.get("pair.packed");
+  const packed = packedEvent ? { at: packedEvent.at, carton: typeof packedEvent.data.carton === "string" ? packedEvent.data.carton : null } : null;
+  const [shippedOn, originalPrintedAt, replacements] = await Promise.all([
+    shippedAt(db, pair.id),
+    originalPrint(db, pair.id, certificate.id),
+    replacementsAfter(db, { L: speakers.L, R: speakers.R }, builtAt, parts),
+  ]);
 
   return {
     certificateId: certificate.id,
@@ -440,5 +499,9 @@ export async function certificateData(db: DbOrTx, pairId: string, opts: { baseUr
     positions,
     finalTest,
     signatures,
+    packed,
+    shipped: shippedOn ? { at: shippedOn } : null,
+    originalPrintedAt,
+    replacements,
   };
 }

@@ -12,11 +12,12 @@ export {
   type FinalTestFigure,
   type MatchFigure,
   type PositionRow,
+  type Replacement,
   type Signature,
   type SignatureStep,
   type VeneerFace,
   type VeneerLeafOnFace,
   type VeneerOrigin,
 } from "./data";
-export { renderCertificate } from "./render";
+export { copyNote, renderCertificate } from "./render";
 export { CERTIFICATE_CODE_LENGTH, CERTIFICATE_CODE_PATTERN, certificateCode, verifyUrl } from "./code";

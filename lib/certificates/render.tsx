@@ -3,8 +3,8 @@ import type { ReactNode } from "react";
 import { renderBarcode } from "@/lib/labels/barcodes";
 import { CERT_MONO_FONT as MONO_FONT, CERT_TEXT_FONT as TEXT_FONT, registerCertificateFonts } from "./fonts";
 import type { Side } from "@/lib/vocabulary/sides";
-import type { CertificateData, FinalTestFigure, PositionRow, VeneerOrigin } from "./data";
-import { formatDb, formatHz } from "./data";
+import type { CertificateData, FinalTestFigure, PositionRow, Replacement, VeneerOrigin } from "./data";
+import { formatDb, formatHz } from "./figures";
 import { formatLongDate, formatMonthYear } from "@/lib/format";
 
 // Twinleaf's palette (app/globals.css).
@@ -52,8 +52,8 @@ export async function renderCertificate(data: CertificateData): Promise<Buffer> 
         <Header data={data} />
         <Serials data={data} />
         {data.veneer ? <Veneer veneer={data.veneer} finishCode={data.finish?.code ?? ""} /> : <Lacquer data={data} />}
-        <Parts rows={data.positions} />
-        <Responses test={data.finalTest} speakers={data.speakers} />
+        <Parts rows={data.positions} replacements={data.replacements} />
+        <Responses test={data.finalTest} speakers={data.speakers} repairedAt={lastRepair(data)} height={chartHeight(data)} />
         <Footer data={data} qr={qr} />
       </Page>
     </Document>
@@ -77,6 +77,24 @@ function finishLine(data: CertificateData): string {
   return `${f.name} ${kind}${f.detail ? ` (${f.detail})` : ""}`;
 }
 
+/** The latest repair, if any: the certificate then shows the pair as it is after it. */
+const lastRepair = (data: Pick<CertificateData, "replacements">): Date | null => data.replacements.at(-1)?.at ?? null;
+
+/**
+ * What a copy says of the original, from where the pair stands as it is printed: only what is
+ * true then (nothing about a carton before packing, nothing about shipping before it ships).
+ */
+export function copyNote(data: Pick<CertificateData, "issuedAt" | "originalPrintedAt" | "packed" | "shipped" | "replacements">): string {
+  const lines = [`Reprint of the certificate issued on ${longDate(data.issuedAt)}.`];
+  const original = data.originalPrintedAt;
+  if (original && data.shipped && original.getTime() <= data.shipped.at.getTime()) lines.push("The original shipped with the pair.");
+  else if (original && data.packed && !data.shipped) lines.push(data.packed.carton ? `The original went into carton ${data.packed.carton} with the pair.` : "The original went into the carton with the pair.");
+  else if (original) lines.push(`The original was printed on ${longDate(original)}.`);
+  const repaired = lastRepair(data);
+  if (repaired) lines.push(`This copy shows the pair as it is after the repair of ${longDate(repaired)}.`);
+  return lines.join(" ");
+}
+
 function Header({ data }: { data: CertificateData }) {
   return (
     <View>
@@ -96,7 +114,7 @@ function Header({ data }: { data: CertificateData }) {
       </View>
       {data.copy && (
         <Text style={{ fontSize: 9, color: WALNUT, fontWeight: 700, marginTop: 4 }}>
-          Reprint of the certificate issued on {longDate(data.issuedAt)}. The original shipped with the pair.
+          {copyNote(data)}
         </Text>
       )}
       <View style={{ borderBottomWidth: 1.2, borderBottomColor: LEAF, marginTop: 7 }} />
@@ -258,12 +276,20 @@ function Lacquer({ data }: { data: CertificateData }) {
 
 // ---- parts ------------------------------------------------------------------------------------
 
-function matchText(row: PositionRow): string {
+function matchText(row: PositionRow, replacements: Replacement[]): string {
+  const replaced = replacements.filter((r) => r.position === row.position && (r.fitted === row.left || r.fitted === row.right));
+  if (replaced.length) return `${replaced.map((r) => (r.side === "L" ? "Left" : "Right")).join(" and ")} replaced on ${longDate(replaced.at(-1)!.at)}`;
   if (!row.match) return "—";
   return `${formatDb(row.match.maxDiffDb)} dB at most, limit ${formatDb(row.match.limitDb)} dB`;
 }
 
-function Parts({ rows }: { rows: PositionRow[] }) {
+/** "The right speaker's tweeter (T): D-… in place of D-…, on 3 May 2027." */
+function replacementLine(r: Replacement): string {
+  const what = `The ${r.side === "L" ? "left" : "right"} speaker's ${PART_NAMES[r.part] ?? r.part} (${r.position})`;
+  return `${what}: ${r.fitted}${r.replaced ? ` in place of ${r.replaced}` : " fitted"}, on ${longDate(r.at)}.`;
+}
+
+function Parts({ rows, replacements }: { rows: PositionRow[]; replacements: Replacement[] }) {
   const cols = [92, 118, 118, CONTENT_W - 92 - 236];
   const cell = (w: number, last = false) => ({ width: w, paddingVertical: 2.6, paddingRight: last ? 0 : 6 });
   return (
@@ -283,9 +309,19 @@ function Parts({ rows }: { rows: PositionRow[] }) {
           </Text>
           <Mono style={cell(cols[1]!)}>{r.left ?? "—"}</Mono>
           <Mono style={cell(cols[2]!)}>{r.right ?? "—"}</Mono>
-          <Text style={cell(cols[3]!, true)}>{matchText(r)}</Text>
+          <Text style={cell(cols[3]!, true)}>{matchText(r, replacements)}</Text>
         </View>
       ))}
+      {replacements.length ? (
+        <View style={{ marginTop: 3 }}>
+          <Text style={{ fontSize: 7.5, color: SOFT }}>Replaced after the pair was built:</Text>
+          {replacements.map((r) => (
+            <Text key={`${r.side}${r.position}${r.fitted}`} style={{ fontSize: 7.5 }}>
+              {replacementLine(r)}
+            </Text>
+          ))}
+        </View>
+      ) : null}
     </View>
   );
 }
@@ -316,7 +352,16 @@ function levelAt(points: [number, number][], hz: number): number | null {
   return d0 + t * (d1 - d0);
 }
 
-function Responses({ test, speakers }: { test: FinalTestFigure | null; speakers: CertificateData["speakers"] }) {
+/**
+ * The response chart gives up height for the lines a repair adds (the copy note, one line per
+ * replaced part and its heading, the note under the test), so the certificate stays one page.
+ */
+function chartHeight(data: CertificateData): number {
+  const n = data.replacements.length;
+  return n ? Math.max(100, 165 - (10 * (n + 1) + 10 + 12)) : 165;
+}
+
+function Responses({ test, speakers, repairedAt, height }: { test: FinalTestFigure | null; speakers: CertificateData["speakers"]; repairedAt: Date | null; height: number }) {
   if (!test) {
     return (
       <View>
@@ -326,7 +371,7 @@ function Responses({ test, speakers }: { test: FinalTestFigure | null; speakers:
     );
   }
   const W = CONTENT_W;
-  const H = 165;
+  const H = height;
   const x0 = 30;
   const x1 = W - 8;
   const y0 = 6;
@@ -412,6 +457,7 @@ function Responses({ test, speakers }: { test: FinalTestFigure | null; speakers:
       <Text style={{ marginTop: 4, fontSize: 9.5, fontWeight: 700, color: test.pass ? LEAF : WALNUT }}>{result}</Text>
       <Text style={{ color: SOFT, fontSize: 7.5, marginTop: 1 }}>
         Measured on {longDate(test.at)}; compared band by band in one-third octaves (IEC 61260-1) over {formatHz(test.minHz)} to {formatHz(test.maxHz)}.
+        {repairedAt && repairedAt.getTime() > test.at.getTime() ? ` This test was made before the repair of ${longDate(repairedAt)}.` : ""}
       </Text>
     </View>
   );
@@ -448,7 +494,7 @@ function Footer({ data, qr }: { data: CertificateData; qr: Buffer }) {
                   {s.at ? `, ${longDate(s.at)}` : ""}
                 </Text>
               ) : (
-                <Text style={{ color: SOFT }}>not recorded</Text>
+                <Text style={{ color: SOFT }}>{s.at ? `name not recorded, ${longDate(s.at)}` : "name not recorded"}</Text>
               )}
             </Text>
             <Text style={{ color: SOFT, fontSize: 7.5, marginTop: 1 }}>{`${s.meaning.charAt(0).toUpperCase()}${s.meaning.slice(1)}.`}</Text>

@@ -7,23 +7,24 @@ import "server-only";
 import type { Actor } from "@/lib/vocabulary/actor";
 import { and, eq, isNull, sql } from "drizzle-orm";
 import type { Db, DbOrTx, Tx } from "@/db";
-import { cartonLocations, certificates, dealers, finishes, items, links, models, outbox, shipmentDetails, type Item } from "@/db/schema";
+import { cartonLocations, certificates, dealers, finishes, items, links, models, shipmentDetails, type Item } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
 import { issueCertificate } from "@/lib/certificates";
 import { now as clockNow } from "@/lib/clock";
 import { appendEvent } from "@/lib/events/queries";
+import { queueMail } from "@/lib/mail/outbox";
 import { changeState, createItem, fit, itemByIdentity, type Recorder } from "@/lib/genealogy/graph";
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { allocateSerial } from "@/lib/serials/allocator";
 import { normaliseScan, parseSerial } from "@/lib/serials/format";
 import { isValidGtin } from "@/lib/serials/gs1";
-import { isCalendarDay, isoDay } from "./dates";
+import { isCalendarDay, isoDay, noonUtc } from "./dates";
 import { packingList, sameLabel } from "./packing-list";
 
 export { cartonLabelPdf, cartonLabelData, renderCartonLabel, CARTON_LABEL_LAYOUT, type CartonLabelData } from "./carton-label";
 export { verifyCertificate, type VerifiedCertificate } from "./verify";
 export { DEFAULT_PACKING_LIST, ensurePackingLists, FIXED_PACKING_ITEMS, packingList } from "./packing-list";
-export { readyToPack, waitingToShip, shippedOn, pairForPacking, knownLocations, type ReadyPair, type WaitingCarton, type ShippedCarton, type PairForPacking } from "./queries";
+export { readyToPack, waitingToShip, shippedOn, pairForPacking, knownLocations, shipmentFacts, type ReadyPair, type WaitingCarton, type ShippedCarton, type PairForPacking, type ShipmentFacts } from "./queries";
 
 export const STATION = "packing";
 
@@ -63,6 +64,16 @@ async function pairIn(db: DbOrTx, cartonId: string): Promise<Item | null> {
     .where(and(eq(links.parentId, cartonId), eq(links.position, "PAIR"), isNull(links.endedAt)))
     .limit(1);
   return row?.pair ?? null;
+}
+
+/** The pair's speakers now: they share the pair's fate, packed and shipped with it. */
+async function speakersOf(db: DbOrTx, pairId: string): Promise<Item[]> {
+  const rows = await db
+    .select({ speaker: items })
+    .from(links)
+    .innerJoin(items, eq(items.id, links.childId))
+    .where(and(eq(links.parentId, pairId), isNull(links.endedAt), eq(items.kind, "speaker")));
+  return rows.map((r) => r.speaker);
 }
 
 /** The shipment a carton sits in now, if any. */
@@ -106,7 +117,8 @@ export interface PackResult {
 /**
  * Packs a pair that passed its final test: checks the ticked list and the location, then in one
  * transaction issues the certificate (if the pair has none yet), registers the carton holding the
- * pair at PAIR, records where it is stored, and marks the pair packed. Bad input writes nothing.
+ * pair at PAIR, records where it is stored, and marks the pair and its two speakers packed (each
+ * with its state-change event). Bad input writes nothing.
  */
 export async function packPair(db: Db, input: { pairIdentity: string; checked: string[]; location: string }, actor: Actor): Promise<PackResult> {
   const pair = await findItem(db, input.pairIdentity);
@@ -152,6 +164,7 @@ export async function packPair(db: Db, input: { pairIdentity: string; checked: s
     await fit(tx, { parent: carton, child: current, position: "PAIR" }, by);
     await storeAt(tx, carton, location, actor, "carton.stored");
     await changeState(tx, current, "packed", by, { carton: identity });
+    for (const speaker of await speakersOf(tx, current.id)) await changeState(tx, speaker, "packed", by, { pair: current.identity, carton: identity });
     await appendEvent(tx, {
       ...by,
       type: "pair.packed",
@@ -230,6 +243,9 @@ export interface ShipResult {
 
 const oneLine = (v: string) => v.trim().replace(/\s+/g, " ");
 
+/** "5 December 2026" for a YYYY-MM-DD day, as a letter writes it. */
+const longDay = (day: string) => (isCalendarDay(day) ? new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "long", year: "numeric", timeZone: "UTC" }).format(noonUtc(day)) : day);
+
 /** Plural for the mail: "1 matched pair", "2 matched pairs". */
 const pairsWord = (n: number) => `${n} matched pair${n === 1 ? "" : "s"}`;
 
@@ -244,7 +260,7 @@ interface ShipLine {
 
 /**
  * Ships packed cartons to a dealer: one shipment item (H-<dealer>-…) holding each carton at
- * "1", "2"…, its particulars, cartons and pairs marked shipped, and ONE e-mail to the dealer,
+ * "1", "2"…, its particulars, cartons, pairs and their speakers marked shipped, and ONE e-mail to the dealer,
  * queued in the same transaction, listing every pair with its certificate attached (rendered
  * when the mail is sent). Refuses unknown, unpacked or shipped cartons, a date in the future and
  * an empty carrier or tracking number, writing nothing.
@@ -256,6 +272,8 @@ export async function shipCartons(db: Db, input: ShipInput, actor: Actor): Promi
   const [dealer] = input.dealerId ? await db.select().from(dealers).where(eq(dealers.id, input.dealerId)).limit(1) : [];
   if (!dealer) add("dealerId", "Choose the dealer the cartons go to.");
   else if (!dealer.active) add("dealerId", `${dealer.name} is no longer an active dealer.`);
+  // The mail goes in the same transaction: a dealer without a usable address would fail it late.
+  else if (!dealer.email.trim() || /[\r\n]/.test(dealer.email)) add("dealerId", `${dealer.name} has no usable e-mail address; ask an administrator to correct it.`);
 
   const today = isoDay(clockNow());
   const shippedOn = input.shippedOn.trim();
@@ -347,6 +365,7 @@ export async function shipCartons(db: Db, input: ShipInput, actor: Actor): Promi
       await fit(tx, { parent: shipment, child: line.carton, position: String(i + 1) }, by);
       await changeState(tx, line.carton, "shipped", by, { shipment: identity });
       await changeState(tx, line.pair, "shipped", by, { shipment: identity });
+      for (const speaker of await speakersOf(tx, line.pair.id)) await changeState(tx, speaker, "shipped", by, { pair: line.pair.identity, shipment: identity });
       await appendEvent(tx, {
         ...by,
         type: "pair.shipped",
@@ -365,7 +384,7 @@ export async function shipCartons(db: Db, input: ShipInput, actor: Actor): Promi
       tracking,
       lines: lines.map((l) => ({ model: l.model, modelCode: l.modelCode, finish: l.finish, pair: l.pair.identity, carton: l.carton.identity })),
     });
-    const mailId = await queueWithAttachments(tx, {
+    const mailId = await queueMail(tx, {
       to: dealer!.email,
       subject: mail.subject,
       text: mail.text,
@@ -390,7 +409,7 @@ export function shipmentMail(input: {
   const text = [
     `Hello ${input.dealerName},`,
     "",
-    `${pairsWord(n)} left the workshop on ${input.shippedOn} with ${input.carrier}, tracking number ${input.tracking} (shipment ${input.shipment}).`,
+    `${pairsWord(n)} left the workshop on ${longDay(input.shippedOn)} with ${input.carrier}, tracking number ${input.tracking} (shipment ${input.shipment}).`,
     "",
     ...input.lines.map((l, i) => `${i + 1}. ${[l.modelCode, l.model].filter(Boolean).join(" ")}, ${l.finish || "no finish recorded"}: pair ${l.pair} (carton ${l.carton})`),
     "",
@@ -402,23 +421,4 @@ export function shipmentMail(input: {
     "",
   ].join("\n");
   return { subject, text };
-}
-
-type Attachment = { kind: "certificate"; certificateId: string; filename: string };
-
-/**
- * Queues one message with attachments. lib/mail/outbox.ts `queueMail` takes no attachments yet,
- * so this writes the same row with them; it checks what queueMail checks (one-line recipient and
- * subject, a body). Call it inside the transaction of the causing event.
- */
-async function queueWithAttachments(tx: Tx, msg: { to: string; subject: string; text: string; eventId: number; attachments: Attachment[] }): Promise<number> {
-  for (const [what, v] of [["recipient", msg.to], ["subject", msg.subject]] as const) {
-    if (!v.trim() || /[\r\n]/.test(v)) throw new AppError(409, `The e-mail's ${what} is empty or not one line; nothing was shipped.`);
-  }
-  const [row] = await tx
-    .insert(outbox)
-    .values({ to: msg.to.trim(), subject: msg.subject.trim(), text: msg.text, html: null, eventId: msg.eventId, attachments: msg.attachments })
-    .returning({ id: outbox.id });
-  if (!row) throw new Error("mail was not queued");
-  return row.id;
 }

@@ -2,7 +2,7 @@ import "server-only";
 import { sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { normaliseScan, parseSerial } from "@/lib/serials/format";
-import { isoDay } from "./dates";
+import { isoDay, noonUtc } from "./dates";
 
 const dateOf = (ms: number | null | undefined) => (ms === null || ms === undefined ? null : new Date(Number(ms)));
 
@@ -77,20 +77,29 @@ export interface ShippedCarton {
   tracking: string | null;
 }
 
-/** Cartons in shipments that left on `day` (YYYY-MM-DD). */
+/**
+ * Cartons in shipments that left on `day` (YYYY-MM-DD, the workshop's calendar): the day the packer
+ * recorded, or, for a shipment without that record (the demo history), the day it was made in the
+ * workshop's time zone, so the list agrees with the shipments the event log shows that day.
+ */
 export async function shippedOn(db: DbOrTx, day: string): Promise<ShippedCarton[]> {
-  const rows = await db.all<{ shipment: string; carton: string; pair: string | null; dealer: string | null; carrier: string | null; tracking: string | null }>(sql`
-    SELECT s.identity AS shipment, c.identity AS carton, p.identity AS pair, d.name AS dealer, sd.carrier, sd.tracking
-    FROM shipment_details sd
-    JOIN items s ON s.id = sd.item_id
-    JOIN dealers d ON d.id = sd.dealer_id
+  // Any time zone's calendar day lies within 36 hours of noon UTC that day; isoDay decides exactly.
+  const noon = noonUtc(day).getTime();
+  const rows = await db.all<{ shipment: string; carton: string; pair: string | null; dealer: string | null; carrier: string | null; tracking: string | null; shipped_on: string | null; created_at: number }>(sql`
+    SELECT s.identity AS shipment, c.identity AS carton, p.identity AS pair, d.name AS dealer, sd.carrier, sd.tracking, sd.shipped_on, s.created_at
+    FROM items s
+    LEFT JOIN shipment_details sd ON sd.item_id = s.id
+    LEFT JOIN dealers d ON d.id = coalesce(sd.dealer_id, s.dealer_id)
     JOIN links cl ON cl.parent_id = s.id AND cl.ended_at IS NULL
     JOIN items c ON c.id = cl.child_id AND c.kind = 'carton'
     LEFT JOIN links pl ON pl.parent_id = c.id AND pl.position = 'PAIR' AND pl.ended_at IS NULL
     LEFT JOIN items p ON p.id = pl.child_id
-    WHERE sd.shipped_on = ${day}
+    WHERE s.kind = 'shipment'
+      AND (sd.shipped_on = ${day} OR (sd.item_id IS NULL AND s.created_at BETWEEN ${noon - 36 * 3_600_000} AND ${noon + 36 * 3_600_000}))
     ORDER BY s.created_at, CAST(cl.position AS INTEGER)`);
-  return rows.map((r) => ({ ...r, dealer: r.dealer ?? "" }));
+  return rows
+    .filter((r) => (r.shipped_on ?? isoDay(new Date(Number(r.created_at)))) === day)
+    .map((r) => ({ shipment: r.shipment, carton: r.carton, pair: r.pair, dealer: r.dealer ?? "", carrier: r.carrier, tracking: r.tracking }));
 }
 
 export interface PairForPacking {
@@ -106,6 +115,8 @@ export interface PairForPacking {
   carton: string | null;
   location: string | null;
   hasCertificate: boolean;
+  /** How many times its certificate has been printed: after the first, a print is a copy. */
+  certificatePrints: number;
   /** The newest final test on record passed (demo pairs tested before the records began have none). */
   finalTestPassed: boolean;
 }
@@ -117,14 +128,15 @@ export async function pairForPacking(db: DbOrTx, text: string): Promise<PairForP
   const identity = parsed?.valid ? parsed.canonical : t;
   const [row] = await db.all<{
     id: string; identity: string; state: string; model_id: string | null; model: string | null; model_code: string | null; finish: string | null;
-    left: string | null; right: string | null; carton_id: string | null; carton: string | null; certificate: string | null; passed: number | null;
+    left: string | null; right: string | null; carton_id: string | null; carton: string | null; certificate: string | null; passed: number | null; prints: number;
   }>(sql`
     SELECT p.id, p.identity, p.state, p.model_id, m.name AS model, m.code AS model_code, f.name AS finish,
            (SELECT s.identity FROM links l JOIN items s ON s.id = l.child_id WHERE l.parent_id = p.id AND l.position = 'L' AND l.ended_at IS NULL) AS "left",
            (SELECT s.identity FROM links l JOIN items s ON s.id = l.child_id WHERE l.parent_id = p.id AND l.position = 'R' AND l.ended_at IS NULL) AS "right",
            c.id AS carton_id, c.identity AS carton,
            (SELECT id FROM certificates WHERE pair_id = p.id) AS certificate,
-           (SELECT pass FROM final_tests WHERE pair_id = p.id ORDER BY id DESC LIMIT 1) AS passed
+           (SELECT pass FROM final_tests WHERE pair_id = p.id ORDER BY id DESC LIMIT 1) AS passed,
+           (SELECT count(*) FROM events e WHERE e.subject_kind = 'item' AND e.subject_id = p.id AND e.type = 'certificate.printed') AS prints
     FROM items p
     LEFT JOIN models m ON m.id = p.model_id
     LEFT JOIN finishes f ON f.id = p.finish_id
@@ -148,6 +160,7 @@ export async function pairForPacking(db: DbOrTx, text: string): Promise<PairForP
     carton: row.carton,
     location: loc?.location ?? null,
     hasCertificate: row.certificate !== null,
+    certificatePrints: Number(row.prints),
     finalTestPassed: Number(row.passed) === 1,
   };
 }
@@ -157,4 +170,33 @@ export async function knownLocations(db: DbOrTx, limit = 30): Promise<string[]> 
   const rows = await db.all<{ location: string }>(sql`
     SELECT location FROM carton_locations GROUP BY location ORDER BY max(id) DESC LIMIT ${limit}`);
   return rows.map((r) => r.location);
+}
+
+export interface ShipmentFacts {
+  id: string;
+  identity: string;
+  dealer: { code: string; name: string; city: string } | null;
+  /** YYYY-MM-DD: the day it left as the packer recorded it; for history without that record, the day it was made. */
+  shippedOn: string;
+}
+
+/** Shipments with their dealer and the day they left, in the order asked. */
+export async function shipmentFacts(db: DbOrTx, shipmentIds: string[]): Promise<ShipmentFacts[]> {
+  if (shipmentIds.length === 0) return [];
+  const rows = await db.all<{ id: string; identity: string; code: string | null; name: string | null; city: string | null; shipped_on: string | null; created_at: number }>(sql`
+    SELECT s.id, s.identity, d.code, d.name, d.city, sd.shipped_on, s.created_at
+    FROM items s
+    LEFT JOIN shipment_details sd ON sd.item_id = s.id
+    LEFT JOIN dealers d ON d.id = coalesce(sd.dealer_id, s.dealer_id)
+    WHERE s.kind = 'shipment' AND s.id IN (SELECT value FROM json_each(${JSON.stringify(shipmentIds)}))`);
+  const byId = new Map(rows.map((r) => [r.id, r]));
+  return shipmentIds
+    .map((id) => byId.get(id))
+    .filter((r) => r !== undefined)
+    .map((r) => ({
+      id: r.id,
+      identity: r.identity,
+      dealer: r.code && r.name ? { code: r.code, name: r.name, city: r.city ?? "" } : null,
+      shippedOn: r.shipped_on ?? isoDay(new Date(Number(r.created_at))),
+    }));
 }

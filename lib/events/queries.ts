@@ -1,7 +1,8 @@
 import "server-only";
-import { and, desc, eq, inArray, type SQL } from "drizzle-orm";
+import { and, desc, eq, inArray, sql, type SQL } from "drizzle-orm";
+import { alias, type SQLiteColumn } from "drizzle-orm/sqlite-core";
 import type { DbOrTx } from "@/db";
-import { events, users } from "@/db/schema";
+import { dealers, events, finishes, items, machineTokens, matchedSets, models, unitBatches, users } from "@/db/schema";
 import type { EventType } from "@/lib/vocabulary/event-types";
 import type { Station } from "@/lib/vocabulary/stations";
 
@@ -52,7 +53,20 @@ export interface EventRow {
   reason: string | null;
   correctsId: number | null;
   actorName: string | null;
+  /**
+   * What the subject is called now, read from its own table: an item's serial, a user's or
+   * machine token's name, a model's code and name, a dealer's or finish's name, a batch's or
+   * matched set's code. Null when the subject is not in any of them (or is gone).
+   */
+  subjectName: string | null;
+  /** For an item: its kind ("pair", "carton"…), so its serial can be shown as a link. */
+  subjectItemKind: string | null;
+  /** Dealer codes the event's data names (a shipment's dealer), with the dealer's name. */
+  dealerNames: Record<string, string>;
 }
+
+const subjectUser = alias(users, "subject_user");
+const isSubject = (kind: string, id: SQLiteColumn) => and(eq(events.subjectKind, kind), eq(id, events.subjectId));
 
 /** The newest events, optionally only those recorded at some stations or about one subject. */
 export async function recentEvents(
@@ -63,7 +77,7 @@ export async function recentEvents(
   if (opts.stations) where.push(inArray(events.station, opts.stations));
   if (opts.subject) where.push(eq(events.subjectKind, opts.subject.kind), eq(events.subjectId, opts.subject.id));
   if (opts.subjects) where.push(eq(events.subjectKind, opts.subjects.kind), inArray(events.subjectId, opts.subjects.ids));
-  return db
+  const rows = await db
     .select({
       id: events.id,
       at: events.at,
@@ -75,10 +89,31 @@ export async function recentEvents(
       reason: events.reason,
       correctsId: events.correctsId,
       actorName: users.name,
+      // Each subject kind has its own table; at most one of these joins finds a row.
+      subjectName: sql<string | null>`coalesce(${items.identity}, ${subjectUser.name}, ${models.code} || ' ' || ${models.name}, ${finishes.name}, ${dealers.name}, ${unitBatches.code}, ${matchedSets.code}, ${machineTokens.name})`,
+      subjectItemKind: items.kind,
     })
     .from(events)
     .leftJoin(users, eq(users.id, events.actorId))
+    .leftJoin(items, isSubject("item", items.id))
+    .leftJoin(subjectUser, isSubject("user", subjectUser.id))
+    .leftJoin(models, isSubject("model", models.id))
+    .leftJoin(finishes, isSubject("finish", finishes.id))
+    .leftJoin(dealers, isSubject("dealer", dealers.id))
+    .leftJoin(unitBatches, isSubject("batch", unitBatches.id))
+    .leftJoin(matchedSets, isSubject("set", matchedSets.id))
+    .leftJoin(machineTokens, isSubject("machine_token", machineTokens.id))
     .where(where.length ? and(...where) : undefined)
     .orderBy(desc(events.id))
     .limit(opts.limit ?? 50);
+
+  // Shipping events name their dealer by code: one more query for the names of those in view.
+  const codes = [...new Set(rows.map((r) => r.data?.dealer).filter((c): c is string => typeof c === "string" && c !== ""))];
+  const named = codes.length ? await db.select({ code: dealers.code, name: dealers.name }).from(dealers).where(inArray(dealers.code, codes)) : [];
+  const dealerName = new Map(named.map((d) => [d.code, d.name]));
+  return rows.map((r) => {
+    const code = typeof r.data?.dealer === "string" ? r.data.dealer : null;
+    const name = code ? dealerName.get(code) : undefined;
+    return { ...r, dealerNames: code && name ? { [code]: name } : {} };
+  });
 }

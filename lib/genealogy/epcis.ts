@@ -1,14 +1,17 @@
 import "server-only";
 import { and, asc, eq, inArray } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
-import { events, items, models, type ItemKind } from "@/db/schema";
+import { crossoverParts, events, items, models, processSpecs, routeStarts, type ItemKind } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
+import type { StepSpec } from "@/lib/route/types";
 import { traceBackward } from "./trace";
 
 /**
  * A serial's history as a GS1 EPCIS 2.0 JSON-LD document (EPCIS 2.0 §7 / CBV 2.0 vocabulary).
  * Fits and removals become AggregationEvents (a part stays identifiable and removable inside its
- * parent); everything else an ObjectEvent. Facts EPCIS has no field for go into extension fields
+ * parent); everything else an ObjectEvent. The readings the register records (a route step's
+ * readings, a Thiele–Small set, a crossover board's part readings, the final pair test) become
+ * sensor reports (EPCIS 2.0 §7.3.7). Facts EPCIS has no field for go into extension fields
  * of our own namespace "tw", declared in @context so a JSON-LD reader can expand them.
  */
 
@@ -137,22 +140,110 @@ const UNITS: Record<string, { uom: string; type?: string }> = {
   "%": { uom: "P1" },
 };
 
-function sensorReport(data: Record<string, unknown>, baseUri: string): EpcisSensorReport {
-  const name = typeof data.name === "string" && data.name ? data.name : "reading";
-  const unit = typeof data.unit === "string" ? data.unit : null;
-  const known = unit ? UNITS[unit] : undefined;
+/** One reading as the register recorded it, with its unit as the workshop writes it. */
+export interface EpcisReading {
+  /** The reading's key: "platenC", "fs", "C1". */
+  name: string;
+  value: number | boolean | string;
+  /** "°C", "Hz", "F"…; null for a check or a dimensionless figure. */
+  unit: string | null;
+  /** Words for it: "Platen temperature". */
+  label?: string;
+  /** A GS1 measurement type the unit alone does not give (Qts has no unit: gs1:Dimensionless). */
+  type?: string;
+  /** Facts of our own beside the value: a crossover part's nominal value and tolerance. */
+  details?: Record<string, unknown>;
+}
+
+function sensorReport(reading: EpcisReading, baseUri: string): EpcisSensorReport {
+  const known = reading.unit ? UNITS[reading.unit] : undefined;
   const report: EpcisSensorReport = {
-    type: known?.type ?? `${trimBase(baseUri)}/readings/${encodeURIComponent(name)}`,
-    "tw:name": name,
+    type: reading.type ?? known?.type ?? `${trimBase(baseUri)}/readings/${encodeURIComponent(reading.name)}`,
+    "tw:name": reading.name,
   };
-  const v = data.value;
+  const v = reading.value;
   if (typeof v === "number" && Number.isFinite(v)) report.value = v;
   else if (typeof v === "boolean") report.booleanValue = v;
-  else if (v !== undefined && v !== null) report.stringValue = String(v);
+  else report.stringValue = String(v);
   if (known) report.uom = known.uom;
-  else if (unit) report["tw:unit"] = unit;
+  else if (reading.unit) report["tw:unit"] = reading.unit;
+  if (reading.label) report["tw:label"] = reading.label;
+  if (reading.details && Object.keys(reading.details).length) report["tw:details"] = reading.details;
   return report;
 }
+
+/** A crossover board's part as measured when it was built (crossover_parts). */
+export interface CrossoverPartReading {
+  position: string;
+  partNumber: string;
+  nominal: number;
+  unit: string;
+  tolerance: string;
+  reading: number | null;
+}
+
+/** What turning events into readings needs beyond the event itself. */
+export interface ReadingContext {
+  /** A route's steps (with each reading's label and unit) by the serial of the pair, or lone lacquer cabinet, it ran under. */
+  routeSteps?: ReadonlyMap<string, readonly StepSpec[]>;
+  /** A board's part readings by the id of the "crossover.built" event that recorded them. */
+  crossoverParts?: ReadonlyMap<number, readonly CrossoverPartReading[]>;
+}
+
+/** Thiele–Small fields as unit.ts_measured carries them, with their units (REFERENCES.md, Loudspeaker parameters). */
+const TS_FIELDS: { key: string; name: string; unit: string | null; label: string; type?: string }[] = [
+  { key: "fsHz", name: "fs", unit: "Hz", label: "Resonance frequency Fs" },
+  { key: "qts", name: "qts", unit: null, label: "Total Q, Qts", type: "gs1:Dimensionless" },
+  { key: "qes", name: "qes", unit: null, label: "Electrical Q, Qes", type: "gs1:Dimensionless" },
+  { key: "qms", name: "qms", unit: null, label: "Mechanical Q, Qms", type: "gs1:Dimensionless" },
+  { key: "reOhm", name: "re", unit: "Ω", label: "DC resistance Re" },
+  { key: "vasL", name: "vas", unit: "L", label: "Equivalent volume Vas" },
+  { key: "sensitivityDb", name: "sensitivity", unit: "dB", label: "Sensitivity" },
+];
+
+const isFigure = (v: unknown): v is number | boolean => (typeof v === "number" && Number.isFinite(v)) || typeof v === "boolean";
+
+/**
+ * The readings an event records, in the order they were taken: a route step's readings (labelled
+ * and with units from the route version the pair ran under), a Thiele–Small set, a crossover
+ * board's measured parts, the final pair test's largest difference. Empty for any other event.
+ */
+export function readingsOf(e: Pick<EpcisSourceEvent, "id" | "type" | "data">, ctx: ReadingContext = {}): EpcisReading[] {
+  const d = e.data ?? {};
+  switch (e.type) {
+    case "route.step_recorded": {
+      const values = d.readings && typeof d.readings === "object" ? (d.readings as Record<string, unknown>) : {};
+      const step = typeof d.pair === "string" ? ctx.routeSteps?.get(d.pair)?.find((s) => s.seq === d.seq) : undefined;
+      return Object.entries(values)
+        .filter((entry): entry is [string, number | boolean] => isFigure(entry[1]))
+        .map(([key, value]) => {
+          const spec = step?.readings.find((r) => r.key === key);
+          return { name: key, value, unit: spec?.unit ?? null, ...(spec ? { label: spec.label } : {}) };
+        });
+    }
+    case "unit.ts_measured":
+      return TS_FIELDS.filter((f) => isFigure(d[f.key])).map((f) => ({
+        name: f.name,
+        value: d[f.key] as number,
+        unit: f.unit,
+        label: f.label,
+        ...(f.type ? { type: f.type } : {}),
+      }));
+    case "crossover.built":
+      return (ctx.crossoverParts?.get(e.id) ?? [])
+        .filter((p) => p.reading !== null)
+        .map((p) => ({ name: p.position, value: p.reading!, unit: p.unit, label: p.partNumber, details: { nominal: p.nominal, tolerance: p.tolerance } }));
+    case "pair.final_tested":
+      return typeof d.maxDiffDb === "number"
+        ? [{ name: "maxDiffDb", value: d.maxDiffDb, unit: "dB", label: "Largest left/right difference in one-third-octave bands", details: { ...(typeof d.worstBand === "string" ? { band: d.worstBand } : {}), ...(typeof d.limitDb === "number" ? { limitDb: d.limitDb } : {}) } }]
+        : [];
+    default:
+      return [];
+  }
+}
+
+/** Measuring in the lab, or a hand check on the route, is CBV "inspecting"; a production step is not. */
+const INSPECTING = new Set(["unit.ts_measured", "crossover.built", "pair.final_tested"]);
 
 /** CBV 2.0 dispositions for the register's states where one clearly says the same thing. */
 const STATE_DISPOSITION: Record<string, string> = {
@@ -167,7 +258,7 @@ const rest = (data: Record<string, unknown>, drop: string[]) => {
 };
 
 /** Maps one register event to its EPCIS event (without any error declaration). */
-function toEpcisEvent(e: EpcisSourceEvent, itemsById: ReadonlyMap<string, EpcisItem>, baseUri: string): EpcisEvent {
+function toEpcisEvent(e: EpcisSourceEvent, itemsById: ReadonlyMap<string, EpcisItem>, baseUri: string, ctx: ReadingContext): EpcisEvent {
   const d = e.data ?? {};
   const str = (k: string) => (typeof d[k] === "string" ? (d[k] as string) : null);
   const uriOf = (id: string | null, identity: string | null) => {
@@ -185,6 +276,23 @@ function toEpcisEvent(e: EpcisSourceEvent, itemsById: ReadonlyMap<string, EpcisI
   const tail: Ext = { "tw:eventType": e.type };
   if (e.reason) tail["tw:reason"] = e.reason;
   if (e.correctsId !== null) tail["tw:corrects"] = eventUri(e.correctsId, baseUri);
+
+  const readings = readingsOf(e, ctx);
+  if (readings.length) {
+    const details = rest(d, ["identity", "readings", ...TS_FIELDS.map((f) => f.key)]);
+    return {
+      type: "ObjectEvent",
+      ...base,
+      action: "OBSERVE",
+      epcList: [subject],
+      ...(INSPECTING.has(e.type) || e.station === "inspection" ? { bizStep: "inspecting" } : {}),
+      readPoint: where,
+      bizLocation: where,
+      sensorElementList: [{ sensorReport: readings.map((r) => sensorReport(r, baseUri)) }],
+      ...(details ? { "tw:details": details } : {}),
+      ...tail,
+    };
+  }
 
   switch (e.type) {
     case "link.fitted":
@@ -236,21 +344,6 @@ function toEpcisEvent(e: EpcisSourceEvent, itemsById: ReadonlyMap<string, EpcisI
         ...tail,
       };
     }
-    case "reading.recorded": {
-      const details = rest(d, ["name", "value", "unit"]);
-      return {
-        type: "ObjectEvent",
-        ...base,
-        action: "OBSERVE",
-        epcList: [subject],
-        bizStep: "inspecting",
-        readPoint: where,
-        bizLocation: where,
-        sensorElementList: [{ sensorReport: [sensorReport(d, baseUri)] }],
-        ...(details ? { "tw:details": details } : {}),
-        ...tail,
-      };
-    }
     case "label.printed":
       // CBV "encoding": writing an item's identifier into a data carrier, i.e. printing its label.
       return {
@@ -289,11 +382,12 @@ export function toEpcisEvents(
   source: readonly EpcisSourceEvent[],
   itemsById: ReadonlyMap<string, EpcisItem>,
   opts: EpcisOptions,
+  ctx: ReadingContext = {},
 ): EpcisEvent[] {
   const mapped = new Map<number, EpcisEvent>();
   const out: EpcisEvent[] = [];
   for (const e of source) {
-    const event = toEpcisEvent(e, itemsById, opts.baseUri);
+    const event = toEpcisEvent(e, itemsById, opts.baseUri, ctx);
     const original = e.correctsId !== null ? mapped.get(e.correctsId) : undefined;
     if (original) {
       const errorDeclaration: EpcisErrorDeclaration = {
@@ -355,5 +449,31 @@ export async function epcisDocumentForItem(db: DbOrTx, itemId: string, opts: Epc
     .where(inArray(items.id, [...wanted]));
 
   const itemsById = new Map(named.map((i) => [i.id, i]));
-  return epcisDocument(toEpcisEvents(rows, itemsById, opts), opts);
+  return epcisDocument(toEpcisEvents(rows, itemsById, opts, await readingContext(db, rows)), opts);
+}
+
+/** The route versions and crossover part readings the events' readings need for their labels and units. */
+async function readingContext(db: DbOrTx, rows: EpcisSourceEvent[]): Promise<ReadingContext> {
+  const routeHolders = [...new Set(rows.filter((r) => r.type === "route.step_recorded" && typeof r.data?.pair === "string").map((r) => r.data.pair as string))];
+  const boardEvents = rows.filter((r) => r.type === "crossover.built").map((r) => r.id);
+  const [routes, parts] = await Promise.all([
+    routeHolders.length
+      ? db
+          .select({ identity: items.identity, steps: processSpecs.steps })
+          .from(items)
+          .innerJoin(routeStarts, eq(routeStarts.pairId, items.id))
+          .innerJoin(processSpecs, eq(processSpecs.id, routeStarts.specId))
+          .where(inArray(items.identity, routeHolders))
+      : [],
+    boardEvents.length
+      ? db
+          .select({ eventId: crossoverParts.eventId, position: crossoverParts.position, partNumber: crossoverParts.partNumber, nominal: crossoverParts.nominal, unit: crossoverParts.unit, tolerance: crossoverParts.tolerance, reading: crossoverParts.reading })
+          .from(crossoverParts)
+          .where(inArray(crossoverParts.eventId, boardEvents))
+          .orderBy(asc(crossoverParts.id))
+      : [],
+  ]);
+  const crossover = new Map<number, CrossoverPartReading[]>();
+  for (const { eventId, ...p } of parts) crossover.set(eventId, [...(crossover.get(eventId) ?? []), p]);
+  return { routeSteps: new Map(routes.map((r) => [r.identity, r.steps])), crossoverParts: crossover };
 }

@@ -2,6 +2,18 @@ import { readdir, readFile, stat } from "node:fs/promises";
 import { join, resolve } from "node:path";
 import { simpleParser, type AddressObject } from "mailparser";
 
+/** A file a caught message carries, described without its bytes. */
+export interface MailboxAttachment {
+  /** Its place among the message's attachments, 0 first: what the download names. */
+  index: number;
+  /** The name it was sent under, or "attachment-1"… when it had none. */
+  filename: string;
+  /** The MIME type its part declares, e.g. "application/pdf". */
+  contentType: string;
+  /** Decoded size in bytes. */
+  size: number;
+}
+
 export interface MailboxMessage {
   /** The file name in the mailbox folder. */
   id: string;
@@ -11,10 +23,23 @@ export interface MailboxMessage {
   subject: string;
   text: string;
   html: string | null;
+  attachments: MailboxAttachment[];
 }
 
 // Only names the fake server could have written: no separators, no leading dot, no "..".
 const MESSAGE_ID = /^[A-Za-z0-9][A-Za-z0-9_-]*(\.[A-Za-z0-9_-]+)*\.eml$/;
+
+/** True for a name the stand-in server could have given a message; anything path-like is not. */
+export const isMessageId = (id: string): boolean => MESSAGE_ID.test(id);
+
+// A declared type is used only when it is a plain type/subtype; a header could carry anything.
+const plainType = (type: string | undefined) => (type && /^[a-z0-9][a-z0-9!#$&^_.+-]*\/[a-z0-9][a-z0-9!#$&^_.+-]*$/i.test(type) ? type.toLowerCase() : "application/octet-stream");
+
+// Only the last path segment, and nothing a header or a file system could misread.
+const plainName = (name: string | undefined, index: number) => {
+  const base = (name ?? "").split(/[\\/]/).pop()!.replace(/[\u0000-\u001f\u007f]/g, "").trim();
+  return base || `attachment-${index + 1}`;
+};
 
 const addresses = (a: AddressObject | AddressObject[] | undefined) =>
   (Array.isArray(a) ? a : a ? [a] : []).map((x) => x.text).join(", ");
@@ -31,6 +56,7 @@ async function parseFile(dir: string, id: string): Promise<MailboxMessage> {
     subject: mail.subject ?? "",
     text: mail.text ?? "",
     html: mail.html || null,
+    attachments: mail.attachments.map((a, index) => ({ index, filename: plainName(a.filename, index), contentType: plainType(a.contentType), size: a.size ?? a.content.byteLength })),
   };
 }
 
@@ -59,6 +85,21 @@ export async function readMailbox(dir: string, opts: { limit?: number } = {}): P
   return read.filter((m): m is MailboxMessage => m !== null);
 }
 
+/** One attachment of a caught message with its bytes, or null when the message or the attachment is not there. */
+export async function readAttachment(dir: string, id: string, index: number): Promise<(MailboxAttachment & { content: Buffer }) | null> {
+  if (!MESSAGE_ID.test(id) || !Number.isInteger(index) || index < 0) return null;
+  let raw: Buffer;
+  try {
+    raw = await readFile(join(resolve(/*turbopackIgnore: true*/ dir), id));
+  } catch (e) {
+    if (isMissing(e)) return null;
+    throw e;
+  }
+  const a = (await simpleParser(raw)).attachments[index];
+  if (!a) return null;
+  return { index, filename: plainName(a.filename, index), contentType: plainType(a.contentType), size: a.content.byteLength, content: a.content };
+}
+
 /** One message by its file name, or null if there is none. Anything but a plain file name is refused. */
 export async function readMessage(dir: string, id: string): Promise<MailboxMessage | null> {
   if (!MESSAGE_ID.test(id)) throw new Error("not a message id");
@@ -69,3 +110,18 @@ export async function readMessage(dir: string, id: string): Promise<MailboxMessa
     throw e;
   }
 }
+
+const TYPE_WORDS: Record<string, string> = {
+  "application/pdf": "PDF document",
+  "text/plain": "Plain text",
+  "text/csv": "CSV table",
+  "text/calendar": "Calendar entry",
+  "application/json": "JSON data",
+  "image/png": "PNG image",
+  "image/jpeg": "JPEG image",
+  "image/webp": "WebP image",
+  "application/zip": "ZIP archive",
+};
+
+/** An attachment's type as people say it ("PDF document"); an unusual type is shown as declared. */
+export const attachmentTypeWords = (contentType: string): string => TYPE_WORDS[contentType] ?? contentType;

@@ -2,7 +2,7 @@ import "server-only";
 import { desc, eq, sql, type SQL } from "drizzle-orm";
 import { z } from "zod";
 import type { DbOrTx } from "@/db";
-import { mailAttempts, outbox } from "@/db/schema";
+import { mailAttempts, outbox, type OutboxMessage } from "@/db/schema";
 
 /** Tries per message before it is given up as failed. */
 export const DEFAULT_MAX_ATTEMPTS = 8;
@@ -53,12 +53,23 @@ const oneLine = (what: string) =>
     .min(1, `${what} is empty`)
     .refine((v) => !/[\r\n]/.test(v), `${what} must be one line`);
 
+/** A file the sender makes when it sends: e.g. a certificate, rendered from the register then. */
+export type MailAttachment = OutboxMessage["attachments"][number];
+
+const attachment = z.object({
+  kind: z.literal("certificate"),
+  certificateId: z.string().min(1, "the certificate is not named"),
+  // A file name, never a path: the mail client saves it under this name.
+  filename: oneLine("the file name").refine((v) => !/[\\/]/.test(v) && v.length <= 120, "the file name must be a plain name of at most 120 characters"),
+});
+
 const newMail = z.object({
   to: oneLine("the recipient"),
   subject: oneLine("the subject"),
   text: z.string().min(1, "the text is empty"),
   html: z.string().nullish(),
   eventId: z.number().int().positive().nullish(),
+  attachments: z.array(attachment).max(100, "at most 100 attachments").optional(),
 });
 
 export interface NewMail {
@@ -67,6 +78,8 @@ export interface NewMail {
   text: string;
   html?: string;
   eventId?: number | null;
+  /** Made when the message is sent, not stored: the outbox keeps what to make. */
+  attachments?: MailAttachment[];
 }
 
 /**
@@ -77,7 +90,7 @@ export async function queueMail(tx: DbOrTx, msg: NewMail): Promise<number> {
   const m = newMail.parse(msg);
   const [row] = await tx
     .insert(outbox)
-    .values({ to: m.to, subject: m.subject, text: m.text, html: m.html ?? null, eventId: m.eventId ?? null })
+    .values({ to: m.to, subject: m.subject, text: m.text, html: m.html ?? null, eventId: m.eventId ?? null, attachments: m.attachments ?? [] })
     .returning({ id: outbox.id });
   if (!row) throw new Error("mail was not queued");
   return row.id;
@@ -98,6 +111,8 @@ export interface OutboxEntry {
   sentAt: Date | null;
   /** For a pending message: when the sender will try it next (null: at its next run). */
   nextAttemptAt: Date | null;
+  /** The names of the files it carries (made when it is sent). */
+  attachments: string[];
 }
 
 export function deriveStatus(sent: boolean, failures: number, maxAttempts: number): OutboxStatus {
@@ -124,6 +139,7 @@ export async function listOutbox(
       to: outbox.to,
       subject: outbox.subject,
       createdAt: outbox.createdAt,
+      attachments: outbox.attachments,
       attempts: stats.attempts,
       failures: stats.failures,
       sentAt: stats.sentAt,
@@ -152,6 +168,7 @@ export async function listOutbox(
       lastError: r.lastError ?? null,
       sentAt,
       nextAttemptAt: status === "pending" ? nextAttemptAt(failures, toDate(r.lastFailedAt)) : null,
+      attachments: (r.attachments ?? []).map((a) => a.filename),
     };
   });
 }

@@ -58,6 +58,18 @@ async function fuzzyIndex(db: DbOrTx): Promise<Fuse<Doc>> {
   return fuse;
 }
 
+/**
+ * The index is rebuilt only when items are added, so a state it holds may be old (a speaker
+ * shipped since): the hits it found are read again for their state now.
+ */
+async function withCurrentStates(db: DbOrTx, hits: SearchHit[]): Promise<SearchHit[]> {
+  const ids = hits.filter((h) => h.type === "item").map((h) => h.id);
+  if (ids.length === 0) return hits;
+  const rows = await db.select({ id: items.id, state: items.state }).from(items).where(inArray(items.id, ids));
+  const state = new Map(rows.map((r) => [r.id, r.state]));
+  return hits.map((h) => (h.type === "item" && state.has(h.id) ? { ...h, state: state.get(h.id)! } : h));
+}
+
 /** One box for scans and typing: exact serial, then "did you mean" for a check-character slip, then fuzzy. */
 export async function search(db: DbOrTx, raw: string, limit = 10): Promise<SearchAnswer> {
   const query = normaliseScan(raw);
@@ -84,10 +96,11 @@ export async function search(db: DbOrTx, raw: string, limit = 10): Promise<Searc
   }
 
   const fuse = await fuzzyIndex(db);
-  answer.fuzzy = fuse
+  const fuzzy = fuse
     .search(query, { limit: limit + answer.didYouMean.length })
     .map((r) => r.item.hit)
     .filter((h) => !answer.didYouMean.some((d) => d.id === h.id))
     .slice(0, limit);
+  answer.fuzzy = await withCurrentStates(db, fuzzy);
   return answer;
 }

@@ -1,12 +1,13 @@
 import { readFileSync } from "node:fs";
 import { join } from "node:path";
-import { eq } from "drizzle-orm";
+import { and, eq, isNull } from "drizzle-orm";
+import { extractText, getDocumentProxy } from "unpdf";
 import { AxeBuilder } from "@axe-core/playwright";
 import { simpleParser } from "mailparser";
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, inject, test } from "vitest";
 import { openDb } from "@/db";
-import { certificates, dealers, items } from "@/db/schema";
+import { certificates, dealers, items, links } from "@/db/schema";
 import { demoEmail, launchBrowser, newPage, signIn, url, waitForMail } from "./browser-helpers";
 
 let browser: Browser;
@@ -47,6 +48,15 @@ describe("dispatch, as a packer does it", () => {
     await page.getByTestId("pack-page").waitFor();
     expect(await violations(page), "pack page").toEqual([]);
 
+    // The certificate printed first, as the page asks: true of the pair as it stands, tested and not
+    // yet packed. Its text is read back by unpdf (pdf.js), as REFERENCES.md suggests.
+    const certificate = await page.request.get(url((await page.getByTestId("print-certificate").getAttribute("href"))!));
+    expect(certificate.status()).toBe(200);
+    const { text } = await extractText(await getDocumentProxy(new Uint8Array(await certificate.body())), { mergePages: true });
+    expect(text).toContain(pair);
+    expect(text).toContain("Tested by:");
+    expect(text).not.toMatch(/Packed by|not recorded|shipped/);
+
     // One box left unticked: refused, nothing packed, the ticks kept.
     const boxes = page.getByTestId("pack-item");
     const n = await boxes.count();
@@ -86,11 +96,88 @@ describe("dispatch, as a packer does it", () => {
     await expect(page.getByTestId("shipped").textContent()).resolves.toMatch(/^Shipment H-MLR-/);
     await expect(page.getByTestId("shipped-today").textContent()).resolves.toContain(carton);
 
+    // The form starts blank for the next shipment.
+    expect(await form.getByLabel("Carrier").inputValue()).toBe("");
+    expect(await form.getByLabel("Tracking number").inputValue()).toBe("");
+    expect(await form.getByLabel("Dealer").inputValue()).toBe("");
+    expect(await form.locator('input[name="cartons"]:checked').count()).toBe(0);
+
+    // After a reload, "Shipped today (n)" counts the rows it lists, ours among them.
+    await page.goto(url("/packing"));
+    const heading = (await page.getByRole("heading", { name: /^Shipped today \(\d+\)$/ }).textContent())!;
+    const rows = page.getByTestId("shipped-today").locator("tbody tr");
+    expect(Number(/\((\d+)\)/.exec(heading)![1])).toBe(await rows.count());
+    await expect(page.getByTestId("shipped-today").textContent()).resolves.toContain(carton);
+
+    // The log names what each event is about by its serial, and says what happened in words.
+    const log = page.getByTestId("event-table").first();
+    for (const about of await log.locator("tbody tr td:nth-child(5)").allTextContents()) {
+      expect(about).toMatch(/^(Pair|Speaker|Carton|Shipment|Cabinet) [A-Z]-[A-Z0-9]+-\d{2}-\d{5,}-[0-9A-Z*]$/);
+    }
+    await expect(log.textContent()).resolves.toMatch(new RegExp(`shipped the pair in carton ${carton} to ${dealer!.name} in shipment H-MLR-`));
+
     const message = await waitForMail(dealer!.email, new RegExp(`^Shipped: 1 matched pair, tracking ${tracking}$`));
     expect(message.text).toContain(pair);
     const raw = await simpleParser(readFileSync(join(inject("mailboxDir"), message.id)));
     expect(raw.attachments.map((a) => [a.filename, a.contentType])).toEqual([[`certificate-${pair}.pdf`, "application/pdf"]]);
     expect(raw.attachments[0]!.content.subarray(0, 5).toString()).toBe("%PDF-");
+  });
+
+  test("a shipped pair's speakers read shipped in search", async () => {
+    const [row] = await db.select({ id: items.id }).from(items).where(eq(items.identity, pair));
+    const speakers = await db.select({ identity: items.identity }).from(links).innerJoin(items, eq(items.id, links.childId)).where(and(eq(links.parentId, row!.id), isNull(links.endedAt), eq(items.kind, "speaker")));
+    expect(speakers).toHaveLength(2);
+    for (const s of speakers) {
+      const answer = await (await page.request.get(url(`/api/v1/search?q=${encodeURIComponent(s.identity)}`))).json();
+      expect(answer.exact).toMatchObject({ identity: s.identity, state: "shipped" });
+    }
+  });
+
+  test("at 800 px the pair's page says where it is in words, and no serial is cut", async () => {
+    await page.setViewportSize({ width: 800, height: 900 });
+    try {
+      await page.goto(url(`/register/items/${encodeURIComponent(pair)}`));
+      const place = (await page.getByTestId("current-place").first().textContent())!;
+      expect(place).toMatch(new RegExp(`^In carton ${carton}, shipped to Merrow Lane[^,]* on \\d{1,2} \\w{3} \\d{4} in shipment H-MLR-`));
+      await expect(page.getByTestId("shipped-when").textContent()).resolves.toMatch(/to Merrow Lane.* in shipment H-MLR-/);
+      // Every serial in the cards at the top lies whole inside its card, on one line.
+      const cut = await page.evaluate(() =>
+        [...document.querySelectorAll('section:has([data-testid="current-place"]) .serial, section:has([data-testid="shipped-when"]) .serial')]
+          .filter((el) => {
+            const r = el.getBoundingClientRect();
+            const card = el.closest("section")!.getBoundingClientRect();
+            return r.right > card.right + 0.5 || r.height > parseFloat(getComputedStyle(el).lineHeight) * 1.5;
+          })
+          .map((el) => el.textContent),
+      );
+      expect(cut).toEqual([]);
+      expect(await page.locator('section:has([data-testid="current-place"]) .serial').count()).toBeGreaterThanOrEqual(2);
+    } finally {
+      await page.setViewportSize({ width: 1024, height: 768 });
+    }
+  });
+
+  test("Administration → Mail shows the certificate attached to the dealer's e-mail, and downloads it", async () => {
+    const context = await browser.newContext({ viewport: { width: 1024, height: 768 } });
+    try {
+      const admin = await context.newPage();
+      await signIn(admin, demoEmail("admin"));
+      await admin.goto(url("/admin/mail"));
+      await admin.getByRole("link", { name: `Shipped: 1 matched pair, tracking ${tracking}` }).click();
+      const attachment = admin.getByTestId("mail-attachment");
+      await expect(attachment.textContent()).resolves.toMatch(new RegExp(`^certificate-${pair}\\.pdfPDF document · [\\d.]+ KBDownload$`));
+      expect(await violations(admin), "caught message").toEqual([]);
+      const res = await admin.request.get(url((await attachment.getByRole("link", { name: `Download certificate-${pair}.pdf` }).getAttribute("href"))!));
+      expect(res.status()).toBe(200);
+      expect(res.headers()["content-type"]).toBe("application/pdf");
+      expect(res.headers()["content-disposition"]).toMatch(new RegExp(`^attachment; filename="certificate-${pair}\\.pdf"`));
+      expect(res.headers()["x-content-type-options"]).toBe("nosniff");
+      expect((await res.body()).subarray(0, 5).toString()).toBe("%PDF-");
+      // A packer may not read the caught mail.
+      expect((await page.request.get(url((await attachment.getByRole("link").getAttribute("href"))!))).status()).toBe(403);
+    } finally {
+      await context.close();
+    }
   });
 
   test("a signed-out phone opens the certificate's link and sees it is genuine; a wrong code is a 404", async () => {

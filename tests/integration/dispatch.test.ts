@@ -23,6 +23,7 @@ import {
   packPair,
   readyToPack,
   shipCartons,
+  shippedOn,
   verifyCertificate,
   waitingToShip,
 } from "@/lib/dispatch";
@@ -71,6 +72,12 @@ async function refusal(p: Promise<unknown>): Promise<AppError> {
 
 async function pairsIn(state: string): Promise<Item[]> {
   return db().select().from(items).where(and(eq(items.kind, "pair"), eq(items.state, state))).orderBy(items.identity);
+}
+
+/** The speakers a pair holds now, left first. */
+async function speakerRows(pairId: string): Promise<Item[]> {
+  const rows = await db().select({ item: items }).from(links).innerJoin(items, eq(items.id, links.childId)).where(and(eq(links.parentId, pairId), isNull(links.endedAt), eq(items.kind, "speaker"))).orderBy(links.position);
+  return rows.map((r) => r.item);
 }
 
 async function fresh(identity: string): Promise<Item> {
@@ -181,6 +188,13 @@ describe("packing a tested pair", () => {
     expect(locs.map((l) => l.location)).toEqual(["Rack B, shelf 2"]);
 
     expect((await fresh(pair.identity)).state).toBe("packed");
+    // Its speakers share its fate: each moved to packed by its own state-change event.
+    const speakers = await speakerRows(pair.id);
+    expect(speakers.map((s) => s.state)).toEqual(["packed", "packed"]);
+    for (const s of speakers) {
+      const [moved] = await db().select().from(events).where(and(eq(events.type, "item.state_changed"), eq(events.subjectId, s.id), sql`json_extract(${events.data}, '$.to') = 'packed'`));
+      expect(moved!.data).toMatchObject({ from: "built", to: "packed", pair: pair.identity, carton: r.carton.identity });
+    }
     const [packed] = await db().select().from(events).where(and(eq(events.type, "pair.packed"), eq(events.subjectId, pair.id)));
     expect(packed!.data).toMatchObject({ carton: r.carton.identity, checklist: list, location: "Rack B, shelf 2" });
     expect(packed!.actorId).toBe(packer.id);
@@ -340,8 +354,13 @@ describe("shipping two cartons to a dealer", () => {
     expect(held.map((l) => l.position)).toEqual(["1", "2"]);
     for (const c of chosen) {
       expect((await fresh(c.carton)).state).toBe("shipped");
-      expect((await fresh(c.pair!)).state).toBe("shipped");
+      const pairRow = await fresh(c.pair!);
+      expect(pairRow.state).toBe("shipped");
+      // A shipped pair's speakers read shipped too.
+      expect((await speakerRows(pairRow.id)).map((s) => s.state)).toEqual(["shipped", "shipped"]);
     }
+    // "Shipped today" lists both cartons of the shipment.
+    expect((await shippedOn(db(), today)).filter((x) => x.shipment === r.shipment.identity).map((x) => x.carton)).toEqual(chosen.map((c) => c.carton));
     const [details] = await db().select().from(shipmentDetails).where(eq(shipmentDetails.itemId, r.shipment.id));
     expect(details).toMatchObject({ dealerId: dealer.id, shippedOn: today, carrier: "Fernway Freight", tracking: "ABC123" });
 
@@ -362,6 +381,19 @@ describe("shipping two cartons to a dealer", () => {
     }
     // Exactly one message for this shipment.
     expect(await db().select().from(outbox).where(eq(outbox.eventId, details!.eventId))).toHaveLength(1);
+  });
+
+  test("a shipment from the history, with no recorded day, is listed on the day it was made in the workshop", async () => {
+    const [old] = await db().all<{ identity: string; created_at: number }>(sql`
+      SELECT s.identity, s.created_at FROM items s WHERE s.kind = 'shipment'
+        AND NOT EXISTS (SELECT 1 FROM shipment_details d WHERE d.item_id = s.id) ORDER BY s.created_at DESC LIMIT 1`);
+    const day = isoDay(new Date(Number(old!.created_at)));
+    const listed = (await shippedOn(db(), day)).filter((x) => x.shipment === old!.identity);
+    expect(listed.length).toBeGreaterThan(0);
+    expect(listed[0]).toMatchObject({ carrier: null, tracking: null, dealer: expect.stringMatching(/\S/) });
+    // …and not on the next day.
+    const next = isoDay(new Date(Number(old!.created_at) + 86_400_000));
+    expect((await shippedOn(db(), next)).some((x) => x.shipment === old!.identity)).toBe(false);
   });
 
   test("a shipped carton cannot ship again", async () => {

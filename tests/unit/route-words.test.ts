@@ -14,19 +14,19 @@ describe("where a nonconformance was found", () => {
   });
 
   test.each([
-    [{ code: "NC-2612-001", seq: 0, step: "Final pair test", finding: "left and right differ" }, "opened NC-2612-001 at the final pair test: left and right differ"],
-    [{ code: "NC-2612-002", seq: 2, step: "Trimming", finding: "Trim deviation 0.3 mm" }, "opened NC-2612-002 at step 2, Trimming: Trim deviation 0.3 mm"],
-    [{ code: "NC-2612-003", finding: "recorded before seqs were kept" }, "opened NC-2612-003: recorded before seqs were kept"],
+    [{ code: "NC-2612-001", seq: 0, step: "Final pair test", finding: "left and right differ" }, "opened nonconformance NC-2612-001 at the final pair test: left and right differ"],
+    [{ code: "NC-2612-002", seq: 2, step: "Trimming", finding: "Trim deviation 0.3 mm" }, "opened nonconformance NC-2612-002 at step 2, Trimming: Trim deviation 0.3 mm"],
+    [{ code: "NC-2612-003", finding: "recorded before seqs were kept" }, "opened nonconformance NC-2612-003: recorded before seqs were kept"],
   ])("the event log: %j", (data, phrase) => {
     expect(describeEvent("nc.opened", data)).toBe(phrase);
   });
 
   test.each([
-    [{ code: "NC-1", disposition: "rework", reworkToSeq: 0 }, "dispositioned NC-1: rework: adjust and test again"],
-    [{ code: "NC-2", disposition: "rework", reworkToSeq: 4 }, "dispositioned NC-2: rework back to step 4"],
-    [{ code: "NC-3", disposition: "use_as_is", reworkToSeq: null }, "dispositioned NC-3: use as is (deviation approved)"],
-    [{ code: "NC-4", disposition: "scrap", scrapped: "C-PW2-26-00007-K" }, "dispositioned NC-4: scrap the cabinet C-PW2-26-00007-K"],
-    [{ code: "NC-5", disposition: "something_else" }, "dispositioned NC-5"],
+    [{ code: "NC-1", disposition: "rework", reworkToSeq: 0 }, "decided nonconformance NC-1: rework: adjust and test again"],
+    [{ code: "NC-2", disposition: "rework", reworkToSeq: 4 }, "decided nonconformance NC-2: rework back to step 4"],
+    [{ code: "NC-3", disposition: "use_as_is", reworkToSeq: null }, "decided nonconformance NC-3: use as is (deviation approved)"],
+    [{ code: "NC-4", disposition: "scrap", scrapped: "C-PW2-26-00007-K" }, "decided nonconformance NC-4: scrap the cabinet C-PW2-26-00007-K"],
+    [{ code: "NC-5", disposition: "something_else" }, "decided nonconformance NC-5"],
   ])("the event log: %j", (data, phrase) => {
     expect(describeEvent("nc.dispositioned", data)).toBe(phrase);
   });

@@ -33,7 +33,7 @@ export function MoveForm({ cartons, locations }: { cartons: { carton: string; lo
             <option value="">Choose the carton…</option>
             {cartons.map((c) => (
               <option key={c.carton} value={c.carton}>
-                {c.carton} (at {c.location ?? "?"})
+                {c.location ? `${c.carton}, at ${c.location}` : `${c.carton}, place not recorded`}
               </option>
             ))}
           </select>

@@ -10,8 +10,9 @@ import { areaByKey } from "@/lib/areas";
 import { requirePage } from "@/lib/auth/guard";
 import { now } from "@/lib/clock";
 import { knownLocations, readyToPack, shippedOn, waitingToShip } from "@/lib/dispatch";
-import { isoDay } from "@/lib/dispatch/dates";
+import { isoDay, noonUtc } from "@/lib/dispatch/dates";
 import { formatDate } from "@/lib/format";
+import { SerialLink } from "@/components/register/serial-link";
 import { listDealers } from "@/lib/workshop/queries";
 import { MoveForm } from "./move-form";
 import { ShipForm } from "./ship-form";
@@ -24,6 +25,7 @@ const packHref = paths.pack;
 export default async function Page() {
   await requirePage("packing.work");
   const db = getDb();
+  // One "today" for the list and the form: the workshop's calendar day by the route's clock.
   const today = isoDay(now());
   const [ready, waiting, shipped, dealers, locations] = await Promise.all([readyToPack(db), waitingToShip(db), shippedOn(db, today), listDealers(db), knownLocations(db)]);
   return (
@@ -46,7 +48,9 @@ export default async function Page() {
             <tbody>
               {ready.map((p) => (
                 <TR key={p.identity} data-testid="ready-pair">
-                  <TD className="serial font-bold">{p.identity}</TD>
+                  <TD>
+                    <SerialLink identity={p.identity} />
+                  </TD>
                   <TD>
                     {p.modelCode} {p.model}
                   </TD>
@@ -68,7 +72,7 @@ export default async function Page() {
 
       <Panel title={`Packed, waiting to ship (${waiting.length})`}>
         <ShipForm
-          cartons={waiting.map((c) => ({ carton: c.carton, pair: c.pair, model: [c.modelCode, c.model].filter(Boolean).join(" "), finish: c.finish, location: c.location, packedOn: c.packedOn }))}
+          cartons={waiting.map((c) => ({ carton: c.carton, pair: c.pair, model: [c.modelCode, c.model].filter(Boolean).join(" "), finish: c.finish, location: c.location, packedOn: formatDate(noonUtc(c.packedOn)) }))}
           dealers={dealers.filter((d) => d.active).map((d) => ({ id: d.id, name: d.name, city: d.city }))}
           today={today}
         />
@@ -96,12 +100,22 @@ export default async function Page() {
             <tbody>
               {shipped.map((s) => (
                 <TR key={s.carton}>
-                  <TD className="serial">{s.shipment}</TD>
-                  <TD className="serial">{s.carton}</TD>
-                  <TD className="serial">{s.pair ?? "—"}</TD>
+                  <TD>
+                    <SerialLink identity={s.shipment} bold={false} />
+                  </TD>
+                  <TD>
+                    <SerialLink identity={s.carton} bold={false} />
+                  </TD>
+                  <TD>{s.pair ? <SerialLink identity={s.pair} bold={false} /> : "—"}</TD>
                   <TD>{s.dealer}</TD>
                   <TD>
-                    {s.carrier} <Badge>{s.tracking}</Badge>
+                    {s.carrier || s.tracking ? (
+                      <>
+                        {s.carrier ?? "carrier not recorded"} {s.tracking ? <Badge>{s.tracking}</Badge> : null}
+                      </>
+                    ) : (
+                      <span className="text-ink-soft">not recorded</span>
+                    )}
                   </TD>
                 </TR>
               ))}

@@ -70,13 +70,24 @@ export function ShipForm({ cartons, dealers, today }: { cartons: ShipCarton[]; d
                   <span className="flex flex-col">
                     <span className="serial font-bold">{c.carton}</span>
                     <span className="text-sm text-ink-soft">
-                      {[c.model, c.finish, c.pair ? `pair ${c.pair}` : null].filter(Boolean).join(" · ")}
+                      {[c.model, c.finish].filter(Boolean).join(" · ")}
+                      {c.pair ? (
+                        <>
+                          {c.model || c.finish ? " · " : ""}pair <span className="serial">{c.pair}</span>
+                        </>
+                      ) : null}
                     </span>
                   </span>
                 </label>
                 <span className="text-sm">
-                  <span className="text-ink-soft">At </span>
-                  <span className="font-bold">{c.location ?? "not recorded"}</span>
+                  {c.location ? (
+                    <>
+                      <span className="text-ink-soft">Stored at </span>
+                      <span className="font-bold">{c.location}</span>
+                    </>
+                  ) : (
+                    <span className="text-ink-soft">Place not recorded</span>
+                  )}
                   <span className="text-ink-soft"> · packed {c.packedOn}</span>
                 </span>
                 <Link href={labelHref(c.carton)} target="_blank" rel="noopener" className="text-sm font-bold text-leaf-dark underline underline-offset-4">

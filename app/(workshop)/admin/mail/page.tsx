@@ -6,13 +6,29 @@ import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
 import { requirePage } from "@/lib/auth/guard";
 import { readMailConfig } from "@/lib/mail/config";
-import { readMailbox } from "@/lib/mail/mailbox";
+import { attachmentTypeWords, readMailbox } from "@/lib/mail/mailbox";
 import { listOutbox } from "@/lib/mail/outbox";
 import { formatWhen, formatWhenExact } from "@/lib/format";
+import { paths } from "@/lib/paths";
+import { formatSize } from "@/lib/uploads";
 
 export const metadata: Metadata = { title: "Mail" };
 
 const TONE = { sent: "leaf", pending: "caution", failed: "danger" } as const;
+
+/** File names whole, one a line (a certificate's name holds a serial, which never breaks). */
+function FileNames({ names, details }: { names: string[]; details?: string[] }) {
+  return (
+    <ul className="text-sm">
+      {names.map((n, i) => (
+        <li key={`${n}-${i}`}>
+          <span className="whitespace-nowrap">{n}</span>
+          {details?.[i] ? <span className="text-ink-soft"> ({details[i]})</span> : null}
+        </li>
+      ))}
+    </ul>
+  );
+}
 
 export default async function MailPage() {
   await requirePage("admin.mail");
@@ -30,6 +46,7 @@ export default async function MailPage() {
             { key: "queued", label: "Queued" },
             { key: "to", label: "To" },
             { key: "subject", label: "Subject" },
+            { key: "files", label: "Attachments" },
             { key: "status", label: "Status" },
             { key: "attempts", label: "Tries", numeric: true },
             { key: "note", label: "Last problem" },
@@ -40,6 +57,7 @@ export default async function MailPage() {
               queued: { value: m.createdAt.getTime(), display: <span className="whitespace-nowrap">{formatWhen(m.createdAt)}</span> },
               to: { value: m.to },
               subject: { value: m.subject },
+              files: { value: m.attachments.join(", "), display: m.attachments.length ? <FileNames names={m.attachments} /> : <span className="text-ink-soft">none</span> },
               status: { value: m.status, display: <Badge tone={TONE[m.status]}>{m.status === "pending" && m.nextAttemptAt ? `retry ${formatWhenExact(m.nextAttemptAt)}` : m.status}</Badge> },
               attempts: { value: m.attempts },
               note: { value: m.lastError ?? "" },
@@ -49,7 +67,7 @@ export default async function MailPage() {
       </Panel>
       <Panel title="Caught by the demo's mail server">
         <p className="mb-4 text-ink-soft">
-          The demo runs a local stand-in SMTP server that keeps every message it receives in <code className="serial">{config.mailboxDir}</code> instead of delivering it. With a real SMTP server configured, this list stays empty.
+          The demo runs a local stand-in SMTP server that keeps every message it receives in <code className="break-all font-mono">{config.mailboxDir}</code> instead of delivering it. With a real SMTP server configured, this list stays empty.
         </p>
         <DataTable
           caption="Caught mail"
@@ -60,13 +78,22 @@ export default async function MailPage() {
             { key: "received", label: "Received" },
             { key: "to", label: "To" },
             { key: "subject", label: "Subject" },
+            { key: "attachments", label: "Attachments" },
           ]}
           rows={caught.map((m) => ({
             id: m.id,
             cells: {
               received: { value: m.receivedAt.getTime(), display: formatWhenExact(m.receivedAt) },
               to: { value: m.to },
-              subject: { value: m.subject, display: <Link className="font-bold text-leaf-dark underline underline-offset-4" href={`/admin/mail/${encodeURIComponent(m.id)}`}>{m.subject || "(no subject)"}</Link> },
+              subject: { value: m.subject, display: <Link className="font-bold text-leaf-dark underline underline-offset-4" href={`${paths.adminMail}/${encodeURIComponent(m.id)}`}>{m.subject || "(no subject)"}</Link> },
+              attachments: {
+                value: m.attachments.length,
+                display: m.attachments.length ? (
+                  <FileNames names={m.attachments.map((a) => a.filename)} details={m.attachments.map((a) => `${attachmentTypeWords(a.contentType)}, ${formatSize(a.size)}`)} />
+                ) : (
+                  <span className="text-ink-soft">none</span>
+                ),
+              },
             },
           }))}
         />

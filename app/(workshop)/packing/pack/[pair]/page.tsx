@@ -60,7 +60,7 @@ export default async function Page({ params, searchParams }: { params: Promise<{
                 {pair.carton}
               </dd>
               <dt className="text-ink-soft">Stored at</dt>
-              <dd>{pair.location ?? "not recorded"}</dd>
+              <dd>{pair.location ?? <span className="text-ink-soft">place not recorded</span>}</dd>
             </>
           ) : null}
         </dl>
@@ -79,12 +79,17 @@ export default async function Page({ params, searchParams }: { params: Promise<{
               Print the carton label
             </a>
             <a href={certificateHref(pair.identity)} target="_blank" rel="noopener" className={pdfLink} data-testid="print-certificate">
-              Print the certificate
+              {pair.certificatePrints ? "Print a copy of the certificate" : "Print the certificate"}
             </a>
             <Link href={paths.packing} className={buttonClasses("quiet")}>
               Back to dispatch
             </Link>
           </div>
+          <p className="mt-3 text-sm text-ink-soft">
+            {pair.certificatePrints
+              ? "The certificate has been printed: it goes into the carton. A new print is marked COPY."
+              : "Print the certificate now and put it in before the carton is closed: it names the packer and the date."}
+          </p>
         </Panel>
       ) : packable ? (
         <Panel title="Pack it">

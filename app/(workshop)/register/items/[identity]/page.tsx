@@ -16,9 +16,12 @@ import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
 import { requirePage } from "@/lib/auth/guard";
 import { recentEvents } from "@/lib/events/queries";
-import { formatDay, formatWhen } from "@/lib/format";
+import { formatDate, formatDay, formatWhen } from "@/lib/format";
+import { noonUtc } from "@/lib/dispatch/dates";
+import { shipmentFacts } from "@/lib/dispatch/queries";
+import { positionWords } from "@/lib/events/describe";
 import { momentParam, resolveMoment } from "@/lib/genealogy/moment";
-import { kindLabel, stateLabel } from "@/lib/vocabulary/item-kinds";
+import { KIND_WORD, kindLabel, stateLabel } from "@/lib/vocabulary/item-kinds";
 import { dealersOf, itemDetails } from "@/lib/genealogy/queries";
 import { toTree, traceBackward, traceForward } from "@/lib/genealogy/trace";
 import { PairVeneer } from "./pair-veneer";
@@ -85,7 +88,13 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
   const tree = toTree(inside);
   const events = await recentEvents(db, { subjects: { kind: "item", ids: [item.id, ...(everInside ?? inside).filter((n) => n.depth === 1).map((n) => n.id)] }, limit: 200 });
   const shipments = holders.filter((h) => h.kind === "shipment");
-  const reachedDealers = await dealersOf(db, shipments.map((s) => s.id));
+  const [reachedDealers, facts] = await Promise.all([
+    dealersOf(db, shipments.map((s) => s.id)),
+    // One shipment (or the item is one): its dealer and day, to say where the item went in words.
+    shipmentFacts(db, item.kind === "shipment" ? [item.id] : shipments.length === 1 ? [shipments[0]!.id] : []),
+  ]);
+  const ownShipment = item.kind === "shipment" ? (facts[0] ?? null) : null;
+  const shipment = item.kind === "shipment" ? null : (facts[0] ?? null);
 
   return (
     <div className="flex flex-col gap-6" data-testid="item-page">
@@ -106,30 +115,54 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
       {item.kind === "drive_unit" || item.kind === "crossover" ? <LabOrigin item={item} inLab={user.permissions.has("lab.work")} /> : null}
       {item.kind === "flitch" || item.kind === "leaf" ? <VeneerOrigin identity={item.identity} kind={item.kind} inVeneerRoom={user.permissions.has("veneer.work")} /> : null}
 
-      <div className="grid gap-4 md:grid-cols-3">
+      {/* The cards wrap to fewer columns rather than squeeze: a serial is never cut or broken. */}
+      <div className="grid grid-cols-[repeat(auto-fit,minmax(min(100%,20rem),1fr))] gap-4">
         <Panel title="Where it is now">
           {parents.length === 0 ? (
-            <p className="text-ink-soft">{item.kind === "shipment" && dealer ? `Shipped to ${dealer.name}, ${dealer.city}.` : "Not inside anything."}</p>
+            <p className="text-ink-soft" data-testid="current-place">
+              {item.kind === "shipment" && dealer ? `Shipped to ${dealer.name}, ${dealer.city}${ownShipment ? `, on ${formatDate(noonUtc(ownShipment.shippedOn))}` : ""}.` : "Not inside anything."}
+            </p>
           ) : (
             <ul className="flex flex-col gap-1" data-testid="current-parents">
-              {parents.slice(0, SHOW).map((p) => (
-                <li key={`${p.id}-${p.position}`}>
-                  In <SerialLink identity={p.identity} /> at {p.position}
-                  <span className="text-sm text-ink-soft"> since {formatDay(p.since)}</span>
-                </li>
-              ))}
+              {parents.slice(0, SHOW).map((p, i) => {
+                const words = positionWords(p.kind, p.position);
+                // The first holder carries the journey on: "…, shipped to <dealer> on <day> in shipment H-…".
+                const via = i === 0 && shipment && shipment.id !== p.id ? shipment : null;
+                const own = i === 0 && shipment && shipment.id === p.id ? shipment : null;
+                return (
+                  <li key={`${p.id}-${p.position}`} data-testid="current-place">
+                    In {KIND_WORD[p.kind] ?? "item"} <SerialLink identity={p.identity} />
+                    {words ? `, as its ${words}` : ""}
+                    {via ? (
+                      <>
+                        , shipped{via.dealer ? ` to ${via.dealer.name}` : ""} on {formatDate(noonUtc(via.shippedOn))} in shipment <SerialLink identity={via.identity} bold={false} />
+                      </>
+                    ) : own ? (
+                      `, shipped${own.dealer ? ` to ${own.dealer.name}` : ""} on ${formatDate(noonUtc(own.shippedOn))}`
+                    ) : (
+                      <span className="text-sm text-ink-soft"> since {formatDay(p.since)}</span>
+                    )}
+                  </li>
+                );
+              })}
               {parents.length > SHOW ? <li className="text-ink-soft">and {parents.length - SHOW} more: see what holds it, below.</li> : null}
             </ul>
           )}
         </Panel>
         <Panel title="Shipped">
-          {shippedAt ? (
-            <p>
-              {formatDay(shippedAt)}
+          {ownShipment ? (
+            <p data-testid="shipped-when">
+              {formatDay(noonUtc(ownShipment.shippedOn))}
+              {ownShipment.dealer ? ` to ${ownShipment.dealer.name}` : ""}
+            </p>
+          ) : shippedAt ? (
+            <p data-testid="shipped-when">
+              {shipment ? formatDay(noonUtc(shipment.shippedOn)) : formatDay(shippedAt)}
+              {shipment?.dealer ? ` to ${shipment.dealer.name}` : ""}
               {shipments.length ? (
                 <>
                   {" "}
-                  in{" "}
+                  in {shipments.length === 1 ? "shipment " : "shipments "}
                   {shipments.slice(0, SHOW).map((s, i) => (
                     <span key={s.id}>
                       {i ? ", " : ""}
