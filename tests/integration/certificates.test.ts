@@ -9,7 +9,7 @@ import { tmpdir } from "node:os";
 import path from "node:path";
 import { and, eq, sql } from "drizzle-orm";
 import { extractText, getDocumentProxy } from "unpdf";
-import { beforeAll, describe, expect, test, vi } from "vitest";
+import { beforeAll, describe, expect, test } from "vitest";
 import { prepareZXingModule, readBarcodes } from "zxing-wasm/reader";
 import { getDb } from "@/db";
 import { certificates, events, finalTests, items, matchedSets, responses, setMembers } from "@/db/schema";
@@ -20,32 +20,9 @@ import { certificateData, certificateOf, issueCertificate, renderCertificate, ty
 import { appendEvent } from "@/lib/events/queries";
 import { releaseReserve } from "@/lib/veneer/flitches";
 import { failureText } from "./helpers";
+import { request } from "../setup/next-request";
 
-// The session cookie the mocked request carries (see guard-walk.test.ts, which this mimics).
-const request = vi.hoisted(() => ({ sessionId: null as string | null }));
-
-vi.mock("next/headers", async () => {
-  const { SESSION_COOKIE } = await import("@/lib/auth/lucia-cookie");
-  return {
-    cookies: async () => ({
-      get: (name: string) => (name === SESSION_COOKIE && request.sessionId ? { name, value: request.sessionId } : undefined),
-      set: () => {},
-    }),
-    headers: async () => new Headers({ host: "localhost:3000" }),
-  };
-});
-vi.mock("next/cache", () => ({ revalidatePath: () => {}, revalidateTag: () => {} }));
-vi.mock("next/navigation", () => ({
-  redirect: (to: string) => {
-    throw new Error(`redirect to ${to}`);
-  },
-  forbidden: () => {
-    throw new Error("forbidden");
-  },
-  notFound: () => {
-    throw new Error("notFound() called");
-  },
-}));
+// Signed in by setting request.sessionId: tests/integration/setup.ts mocks next/* with tests/setup/next-request.ts.
 
 const { GET: certificateRoute } = await import("@/app/api/v1/pairs/[identity]/certificate/route");
 
