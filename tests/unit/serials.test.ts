@@ -23,18 +23,8 @@ import {
   type SerialKind,
   type SerialParts,
 } from "@/lib/serials";
+import { seededRandom as rng } from "../fixtures/random";
 
-/** Seeded PRNG (mulberry32) so a failing random case can be replayed. */
-function rng(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 const pick = (r: () => number, chars: string, n: number) => Array.from({ length: n }, () => chars[Math.floor(r() * chars.length)]!).join("");
 const ALNUM = MOD37_ALPHABET.slice(0, 36);
 const DIGITS = "0123456789";
