@@ -172,7 +172,7 @@ describe("renderCertificate, read back by independent tools", () => {
     original = await renderCertificate(data);
   });
 
-  // REFERENCES.md, "Decoding what the register prints": unpdf (pdf.js) extracts a generated PDF's text.
+  // docs/REFERENCES.md, § Independent libraries: unpdf (pdf.js) extracts a generated PDF's text.
   test("unpdf finds the pair serial, both speaker serials, the model and the leaf numbers, on one page", async () => {
     const { text, pages } = await pdfText(original);
     expect(pages).toBe(1);
@@ -190,7 +190,7 @@ describe("renderCertificate, read back by independent tools", () => {
     expect(text).not.toContain("COPY");
   });
 
-  // REFERENCES.md, "Decoding what the register prints": zxing-wasm decodes QR from a PNG. The page
+  // docs/REFERENCES.md, § Independent libraries: zxing-wasm decodes QR from a PNG. The page
   // is rasterised by poppler (pdftoppm, installed by .ci/run), so what is checked is what prints.
   test.skipIf(!hasPdftoppm)("the QR code on the rasterised page decodes to exactly the verify URL", async () => {
     expect(await qrCodesOnPage(original)).toEqual([data.verifyUrl]);
@@ -255,7 +255,7 @@ describe("what the register adds to the certificate later", () => {
 
 describe("issueCertificate", () => {
   test("codes are 128 random bits as 26 lower-case base32 characters, and differ between pairs", async () => {
-    // RFC 4648 §10 test vectors, lower case and without padding.
+    // RFC 4648 §10 test vectors, lower case and without padding (docs/REFERENCES.md, § Reading back what Twinleaf prints).
     expect(base32(new TextEncoder().encode("foobar"))).toBe("mzxw6ytboi");
     expect(base32(new TextEncoder().encode("f"))).toBe("my");
     const codes = (await db().select({ code: certificates.code }).from(certificates)).map((r) => r.code);

@@ -56,7 +56,7 @@ describe("the final pair test", () => {
   test("just above the limit fails, names the band, and opens a nonconformance quality can accept as is", async () => {
     const pair = await builtPair();
     const left = flat(90);
-    // Every point of the 1 kHz band (891.251–1122.018 Hz, IEC 61260-1 edges in REFERENCES.md) of the right response 0.01 dB over the limit, the rest equal.
+    // Every point of the 1 kHz band (891.251–1122.018 Hz, IEC 61260-1 edges in docs/REFERENCES.md, § One-third-octave bands) of the right response 0.01 dB over the limit, the rest equal.
     const right = { name: "r.txt", text: left.text.split("\n").map((l, i) => (i === 0 ? l : (() => { const [hz, db] = l.split(" "); return Number(hz) >= 891.251 && Number(hz) < 1122.018 ? `${hz} ${Number(db) + model.pairResponseLimitDb + 0.01}` : l; })())).join("\n") };
     const r = await recordFinalTest(db(), { pair: pair.identity, left, right }, { id: lab });
     expect(r.comparison.pass).toBe(false);
