@@ -2,7 +2,7 @@ import { DataTable } from "@/components/ui/data-table";
 import { describeEvent, subjectLabel } from "@/lib/events/describe";
 import type { EventRow } from "@/lib/events/queries";
 import { formatWhen } from "@/lib/format";
-
+import { stationName } from "@/lib/vocabulary/stations";
 
 /** The event log as a sortable table: when, who, where, what and why. */
 export function EventTable({ events, caption, empty = "No events recorded here yet." }: { events: EventRow[]; caption: string; empty?: string }) {
@@ -14,18 +14,18 @@ export function EventTable({ events, caption, empty = "No events recorded here y
       initialSort={{ key: "at", dir: "desc" }}
       columns={[
         { key: "at", label: "When" },
-        { key: "who", label: "Who" },
-        { key: "station", label: "Where" },
-        { key: "what", label: "What" },
-        { key: "about", label: "About" },
-        { key: "why", label: "Why" },
+        { key: "who", label: "Who", cellClassName: "min-w-32" },
+        { key: "station", label: "Where", cellClassName: "min-w-28" },
+        { key: "what", label: "What", cellClassName: "min-w-64" },
+        { key: "about", label: "About", cellClassName: "min-w-44" },
+        { key: "why", label: "Why", cellClassName: "min-w-40" },
       ]}
       rows={events.map((e) => ({
         id: String(e.id),
         cells: {
           at: { value: e.at.getTime(), display: <time className="whitespace-nowrap" dateTime={e.at.toISOString()}>{formatWhen(e.at)}</time> },
           who: { value: e.actorName ?? (typeof e.data.machineTokenName === "string" ? `${e.data.machineTokenName} (machine token)` : "Twinleaf") },
-          station: { value: e.station },
+          station: { value: stationName(e.station) },
           what: { value: describeEvent(e.type, e.data), display: <span title={e.type}>{describeEvent(e.type, e.data)}{e.correctsId ? ` (corrects #${e.correctsId})` : ""}</span> },
           about: { value: subjectLabel(e), display: <span className="text-sm" title={e.subjectId}>{subjectLabel(e)}</span> },
           why: { value: e.reason ?? "" },
