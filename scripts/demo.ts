@@ -52,9 +52,12 @@ function portIsFree(p: number): Promise<boolean> {
   });
 }
 
-// Said before anything slow happens, rather than after a build.
+// Said before anything slow happens, rather than after a build, with a port that is free now.
 if (!(await portIsFree(port))) {
-  console.error(`Port ${port} is already in use (another Twinleaf demo, or another program).\nStart this demo on another port, for example: PORT=${port === 3300 ? 3400 : 3300} npm run demo`);
+  let free: number | undefined;
+  for (let p = port + 100; p <= port + 1000 && free === undefined; p += 100) if (await portIsFree(p)) free = p;
+  console.error(`Port ${port} is already in use (another Twinleaf demo, or another program).`);
+  console.error(free ? `Start this demo on another port, for example: PORT=${free} npm run demo` : "Start this demo on another port: PORT=<port> npm run demo");
   process.exit(1);
 }
 const other = runningDemo();

@@ -74,8 +74,12 @@ export async function startFakeSmtp(opts: { port?: number; host?: string; dir: s
       });
     },
   });
-  // A client dropping its connection surfaces here; it must not bring the process down.
-  server.on("error", (e) => console.error(`fake SMTP: ${e.message}`));
+  // A client dropping its connection surfaces here; it must not bring the process down. Errors
+  // before listening (a taken port) are the caller's to report.
+  let listening = false;
+  server.on("error", (e) => {
+    if (listening) console.error(`fake SMTP: ${e.message}`);
+  });
 
   const host = opts.host ?? "127.0.0.1";
   const listen = (port: number) =>
@@ -98,6 +102,7 @@ export async function startFakeSmtp(opts: { port?: number; host?: string; dir: s
     await listen(0);
   }
 
+  listening = true;
   const port = (server.server.address() as AddressInfo).port;
   return {
     port,
