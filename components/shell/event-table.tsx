@@ -26,8 +26,8 @@ export function EventTable({ events, caption, empty = "No events recorded here y
           at: { value: e.at.getTime(), display: <time className="whitespace-nowrap" dateTime={e.at.toISOString()}>{formatWhen(e.at)}</time> },
           who: { value: e.actorName ?? (typeof e.data.machineTokenName === "string" ? `${e.data.machineTokenName} (machine token)` : "Twinleaf") },
           station: { value: stationName(e.station) },
-          what: { value: describeEvent(e.type, e.data), display: <span title={e.type}>{describeEvent(e.type, e.data)}{e.correctsId ? ` (corrects #${e.correctsId})` : ""}</span> },
-          about: { value: subjectLabel(e), display: <span className="text-sm" title={e.subjectId}>{subjectLabel(e)}</span> },
+          what: { value: describeEvent(e.type, e.data), display: <span>{describeEvent(e.type, e.data)}{e.correctsId ? ` (corrects #${e.correctsId})` : ""}</span> },
+          about: { value: subjectLabel(e), display: <span className="text-sm">{subjectLabel(e)}</span> },
           why: { value: e.reason ?? "" },
         },
       }))}
