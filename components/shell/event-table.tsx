@@ -27,11 +27,11 @@ export function EventTable({ events, caption, empty = "No events recorded here y
       initialSort={{ key: "at", dir: "desc" }}
       columns={[
         { key: "at", label: "When" },
-        { key: "who", label: "Who" },
-        { key: "station", label: "Where" },
-        { key: "what", label: "What" },
-        { key: "about", label: "About" },
-        { key: "why", label: "Why" },
+        { key: "who", label: "Who", cellClassName: "min-w-32" },
+        { key: "station", label: "Where", cellClassName: "min-w-28" },
+        { key: "what", label: "What", cellClassName: "min-w-64" },
+        { key: "about", label: "About", cellClassName: "min-w-44" },
+        { key: "why", label: "Why", cellClassName: "min-w-40" },
       ]}
       rows={events.map((e) => {
         const what = `${describeEvent(e.type, e.data, { dealerNames: e.dealerNames })}${e.correctsId ? ` (corrects record ${e.correctsId})` : ""}`;

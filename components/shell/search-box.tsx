@@ -66,7 +66,7 @@ export function SearchBox() {
   };
 
   return (
-    <div className="relative w-full max-w-md" role="search">
+    <div className="relative w-full" role="search">
       <label htmlFor={`${listId}-input`} className="sr-only">
         Find a serial, lot, flitch, dealer or owner
       </label>
@@ -77,7 +77,7 @@ export function SearchBox() {
         type="search"
         autoComplete="off"
         spellCheck={false}
-        placeholder="Scan or type a serial, lot, dealer…"
+        placeholder="Scan or type a serial…"
         className="block min-h-12 w-full rounded-lg border border-line-strong bg-surface px-3 font-mono text-base"
         role="combobox"
         aria-expanded={open && hits.length > 0}

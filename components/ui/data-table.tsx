@@ -9,6 +9,8 @@ export interface Column {
   numeric?: boolean;
   /** False for columns such as buttons that have nothing to sort by. */
   sortable?: boolean;
+  /** Classes for the column's cells, e.g. a least width so a narrow screen scrolls the table rather than squeezing it. */
+  cellClassName?: string;
 }
 
 export interface Cell {
@@ -85,7 +87,7 @@ export function DataTable({ columns, rows, caption, empty = "Nothing here yet.",
           sorted.map((r) => (
             <TR key={r.id}>
               {columns.map((c) => (
-                <TD key={c.key} className={c.numeric ? "text-right tabular-nums" : undefined}>
+                <TD key={c.key} className={cx(c.numeric && "text-right tabular-nums", c.cellClassName)}>
                   {r.cells[c.key]?.display ?? r.cells[c.key]?.value ?? ""}
                 </TD>
               ))}

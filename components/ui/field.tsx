@@ -49,6 +49,25 @@ export function TextField({ label, hint, errors, className, ...input }: TextFiel
   );
 }
 
+type TextAreaFieldProps = Omit<ComponentProps<"textarea">, "id"> & { label: ReactNode; name: string; hint?: ReactNode; errors?: string[] };
+
+/** A labelled text area, two lines to start with, tied to its hint and error like TextField. */
+export function TextAreaField({ label, hint, errors, className, rows = 2, ...textarea }: TextAreaFieldProps) {
+  const id = useId();
+  return (
+    <FieldShell id={id} label={label} hint={hint} errors={errors}>
+      <textarea
+        id={id}
+        rows={rows}
+        className={cx(controlClasses, "py-2", className)}
+        aria-invalid={errors?.length ? true : undefined}
+        aria-describedby={describedBy(hint && `${id}-hint`, errors?.length && `${id}-error`)}
+        {...textarea}
+      />
+    </FieldShell>
+  );
+}
+
 type SelectFieldProps = Omit<ComponentProps<"select">, "id"> & {
   label: ReactNode;
   name: string;

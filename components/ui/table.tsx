@@ -3,7 +3,9 @@ import { cx } from "./cx";
 
 export function Table({ className, ...props }: ComponentProps<"table">) {
   return (
-    <div className="overflow-x-auto rounded-lg border border-line">
+    // Positioned, so that text kept for screen readers (absolutely placed) scrolls with the table
+    // instead of widening the whole page on a narrow screen.
+    <div className="relative overflow-x-auto rounded-lg border border-line">
       <table className={cx("w-full border-collapse text-left text-base", className)} {...props} />
     </div>
   );

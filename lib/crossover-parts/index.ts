@@ -7,7 +7,7 @@
  * Pure TypeScript: no server-only, no Node-only APIs, no dependencies, so the same code runs in a
  * form on the bench and on the server.
  *
- * Sources (see ../shared/REFERENCES.md, "Crossover networks"):
+ * Sources (see docs/REFERENCES.md, § Crossover networks):
  * - IEC 60063:2015 Table 1 for the E6, E12 and E24 series (hard-coded; see E_SERIES).
  * - IEC 60062 for the tolerance letters and the RKM code (a letter as the decimal point: 4k7, 8R2).
  * - Dickason, Loudspeaker Design Cookbook, for the first-order and 2nd-order Linkwitz–Riley formulas.
@@ -323,8 +323,8 @@ function readValue(text: string, unit: Unit | undefined, barePrefix: Prefix | nu
  * IEC 60063:2015 Table 1, two-digit series, mantissas of one decade. Hard-coded: the standard's
  * values are not 10^(k/n) rounded (E24 differs from naive rounding at 2.7 3.0 3.3 3.6 3.9 4.3 4.7
  * and 8.2; the unit test derives these).
- * - E12 and E24: as listed in ../shared/REFERENCES.md ("Crossover networks").
- * - E6: not listed in REFERENCES.md; IEC 60063:2015 Table 1 (E6 column), which takes every second
+ * - E12 and E24: as listed in docs/REFERENCES.md, § Crossover networks.
+ * - E6: IEC 60063:2015 Table 1 (E6 column), which takes every second
  *   E12 value (the test checks that). Seen reproduced at
  *   https://www.qsl.net/g4usp/Components/Component%20preferred%20values.htm.
  */

@@ -190,7 +190,7 @@ export interface ReadingContext {
   crossoverParts?: ReadonlyMap<number, readonly CrossoverPartReading[]>;
 }
 
-/** Thiele–Small fields as unit.ts_measured carries them, with their units (REFERENCES.md, Loudspeaker parameters). */
+/** Thiele–Small fields as unit.ts_measured carries them, with their units (docs/REFERENCES.md, § Loudspeaker parameters). */
 const TS_FIELDS: { key: string; name: string; unit: string | null; label: string; type?: string }[] = [
   { key: "fsHz", name: "fs", unit: "Hz", label: "Resonance frequency Fs" },
   { key: "qts", name: "qts", unit: null, label: "Total Q, Qts", type: "gs1:Dimensionless" },

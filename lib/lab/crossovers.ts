@@ -15,8 +15,8 @@ import { LAB_STATION, UnitsTakenError } from "./units";
 
 /**
  * Crossover boards: built from component lots at the bench, checked part by part against IEC 60063
- * preferred values and IEC 60062 tolerance letters (see ../shared/REFERENCES.md, "Crossover
- * networks"; the checks themselves live in lib/crossover-parts), and paired left/right on their
+ * preferred values and IEC 60062 tolerance letters (see docs/REFERENCES.md, § Crossover networks;
+ * the checks themselves live in lib/crossover-parts), and paired left/right on their
  * measured responses the way lib/lab/units.ts pairs drive units.
  */
 

@@ -49,7 +49,7 @@ describe("dispatch, as a packer does it", () => {
     expect(await violations(page), "pack page").toEqual([]);
 
     // The certificate printed first, as the page asks: true of the pair as it stands, tested and not
-    // yet packed. Its text is read back by unpdf (pdf.js), as REFERENCES.md suggests.
+    // yet packed. Its text is read back by unpdf (pdf.js), as docs/REFERENCES.md, § Reading back what Twinleaf prints suggests.
     const certificate = await page.request.get(url((await page.getByTestId("print-certificate").getAttribute("href"))!));
     expect(certificate.status()).toBe(200);
     const { text } = await extractText(await getDocumentProxy(new Uint8Array(await certificate.body())), { mergePages: true });

@@ -3,7 +3,7 @@
  * packing line and says nothing of a carton or of shipping; packed, it names its packer and
  * carton; shipped, a copy says the original went with it; after a repair, the copy shows the part
  * that was replaced and says the final test came before it. The PDF text is read back by unpdf
- * (Mozilla's pdf.js), as REFERENCES.md suggests for a generated PDF.
+ * (Mozilla's pdf.js), as docs/REFERENCES.md, § Reading back what Twinleaf prints suggests for a generated PDF.
  */
 import { and, eq, isNull, sql } from "drizzle-orm";
 import { extractText, getDocumentProxy } from "unpdf";

@@ -9,7 +9,7 @@ import { tmpdir } from "node:os";
 import path from "node:path";
 import { and, eq, sql } from "drizzle-orm";
 import { extractText, getDocumentProxy } from "unpdf";
-import { beforeAll, describe, expect, test, vi } from "vitest";
+import { beforeAll, describe, expect, test } from "vitest";
 import { prepareZXingModule, readBarcodes } from "zxing-wasm/reader";
 import { getDb } from "@/db";
 import { certificates, events, finalTests, items, matchedSets, responses, setMembers } from "@/db/schema";
@@ -20,32 +20,9 @@ import { certificateData, certificateOf, issueCertificate, renderCertificate, ty
 import { appendEvent } from "@/lib/events/queries";
 import { releaseReserve } from "@/lib/veneer/flitches";
 import { failureText } from "./helpers";
+import { request } from "../setup/next-request";
 
-// The session cookie the mocked request carries (see guard-walk.test.ts, which this mimics).
-const request = vi.hoisted(() => ({ sessionId: null as string | null }));
-
-vi.mock("next/headers", async () => {
-  const { SESSION_COOKIE } = await import("@/lib/auth/lucia-cookie");
-  return {
-    cookies: async () => ({
-      get: (name: string) => (name === SESSION_COOKIE && request.sessionId ? { name, value: request.sessionId } : undefined),
-      set: () => {},
-    }),
-    headers: async () => new Headers({ host: "localhost:3000" }),
-  };
-});
-vi.mock("next/cache", () => ({ revalidatePath: () => {}, revalidateTag: () => {} }));
-vi.mock("next/navigation", () => ({
-  redirect: (to: string) => {
-    throw new Error(`redirect to ${to}`);
-  },
-  forbidden: () => {
-    throw new Error("forbidden");
-  },
-  notFound: () => {
-    throw new Error("notFound() called");
-  },
-}));
+// Signed in by setting request.sessionId: tests/integration/setup.ts mocks next/* with tests/setup/next-request.ts.
 
 const { GET: certificateRoute } = await import("@/app/api/v1/pairs/[identity]/certificate/route");
 
@@ -195,7 +172,7 @@ describe("renderCertificate, read back by independent tools", () => {
     original = await renderCertificate(data);
   });
 
-  // REFERENCES.md, "Decoding what the register prints": unpdf (pdf.js) extracts a generated PDF's text.
+  // docs/REFERENCES.md, § Independent libraries: unpdf (pdf.js) extracts a generated PDF's text.
   test("unpdf finds the pair serial, both speaker serials, the model and the leaf numbers, on one page", async () => {
     const { text, pages } = await pdfText(original);
     expect(pages).toBe(1);
@@ -213,7 +190,7 @@ describe("renderCertificate, read back by independent tools", () => {
     expect(text).not.toContain("COPY");
   });
 
-  // REFERENCES.md, "Decoding what the register prints": zxing-wasm decodes QR from a PNG. The page
+  // docs/REFERENCES.md, § Independent libraries: zxing-wasm decodes QR from a PNG. The page
   // is rasterised by poppler (pdftoppm, installed by .ci/run), so what is checked is what prints.
   test.skipIf(!hasPdftoppm)("the QR code on the rasterised page decodes to exactly the verify URL", async () => {
     expect(await qrCodesOnPage(original)).toEqual([data.verifyUrl]);
@@ -278,7 +255,7 @@ describe("what the register adds to the certificate later", () => {
 
 describe("issueCertificate", () => {
   test("codes are 128 random bits as 26 lower-case base32 characters, and differ between pairs", async () => {
-    // RFC 4648 §10 test vectors, lower case and without padding.
+    // RFC 4648 §10 test vectors, lower case and without padding (docs/REFERENCES.md, § Reading back what Twinleaf prints).
     expect(base32(new TextEncoder().encode("foobar"))).toBe("mzxw6ytboi");
     expect(base32(new TextEncoder().encode("f"))).toBe("my");
     const codes = (await db().select({ code: certificates.code }).from(certificates)).map((r) => r.code);

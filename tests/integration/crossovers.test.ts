@@ -2,7 +2,7 @@
  * Crossover boards: building from component lots, the part checks, and left/right pairing.
  *
  * The checks rest on IEC 60063 (E24 preferred values: 4.7 and 5.1 are neighbours, 4.8 is not a
- * value) and IEC 60062 (tolerance letters: J is ±5 %), as listed in ../shared/REFERENCES.md,
+ * value) and IEC 60062 (tolerance letters: J is ±5 %), as listed in docs/REFERENCES.md, § Crossover networks,
  * "Crossover networks". All lots, part numbers and responses here are invented.
  */
 import { and, eq, sql } from "drizzle-orm";

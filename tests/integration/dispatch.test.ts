@@ -97,7 +97,7 @@ describe("packing lists", () => {
     await db().insert(models).values({
       id, code: "DT9", name: "Dispatch test", leavesPerFace: 1, minLeafLengthMm: 1, minLeafWidthMm: 1,
       pairResponseLimitDb: 1, responseMinHz: 100, responseMaxHz: 10_000,
-      pairGtin: "09521234543213", // a valid GTIN-14 from REFERENCES.md (GS1 section)
+      pairGtin: "09521234543213", // a valid GTIN-14 (docs/REFERENCES.md, § GS1)
       active: false,
     });
     expect(await packingList(db(), id)).toEqual([...DEFAULT_PACKING_LIST]);
@@ -287,11 +287,11 @@ describe.skipIf(!hasPdftoppm)("the carton label decodes to the GS1 element strin
     const [page] = await decodePdf(await cartonLabelPdf(db(), carton), { textMode: "HRI" });
     const hit = page![0]!;
     const decodedGtin = /^\(01\)(\d{14})\(11\)/.exec(hit.text)![1]!;
-    // GS1 mod-10 (REFERENCES.md): the project's implementation and an independent one agree.
+    // GS1 mod-10 (docs/REFERENCES.md, § GS1): the project's implementation and an independent one agree.
     expect(gs1CheckDigit(decodedGtin.slice(0, 13))).toBe(Number(decodedGtin[13]));
     expect(cdigit.gtin.validate(decodedGtin)).toBe(true);
     expect(cdigit.gtin.compute("629104150021")).toBe("3"); // GS1's own worked example pins the oracle
-    // bwip-js lints GS1 data and throws on a bad (01) check digit (REFERENCES.md): it takes ours…
+    // bwip-js lints GS1 data and throws on a bad (01) check digit (docs/REFERENCES.md, § Independent libraries): it takes ours…
     await expect(toBuffer({ bcid: "gs1-128", text: hit.text })).resolves.toBeInstanceOf(Buffer);
     // …and refuses the same string with the check digit off by one, so the check is not vacuous.
     const wrong = hit.text.replace(`(01)${decodedGtin}`, `(01)${decodedGtin.slice(0, 13)}${(Number(decodedGtin[13]) + 1) % 10}`);

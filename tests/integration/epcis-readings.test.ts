@@ -52,7 +52,7 @@ beforeAll(async () => {
   setClock(null);
   pairDoc = await epcisDocumentForItem(db(), pair.id, { baseUri: BASE });
 
-  // A tweeter's Thiele–Small set through the lab's form: the REFERENCES.md worked example.
+  // A tweeter's Thiele–Small set through the lab's form: the worked example of docs/REFERENCES.md, § Loudspeaker parameters.
   const unit = await db().transaction((tx) => createItem(tx, { kind: "drive_unit", identity: "D-TW-26-99001-X", state: "measured", partType: "tweeter", modelId: model.id }, { actorId: lab, station: "lab" }));
   await recordMeasurement(db(), { itemId: unit.id, response: null, ts: { fsHz: 37.51, qts: null, qes: 0.4329, qms: 2.996, reOhm: 6, vasL: 30.1, sensitivityDb: null } }, { id: lab });
   unitDoc = await epcisDocumentForItem(db(), unit.id, { baseUri: BASE });
@@ -113,7 +113,7 @@ describe("the readings the register records, as EPCIS sensor reports", () => {
       ["vas", "gs1:Volume", "LTR"],
     ]);
     expect(reports[0]!.value).toBe(37.51);
-    // The lab's form derives Qts = Qes·Qms/(Qes+Qms): REFERENCES.md gives 0.3783 for the worked
+    // The lab's form derives Qts = Qes·Qms/(Qes+Qms): docs/REFERENCES.md, § Loudspeaker parameters gives 0.3783 for the worked
     // example, 0.37825 from its rounded inputs 0.4329 and 2.996 (as in lab.test.ts).
     expect(reports[1]!.value).toBeCloseTo(0.37825, 5);
   });

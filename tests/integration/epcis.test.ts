@@ -15,7 +15,7 @@ import { changeState, createItem, fit, removeFrom } from "@/lib/genealogy/graph"
 import { validate } from "./epcis-validate";
 
 const BASE = "https://register.example.test";
-const GTIN = "09521234543213"; // a valid GTIN-14 from the GS1 General Specifications (REFERENCES.md)
+const GTIN = "09521234543213"; // a valid GTIN-14 from the GS1 General Specifications (docs/REFERENCES.md, § GS1)
 const t = (min: number) => new Date(Date.UTC(2024, 2, 4, 8, 0) + min * 60_000);
 const by = (station: Station, min: number) => ({ actorId: null, station, at: t(min) });
 

@@ -56,14 +56,14 @@ describe("the final pair test", () => {
   test("just above the limit fails, names the band, and opens a nonconformance quality can accept as is", async () => {
     const pair = await builtPair();
     const left = flat(90);
-    // Every point of the 1 kHz band (891.251–1122.018 Hz, IEC 61260-1 edges in REFERENCES.md) of the right response 0.01 dB over the limit, the rest equal.
+    // Every point of the 1 kHz band (891.251–1122.018 Hz, IEC 61260-1 edges in docs/REFERENCES.md, § One-third-octave bands) of the right response 0.01 dB over the limit, the rest equal.
     const right = { name: "r.txt", text: left.text.split("\n").map((l, i) => (i === 0 ? l : (() => { const [hz, db] = l.split(" "); return Number(hz) >= 891.251 && Number(hz) < 1122.018 ? `${hz} ${Number(db) + model.pairResponseLimitDb + 0.01}` : l; })())).join("\n") };
     const r = await recordFinalTest(db(), { pair: pair.identity, left, right }, { id: lab });
     expect(r.comparison.pass).toBe(false);
     expect(r.comparison.worstBand).toBe("1k");
     expect(r.nc).toMatch(/^NC-/);
     const [nc] = await db().select().from(nonconformances).where(eq(nonconformances.code, r.nc!));
-    // The band by its ISO 266 name with its unit (REFERENCES.md: the 1k band), the figures with theirs.
+    // The band by its ISO 266 name with its unit (docs/REFERENCES.md, § One-third-octave bands: the 1k band), the figures with theirs.
     expect(nc!.finding).toBe(`Final test: left and right differ by ${(model.pairResponseLimitDb + 0.01).toFixed(2)} dB at 1 kHz (limit ${model.pairResponseLimitDb.toFixed(1)} dB)`);
     expect(await failureText(() => dispositionNc(db(), { ncId: nc!.id, disposition: "scrap", scrapSide: "L", reason: "try scrap" }, { id: quality }))).toMatch(/reworked .* or used as is/);
     await dispositionNc(db(), { ncId: nc!.id, disposition: "use_as_is", reason: "one band 0.01 dB over; listening test fine" }, { id: quality });

@@ -7,7 +7,7 @@ import { readdirSync, readFileSync } from "node:fs";
 import { join, relative, sep } from "node:path";
 import { fileURLToPath } from "node:url";
 import { sql } from "drizzle-orm";
-import { beforeAll, describe, expect, test, vi } from "vitest";
+import { beforeAll, describe, expect, test } from "vitest";
 import { getDb } from "@/db";
 import { seedDemo } from "@/db/seed/seed";
 import { PERMISSIONS, ROLE_PERMISSIONS, type Permission } from "@/lib/auth/permissions";
@@ -15,47 +15,9 @@ import { ROLES, type Role } from "@/lib/auth/roles";
 import { createMachineToken, revokeMachineToken } from "@/lib/auth/machine-tokens";
 import { startSession } from "@/lib/auth/sessions";
 import type { FormState } from "@/lib/forms";
+import { RedirectSignal, request } from "../setup/next-request";
 
-// What the mocked request carries: the session of the user under test, and the cookies set.
-const request = vi.hoisted(() => {
-  class RedirectSignal extends Error {
-    constructor(public readonly to: string) {
-      super(`redirect to ${to}`);
-    }
-  }
-  class ForbiddenSignal extends Error {
-    constructor() {
-      super("forbidden");
-    }
-  }
-  return { sessionId: null as string | null, cookieSets: [] as { name: string; value: string }[], RedirectSignal, ForbiddenSignal };
-});
-
-vi.mock("next/headers", async () => {
-  const { SESSION_COOKIE } = await import("@/lib/auth/lucia-cookie");
-  return {
-    cookies: async () => ({
-      get: (name: string) => (name === SESSION_COOKIE && request.sessionId ? { name, value: request.sessionId } : undefined),
-      set: (nameOrCookie: string | { name: string; value: string }, value?: string) => {
-        const c = typeof nameOrCookie === "string" ? { name: nameOrCookie, value: value ?? "" } : nameOrCookie;
-        request.cookieSets.push({ name: c.name, value: c.value });
-      },
-    }),
-    headers: async () => new Headers({ host: "localhost:3000" }),
-  };
-});
-vi.mock("next/cache", () => ({ revalidatePath: () => {}, revalidateTag: () => {} }));
-vi.mock("next/navigation", () => ({
-  redirect: (to: string) => {
-    throw new request.RedirectSignal(to);
-  },
-  forbidden: () => {
-    throw new request.ForbiddenSignal();
-  },
-  notFound: () => {
-    throw new Error("notFound() called");
-  },
-}));
+// Signed in by setting request.sessionId: tests/integration/setup.ts mocks next/* with tests/setup/next-request.ts.
 
 /** The actions that need no session, as "file#export". Anything else without a permission fails. */
 const PUBLIC = new Set([
@@ -154,7 +116,7 @@ async function call(e: Entry, headers?: Record<string, string>): Promise<Outcome
       return { status: state.status ?? (state.ok ? 200 : 0), body: state };
     } catch (err) {
       // redirect() after a successful body: the guard was passed.
-      if (err instanceof request.RedirectSignal) return { status: 303, body: null, redirectedTo: err.to };
+      if (err instanceof RedirectSignal) return { status: 303, body: null, redirectedTo: err.to };
       throw err;
     }
   }

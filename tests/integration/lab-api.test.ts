@@ -1,17 +1,12 @@
 import { eq } from "drizzle-orm";
-import { beforeAll, describe, expect, test, vi } from "vitest";
+import { beforeAll, describe, expect, test } from "vitest";
 import { getDb } from "@/db";
 import { events, responses, users } from "@/db/schema";
 import { seedDemo } from "@/db/seed/seed";
 import { createMachineToken } from "@/lib/auth/machine-tokens";
 import { batchUnitsView, registerBatch } from "@/lib/lab/units";
 
-// Requests carry no session: a test bench calls with its machine token only.
-vi.mock("next/headers", () => ({
-  cookies: async () => ({ get: () => undefined, set: () => {} }),
-  headers: async () => new Headers({ host: "localhost:3000" }),
-}));
-vi.mock("next/cache", () => ({ revalidatePath: () => {}, revalidateTag: () => {} }));
+// Requests carry no session (tests/setup/next-request.ts): a test bench calls with its machine token only.
 
 const { POST: postResponses } = await import("@/app/api/v1/lab/responses/route");
 const { POST: postTs } = await import("@/app/api/v1/lab/ts-params/route");

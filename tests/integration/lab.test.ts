@@ -81,10 +81,10 @@ describe("batches and measurements", () => {
     expect(await countOf(responses)).toBe(before);
   });
 
-  test("Thiele–Small: Qts is derived from Qes and Qms (Qts = Qes·Qms/(Qes+Qms), REFERENCES.md) and a disagreeing Qts is refused", async () => {
+  test("Thiele–Small: Qts is derived from Qes and Qms (Qts = Qes·Qms/(Qes+Qms), docs/REFERENCES.md, § Loudspeaker parameters) and a disagreeing Qts is refused", async () => {
     const b = await newBatch(1);
     const [u] = await batchUnitsView(db(), b.id);
-    // The REFERENCES.md worked example: Qes 0.4329, Qms 2.996 → Qts 0.3783 (0.37825 from the rounded inputs).
+    // The worked example of docs/REFERENCES.md, § Loudspeaker parameters: Qes 0.4329, Qms 2.996 → Qts 0.3783 (0.37825 from the rounded inputs).
     await recordMeasurement(db(), { itemId: u!.id, response: null, ts: { fsHz: 37.51, qts: null, qes: 0.4329, qms: 2.996, reOhm: 6, vasL: 30.1, sensitivityDb: 88 } }, actor);
     const [row] = await db().select().from(tsParams).where(eq(tsParams.itemId, u!.id));
     expect(row!.qts).toBeCloseTo(0.37825, 4);

@@ -4,7 +4,7 @@
  */
 import { createHash } from "node:crypto";
 import { eq, sql } from "drizzle-orm";
-import { beforeAll, describe, expect, test, vi } from "vitest";
+import { beforeAll, describe, expect, test } from "vitest";
 import { getDb } from "@/db";
 import { events, machineTokens } from "@/db/schema";
 import { seedDemo } from "@/db/seed/seed";
@@ -21,32 +21,9 @@ import type { AuthUser } from "@/lib/auth/sessions";
 import { startSession } from "@/lib/auth/sessions";
 import type { FormState } from "@/lib/forms";
 import { failureText } from "./helpers";
+import { request } from "../setup/next-request";
 
-// The session cookie the mocked request carries (see guard-walk.test.ts, which this mimics).
-const request = vi.hoisted(() => ({ sessionId: null as string | null }));
-
-vi.mock("next/headers", async () => {
-  const { SESSION_COOKIE } = await import("@/lib/auth/lucia-cookie");
-  return {
-    cookies: async () => ({
-      get: (name: string) => (name === SESSION_COOKIE && request.sessionId ? { name, value: request.sessionId } : undefined),
-      set: () => {},
-    }),
-    headers: async () => new Headers({ host: "localhost:3000" }),
-  };
-});
-vi.mock("next/cache", () => ({ revalidatePath: () => {}, revalidateTag: () => {} }));
-vi.mock("next/navigation", () => ({
-  redirect: (to: string) => {
-    throw new Error(`redirect to ${to}`);
-  },
-  forbidden: () => {
-    throw new Error("forbidden");
-  },
-  notFound: () => {
-    throw new Error("notFound() called");
-  },
-}));
+// Signed in by setting request.sessionId: tests/integration/setup.ts mocks next/* with tests/setup/next-request.ts.
 
 const { GET: whoami } = await import("@/app/api/v1/lab/whoami/route");
 const { GET: me } = await import("@/app/api/v1/me/route");

@@ -4,7 +4,7 @@
  * errors keyed by their place in the form ("steps.0.readings.0.max") and writes nothing.
  */
 import { asc, eq, sql } from "drizzle-orm";
-import { beforeAll, describe, expect, test, vi } from "vitest";
+import { beforeAll, describe, expect, test } from "vitest";
 import { getDb } from "@/db";
 import { events, finishes, items, models, processSpecs, users } from "@/db/schema";
 import { seedDemo } from "@/db/seed/seed";
@@ -14,39 +14,9 @@ import { defaultRoute } from "@/lib/route/default-spec";
 import { pairRoute, recordStep } from "@/lib/route/pair-route";
 import type { StepSpec } from "@/lib/route/types";
 import { confirmRuns, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
+import { RedirectSignal, request } from "../setup/next-request";
 
-// The session the mocked request carries, and redirect() as a throw (see guard-walk.test.ts).
-const request = vi.hoisted(() => {
-  class RedirectSignal extends Error {
-    constructor(public readonly to: string) {
-      super(`redirect to ${to}`);
-    }
-  }
-  return { sessionId: null as string | null, RedirectSignal };
-});
-
-vi.mock("next/headers", async () => {
-  const { SESSION_COOKIE } = await import("@/lib/auth/lucia-cookie");
-  return {
-    cookies: async () => ({
-      get: (name: string) => (name === SESSION_COOKIE && request.sessionId ? { name, value: request.sessionId } : undefined),
-      set: () => {},
-    }),
-    headers: async () => new Headers({ host: "localhost:3000" }),
-  };
-});
-vi.mock("next/cache", () => ({ revalidatePath: () => {}, revalidateTag: () => {} }));
-vi.mock("next/navigation", () => ({
-  redirect: (to: string) => {
-    throw new request.RedirectSignal(to);
-  },
-  forbidden: () => {
-    throw new Error("forbidden");
-  },
-  notFound: () => {
-    throw new Error("notFound() called");
-  },
-}));
+// Signed in by setting request.sessionId: tests/integration/setup.ts mocks next/* with tests/setup/next-request.ts.
 
 const { saveRouteVersionAction } = await import("@/app/(workshop)/admin/routes/actions");
 
@@ -76,7 +46,7 @@ async function save(fields: { modelId?: string; baseVersion?: string; note?: str
   try {
     return { state: await saveRouteVersionAction(undefined, fd) };
   } catch (e) {
-    if (e instanceof request.RedirectSignal) return { redirectedTo: e.to };
+    if (e instanceof RedirectSignal) return { redirectedTo: e.to };
     throw e;
   }
 }

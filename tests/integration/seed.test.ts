@@ -113,7 +113,7 @@ describe("the demo seed", () => {
 
 describe("GS1 check digits", () => {
   // GS1 General Specifications, §7.9.1 (standard check digit calculation), worked example:
-  // 629104150021 → 3. The others and the valid GTIN-14s are from /work/shared/REFERENCES.md (GS1).
+  // 629104150021 → 3. The others and the valid GTIN-14s are from docs/REFERENCES.md, § GS1.
   test.each([
     ["629104150021", 3],
     ["730001100001", 7],

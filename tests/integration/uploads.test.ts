@@ -22,20 +22,9 @@ import {
   UploadError,
 } from "@/lib/uploads";
 import { failureText } from "./helpers";
+import { request } from "../setup/next-request";
 
-// The session the mocked cookie store hands to the guard.
-const request = vi.hoisted(() => ({ sessionId: null as string | null }));
-vi.mock("next/headers", async () => {
-  const { SESSION_COOKIE } = await import("@/lib/auth/lucia-cookie");
-  return {
-    cookies: async () => ({
-      get: (name: string) => (name === SESSION_COOKIE && request.sessionId ? { name, value: request.sessionId } : undefined),
-      set: () => {},
-    }),
-    headers: async () => new Headers({ host: "localhost:3000" }),
-  };
-});
-vi.mock("next/cache", () => ({ revalidatePath: () => {}, revalidateTag: () => {} }));
+// Signed in by setting request.sessionId: tests/integration/setup.ts mocks next/* with tests/setup/next-request.ts.
 
 // Every read of the disk goes through this spy, so a test can say the disk was never touched.
 const fsReads = vi.hoisted(() => ({ paths: [] as string[] }));

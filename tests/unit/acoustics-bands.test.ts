@@ -33,7 +33,7 @@ const sweep = (from: number, to: number, db: (hz: number) => number): ResponsePo
 
 describe("thirdOctaveBands: IEC 61260-1:2014 values", () => {
   // Source: IEC 61260-1:2014, base-10 one-third-octave bands (b = 3, G = 10^(3/10), fr = 1000 Hz),
-  // values as tabulated in /work/shared/REFERENCES.md "Fractional-octave bands".
+  // values as tabulated in docs/REFERENCES.md, § One-third-octave bands.
   test.each([
     [-10, "100.000", "89.1251", "112.202"],
     [0, "1000", "891.251", "1122.018"],
@@ -46,12 +46,12 @@ describe("thirdOctaveBands: IEC 61260-1:2014 values", () => {
     expectPublished(b.upperHz, upper);
   });
 
-  test("band x = −17 has its exact centre at 19.9526 Hz (IEC 61260-1:2014, via REFERENCES.md)", () => {
+  test("band x = −17 has its exact centre at 19.9526 Hz (IEC 61260-1:2014, via docs/REFERENCES.md, § One-third-octave bands)", () => {
     expectPublished(bandAt(-17).centreHz, "19.9526");
   });
 
-  test("20 Hz to 20 kHz gives the 31 ISO 266 nominal names in order (ISO 266, via REFERENCES.md)", () => {
-    // Source: ISO 266 preferred frequencies for one-third octaves, as listed in REFERENCES.md.
+  test("20 Hz to 20 kHz gives the 31 ISO 266 nominal names in order (ISO 266, via docs/REFERENCES.md, § One-third-octave bands)", () => {
+    // Source: ISO 266 preferred frequencies for one-third octaves, as listed in docs/REFERENCES.md, § One-third-octave bands.
     const iso266 = "20 25 31.5 40 50 63 80 100 125 160 200 250 315 400 500 630 800 1k 1.25k 1.6k 2k 2.5k 3.15k 4k 5k 6.3k 8k 10k 12.5k 16k 20k".split(" ");
     const bands = thirdOctaveBands(20, 20000);
     expect(bands.map((b) => b.nominal)).toEqual(iso266);

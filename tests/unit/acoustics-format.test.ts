@@ -1,13 +1,13 @@
 /**
  * How frequencies, bands, levels and Thiele–Small values are written on the lab's pages. Band
- * names are the ISO 266 nominal one-third-octave names listed in ../shared/REFERENCES.md
- * ("Fractional-octave bands"); "k" is the SI prefix kilo (10³, SI Brochure, BIPM, 9th ed.,
+ * names are the ISO 266 nominal one-third-octave names listed in docs/REFERENCES.md, § One-third-octave bands;
+ * "k" is the SI prefix kilo (10³, SI Brochure, BIPM, 9th ed.,
  * Table 7). The number of decimals shown is Twinleaf's own rule for its pages, stated in each case.
  */
 import { describe, expect, test } from "vitest";
 import { bandLabel, bandLabelOf, formatDb, formatHz, formatHzRange, formatLimitDb, formatTs, formatTsWithUnit, thirdOctaveBands, type TsField } from "@/lib/acoustics";
 
-// ISO 266 nominal names, as listed in REFERENCES.md, 20 Hz to 20 kHz.
+// ISO 266 nominal names, as listed in docs/REFERENCES.md, § One-third-octave bands, 20 Hz to 20 kHz.
 const ISO_266 = ["20", "25", "31.5", "40", "50", "63", "80", "100", "125", "160", "200", "250", "315", "400", "500", "630", "800", "1k", "1.25k", "1.6k", "2k", "2.5k", "3.15k", "4k", "5k", "6.3k", "8k", "10k", "12.5k", "16k", "20k"];
 
 describe("a band's name with its unit", () => {
@@ -42,9 +42,9 @@ describe("a frequency with its unit, three significant figures (Twinleaf's rule)
   test.each<[number, string]>([
     [20, "20 Hz"],
     [31.5, "31.5 Hz"],
-    [19.9526, "20 Hz"], // the exact centre of the 20 Hz band (IEC 61260-1, REFERENCES.md)
+    [19.9526, "20 Hz"], // the exact centre of the 20 Hz band (IEC 61260-1, docs/REFERENCES.md, § One-third-octave bands)
     [1000, "1 kHz"],
-    [1258.925, "1.26 kHz"], // the exact centre of the 1.25 kHz band (IEC 61260-1, REFERENCES.md)
+    [1258.925, "1.26 kHz"], // the exact centre of the 1.25 kHz band (IEC 61260-1, docs/REFERENCES.md, § One-third-octave bands)
     [999.7, "1 kHz"], // rounds up into kilohertz
     [2000, "2 kHz"],
     [12500, "12.5 kHz"],
@@ -84,14 +84,14 @@ describe("levels in dB, always with the unit (Twinleaf's rule: two decimals; a l
 
 describe("Thiele–Small values with the precision they carry (Twinleaf's rule, from the brief)", () => {
   test.each<[TsField, number, string, string]>([
-    ["fs", 37.51, "37.5", "37.5 Hz"], // REFERENCES.md worked example: Fs 37.51 Hz, shown to 0.1 Hz below 100 Hz
+    ["fs", 37.51, "37.5", "37.5 Hz"], // docs/REFERENCES.md, § Loudspeaker parameters, worked example: Fs 37.51 Hz, shown to 0.1 Hz below 100 Hz
     ["fs", 905.4, "905", "905 Hz"], // whole hertz from 100 Hz
     ["fs", 99.96, "100.0", "100.0 Hz"],
-    ["qts", 0.3783, "0.378", "0.378"], // REFERENCES.md worked example: Qts 0.3783
+    ["qts", 0.3783, "0.378", "0.378"], // docs/REFERENCES.md, § Loudspeaker parameters, worked example: Qts 0.3783
     ["qes", 0.4329, "0.433", "0.433"],
     ["qms", 2.996, "3.00", "3.00"], // two decimals from 1
     ["re", 6, "6.00", "6.00 Ω"],
-    ["vas", 30.1, "30.1", "30.1 L"], // REFERENCES.md worked example: Vas 30.10 L
+    ["vas", 30.1, "30.1", "30.1 L"], // docs/REFERENCES.md, § Loudspeaker parameters, worked example: Vas 30.10 L
     ["vas", 0.05234, "0.0523", "0.0523 L"],
     ["sensitivity", 88.46, "88.5", "88.5 dB"],
   ])("%s %d → %s (%s)", (field, value, text, withUnit) => {

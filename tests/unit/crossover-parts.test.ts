@@ -20,28 +20,27 @@ import {
   type Unit,
 } from "@/lib/crossover-parts";
 
-// Every expected value below names its source. "REFERENCES.md" is ../shared/REFERENCES.md,
-// section "Crossover networks".
+// Every expected value below names its source.
 
-// IEC 60063 E12, as listed in REFERENCES.md.
+// IEC 60063 E12, as listed in docs/REFERENCES.md, § Crossover networks.
 const IEC_60063_E12 = [1.0, 1.2, 1.5, 1.8, 2.2, 2.7, 3.3, 3.9, 4.7, 5.6, 6.8, 8.2];
-// IEC 60063 E24 = E12 plus these, as listed in REFERENCES.md ("E24 adds …").
+// IEC 60063 E24 = E12 plus these, as listed in docs/REFERENCES.md, § Crossover networks ("E24 adds …").
 const IEC_60063_E24_ADDS = [1.1, 1.3, 1.6, 2.0, 2.4, 3.0, 3.6, 4.3, 5.1, 6.2, 7.5, 9.1];
 const IEC_60063_E24 = [...IEC_60063_E12, ...IEC_60063_E24_ADDS].sort((a, b) => a - b);
-// IEC 60063:2015 Table 1, E6 column (not in REFERENCES.md; as reproduced at
+// IEC 60063:2015 Table 1, E6 column (docs/REFERENCES.md, § Crossover networks; as reproduced at
 // https://www.qsl.net/g4usp/Components/Component%20preferred%20values.htm).
 const IEC_60063_E6 = [1.0, 1.5, 2.2, 3.3, 4.7, 6.8];
 
 describe("IEC 60063 preferred-value tables", () => {
-  test("E24 built from REFERENCES.md has 24 distinct values", () => {
+  test("E24 built from docs/REFERENCES.md, § Crossover networks has 24 distinct values", () => {
     expect(new Set(IEC_60063_E24).size).toBe(24);
   });
 
-  test.each(IEC_60063_E12.map((v, i) => [i, v]))("E12[%i] is %d (IEC 60063 via REFERENCES.md)", (i, v) => {
+  test.each(IEC_60063_E12.map((v, i) => [i, v]))("E12[%i] is %d (IEC 60063 via docs/REFERENCES.md, § Crossover networks)", (i, v) => {
     expect(E_SERIES.E12[i]).toBe(v);
   });
 
-  test.each(IEC_60063_E24.map((v, i) => [i, v]))("E24[%i] is %d (IEC 60063 via REFERENCES.md)", (i, v) => {
+  test.each(IEC_60063_E24.map((v, i) => [i, v]))("E24[%i] is %d (IEC 60063 via docs/REFERENCES.md, § Crossover networks)", (i, v) => {
     expect(E_SERIES.E24[i]).toBe(v);
   });
 
@@ -63,14 +62,14 @@ describe("IEC 60063 preferred-value tables", () => {
   });
 });
 
-describe("naive rounding of 10^(k/n) is not IEC 60063 (REFERENCES.md: wrong in 8 places)", () => {
+describe("naive rounding of 10^(k/n) is not IEC 60063 (docs/REFERENCES.md, § Crossover networks: wrong in 8 places)", () => {
   const naive = (n: number) => Array.from({ length: n }, (_, k) => Number((10 ** (k / n)).toPrecision(2)));
   const differences = (n: number, table: readonly number[]) =>
     naive(n).flatMap((v, k) => (v === table[k] ? [] : [{ k, naive: v, standard: table[k] }]));
 
   test("E24 differs from naive rounding in exactly 8 places, derived here", () => {
     const diff = differences(24, E_SERIES.E24);
-    expect(diff).toHaveLength(8); // REFERENCES.md: "rounding 10^(k/24) gives wrong values in 8 places"
+    expect(diff).toHaveLength(8); // docs/REFERENCES.md, § Crossover networks: "rounding 10^(k/24) gives a wrong value in 8 places"
     // What the derivation finds (10^(10/24) = 2.610… rounds to 2.6, the standard says 2.7, and so on):
     expect(diff.map((d) => d.standard)).toEqual([2.7, 3.0, 3.3, 3.6, 3.9, 4.3, 4.7, 8.2]);
     expect(diff.map((d) => d.naive)).toEqual([2.6, 2.9, 3.2, 3.5, 3.8, 4.2, 4.6, 8.3]);
@@ -161,7 +160,7 @@ describe("checkNominal names the neighbours below and above", () => {
 });
 
 describe("IEC 60062 tolerance letters", () => {
-  // IEC 60062 via REFERENCES.md: B ±0.1 %, C ±0.25 %, D ±0.5 %, F ±1 %, G ±2 %, J ±5 %, K ±10 %, M ±20 %.
+  // IEC 60062 via docs/REFERENCES.md, § Crossover networks: B ±0.1 %, C ±0.25 %, D ±0.5 %, F ±1 %, G ±2 %, J ±5 %, K ±10 %, M ±20 %.
   const IEC_60062 = { B: 0.001, C: 0.0025, D: 0.005, F: 0.01, G: 0.02, J: 0.05, K: 0.1, M: 0.2 };
 
   test("the table is exactly the IEC 60062 letters", () => {
@@ -515,7 +514,7 @@ describe("boardVerdict", () => {
   });
 });
 
-describe("crossoverValues: Dickason, Loudspeaker Design Cookbook (REFERENCES.md)", () => {
+describe("crossoverValues: Dickason, Loudspeaker Design Cookbook (docs/REFERENCES.md, § Crossover networks)", () => {
   const x = crossoverValues(3000, 8);
 
   test("8 Ω at 3 kHz, first order: 6.631 µF / 0.4244 mH", () => {

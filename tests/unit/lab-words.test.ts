@@ -1,6 +1,6 @@
 /**
  * The lab's counts and plans in its own words. Expected values follow from the invented inputs
- * of each case (no outside source is involved), except band names: ISO 266 (REFERENCES.md).
+ * of each case (no outside source is involved), except band names: ISO 266 (docs/REFERENCES.md, § One-third-octave bands).
  */
 import { describe, expect, test } from "vitest";
 import { whyNoPairs } from "@/lib/lab/plan-words";
@@ -38,7 +38,7 @@ describe("where a unit stands", () => {
 });
 
 describe("why a plan pairs nothing", () => {
-  // Three bands named as ISO 266 names them (REFERENCES.md), with their unit.
+  // Three bands named as ISO 266 names them (docs/REFERENCES.md, § One-third-octave bands), with their unit.
   const labels = ["1.6 kHz", "2 kHz", "2.5 kHz"];
   const u = (id: string, ...levels: number[]): Unit => ({ id, levels });
 

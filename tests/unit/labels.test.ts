@@ -28,14 +28,14 @@ async function decode(png: Buffer, opts: ReaderOptions = {}) {
 }
 
 // GS1 mod-10 check digits, by cdigit (an independent implementation) pinned first to GS1's own
-// worked example from REFERENCES.md (629104150021 → 3).
+// worked example (docs/REFERENCES.md, § GS1: 629104150021 → 3).
 const GTIN_DEMO = "1952773000100" + cdigit.gtin.compute("1952773000100"); // 952 is GS1's demo prefix
 const GS1_TEXT = `(01)${GTIN_DEMO}(11)261201(21)K-PW2-26-00007-3`;
 
 describe("GS1 check digits used as inputs", () => {
   test("cdigit agrees with GS1's worked example and the reference GTINs", () => {
     expect(cdigit.gtin.compute("629104150021")).toBe("3"); // GS1 General Specifications example
-    expect(cdigit.gtin.validate("09521234543213")).toBe(true); // REFERENCES.md valid GTIN-14
+    expect(cdigit.gtin.validate("09521234543213")).toBe(true); // a valid GTIN-14 (docs/REFERENCES.md, § GS1)
     expect(cdigit.gtin.validate("09521234543214")).toBe(false);
     expect(GTIN_DEMO).toBe("19527730001001");
   });
@@ -71,7 +71,7 @@ describe("renderBarcode PNG decodes back to its text (oracle: zxing-wasm)", () =
       plain: `01${GTIN_DEMO}11261201` + "21K-PW2-26-00007-3",
     },
     {
-      // REFERENCES.md's element string example, with the AI "01" its first field leaves out:
+      // the element string example of docs/REFERENCES.md, § GS1, with the AI "01" its first field leaves out:
       // FNC1 01 09521234543213 17 100101 10 123ABC GS 21 1234567890.
       text: "(01)09521234543213(17)100101(10)123ABC(21)1234567890",
       plain: "0109521234543213" + "17100101" + "10123ABC" + "\x1d" + "211234567890",

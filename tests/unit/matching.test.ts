@@ -12,22 +12,10 @@ import {
   type Unit,
   type WeightedEdge,
 } from "@/lib/matching";
+import { gaussian as gauss, randomInt as int, seededRandom as rng } from "../fixtures/random";
 
 // ---- helpers written from the definitions, independent of lib/matching -------------------------
 
-/** Seeded PRNG (mulberry32) so a failing random case can be replayed. */
-function rng(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-const gauss = (r: () => number) => Math.sqrt(-2 * Math.log(1 - r())) * Math.cos(2 * Math.PI * r());
-const int = (r: () => number, lo: number, hi: number) => lo + Math.floor(r() * (hi - lo + 1));
 
 /** The cost of a pair as the product rules define it. */
 function definedCost(a: Unit, b: Unit, o: MatchOptions) {

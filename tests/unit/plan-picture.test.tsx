@@ -2,6 +2,7 @@ import { renderToStaticMarkup } from "react-dom/server";
 import { describe, expect, test } from "vitest";
 import { PlanPicture, type PlanPictureLeaf } from "@/components/veneer/plan-picture";
 import { planFlitch, planYield, type PlanLeaf, type PlanSpec } from "@/lib/veneer/plan";
+import { seededRandom as rng } from "../fixtures/random";
 
 // Every flitch below is made up for its test case.
 const spec = (o: Partial<PlanSpec> = {}): PlanSpec => ({ leavesPerFace: 2, minLengthMm: 900, minWidthMm: 150, reservePerPair: 1, ...o });
@@ -177,15 +178,6 @@ describe("PlanPicture", () => {
  * them; the picture must never show a right face that way.
  */
 describe("PlanPicture shows a book match (AWS §1.2.19), never a slip match (§1.2.20)", () => {
-  // A small deterministic generator, so a failure can be replayed.
-  function rng(seed: number) {
-    let s = seed >>> 0;
-    return () => {
-      s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
-      return s / 2 ** 32;
-    };
-  }
-
   test("for random flitches: left[i] < right[i] < left[i+1], consecutive, and exactly the right faces are turned", () => {
     for (let seed = 1; seed <= 60; seed++) {
       const r = rng(seed);

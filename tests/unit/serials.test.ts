@@ -23,18 +23,8 @@ import {
   type SerialKind,
   type SerialParts,
 } from "@/lib/serials";
+import { seededRandom as rng } from "../fixtures/random";
 
-/** Seeded PRNG (mulberry32) so a failing random case can be replayed. */
-function rng(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 const pick = (r: () => number, chars: string, n: number) => Array.from({ length: n }, () => chars[Math.floor(r() * chars.length)]!).join("");
 const ALNUM = MOD37_ALPHABET.slice(0, 36);
 const DIGITS = "0123456789";
@@ -56,9 +46,9 @@ const oracleValid = (compact: string) => !compact.slice(0, -1).includes("*") && 
 
 describe("mod37_2Check", () => {
   test.each([
-    // ISO/IEC 7064 MOD 37-2 worked example (REFERENCES.md)
+    // ISO/IEC 7064 MOD 37-2 worked example (docs/REFERENCES.md, § ISO/IEC 7064 check characters)
     ["G123489654321", "Y"],
-    // the same body with 8 and 9 transposed: the check changes, so the slip is caught (REFERENCES.md)
+    // the same body with 8 and 9 transposed: the check changes, so the slip is caught (docs/REFERENCES.md, § ISO/IEC 7064 check characters)
     ["G123498654321", "H"],
   ])("%s → %s (published vector)", (body, check) => {
     expect(mod37_2Check(body)).toBe(check);
@@ -66,7 +56,7 @@ describe("mod37_2Check", () => {
   });
 
   test("the transposed published vector fails with the original's check character", () => {
-    // ISO/IEC 7064 MOD 37-2 example pair (REFERENCES.md): Y belongs to G123489654321 only.
+    // ISO/IEC 7064 MOD 37-2 example pair (docs/REFERENCES.md, § ISO/IEC 7064 check characters): Y belongs to G123489654321 only.
     expect(isValidMod37_2("G123498654321Y")).toBe(false);
   });
 
@@ -114,8 +104,8 @@ describe("mod37_2Check", () => {
 describe("gs1CheckDigit", () => {
   test.each([
     ["629104150021", 3, "GS1 General Specifications, check digit worked example (6291041500213)"],
-    ["730001100001", 7, "GS1 check digit example (REFERENCES.md)"],
-    ["890400021003", 7, "GS1 check digit example (REFERENCES.md)"],
+    ["730001100001", 7, "GS1 check digit example (docs/REFERENCES.md, § GS1)"],
+    ["890400021003", 7, "GS1 check digit example (docs/REFERENCES.md, § GS1)"],
     ["0952123454321", 3, "GS1 example GTIN-14 09521234543213"],
     ["9501234567890", 3, "GS1 example GTIN-14 95012345678903"],
     ["0345312000001", 1, "GS1 example GTIN-14 03453120000011"],
@@ -165,7 +155,7 @@ describe("isValidGtin", () => {
     }
   });
 
-  // bwip-js lints the (01) element (REFERENCES.md: an independent oracle): for every possible check
+  // bwip-js lints the (01) element (docs/REFERENCES.md, § Independent libraries): for every possible check
   // digit of the published GTINs, it accepts exactly the one isValidGtin accepts.
   const bwipAccepts = (text: string) => {
     try {
@@ -202,7 +192,7 @@ describe("cartonElementString", () => {
   }
 
   test("the scan oracle reproduces GS1's published element string layout", async () => {
-    // REFERENCES.md (GS1 General Specifications): (01)09521234543213(17)100101(10)123ABC(21)1234567890
+    // docs/REFERENCES.md, § GS1 (element string): (01)09521234543213(17)100101(10)123ABC(21)1234567890
     // encodes as FNC1 0952123454321317100101 10123ABC GS 211234567890.
     const scanned = await scan("(01)09521234543213(17)100101(10)123ABC(21)1234567890");
     expect(scanned.raw).toBe(`010952123454321317100101` + `10123ABC${GS}` + `211234567890`);

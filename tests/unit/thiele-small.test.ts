@@ -29,8 +29,8 @@ const valuesOf = (r: TsCheckResult) => {
   return r;
 };
 
-describe("Thiele–Small relations: the worked example in REFERENCES.md", () => {
-  // Source: /work/shared/REFERENCES.md "Loudspeaker parameters", worked example:
+describe("Thiele–Small relations: the worked example in docs/REFERENCES.md, § Loudspeaker parameters", () => {
+  // Source: docs/REFERENCES.md, § Loudspeaker parameters, worked example:
   // Mms 15 g, Cms 1.2 mm/N, Bl 7 T·m, Re 6 Ω, Rms 1.18 N·s/m, Sd 133 cm²
   // → Fs 37.51 Hz, Qes 0.4329, Qms 2.996, Qts 0.3783, Vas 30.10 L (ρ 1.204 kg/m³, c 343.2 m/s).
   const mms = 15e-3; // kg
@@ -102,24 +102,24 @@ describe("TS_FIELDS", () => {
     ]);
   });
 
-  test("the sensitivity note says 2.83 V is 1 W only at 8 Ω (IEC 60268-5, via REFERENCES.md)", () => {
+  test("the sensitivity note says 2.83 V is 1 W only at 8 Ω (IEC 60268-5, via docs/REFERENCES.md, § Loudspeaker parameters)", () => {
     const hint = TS_FIELDS.find((f) => f.key === "sensitivity")!.hint!;
     expect(hint).toMatch(/1 W only into 8 Ω/);
     expect(hint).toMatch(/4 Ω it is 2 W/);
-    // 2.83 V into 8 Ω: P = U²/R ≈ 1.001 W; into 4 Ω ≈ 2.002 W, +3.01 dB (REFERENCES.md).
+    // 2.83 V into 8 Ω: P = U²/R ≈ 1.001 W; into 4 Ω ≈ 2.002 W, +3.01 dB (docs/REFERENCES.md, § Loudspeaker parameters).
     expect(2.83 ** 2 / 8).toBeCloseTo(1, 2);
     expect(10 * Math.log10(2.83 ** 2 / 4 / (2.83 ** 2 / 8))).toBeCloseTo(3.01, 2);
   });
 });
 
 describe("checkTsParams", () => {
-  // The worked example of REFERENCES.md, rounded as published, as a user would type it.
+  // The worked example of docs/REFERENCES.md, § Loudspeaker parameters, rounded as published, as a user would type it.
   const example = { fs: 37.51, qes: 0.4329, qms: 2.996, re: 6, vas: 30.1, sensitivity: 87 };
 
   test("a good set passes, deriving a missing Qts from Qes and Qms", () => {
     const r = valuesOf(checkTsParams(example));
     expect(r.derived).toEqual(["qts"]);
-    // REFERENCES.md gives Qts 0.3783 from the unrounded Qes and Qms; from the published 0.4329 and
+    // docs/REFERENCES.md, § Loudspeaker parameters, gives Qts 0.3783 from the unrounded Qes and Qms; from the published 0.4329 and
     // 2.996 it comes out 0.37825, so allow one unit in the last published digit.
     expect(Math.abs(r.values.qts! - 0.3783)).toBeLessThan(1e-4);
     expect(r.values).toMatchObject(example);

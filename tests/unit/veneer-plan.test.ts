@@ -1,5 +1,6 @@
 import { describe, expect, test } from "vitest";
 import { planFlitch, planYield, type PlanLeaf, type PlanSpec } from "@/lib/veneer/plan";
+import { seededRandom as rng } from "../fixtures/random";
 
 const leaf = (seq: number, o: Partial<PlanLeaf> = {}): PlanLeaf => ({ seq, lengthMm: 1000, widthMm: 200, usable: true, ...o });
 const flitch = (n: number, bad: number[] = []) => Array.from({ length: n }, (_, i) => leaf(i + 1, { usable: !bad.includes(i + 1) }));
@@ -70,11 +71,6 @@ function bruteForce(leaves: PlanLeaf[], s: PlanSpec): { pairs: number; used: num
   };
   go(0, []);
   return best;
-}
-
-function rng(seed: number) {
-  let s = seed >>> 0;
-  return () => ((s = (s * 1664525 + 1013904223) >>> 0) / 2 ** 32);
 }
 
 test("on 500 random small flitches the plan has the most pairs and the earliest leaves (brute force)", () => {
