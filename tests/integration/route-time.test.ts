@@ -204,6 +204,6 @@ describe("after a disposition, quality reads what was recorded", () => {
     await dispositionNc(db(), { ncId: row.id, disposition: "rework", reworkToSeq: 1, reason: "press again" }, { id: ids.quality });
     const logged = await db().select().from(events).where(eq(events.subjectId, pair.id));
     const phrases = logged.filter((e) => e.type.startsWith("nc.")).map((e) => describeEvent(e.type, e.data));
-    expect(phrases).toEqual([`opened ${row.code} at step 2, Trimming: ${row.finding}`, `dispositioned ${row.code}: rework back to step 1`]);
+    expect(phrases).toEqual([`opened nonconformance ${row.code} at step 2, Trimming: ${row.finding}`, `decided nonconformance ${row.code}: rework back to step 1`]);
   });
 });
