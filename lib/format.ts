@@ -55,3 +55,14 @@ export function formatShopTime(d: Date, now: Date = new Date(), opts: { zone?: b
  * that names the zone once (`timesNote`) may leave it out with `{ zone: false }`.
  */
 export const formatAllowedFrom = (release: Date, now: Date = new Date(), opts: { zone?: boolean } = {}) => formatShopTime(allowedFromMinute(release), now, { zone: opts.zone ?? true });
+
+/**
+ * A calendar day stored as YYYY-MM-DD (a flitch received, a batch delivered, a shipment's day):
+ * "16 Jul" this year, "16 Jul 2025" another. It names a day, not an instant, so no zone moves it.
+ */
+export function formatCalendarDay(iso: string, now: Date = new Date()): string {
+  const m = /^(\d{4})-(\d{2})-(\d{2})$/.exec(iso);
+  if (!m) return iso;
+  const day = new Date(Number(m[1]), Number(m[2]) - 1, Number(m[3]));
+  return format(day, Number(m[1]) === Number(format(inWorkshopZone(now), "yyyy")) ? "d MMM" : "d MMM yyyy");
+}

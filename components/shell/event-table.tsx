@@ -4,7 +4,7 @@ import { SerialText } from "@/components/register/serial-text";
 import { DataTable } from "@/components/ui/data-table";
 import { describeEvent, subjectLabel, subjectWords } from "@/lib/events/describe";
 import type { EventRow } from "@/lib/events/queries";
-import { formatWhen } from "@/lib/format";
+import { formatWhen, timeZoneName } from "@/lib/format";
 import { stationName } from "@/lib/vocabulary/stations";
 
 function About({ e }: { e: EventRow }) {
@@ -26,7 +26,7 @@ export function EventTable({ events, caption, empty = "No events recorded here y
       testId="event-table"
       initialSort={{ key: "at", dir: "desc" }}
       columns={[
-        { key: "at", label: "When" },
+        { key: "at", label: `When (${timeZoneName()})` },
         { key: "who", label: "Who", cellClassName: "min-w-32" },
         { key: "station", label: "Where", cellClassName: "min-w-28" },
         { key: "what", label: "What", cellClassName: "min-w-64" },
@@ -34,7 +34,7 @@ export function EventTable({ events, caption, empty = "No events recorded here y
         { key: "why", label: "Why", cellClassName: "min-w-40" },
       ]}
       rows={events.map((e) => {
-        const what = `${describeEvent(e.type, e.data, { dealerNames: e.dealerNames })}${e.correctsId ? ` (corrects record ${e.correctsId})` : ""}`;
+        const what = `${describeEvent(e.type, e.data, { dealerNames: e.dealerNames })}${e.correctsId ? ` (a correction of an earlier record)` : ""}`;
         return {
           id: String(e.id),
           cells: {

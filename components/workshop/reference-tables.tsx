@@ -3,8 +3,9 @@ import { Badge } from "@/components/ui/badge";
 import { DataTable } from "@/components/ui/data-table";
 import type { Dealer, Finish } from "@/db/schema";
 import type { ModelSummary } from "@/lib/workshop/queries";
+import { isPartType, PART_TYPE_LABEL } from "@/lib/vocabulary/part-types";
+import { positionName } from "@/lib/vocabulary/positions";
 
-const PART_LABEL: Record<string, string> = { tweeter: "tweeter", midrange: "midrange", bass: "bass" };
 
 /** Models, with the columns a station needs: veneer (leaf needs), tolerances (matching), or all. */
 export function ModelTable({ models, show = "all" }: { models: ModelSummary[]; show?: "all" | "veneer" | "tolerances" }) {
@@ -37,9 +38,14 @@ export function ModelTable({ models, show = "all" }: { models: ModelSummary[]; s
           positions: {
             value: null,
             display: (
-              <span className="whitespace-nowrap" title={m.positions.map((p) => `${p.position}: ${p.count} × ${PART_LABEL[p.partType] ?? p.partType}`).join(", ")}>
-                {m.positions.map((p) => p.position).join(" · ")}
-              </span>
+              <ul className="text-sm">
+                {m.positions.map((p) => (
+                  <li key={p.position} className="whitespace-nowrap">
+                    {p.count > 1 ? `${p.count} × ` : ""}
+                    {positionName(p.position)}
+                  </li>
+                ))}
+              </ul>
             ),
           },
           leaves: { value: m.leavesPerFace },
@@ -50,7 +56,7 @@ export function ModelTable({ models, show = "all" }: { models: ModelSummary[]; s
               <ul className="text-sm">
                 {m.tolerances.map((t) => (
                   <li key={t.partType} className="whitespace-nowrap">
-                    {PART_LABEL[t.partType] ?? t.partType} ±{t.mismatchLimitDb} dB
+                    {isPartType(t.partType) ? PART_TYPE_LABEL[t.partType] : t.partType} ±{t.mismatchLimitDb} dB
                   </li>
                 ))}
               </ul>

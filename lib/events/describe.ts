@@ -1,7 +1,6 @@
 import { ROLE_LABELS, isRole } from "@/lib/auth/roles";
 import { formatDb, formatHz } from "@/lib/certificates/figures";
-import { noonUtc } from "@/lib/dispatch/dates";
-import { formatDate } from "@/lib/format";
+import { formatCalendarDay } from "@/lib/format";
 import { parseSerial } from "@/lib/serials/format";
 import type { EventType } from "@/lib/vocabulary/event-types";
 import { EVENT_PHRASES, isEventType } from "@/lib/vocabulary/event-types";
@@ -21,7 +20,7 @@ const list = (d: Data, k: string): unknown[] => (Array.isArray(d[k]) ? (d[k] as 
 const plural = (n: number, word: string, many = `${word}s`) => `${n} ${n === 1 ? word : many}`;
 /** "3, 5 and 7". */
 const and = (items: string[]) => (items.length <= 1 ? items.join("") : `${items.slice(0, -1).join(", ")} and ${items[items.length - 1]}`);
-const day = (iso: string) => (/^\d{4}-\d{2}-\d{2}$/.test(iso) ? formatDate(noonUtc(iso)) : iso);
+const day = (iso: string) => (/^\d{4}-\d{2}-\d{2}$/.test(iso) ? formatCalendarDay(iso) : iso);
 /** A nominal band name as the final test stores it ("2.5k", "800") in words: "2.5 kHz", "800 Hz". */
 const band = (name: string) => (/^[\d.]+k$/.test(name) ? `${name.slice(0, -1)} kHz` : /^[\d.]+$/.test(name) ? `${name} Hz` : name);
 const roleList = (v: unknown[]) => and(v.map((r) => (typeof r === "string" && isRole(r) ? ROLE_LABELS[r] : String(r))));

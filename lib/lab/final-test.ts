@@ -1,5 +1,6 @@
 import "server-only";
-import { and, desc, eq, inArray, isNull, like, sql } from "drizzle-orm";
+import { nextNcCode } from "@/lib/route/nc-codes";
+import { and, desc, eq, inArray, isNull } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { finalTests, items, links, models, nonconformances, responses } from "@/db/schema";
 import { bandLabel, compareResponses, formatDb, formatLimitDb, parseResponseFile, type ResponseComparison } from "@/lib/acoustics";
@@ -81,9 +82,7 @@ export async function recordFinalTest(db: DbOrTx, input: { pair: string; left: {
     if (comparison.pass) {
       await changeState(tx, pair, READY_TO_PACK, { actorId: actor.id, station: "lab" });
     } else {
-      const prefix = `NC-${at.toISOString().slice(2, 4)}${at.toISOString().slice(5, 7)}-`;
-      const [count] = await tx.select({ n: sql<number>`count(*)` }).from(nonconformances).where(like(nonconformances.code, `${prefix}%`));
-      nc = `${prefix}${String(Number(count?.n ?? 0) + 1).padStart(3, "0")}`;
+      nc = await nextNcCode(tx, at);
       const finding = `Final test: left and right differ by ${formatDb(comparison.maxAbsDiffDb)} at ${bandLabel(comparison.worstBand)} (limit ${formatLimitDb(limitDb)})`;
       const opened = await appendEvent(tx, { actorId: actor.id, station: "lab", type: "nc.opened", subjectKind: "item", subjectId: pair.id, data: { identity: pair.identity, code: nc, step: "Final pair test", seq: 0, finding } });
       await tx.insert(nonconformances).values({ id: newId(), code: nc, pairId: pair.id, cabinets: [], seq: 0, finding, openedAt: at, openedEventId: opened });

@@ -1,6 +1,7 @@
 /** A pair (or a lone lacquer cabinet) on its route: where it is, and recording a step with its readings. */
 import "server-only";
-import { and, asc, eq, inArray, isNull, like, sql } from "drizzle-orm";
+import { nextNcCode } from "./nc-codes";
+import { and, asc, eq, inArray, isNull } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { finishes, items, links, models, nonconformances, processSpecs, routeRecords, routeStarts, type Item, type Nonconformance, type ProcessSpec } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
@@ -10,7 +11,6 @@ import { appendEvent } from "@/lib/events/queries";
 import { changeState, itemByIdentity } from "@/lib/genealogy/graph";
 import { parseSerial } from "@/lib/serials/format";
 import type { Actor } from "@/lib/vocabulary/actor";
-import { workshopDay } from "@/lib/workshop-time";
 import { cabinetsPhrase, checkReadings, checkStep, outOfWindowConfirmation, outOfWindowQuestion, position, type OutOfWindow } from "./rules";
 import type { PairPosition, RouteEntry, Side, StepSpec } from "./types";
 import { currentSpec } from "./specs";
@@ -101,13 +101,6 @@ export async function pairRoute(db: DbOrTx, pair: Item, at: Date = clockNow()): 
   return { pair, model: model!, finishName: finish?.name ?? null, spec, started: Boolean(start), cabinets, history, records, ncs, position: pos };
 }
 
-/** "NC-2612-": the year and month of the workshop's calendar. */
-async function nextNcCode(tx: DbOrTx, at: Date) {
-  const day = workshopDay(at);
-  const prefix = `NC-${day.slice(2, 4)}${day.slice(5, 7)}-`;
-  const [row] = await tx.select({ n: sql<number>`count(*)` }).from(nonconformances).where(like(nonconformances.code, `${prefix}%`));
-  return `${prefix}${String(Number(row?.n ?? 0) + 1).padStart(3, "0")}`;
-}
 
 /**
  * Readings out of their window that the person recording has not confirmed: nothing is written.

@@ -6,7 +6,7 @@
  * Pacific/Auckland is UTC+13 in the southern summer (NZDT).
  */
 import { afterEach, describe, expect, test, vi } from "vitest";
-import { formatAllowedFrom, formatDate, formatDay, formatLongDate, formatMonthYear, formatShopTime, formatTimeOfDay, formatWhen, formatWhenExact, timesNote } from "@/lib/format";
+import { formatAllowedFrom, formatCalendarDay, formatDate, formatDay, formatLongDate, formatMonthYear, formatShopTime, formatTimeOfDay, formatWhen, formatWhenExact, timesNote } from "@/lib/format";
 import { isoDay, monthName } from "@/lib/dispatch/dates";
 import { cartonElementString } from "@/lib/serials/gs1";
 import { allowedFromMinute, checkTimeZone, workshopDay, workshopDayEnd, workshopTimeZone } from "@/lib/workshop-time";
@@ -124,5 +124,19 @@ describe("the workshop's calendar day", () => {
     zone(name);
     const out = cartonElementString({ gtin: "09521234543213", serial: "A1", productionDate: new Date("2026-03-05T23:30:00Z") });
     expect(out.hri).toContain(`(11)${yymmdd}`);
+  });
+});
+
+describe("a stored calendar day is the same day in every zone", () => {
+  // A day is not an instant: "2026-07-16" is 16 July whether the workshop is at UTC−10 or UTC+13.
+  test.each([
+    ["UTC", "2026-07-16", "2026-12-05T12:00:00Z", "16 Jul"],
+    ["Pacific/Auckland", "2026-07-16", "2026-12-05T12:00:00Z", "16 Jul"],
+    ["Pacific/Tongatapu", "2026-07-16", "2026-12-05T12:00:00Z", "16 Jul"],
+    ["Pacific/Honolulu", "2025-07-16", "2026-12-05T12:00:00Z", "16 Jul 2025"],
+    ["UTC", "not a day", "2026-12-05T12:00:00Z", "not a day"],
+  ])("in %s, %s (now %s) reads %s", (name, iso, now, words) => {
+    zone(name);
+    expect(formatCalendarDay(iso, new Date(now))).toBe(words);
   });
 });

@@ -10,7 +10,7 @@ import { getDb } from "@/db";
 import { listModels } from "@/lib/workshop/queries";
 import { areaByKey } from "@/lib/areas";
 import { requirePage } from "@/lib/auth/guard";
-import { formatDate, formatDay } from "@/lib/format";
+import { formatCalendarDay, formatDay } from "@/lib/format";
 import { failedParts } from "@/lib/lab/queries";
 import { formatDb, formatLimitDb } from "@/lib/acoustics";
 import { UNIT_CLASS_WORDS, UNIT_CLASSES } from "@/lib/lab/unit-counts";
@@ -155,7 +155,7 @@ export default async function Page() {
                       <span className="font-bold">{PART_TYPE_LABEL[b.partType]}</span> <span className="whitespace-nowrap">{b.partNumber}</span>
                     </span>
                     <span className="block whitespace-nowrap text-ink-soft">
-                      lot {b.lot} · {formatDate(new Date(`${b.receivedOn}T12:00:00Z`))}
+                      lot {b.lot} · {formatCalendarDay(b.receivedOn)}
                     </span>
                   </span>
                 ),

@@ -10,8 +10,8 @@ import { areaByKey } from "@/lib/areas";
 import { requirePage } from "@/lib/auth/guard";
 import { now } from "@/lib/clock";
 import { knownLocations, readyToPack, shippedOn, waitingToShip } from "@/lib/dispatch";
-import { isoDay, noonUtc } from "@/lib/dispatch/dates";
-import { formatDate } from "@/lib/format";
+import { isoDay } from "@/lib/dispatch/dates";
+import { formatCalendarDay, formatDate } from "@/lib/format";
 import { SerialLink } from "@/components/register/serial-link";
 import { listDealers } from "@/lib/workshop/queries";
 import { MoveForm } from "./move-form";
@@ -72,7 +72,7 @@ export default async function Page() {
 
       <Panel title={`Packed, waiting to ship (${waiting.length})`}>
         <ShipForm
-          cartons={waiting.map((c) => ({ carton: c.carton, pair: c.pair, model: [c.modelCode, c.model].filter(Boolean).join(" "), finish: c.finish, location: c.location, packedOn: formatDate(noonUtc(c.packedOn)) }))}
+          cartons={waiting.map((c) => ({ carton: c.carton, pair: c.pair, model: [c.modelCode, c.model].filter(Boolean).join(" "), finish: c.finish, location: c.location, packedOn: formatCalendarDay(c.packedOn) }))}
           dealers={dealers.filter((d) => d.active).map((d) => ({ id: d.id, name: d.name, city: d.city }))}
           today={today}
         />

@@ -12,6 +12,7 @@ import { listFinishes, listModels } from "@/lib/workshop/queries";
 import { areaByKey } from "@/lib/areas";
 import { requirePage } from "@/lib/auth/guard";
 import { listFlitches } from "@/lib/veneer/flitches";
+import { formatCalendarDay } from "@/lib/format";
 
 export const metadata: Metadata = { title: "Veneer room" };
 
@@ -61,8 +62,8 @@ export default async function Page({ searchParams }: { searchParams: Promise<{ a
               identity: { value: f.identity, display: <SerialLink identity={f.identity} href={paths.flitch(f.identity)} /> },
               species: { value: f.species },
               supplier: { value: f.supplier },
-              log: { value: f.logReference },
-              received: { value: f.receivedOn },
+              log: { value: f.logReference, display: <span className="whitespace-nowrap">{f.logReference}</span> },
+              received: { value: f.receivedOn, display: <span className="whitespace-nowrap">{formatCalendarDay(f.receivedOn)}</span> },
               leaves: { value: f.leafCount },
               measured: { value: f.measured },
               free: { value: f.free },

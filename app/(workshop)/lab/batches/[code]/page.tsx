@@ -11,7 +11,7 @@ import { Notice } from "@/components/ui/notice";
 import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
 import { requirePage } from "@/lib/auth/guard";
-import { formatDate, formatWhen } from "@/lib/format";
+import { formatCalendarDay, formatWhen } from "@/lib/format";
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { formatTs } from "@/lib/acoustics";
 import { countUnits, UNIT_CLASS_WORDS, UNIT_CLASSES } from "@/lib/lab/unit-counts";
@@ -43,7 +43,7 @@ export default async function BatchPage({ params, searchParams }: { params: Prom
       <BackLink href="/lab">Lab</BackLink>
       <PageHeader
         title={<span className="serial" data-testid="batch-code">{batch.code}</span>}
-        lead={`${units.length} ${partWord(batch.partType)}s · ${batch.maker} ${batch.partNumber} · lot ${batch.lot} · received ${formatDate(new Date(`${batch.receivedOn}T12:00:00Z`))}`}
+        lead={`${units.length} ${partWord(batch.partType)}s · ${batch.maker} ${batch.partNumber} · lot ${batch.lot} · received ${formatCalendarDay(batch.receivedOn)}`}
         actions={
           readiness?.canMatch ? (
             <Link className={buttonClasses("primary")} href={`/lab/match?batch=${encodeURIComponent(batch.code)}`} data-testid="match-batch">

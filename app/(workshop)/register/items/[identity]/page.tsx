@@ -16,7 +16,7 @@ import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
 import { requirePage } from "@/lib/auth/guard";
 import { recentEvents } from "@/lib/events/queries";
-import { formatDate, formatDay, formatWhen } from "@/lib/format";
+import { formatCalendarDay, formatDay, formatWhen, timesNote } from "@/lib/format";
 import { noonUtc } from "@/lib/dispatch/dates";
 import { shipmentFacts } from "@/lib/dispatch/queries";
 import { positionWords } from "@/lib/events/describe";
@@ -120,7 +120,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
         <Panel title="Where it is now">
           {parents.length === 0 ? (
             <p className="text-ink-soft" data-testid="current-place">
-              {item.kind === "shipment" && dealer ? `Shipped to ${dealer.name}, ${dealer.city}${ownShipment ? `, on ${formatDate(noonUtc(ownShipment.shippedOn))}` : ""}.` : "Not inside anything."}
+              {item.kind === "shipment" && dealer ? `Shipped to ${dealer.name}, ${dealer.city}${ownShipment ? `, on ${formatCalendarDay(ownShipment.shippedOn)}` : ""}.` : "Not inside anything."}
             </p>
           ) : (
             <ul className="flex flex-col gap-1" data-testid="current-parents">
@@ -135,10 +135,10 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
                     {words ? `, as its ${words}` : ""}
                     {via ? (
                       <>
-                        , shipped{via.dealer ? ` to ${via.dealer.name}` : ""} on {formatDate(noonUtc(via.shippedOn))} in shipment <SerialLink identity={via.identity} bold={false} />
+                        , shipped{via.dealer ? ` to ${via.dealer.name}` : ""} on {formatCalendarDay(via.shippedOn)} in shipment <SerialLink identity={via.identity} bold={false} />
                       </>
                     ) : own ? (
-                      `, shipped${own.dealer ? ` to ${own.dealer.name}` : ""} on ${formatDate(noonUtc(own.shippedOn))}`
+                      `, shipped${own.dealer ? ` to ${own.dealer.name}` : ""} on ${formatCalendarDay(own.shippedOn)}`
                     ) : (
                       <span className="text-sm text-ink-soft"> since {formatDay(p.since)}</span>
                     )}
@@ -255,7 +255,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
       <Panel title="History">
         <p className="mb-3 text-sm text-ink-soft">Events about this item and the parts fitted directly into it, newest first. {events.length >= 200 ? "Showing the latest 200." : ""}</p>
         <EventTable events={events} caption={`Events of ${item.identity}`} />
-        <p className="mt-2 text-sm text-ink-soft">Times in UTC. Latest: {events[0] ? formatWhen(events[0].at) : "none"}.</p>
+        <p className="mt-2 text-sm text-ink-soft">{timesNote()} Latest: {events[0] ? formatWhen(events[0].at) : "none"}.</p>
       </Panel>
     </div>
   );

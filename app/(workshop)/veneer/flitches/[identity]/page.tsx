@@ -16,7 +16,7 @@ import { DEFECT_KINDS } from "@/lib/vocabulary/defects";
 import { areaByKey } from "@/lib/areas";
 import { requirePage } from "@/lib/auth/guard";
 import { recentEvents } from "@/lib/events/queries";
-import { formatDate } from "@/lib/format";
+import { formatCalendarDay } from "@/lib/format";
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { flitchView, planView, specFor } from "@/lib/veneer/flitches";
 import { listModels } from "@/lib/workshop/queries";
@@ -70,7 +70,7 @@ export default async function FlitchPage({ params, searchParams }: { params: Pro
       <BackLink href={paths.veneer}>Veneer room</BackLink>
       <PageHeader
         title={<span className="serial" data-testid="flitch-identity">{view.item.identity}</span>}
-        lead={`${view.finish.name}${view.finish.detail ? ` (${view.finish.detail})` : ""} · ${view.intake.leafCount} leaves of ${view.intake.leafThicknessMm} mm · log ${view.intake.logReference} · from ${view.intake.supplier} · received ${formatDate(new Date(`${view.intake.receivedOn}T12:00:00Z`))}`}
+        lead={`${view.finish.name}${view.finish.detail ? ` (${view.finish.detail})` : ""} · ${view.intake.leafCount} leaves of ${view.intake.leafThicknessMm} mm · log ${view.intake.logReference} · from ${view.intake.supplier} · received ${formatCalendarDay(view.intake.receivedOn)}`}
         actions={<Badge tone="walnut">{stateLabel(view.item.state)}</Badge>}
       />
       {sp.received ? (
@@ -82,9 +82,9 @@ export default async function FlitchPage({ params, searchParams }: { params: Pro
 
       <Panel title="Plan the pairs">
         <form method="get" className="mb-4 flex flex-wrap items-end gap-4" data-testid="plan-controls">
-          <label className="flex flex-col gap-1">
+          <label className="flex min-w-0 max-w-full flex-col gap-1">
             <span className="font-bold">Model</span>
-            <select name="model" defaultValue={model?.code} className="h-12 rounded-md border border-line-strong bg-surface px-3">
+            <select name="model" defaultValue={model?.code} className="h-12 w-full min-w-0 max-w-full rounded-md border border-line-strong bg-surface px-3">
               {models.map((m) => (
                 <option key={m.id} value={m.code}>
                   {m.code} {m.name}: {m.leavesPerFace} leaves a face, at least {m.minLeafLengthMm} × {m.minLeafWidthMm} mm
