@@ -2,6 +2,7 @@ import "server-only";
 import { and, desc, eq, inArray, type SQL } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { events, users } from "@/db/schema";
+import { now } from "@/lib/clock";
 import type { EventType } from "@/lib/vocabulary/event-types";
 import type { Station } from "@/lib/vocabulary/stations";
 
@@ -15,8 +16,8 @@ export interface NewEvent {
   reason?: string | null;
   correctsId?: number | null;
   /**
-   * When it happened, for importing history only (the demo seed back-dates its invented years).
-   * Everything recorded through the application takes the database's own clock.
+   * When it happened: tests that build a register by hand set it. Left out (as the application
+   * always leaves it), it is the register's clock, `now()` in lib/clock.ts.
    */
   at?: Date;
 }
@@ -34,7 +35,7 @@ export async function appendEvent(db: DbOrTx, event: NewEvent): Promise<number> 
       data: event.data ?? {},
       reason: event.reason ?? null,
       correctsId: event.correctsId ?? null,
-      ...(event.at ? { at: event.at } : {}),
+      at: event.at ?? now(),
     })
     .returning({ id: events.id });
   if (!row) throw new Error("event was not written");

@@ -345,7 +345,7 @@ describe("shipping two cartons to a dealer", () => {
     const [details] = await db().select().from(shipmentDetails).where(eq(shipmentDetails.itemId, r.shipment.id));
     expect(details).toMatchObject({ dealerId: dealer.id, shippedOn: today, carrier: "Fernway Freight", tracking: "ABC123" });
 
-    const mails = await db().select().from(outbox).where(eq(outbox.id, r.mailId));
+    const mails = await db().select().from(outbox).where(eq(outbox.id, r.mailId!));
     expect(mails).toHaveLength(1);
     const mail = mails[0]!;
     expect(mail.to).toBe(dealer.email);
