@@ -53,12 +53,13 @@ const SEED_EVENT = { actorId: null, station: "seed" } as const;
  * through the register's own write functions, in ./history. Idempotent: records are matched on their unique code or
  * e-mail and only the missing ones are inserted; a model's positions and tolerances come with the
  * model, so an existing model is left as it is. Refuses, writing nothing, when any non-demo user exists.
+ * `months` shortens the history (two years by default) for tests that need less of it.
  */
-export async function seedDemo(db: Db, options: { history?: boolean } = {}): Promise<SeedResult> {
+export async function seedDemo(db: Db, options: { history?: boolean; months?: number } = {}): Promise<SeedResult> {
   const now = new Date();
   // With its history, the workshop's reference data is dated before the history's first day, so
   // the log reads in order (models and people before the work); without, it is dated now.
-  const dated = <T>(fn: () => Promise<T>) => (options.history === false ? fn() : atTime(referenceDate(now), fn));
+  const dated = <T>(fn: () => Promise<T>) => (options.history === false ? fn() : atTime(referenceDate(now, options.months), fn));
   for (const m of SEED_MODELS) {
     if (!isValidGtin14(m.pairGtin)) throw new Error(`seed data: model ${m.code} has an invalid GTIN-14 ${m.pairGtin}`);
   }
@@ -161,7 +162,7 @@ export async function seedDemo(db: Db, options: { history?: boolean } = {}): Pro
 
   // The production history, after the reference data has committed, through the register's own
   // write functions (one transaction each). `history: false` seeds the reference alone.
-  if (options.history !== false) created.pairs = (await seedHistory(db, { now })).pairs;
+  if (options.history !== false) created.pairs = (await seedHistory(db, { now, months: options.months })).pairs;
 
   return { created, users: seededUsers };
 }

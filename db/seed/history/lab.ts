@@ -115,18 +115,20 @@ export function planUnitBatches(plan: Plan, rng: Rng, serials: MakerSerials, pai
       const key = `batch:${month}:${partType}`;
       const b = batchPlan(rng, serials, key, partType, plus(received, n * 15 * MIN), plus(measured, n++ * HOUR), 2 * sets + Math.max(2, Math.ceil(0.4 * sets)), 0.08);
       planBatch(plan, b);
+      // One plan for the batch, its pairs handed out model by model (each accepted against that model's own limit).
       const matched = plus(b.measured!, 3 * HOUR);
-      for (const [model, count] of [...byModel].sort(([a], [b]) => a.code.localeCompare(b.code))) {
-        plan.add(matched, `matching ${key} for the ${model.code}`, async (ctx) => {
-          const batch = ctx.batches.get(key)!;
-          const limitDb = model.limits[partType]!;
-          const view = await matchBatch(ctx.db, { id: batch.id, partType }, { limitDb });
-          const chosen = view.plan.pairs.slice(0, count);
-          if (chosen.length < count) throw new Error(`history seed: ${batch.code} gave ${chosen.length} ${partType} sets for the ${model.code}, ${count} needed`);
+      const wanted = [...byModel].sort(([a], [b]) => a.code.localeCompare(b.code));
+      plan.add(matched, `matching ${key}`, async (ctx) => {
+        const batch = ctx.batches.get(key)!;
+        const limitDb = Math.min(...wanted.map(([m]) => m.limits[partType]!));
+        const pairs = (await matchBatch(ctx.db, { id: batch.id, partType }, { limitDb })).plan.pairs;
+        if (pairs.length < sets) throw new Error(`history seed: ${batch.code} gave ${pairs.length} ${partType} sets, ${sets} needed`);
+        for (const [model, count] of wanted) {
+          const chosen = pairs.splice(0, count);
           const made = await acceptPlan(ctx.db, { batchId: batch.id, modelId: model.id, pairs: chosen.map((c) => ({ a: c.a, b: c.b })) }, ctx.ref.actors.lab);
           setQueue(ctx, `${model.code}:${partType}`).push(...made);
-        });
-      }
+        }
+      });
     }
   }
 }
