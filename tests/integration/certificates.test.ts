@@ -12,7 +12,7 @@ import { extractText, getDocumentProxy } from "unpdf";
 import { beforeAll, describe, expect, test, vi } from "vitest";
 import { prepareZXingModule, readBarcodes } from "zxing-wasm/reader";
 import { getDb } from "@/db";
-import { certificates, events, finalTests, items, matchedSets, responses, setMembers } from "@/db/schema";
+import { certificates, events, finalTests, items, responses } from "@/db/schema";
 import { seedDemo } from "@/db/seed/seed";
 import { startSession } from "@/lib/auth/sessions";
 import { base32, CERTIFICATE_CODE_PATTERN } from "@/lib/certificates/code";
