@@ -18,7 +18,7 @@ import { crossoverBoards } from "@/lib/lab/crossovers";
 import { latestFinalTest, pairsAwaitingTest } from "@/lib/lab/final-test";
 import { batchUnitsView, listBatches, matchBatch, openSets, PASSBANDS } from "@/lib/lab/units";
 import { pairCost } from "@/lib/matching";
-import { ncsToDisposition } from "@/lib/route/nonconformances";
+import { dispositionedNonconformances, ncsToDisposition } from "@/lib/route/nonconformances";
 import { pairRoute } from "@/lib/route/pair-route";
 import { shopPairs } from "@/lib/route/shop";
 import { parseLeafIdentity, parseSerial, SERIAL_KIND_LETTERS, type SerialKind } from "@/lib/serials";
@@ -372,6 +372,8 @@ describe("the demo when it opens", () => {
     const open = await ncsToDisposition(db());
     expect(open).toHaveLength(1);
     expect(open[0]!.nc.finding).toMatch(/^Trim deviation 0.24 mm/);
+    // Two decided in the history: a long polishing cycle accepted as it was, a failed final test reworked.
+    expect((await dispositionedNonconformances(db())).map((n) => [n.seq, n.disposition]).sort()).toEqual([[0, "rework"], [15, "use_as_is"]]);
     const stations = new Set((await shopPairs(db())).map((p) => p.next?.station).filter(Boolean));
     expect(stations.size).toBeGreaterThanOrEqual(3);
     expect((await unpairedLacquerCabinets(db())).flatMap((g) => g.cabinets).length).toBeGreaterThanOrEqual(2);

@@ -64,20 +64,20 @@ export function planWorld(rng: Rng, ref: Reference, now: Date, months: number): 
   // A few veneered pairs pressed in the last days, so the cabinet shop has work at several stations.
   for (const d of [1, 4, 8, 12]) add(months - 1, workday(now, -d, 8 + rng.int(0, 2)), true);
 
-  // Pin a few pairs of the months before the last to moments just before `now`, so the demo always
-  // shows a pair at each late station whatever the draw: ready to build, built and awaiting its
-  // test, tested and ready to pack (two), packed and waiting to ship. Each is shifted whole so its
-  // earlier steps keep their order; the steps after `now` are set explicitly.
+  // Pin a few pairs started two to four months back to moments just before `now`, so the demo
+  // always shows a pair at each late station whatever the draw: ready to build, built and awaiting
+  // its test, tested and ready to pack (two), packed and waiting to ship. Each is shifted whole so
+  // its earlier steps keep their order; the steps after `now` are set explicitly.
   const h = (hours: number) => plus(now, hours * HOUR);
   const to = (t: Timeline, key: keyof Timeline, at: Date) => shift(t, at.getTime() - t[key].getTime());
   const anchors: ((t: Timeline) => Timeline)[] = [
-    (t) => ({ ...to(t, "routeDone", h(-30)), assembly: h(20), tested: h(44), packed: h(68) }),
+    (t) => ({ ...to(t, "routeDone", h(-30)), crossovers: h(-50), assembly: h(20), tested: h(44), packed: h(68) }),
     (t) => ({ ...to(t, "assembly", h(-4)), tested: h(20), packed: h(44) }),
     (t) => ({ ...to(t, "tested", h(-44)), packed: h(30) }),
     (t) => ({ ...to(t, "tested", h(-20)), packed: h(24) }),
     (t) => to(t, "packed", h(-48)),
   ];
-  const late = pairs.filter((p) => p.window >= months - 3 && p.window <= months - 2).slice(-anchors.length);
+  const late = pairs.filter((p) => p.window >= months - 4 && p.window <= months - 2).slice(-anchors.length);
   late.forEach((p, i) => (p.t = anchors[i]!(p.t)));
 
   // Shipping: the first consolidated shipment of the pair's dealer after it was packed.
