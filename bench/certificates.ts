@@ -18,8 +18,8 @@ import { seedDemo } from "@/db/seed/seed";
 import { certificateData, renderCertificate } from "@/lib/certificates";
 
 const N = 100;
-/** Months of history: the default two years leave about 90 packed pairs; 30 months leave over 100. */
-const MONTHS = 30;
+/** Months of history: the default two years leave about 65 pairs with a certificate; 40 months leave over 100. */
+const MONTHS = 40;
 const WARM_UP = 3;
 const TARGET_P50_MS = 300;
 const BASE_URL = "https://twinleaf.example";

@@ -66,6 +66,7 @@ await migrateDatabase(url);
 const { client, db } = openDb(url);
 let users;
 try {
+  console.log("seeding the invented workshop and its two years of work, if they are not there yet…");
   users = (await seedDemo(db)).users;
 } catch (e) {
   if (e instanceof SeedRefusedError) {

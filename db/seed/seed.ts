@@ -6,7 +6,8 @@ import { hashPassword } from "@/lib/auth/password";
 import type { Role } from "@/lib/auth/roles";
 import { appendEvent } from "@/lib/events/queries";
 import { DEMO_PASSWORD, SEED_DEALERS, SEED_FINISHES, SEED_MODELS, SEED_USERS } from "./data";
-import { seedHistory } from "./history";
+import { referenceDate, seedHistory } from "./history";
+import { atTime, now as clockNow } from "@/lib/clock";
 import { ensureDefaultSpecs } from "@/lib/route/specs";
 import { ensurePackingLists } from "@/lib/dispatch/packing-list";
 import { packingItems } from "@/db/schema/dispatch";
@@ -46,11 +47,19 @@ export interface SeedResult {
 const SEED_EVENT = { actorId: null, station: "seed" } as const;
 
 /**
- * Writes the invented demo workshop. Idempotent: records are matched on their unique code or
+ * Writes the invented demo workshop. Only reference data is inserted here directly: models with
+ * their positions and tolerances (and their first route and packing list), finishes, dealers and
+ * the demo users, each with its creation event. Everything that happens in the workshop goes
+ * through the register's own write functions, in ./history. Idempotent: records are matched on their unique code or
  * e-mail and only the missing ones are inserted; a model's positions and tolerances come with the
  * model, so an existing model is left as it is. Refuses, writing nothing, when any non-demo user exists.
+ * `months` shortens the history (two years by default) for tests that need less of it.
  */
-export async function seedDemo(db: Db, options: { history?: boolean } = {}): Promise<SeedResult> {
+export async function seedDemo(db: Db, options: { history?: boolean; months?: number } = {}): Promise<SeedResult> {
+  const now = new Date();
+  // With its history, the workshop's reference data is dated before the history's first day, so
+  // the log reads in order (models and people before the work); without, it is dated now.
+  const dated = <T>(fn: () => Promise<T>) => (options.history === false ? fn() : atTime(referenceDate(now, options.months), fn));
   for (const m of SEED_MODELS) {
     if (!isValidGtin14(m.pairGtin)) throw new Error(`seed data: model ${m.code} has an invalid GTIN-14 ${m.pairGtin}`);
   }
@@ -61,7 +70,7 @@ export async function seedDemo(db: Db, options: { history?: boolean } = {}): Pro
 
   const created: SeedCounts = { models: 0, modelPositions: 0, modelTolerances: 0, finishes: 0, dealers: 0, users: 0, userRoles: 0, pairs: 0 };
 
-  const seededUsers = await db.transaction(async (tx) => {
+  const seededUsers = await dated(() => db.transaction(async (tx) => {
     // Checked inside the transaction so no real user can appear between the check and the writes.
     const [real] = await tx.select({ n: sql<number>`count(*)` }).from(users).where(eq(users.demo, false));
     if ((real?.n ?? 0) > 0) {
@@ -124,7 +133,7 @@ export async function seedDemo(db: Db, options: { history?: boolean } = {}): Pro
     for (const user of SEED_USERS) {
       const [row] = await tx
         .insert(users)
-        .values({ id: randomUUID(), email: user.email, name: user.name, passwordHash: hashes.get(user.email)!, demo: true })
+        .values({ id: randomUUID(), email: user.email, name: user.name, passwordHash: hashes.get(user.email)!, demo: true, createdAt: clockNow() })
         .onConflictDoNothing({ target: users.email })
         .returning({ id: users.id });
       if (!row) continue;
@@ -149,11 +158,11 @@ export async function seedDemo(db: Db, options: { history?: boolean } = {}): Pro
       email,
       roles: rows.filter((r) => r.email === email && r.role !== null).map((r) => r.role as Role).sort(),
     }));
-  });
+  }));
 
-  // The production history, after the reference data has committed: its own transactions, one
-  // per month, so no single write lock is held for long. `history: false` seeds the reference alone.
-  if (options.history !== false) created.pairs = (await seedHistory(db)).pairs;
+  // The production history, after the reference data has committed, through the register's own
+  // write functions (one transaction each). `history: false` seeds the reference alone.
+  if (options.history !== false) created.pairs = (await seedHistory(db, { now, months: options.months })).pairs;
 
   return { created, users: seededUsers };
 }

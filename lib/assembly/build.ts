@@ -134,7 +134,7 @@ export async function buildSpeakers(db: DbOrTx, input: BuildInput, actor: Actor)
           });
           const ended = await tx
             .update(setMembers)
-            .set({ endedAt: new Date(), endEventId: eventId, endReason: "fitted" })
+            .set({ endedAt: clockNow(), endEventId: eventId, endReason: "fitted" })
             .where(and(eq(setMembers.id, member.memberId), isNull(setMembers.endedAt)))
             .returning({ id: setMembers.id });
           if (ended.length !== 1) throw new AppError(409, `${part.identity}'s reservation ended a moment ago. Nothing was built; scan it again.`);

@@ -197,7 +197,7 @@ async function storeAt(tx: Tx, carton: Item, location: string, actor: Actor, typ
     subjectId: carton.id,
     data: { identity: carton.identity, location, ...(from !== undefined ? { from } : {}) },
   });
-  await tx.insert(cartonLocations).values({ cartonId: carton.id, location, eventId });
+  await tx.insert(cartonLocations).values({ cartonId: carton.id, location, eventId, at: clockNow() });
 }
 
 /** Where a carton is stored now (the newest location row), or null. */
@@ -237,7 +237,8 @@ export interface ShipInput {
 
 export interface ShipResult {
   shipment: Item;
-  mailId: number;
+  /** The dealer's queued e-mail; null only when importing history (`dealerMail: false`). */
+  mailId: number | null;
   pairs: { pair: string; carton: string; certificateId: string }[];
 }
 
@@ -258,6 +259,15 @@ interface ShipLine {
   finish: string;
 }
 
+export interface ShipOptions {
+  /**
+   * False records the shipment without queuing the dealer's e-mail. Only for importing history
+   * (the demo seed's two invented years, whose dealers must not be written to now); no request
+   * reaches it: the packers' action never passes options.
+   */
+  dealerMail?: boolean;
+}
+
 /**
  * Ships packed cartons to a dealer: one shipment item (H-<dealer>-…) holding each carton at
  * "1", "2"…, its particulars, cartons, pairs and their speakers marked shipped, and ONE e-mail to the dealer,
@@ -265,7 +275,7 @@ interface ShipLine {
  * when the mail is sent). Refuses unknown, unpacked or shipped cartons, a date in the future and
  * an empty carrier or tracking number, writing nothing.
  */
-export async function shipCartons(db: Db, input: ShipInput, actor: Actor): Promise<ShipResult> {
+export async function shipCartons(db: Db, input: ShipInput, actor: Actor, options: ShipOptions = {}): Promise<ShipResult> {
   const errors: Record<string, string[]> = {};
   const add = (field: string, message: string) => (errors[field] ??= []).push(message);
 
@@ -356,7 +366,7 @@ export async function shipCartons(db: Db, input: ShipInput, actor: Actor): Promi
       type: "shipment.dispatched",
       subjectKind: "item",
       subjectId: shipment.id,
-      data: { identity, dealer: dealer!.code, shippedOn, carrier, tracking, cartons: lines.map((l) => l.carton.identity) },
+      data: { identity, dealer: dealer!.code, shippedOn, carrier, tracking, cartons: lines.map((l) => l.carton.identity), ...(options.dealerMail === false ? { dealerMail: false } : {}) },
     });
     await tx.insert(shipmentDetails).values({ itemId: shipment.id, dealerId: dealer!.id, shippedOn, carrier, tracking, eventId });
 
@@ -376,6 +386,7 @@ export async function shipCartons(db: Db, input: ShipInput, actor: Actor): Promi
       pairs.push({ pair: line.pair.identity, carton: line.carton.identity, certificateId: line.certificateId });
     }
 
+    if (options.dealerMail === false) return { shipment, mailId: null, pairs };
     const mail = shipmentMail({
       dealerName: dealer!.name,
       shipment: identity,

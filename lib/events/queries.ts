@@ -3,6 +3,7 @@ import { and, desc, eq, inArray, sql, type SQL } from "drizzle-orm";
 import { alias, type SQLiteColumn } from "drizzle-orm/sqlite-core";
 import type { DbOrTx } from "@/db";
 import { dealers, events, finishes, items, machineTokens, matchedSets, models, unitBatches, users } from "@/db/schema";
+import { now } from "@/lib/clock";
 import type { EventType } from "@/lib/vocabulary/event-types";
 import type { Station } from "@/lib/vocabulary/stations";
 
@@ -16,8 +17,8 @@ export interface NewEvent {
   reason?: string | null;
   correctsId?: number | null;
   /**
-   * When it happened, for importing history only (the demo seed back-dates its invented years).
-   * Everything recorded through the application takes the database's own clock.
+   * When it happened: tests that build a register by hand set it. Left out (as the application
+   * always leaves it), it is the register's clock, `now()` in lib/clock.ts.
    */
   at?: Date;
 }
@@ -35,7 +36,7 @@ export async function appendEvent(db: DbOrTx, event: NewEvent): Promise<number> 
       data: event.data ?? {},
       reason: event.reason ?? null,
       correctsId: event.correctsId ?? null,
-      ...(event.at ? { at: event.at } : {}),
+      at: event.at ?? now(),
     })
     .returning({ id: events.id });
   if (!row) throw new Error("event was not written");

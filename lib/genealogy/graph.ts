@@ -4,6 +4,7 @@ import { and, eq, isNull, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { items, links, SHARED_KINDS, type Item, type ItemKind } from "@/db/schema";
 import { AppError, isConstraintError } from "@/lib/auth/errors";
+import { now } from "@/lib/clock";
 import { newId } from "@/lib/auth/tokens";
 import { appendEvent } from "@/lib/events/queries";
 import { addHoldings, removeHoldings } from "./holdings";
@@ -14,7 +15,7 @@ export type { Item, ItemKind };
 export interface Recorder {
   actorId: string | null;
   station: Station;
-  /** When it happened; defaults to now. The seed back-dates its history with this. */
+  /** When it happened: tests that build a graph by hand set it; left out, the register's clock (lib/clock.ts). */
   at?: Date;
   reason?: string | null;
 }
@@ -33,6 +34,8 @@ export interface NewItem {
 /** Registers a thing with its identity, and the event that says so. Call inside a transaction. */
 export async function createItem(tx: DbOrTx, item: NewItem, by: Recorder): Promise<Item> {
   const id = newId();
+  // One reading of the clock for the item and its event.
+  const at = by.at ?? now();
   const eventId = await appendEvent(tx, {
     actorId: by.actorId,
     station: by.station,
@@ -41,12 +44,12 @@ export async function createItem(tx: DbOrTx, item: NewItem, by: Recorder): Promi
     subjectId: id,
     data: { identity: item.identity, kind: item.kind, state: item.state },
     reason: by.reason ?? null,
-    at: by.at,
+    at,
   });
   try {
     const [row] = await tx
       .insert(items)
-      .values({ id, ...item, attrs: item.attrs ?? {}, createdEventId: eventId, ...(by.at ? { createdAt: by.at } : {}) })
+      .values({ id, ...item, attrs: item.attrs ?? {}, createdEventId: eventId, createdAt: at })
       .returning();
     return row!;
   } catch (e) {
@@ -92,7 +95,7 @@ export async function fit(
   if (await isAtOrAbove(tx, child.id, parent.id)) {
     throw new AppError(409, `${child.identity} already holds ${parent.identity}: fitting it would make a loop.`);
   }
-  const at = by.at ?? new Date();
+  const at = by.at ?? now();
   const eventId = await appendEvent(tx, {
     actorId: by.actorId,
     station: by.station,
@@ -101,7 +104,7 @@ export async function fit(
     subjectId: child.id,
     data: { parentId: parent.id, parent: parent.identity, child: child.identity, position, ...input.data },
     reason: by.reason ?? null,
-    at: by.at,
+    at,
   });
   try {
     const [row] = await tx
@@ -148,7 +151,7 @@ export async function removeFrom(
     .where(and(eq(links.parentId, input.parent.id), eq(links.childId, input.child.id), isNull(links.endedAt)))
     .limit(1);
   if (!open) throw new AppError(409, `${input.child.identity} does not sit in ${input.parent.identity} now.`);
-  const at = by.at ?? new Date();
+  const at = by.at ?? now();
   if (at < open.startedAt) throw new AppError(400, "A part cannot be removed before it was fitted.");
   const eventId = await appendEvent(tx, {
     actorId: by.actorId,
@@ -158,7 +161,7 @@ export async function removeFrom(
     subjectId: input.child.id,
     data: { parentId: input.parent.id, parent: input.parent.identity, child: input.child.identity, position: open.position, linkId: open.id, ...input.data },
     reason: by.reason,
-    at: by.at,
+    at,
   });
   await tx.update(links).set({ endedAt: at, removeEventId: eventId }).where(eq(links.id, open.id));
   await removeHoldings(tx, input.parent, input.child);

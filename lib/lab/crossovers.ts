@@ -3,6 +3,7 @@ import { and, asc, desc, eq, inArray, isNull, like, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { crossoverParts, events, items, matchedSets, modelTolerances, models, responses, setMembers, type Item, type Model } from "@/db/schema";
 import { AppError, isConstraintError } from "@/lib/auth/errors";
+import { now } from "@/lib/clock";
 import { newId } from "@/lib/auth/tokens";
 import { appendEvent } from "@/lib/events/queries";
 import { changeState, createItem, fit, itemByIdentity, type Recorder } from "@/lib/genealogy/graph";
@@ -219,7 +220,7 @@ export async function buildCrossover(db: DbOrTx, input: BuildInput, actor: LabAc
       tx,
       {
         kind: "crossover",
-        identity: await allocateSerial(tx, { kind: "crossover", code: model.code, year: new Date().getUTCFullYear() }),
+        identity: await allocateSerial(tx, { kind: "crossover", code: model.code, year: now().getUTCFullYear() }),
         modelId: model.id,
         // Built, then judged below: the state change carries the verdict and, for a failure, its reasons.
         state: "built",
@@ -276,6 +277,7 @@ export async function buildCrossover(db: DbOrTx, input: BuildInput, actor: LabAc
         fileName: responseName,
         source: "form",
         eventId: responseEvent,
+        createdAt: now(),
       });
     }
     await changeState(tx, board, verdict.pass ? "in_stock" : "failed", recorder(actor, verdict.pass ? null : verdict.reasons.join("; ")), { pass: verdict.pass, ...machineData(actor) });
@@ -515,7 +517,7 @@ export async function acceptCrossoverPlan(db: DbOrTx, input: { modelId: string; 
           subjectId: id,
           data: { code, kind: "crossover", left: a.identity, right: b.identity, cost: c.cost, maxDiffDb: c.maxDiffDb, limitDb: input.limitDb, model: model.code, ...machineData(actor) },
         });
-        await tx.insert(matchedSets).values({ id, code, kind: "crossover", partType: null, batchId: null, modelId: model.id, cost: c.cost, maxDiffDb: c.maxDiffDb, limitDb: input.limitDb, eventId });
+        await tx.insert(matchedSets).values({ id, code, kind: "crossover", partType: null, batchId: null, modelId: model.id, cost: c.cost, maxDiffDb: c.maxDiffDb, limitDb: input.limitDb, eventId, createdAt: now() });
         await tx.insert(setMembers).values([
           { setId: id, itemId: a.itemId, side: "L" },
           { setId: id, itemId: b.itemId, side: "R" },

@@ -65,7 +65,7 @@ export async function recordFinalTest(db: DbOrTx, input: { pair: string; left: {
     for (const [side, points, file] of [["L", left, input.left], ["R", right, input.right]] as const) {
       const speaker = speakers[side]!;
       const eventId = await appendEvent(tx, { actorId: actor.id, station: "lab", type: "unit.response_measured", subjectKind: "item", subjectId: speaker.id, data: { identity: speaker.identity, purpose: "final", points: points.length, fileName: file.name } });
-      const [row] = await tx.insert(responses).values({ itemId: speaker.id, purpose: "final", points: points.map((p) => (p.phaseDeg === undefined ? [p.hz, p.db] : [p.hz, p.db, p.phaseDeg])), fileName: file.name, source: "upload", eventId }).returning({ id: responses.id });
+      const [row] = await tx.insert(responses).values({ itemId: speaker.id, purpose: "final", points: points.map((p) => (p.phaseDeg === undefined ? [p.hz, p.db] : [p.hz, p.db, p.phaseDeg])), fileName: file.name, source: "upload", eventId, createdAt: at }).returning({ id: responses.id });
       ids.push(row!.id);
     }
     const limitDb = model!.pairResponseLimitDb;
@@ -77,7 +77,7 @@ export async function recordFinalTest(db: DbOrTx, input: { pair: string; left: {
       subjectId: pair.id,
       data: { identity: pair.identity, pass: comparison.pass, maxDiffDb: comparison.maxAbsDiffDb, worstBand: comparison.worstBand, limitDb, minHz: model!.responseMinHz, maxHz: model!.responseMaxHz },
     });
-    await tx.insert(finalTests).values({ pairId: pair.id, leftResponseId: ids[0]!, rightResponseId: ids[1]!, limitDb, maxDiffDb: comparison.maxAbsDiffDb, worstBand: comparison.worstBand, pass: comparison.pass, eventId });
+    await tx.insert(finalTests).values({ pairId: pair.id, leftResponseId: ids[0]!, rightResponseId: ids[1]!, limitDb, maxDiffDb: comparison.maxAbsDiffDb, worstBand: comparison.worstBand, pass: comparison.pass, eventId, createdAt: at });
     let nc: string | null = null;
     if (comparison.pass) {
       await changeState(tx, pair, READY_TO_PACK, { actorId: actor.id, station: "lab" });

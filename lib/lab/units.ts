@@ -5,6 +5,7 @@ import type { DbOrTx } from "@/db";
 import { batchUnits, items, matchedSets, modelTolerances, models, responses, setMembers, tsParams, unitBatches, type Item } from "@/db/schema";
 import { partWord, type PartType } from "@/lib/vocabulary/part-types";
 import { AppError, isConstraintError } from "@/lib/auth/errors";
+import { now } from "@/lib/clock";
 import { newId } from "@/lib/auth/tokens";
 import { appendEvent } from "@/lib/events/queries";
 import { changeState, createItem, type Recorder } from "@/lib/genealogy/graph";
@@ -75,7 +76,7 @@ export async function registerBatch(db: DbOrTx, input: BatchIntake, actor: LabAc
       subjectId: id,
       data: { code: batchCode, partType: input.partType, partNumber: input.partNumber, maker: input.maker, lot: input.lot, count, ...machineData(actor) },
     });
-    await tx.insert(unitBatches).values({ id, code: batchCode, partType: input.partType, partNumber: input.partNumber, maker: input.maker, lot: input.lot, receivedOn: input.receivedOn, eventId });
+    await tx.insert(unitBatches).values({ id, code: batchCode, partType: input.partType, partNumber: input.partNumber, maker: input.maker, lot: input.lot, receivedOn: input.receivedOn, eventId, createdAt: now() });
     const year = Number(input.receivedOn.slice(0, 4));
     const units: Item[] = [];
     for (let i = 0; i < count; i++) {
@@ -226,6 +227,7 @@ async function insertResponse(tx: DbOrTx, input: ResponseInput, actor: LabActor)
     fileName: input.fileName,
     source: input.source,
     eventId,
+    createdAt: now(),
   });
   if (unit.state === "awaiting_measurement") await changeState(tx, unit, "measured", recorder(actor));
   return unit;
@@ -310,7 +312,7 @@ async function insertTs(tx: DbOrTx, itemId: string, ts: TsInput, source: "form" 
     subjectId: unit.id,
     data: { identity: unit.identity, ...ts, source, ...machineData(actor) },
   });
-  await tx.insert(tsParams).values({ itemId: unit.id, ...ts, source, eventId });
+  await tx.insert(tsParams).values({ itemId: unit.id, ...ts, source, eventId, createdAt: now() });
 }
 
 /** One unit's measurement from the form: a response file, a Thiele–Small set, or both, in one go. */
@@ -539,7 +541,7 @@ export async function acceptPlan(
           subjectId: id,
           data: { code, left: a.identity, right: b.identity, cost: c.cost, maxDiffDb: c.maxDiffDb, limitDb: limit.limit, model: limit.model.code, ...machineData(actor) },
         });
-        await tx.insert(matchedSets).values({ id, code, kind: "drive_unit", partType: batch.partType, batchId: batch.id, modelId: input.modelId, cost: c.cost, maxDiffDb: c.maxDiffDb, limitDb: limit.limit, eventId });
+        await tx.insert(matchedSets).values({ id, code, kind: "drive_unit", partType: batch.partType, batchId: batch.id, modelId: input.modelId, cost: c.cost, maxDiffDb: c.maxDiffDb, limitDb: limit.limit, eventId, createdAt: now() });
         await tx.insert(setMembers).values([
           { setId: id, itemId: a.itemId, side: "L" },
           { setId: id, itemId: b.itemId, side: "R" },

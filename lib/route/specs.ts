@@ -4,6 +4,7 @@ import { asc, count, desc, eq } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { models, processSpecs, routeStarts, users, type ProcessSpec } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
+import { now } from "@/lib/clock";
 import { newId } from "@/lib/auth/tokens";
 import { appendEvent } from "@/lib/events/queries";
 import type { Actor } from "@/lib/vocabulary/actor";
@@ -30,7 +31,7 @@ export async function ensureDefaultSpecs(tx: DbOrTx, actorId: string | null = nu
     if (await currentSpec(tx, m.id)) continue;
     const id = newId();
     const eventId = await appendEvent(tx, { actorId, station, type: "spec.created", subjectKind: "model", subjectId: m.id, data: { model: m.code, version: 1, steps: defaultRoute().length } });
-    await tx.insert(processSpecs).values({ id, modelId: m.id, version: 1, steps: defaultRoute(), note: "The workshop's usual route.", createdBy: actorId, eventId });
+    await tx.insert(processSpecs).values({ id, modelId: m.id, version: 1, steps: defaultRoute(), note: "The workshop's usual route.", createdBy: actorId, eventId, createdAt: now() });
     made++;
   }
   return made;
@@ -65,7 +66,7 @@ export async function createSpecVersion(db: DbOrTx, input: { modelId: string; st
     const version = (latest?.version ?? 0) + 1;
     const id = newId();
     const eventId = await appendEvent(tx, { actorId: actor.id, station: "admin", type: "spec.created", subjectKind: "model", subjectId: input.modelId, data: { model: model.code, code: model.code, version, steps: input.steps.length, note: input.note } });
-    const [row] = await tx.insert(processSpecs).values({ id, modelId: input.modelId, version, steps: input.steps, note: input.note, createdBy: actor.id, eventId }).returning();
+    const [row] = await tx.insert(processSpecs).values({ id, modelId: input.modelId, version, steps: input.steps, note: input.note, createdBy: actor.id, eventId, createdAt: now() }).returning();
     return { ...row!, modelCode: model.code };
   });
 }

@@ -7,6 +7,7 @@ import { and, asc, eq, inArray, isNull, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { finishes, flitches, items, leafAllocations, links, leafDefects, models, veneerLeaves, type Item, type Orientation } from "@/db/schema";
 import { AppError, isConstraintError } from "@/lib/auth/errors";
+import { now as clockNow } from "@/lib/clock";
 import { appendEvent } from "@/lib/events/queries";
 import { changeState, createItem, fit, itemByIdentity, removeFrom, type Recorder } from "@/lib/genealogy/graph";
 import { allocateSerial } from "@/lib/serials/allocator";
@@ -335,7 +336,7 @@ export async function confirmRuns(
       }
       const leafBySeq = new Map(view.leaves.map((l) => [l.seq, l]));
       const leafItems = new Map((await tx.select().from(items).where(inArray(items.id, view.leaves.map((l) => l.id)))).map((i) => [i.id, i]));
-      const year = new Date().getUTCFullYear();
+      const year = clockNow().getUTCFullYear();
       const recorder = by(actor);
       const out: ConfirmedPair[] = [];
       for (const run of input.runs) {
@@ -366,7 +367,7 @@ export async function confirmRuns(
           subjectId: pair.id,
           data: { pair: pair.identity, flitch: flitchItem.identity, left: run.left, right: run.right, reserve: run.reserve, leftCabinet: cabinets.L.identity, rightCabinet: cabinets.R.identity },
         });
-        const now = new Date();
+        const now = clockNow();
         for (const { side, seqs, orientation } of faces) {
           for (const [i, seq] of seqs.entries()) {
             const leafItem = leafItems.get(leafBySeq.get(seq)!.id)!;
@@ -451,7 +452,7 @@ export async function releaseReserve(
     });
     await removeFrom(tx, { parent: cabinet, child: old.item, data: { replacedBy: leaf!.identity } }, { ...recorder, reason: input.reason });
     await changeState(tx, old.item, "scrapped", recorder);
-    const now = new Date();
+    const now = clockNow();
     await tx.update(leafAllocations).set({ endedAt: now, endEventId: eventId, endReason: "released" }).where(eq(leafAllocations.id, reserve.id));
     await fit(tx, { parent: cabinet, child: leaf!, position: input.position, data: { orientation, repair: true } }, recorder);
     await tx.insert(leafAllocations).values({ leafId: input.leafId, pairId: reserve.pairId, role: "face", cabinetId: cabinet.id, position: input.position, orientation, startedAt: now, eventId });
@@ -474,7 +475,7 @@ export async function returnReserve(db: DbOrTx, input: { leafId: string; reason:
       data: { leaf: leaf!.identity, pair: pair!.identity },
       reason: input.reason,
     });
-    await tx.update(leafAllocations).set({ endedAt: new Date(), endEventId: eventId, endReason: "returned" }).where(eq(leafAllocations.id, reserve.id));
+    await tx.update(leafAllocations).set({ endedAt: clockNow(), endEventId: eventId, endReason: "returned" }).where(eq(leafAllocations.id, reserve.id));
     await changeState(tx, leaf!, "available", by(actor, input.reason));
   });
 }

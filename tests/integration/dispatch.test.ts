@@ -42,7 +42,8 @@ let packer: { id: string };
 // The oracle for the printed label is ZXing-C++ (zxing-wasm), an independent decoder, as in
 // tests/unit/labels.test.ts; its .wasm is loaded from node_modules rather than a CDN.
 beforeAll(async () => {
-  await seedDemo(db());
+  // A year of the demo's history is enough here (see history.test.ts).
+  await seedDemo(db(), { months: 12 });
   const [u] = await db().select({ id: users.id }).from(users).where(eq(users.email, "packing@demo.twinleaf.test"));
   packer = { id: u!.id };
   const wasm = readFileSync(createRequire(import.meta.url).resolve("zxing-wasm/reader/zxing_reader.wasm"));
@@ -128,7 +129,7 @@ describe("packing a tested pair", () => {
   let list: string[];
 
   beforeAll(async () => {
-    const tested = await pairsIn("tested");
+    const tested = await pairsIn("ready_to_pack");
     expect(tested.length).toBeGreaterThan(0);
     pair = tested[0]!;
     list = await packingList(db(), pair.modelId!);
@@ -137,7 +138,7 @@ describe("packing a tested pair", () => {
   test("the packers' home lists it as ready to pack", async () => {
     const ready = await readyToPack(db());
     const mine = ready.find((r) => r.identity === pair.identity);
-    expect(mine).toMatchObject({ state: "tested", modelCode: expect.any(String) });
+    expect(mine).toMatchObject({ state: "ready_to_pack", modelCode: expect.any(String) });
     expect(mine!.testedAt).toBeInstanceOf(Date);
   });
 
@@ -165,10 +166,10 @@ describe("packing a tested pair", () => {
   });
 
   test("a pair that has not passed its final test is refused with a plain reason", async () => {
-    const [building] = await pairsIn("in_assembly");
+    const [building] = await pairsIn("awaiting_test");
     const e = await refusal(packPair(db(), { pairIdentity: building!.identity, checked: list, location: "Rack B" }, packer));
     expect(e.status).toBe(409);
-    expect(e.message).toBe(`${building!.identity} is in assembly: only a pair that has passed its final test can be packed.`);
+    expect(e.message).toBe(`${building!.identity} is awaiting test: only a pair that has passed its final test can be packed.`);
     const e2 = await refusal(packPair(db(), { pairIdentity: "P-XX-26-00001-Z", checked: list, location: "Rack B" }, packer));
     expect(e2.status).toBe(404);
   });
@@ -320,7 +321,7 @@ describe("shipping two cartons to a dealer", () => {
   beforeAll(async () => {
     dealer = (await db().select().from(dealers).where(eq(dealers.code, "MLR")))[0]!;
     const waiting = await waitingToShip(db());
-    // Ours (certificate issued when packed) and one from the demo history (none yet).
+    // Ours and one packed in the demo history (each had its certificate issued when packed).
     const ours = waiting.find((w) => w.location === "Rack B, shelf 2")!;
     const theirs = waiting.find((w) => w !== ours)!;
     chosen = [ours, theirs];
@@ -336,7 +337,7 @@ describe("shipping two cartons to a dealer", () => {
     expect(Object.keys(e2.fieldErrors ?? {}).sort()).toEqual(["carrier", "tracking"]);
     const e3 = await refusal(shipCartons(db(), { dealerId: dealer.id, cartons: [...cartons, "K-XX-26-00001-Z"], shippedOn: today, carrier: "Fernway Freight", tracking: "ABC123" }, packer));
     expect(e3.fieldErrors?.cartons).toEqual(["K-XX-26-00001-Z is not a carton in the register."]);
-    const [tested] = await pairsIn("tested");
+    const [tested] = await pairsIn("ready_to_pack");
     const e4 = await refusal(shipCartons(db(), { dealerId: dealer.id, cartons: [tested?.identity ?? "P-XX-26-00001-Z"], shippedOn: today, carrier: "Fernway Freight", tracking: "ABC123" }, packer));
     expect(e4.fieldErrors?.cartons?.[0]).toMatch(/is not a carton in the register/);
     const e5 = await refusal(shipCartons(db(), { dealerId: "no-such-dealer", cartons, shippedOn: "2026-02-30", carrier: "Fernway Freight", tracking: "ABC123" }, packer));
@@ -364,7 +365,7 @@ describe("shipping two cartons to a dealer", () => {
     const [details] = await db().select().from(shipmentDetails).where(eq(shipmentDetails.itemId, r.shipment.id));
     expect(details).toMatchObject({ dealerId: dealer.id, shippedOn: today, carrier: "Fernway Freight", tracking: "ABC123" });
 
-    const mails = await db().select().from(outbox).where(eq(outbox.id, r.mailId));
+    const mails = await db().select().from(outbox).where(eq(outbox.id, r.mailId!));
     expect(mails).toHaveLength(1);
     const mail = mails[0]!;
     expect(mail.to).toBe(dealer.email);

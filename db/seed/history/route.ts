@@ -1,0 +1,94 @@
+/**
+ * The cabinet route of every pair (and of every lacquer cabinet, which travels alone until
+ * assembly pairs it), recorded step by step with `recordStep` at plausible times after the press,
+ * holds respected. Two nonconformances tell their story through `recordStep` and `dispositionNc`.
+ */
+import { dispositionNc, openNonconformances } from "@/lib/route/nonconformances";
+import { recordStep } from "@/lib/route/pair-route";
+import { defaultRoute } from "@/lib/route/default-spec";
+import type { Side } from "@/lib/vocabulary/sides";
+import { DAY, HOUR, MIN, plus, type Rng } from "./basics";
+import { got, type Plan } from "./plan";
+
+export interface ScheduledStep {
+  seq: number;
+  key: string;
+  start: Date;
+  recorded: Date;
+}
+
+/**
+ * When each step of the workshop's usual route starts and is recorded, from the press: trimming
+ * and bracing the same day, sanding and its check the next, four coats, flatting and four more
+ * coats over the next two days, then the two weeks' cure after the last coat before polishing.
+ */
+export function routeSchedule(press: Date): ScheduledStep[] {
+  const polish = new Date(press.getTime() + 18 * DAY);
+  polish.setUTCHours(9, 0, 0, 0);
+  const startOf = (key: string): Date => {
+    if (key.startsWith("coat-")) {
+      const n = Number(key.slice(5));
+      return plus(press, n <= 4 ? 2 * DAY + (n - 1) * 2 * HOUR : 3 * DAY + 2 * HOUR + (n - 5) * 2 * HOUR);
+    }
+    const offsets: Record<string, number> = { press: 0, trim: 2 * HOUR, brace: 3 * HOUR, sanding: DAY, "check-sanding": DAY + HOUR, flatting: 3 * DAY };
+    if (key in offsets) return plus(press, offsets[key]!);
+    const afterCure: Record<string, number> = { "machine-polish": 0, "check-polish": 2 * HOUR, "hand-finish": 4 * HOUR };
+    if (key in afterCure) return plus(polish, afterCure[key]!);
+    throw new Error(`history seed: no time planned for route step ${key}`);
+  };
+  return defaultRoute().map((s) => {
+    const start = startOf(s.key);
+    // Braces are recorded when the clamps come off; the polishing cycle when the machine stops.
+    const took = s.key === "brace" ? 2 * HOUR + 10 * MIN : s.key === "machine-polish" ? 75 * MIN : 25 * MIN;
+    return { seq: s.seq, key: s.key, start, recorded: plus(start, took) };
+  });
+}
+
+/** Readings typed at a step, inside their windows (the demo workshop's usual values). */
+function readingsFor(rng: Rng, key: string): Record<string, string | boolean> {
+  const step = defaultRoute().find((s) => s.key === key)!;
+  const out: Record<string, string | boolean> = {};
+  for (const r of step.readings) {
+    if (r.kind === "check") out[r.key] = true;
+    else if (r.equals !== undefined) out[r.key] = String(r.equals);
+    else if (r.absMax !== undefined) out[r.key] = (rng.int(-15, 15) / 100).toFixed(2);
+    else if (r.min !== undefined && r.max !== undefined) out[r.key] = String(r.min + rng.int(0, r.max - r.min));
+    else out[r.key] = String((r.min ?? 0) + rng.int(5, 15));
+  }
+  return out;
+}
+
+export interface RouteSubject {
+  /** The key of the pair, or of the lone lacquer cabinet. */
+  key: string;
+  sides: Side[];
+  press: Date;
+  /** The open trim nonconformance: the step is recorded out of window and the route stops there. */
+  openTrimNc?: boolean;
+  /** The polishing cycle over its window, then accepted as it is by quality. */
+  polishUsedAsIs?: boolean;
+}
+
+export function planRoute(plan: Plan, rng: Rng, s: RouteSubject): void {
+  for (const step of routeSchedule(s.press)) {
+    const readings = readingsFor(rng, step.key);
+    if (s.openTrimNc && step.key === "trim") readings.deviationMm = "0.24";
+    if (s.polishUsedAsIs && step.key === "machine-polish") readings.cycleMinutes = "84";
+    plan.add(step.recorded, `route step ${step.seq} of ${s.key}`, async (ctx) => {
+      await recordStep(ctx.db, { pairId: got(ctx, s.key).id, seq: step.seq, sides: s.sides, startedAt: step.start, readings }, ctx.ref.actors.cabinet);
+    });
+    if (s.openTrimNc && step.key === "trim") return;
+    if (s.polishUsedAsIs && step.key === "machine-polish") {
+      plan.add(plus(step.recorded, 30 * MIN), `quality's decision on ${s.key}`, async (ctx) => {
+        const pairId = got(ctx, s.key).id;
+        const open = (await openNonconformances(ctx.db)).find((n) => n.nc.pairId === pairId);
+        if (!open) throw new Error(`history seed: ${s.key} has no open nonconformance to disposition`);
+        await dispositionNc(
+          ctx.db,
+          { ncId: open.nc.id, disposition: "use_as_is", reason: "Finish checked under the inspection lamp: no burn-through, gloss even. The longer cycle did no harm." },
+          ctx.ref.actors.quality,
+        );
+      });
+    }
+  }
+}
