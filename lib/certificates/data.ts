@@ -33,7 +33,8 @@ export { formatDb, formatHz };
 
 
 /** The pair states the demo history leaves a pair in after it shipped with a certificate. */
-const ALREADY_OUT = new Set(["packed", "shipped"]);
+/** A pair past its final test: passed, or its deviation accepted by quality ("use as is"), then packed or shipped. */
+const PAST_FINAL_TEST = new Set(["ready_to_pack", "packed", "shipped"]);
 
 /** What one matched set says of the two parts at a position. */
 export interface MatchFigure {
@@ -193,7 +194,7 @@ export async function issueCertificate(db: Db, pairId: string, actorId: string |
       if (again) return again;
       const pair = await pairById(tx, pairId);
       const test = await newestFinalTest(tx, pairId);
-      if (!test?.pass && !ALREADY_OUT.has(pair.state)) throw new AppError(409, `${pair.identity} has no passing final test yet.`);
+      if (!test?.pass && !PAST_FINAL_TEST.has(pair.state)) throw new AppError(409, `${pair.identity} has no passing final test yet.`);
       const id = newId();
       const eventId = await appendEvent(tx, {
         actorId,

@@ -28,8 +28,8 @@ export { readyToPack, waitingToShip, shippedOn, pairForPacking, knownLocations, 
 
 export const STATION = "packing";
 
-/** The states a pair may be packed from: its final test passed (the demo history says "tested"). */
-export const PACKABLE_STATES = ["ready_to_pack", "tested"] as const;
+/** The state a pair may be packed from: its final test passed, or quality accepted its deviation. */
+export const PACKABLE_STATES = ["ready_to_pack"] as const;
 
 const LOCATION_MAX = 60;
 const TEXT_MAX = 80;

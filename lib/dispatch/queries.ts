@@ -2,7 +2,7 @@ import "server-only";
 import { sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { normaliseScan, parseSerial } from "@/lib/serials/format";
-import { isoDay, noonUtc } from "./dates";
+import { isoDay } from "./dates";
 
 const dateOf = (ms: number | null | undefined) => (ms === null || ms === undefined ? null : new Date(Number(ms)));
 
@@ -83,23 +83,19 @@ export interface ShippedCarton {
  * workshop's time zone, so the list agrees with the shipments the event log shows that day.
  */
 export async function shippedOn(db: DbOrTx, day: string): Promise<ShippedCarton[]> {
-  // Any time zone's calendar day lies within 36 hours of noon UTC that day; isoDay decides exactly.
-  const noon = noonUtc(day).getTime();
-  const rows = await db.all<{ shipment: string; carton: string; pair: string | null; dealer: string | null; carrier: string | null; tracking: string | null; shipped_on: string | null; created_at: number }>(sql`
-    SELECT s.identity AS shipment, c.identity AS carton, p.identity AS pair, d.name AS dealer, sd.carrier, sd.tracking, sd.shipped_on, s.created_at
-    FROM items s
-    LEFT JOIN shipment_details sd ON sd.item_id = s.id
-    LEFT JOIN dealers d ON d.id = coalesce(sd.dealer_id, s.dealer_id)
+  // Every shipment records its day (the workshop's calendar day it left) in shipment_details.
+  const rows = await db.all<{ shipment: string; carton: string; pair: string | null; dealer: string | null; carrier: string | null; tracking: string | null }>(sql`
+    SELECT s.identity AS shipment, c.identity AS carton, p.identity AS pair, d.name AS dealer, sd.carrier, sd.tracking
+    FROM shipment_details sd
+    JOIN items s ON s.id = sd.item_id
+    JOIN dealers d ON d.id = sd.dealer_id
     JOIN links cl ON cl.parent_id = s.id AND cl.ended_at IS NULL
     JOIN items c ON c.id = cl.child_id AND c.kind = 'carton'
     LEFT JOIN links pl ON pl.parent_id = c.id AND pl.position = 'PAIR' AND pl.ended_at IS NULL
     LEFT JOIN items p ON p.id = pl.child_id
-    WHERE s.kind = 'shipment'
-      AND (sd.shipped_on = ${day} OR (sd.item_id IS NULL AND s.created_at BETWEEN ${noon - 36 * 3_600_000} AND ${noon + 36 * 3_600_000}))
+    WHERE sd.shipped_on = ${day}
     ORDER BY s.created_at, CAST(cl.position AS INTEGER)`);
-  return rows
-    .filter((r) => (r.shipped_on ?? isoDay(new Date(Number(r.created_at)))) === day)
-    .map((r) => ({ shipment: r.shipment, carton: r.carton, pair: r.pair, dealer: r.dealer ?? "", carrier: r.carrier, tracking: r.tracking }));
+  return rows.map((r) => ({ shipment: r.shipment, carton: r.carton, pair: r.pair, dealer: r.dealer ?? "", carrier: r.carrier, tracking: r.tracking }));
 }
 
 export interface PairForPacking {

@@ -384,19 +384,6 @@ describe("shipping two cartons to a dealer", () => {
     expect(await db().select().from(outbox).where(eq(outbox.eventId, details!.eventId))).toHaveLength(1);
   });
 
-  test("a shipment from the history, with no recorded day, is listed on the day it was made in the workshop", async () => {
-    const [old] = await db().all<{ identity: string; created_at: number }>(sql`
-      SELECT s.identity, s.created_at FROM items s WHERE s.kind = 'shipment'
-        AND NOT EXISTS (SELECT 1 FROM shipment_details d WHERE d.item_id = s.id) ORDER BY s.created_at DESC LIMIT 1`);
-    const day = isoDay(new Date(Number(old!.created_at)));
-    const listed = (await shippedOn(db(), day)).filter((x) => x.shipment === old!.identity);
-    expect(listed.length).toBeGreaterThan(0);
-    expect(listed[0]).toMatchObject({ carrier: null, tracking: null, dealer: expect.stringMatching(/\S/) });
-    // …and not on the next day.
-    const next = isoDay(new Date(Number(old!.created_at) + 86_400_000));
-    expect((await shippedOn(db(), next)).some((x) => x.shipment === old!.identity)).toBe(false);
-  });
-
   test("a shipped carton cannot ship again", async () => {
     const before = await counts();
     const e = await refusal(shipCartons(db(), { dealerId: dealer.id, cartons: [chosen[0]!.carton], shippedOn: today, carrier: "Fernway Freight", tracking: "XYZ9" }, packer));

@@ -383,8 +383,8 @@ describe("the demo when it opens", () => {
     const batches = await listBatches(db());
     const [tweeters] = batches.filter((b) => b.partType === "tweeter");
     const [bass] = batches.filter((b) => b.partType === "bass");
-    expect(tweeters).toMatchObject({ units: 12, ready: 12, reserved: 0 });
-    expect(bass).toMatchObject({ units: 8, awaiting: 8 });
+    expect(tweeters).toMatchObject({ units: 12, free: 12, reserved: 0 });
+    expect(bass).toMatchObject({ units: 8, waiting: 8 });
     const [batch] = await db().select().from(unitBatches).where(eq(unitBatches.id, tweeters!.id));
     expect((await matchBatch(db(), { id: batch!.id, partType: "tweeter" }, { limitDb: 0.5 })).plan.pairs.length).toBeGreaterThan(3);
     // Units no partner suited stay in stock, measured, in the older batches.

@@ -4,7 +4,7 @@
  * holds respected. Two nonconformances tell their story through `recordStep` and `dispositionNc`.
  */
 import { dispositionNc, openNonconformances } from "@/lib/route/nonconformances";
-import { recordStep } from "@/lib/route/pair-route";
+import { OutOfWindowUnconfirmed, recordStep } from "@/lib/route/pair-route";
 import { defaultRoute } from "@/lib/route/default-spec";
 import type { Side } from "@/lib/vocabulary/sides";
 import { DAY, HOUR, MIN, plus, type Rng } from "./basics";
@@ -74,8 +74,16 @@ export function planRoute(plan: Plan, rng: Rng, s: RouteSubject): void {
     const readings = readingsFor(rng, step.key);
     if (s.openTrimNc && step.key === "trim") readings.deviationMm = "0.24";
     if (s.polishUsedAsIs && step.key === "machine-polish") readings.cycleMinutes = "84";
+    // The two planned nonconformances are recorded as a person does: asked once, and confirmed.
+    const meantOutOfWindow = (s.openTrimNc && step.key === "trim") || (s.polishUsedAsIs && step.key === "machine-polish");
     plan.add(step.recorded, `route step ${step.seq} of ${s.key}`, async (ctx) => {
-      await recordStep(ctx.db, { pairId: got(ctx, s.key).id, seq: step.seq, sides: s.sides, startedAt: step.start, readings }, ctx.ref.actors.cabinet);
+      const input = { pairId: got(ctx, s.key).id, seq: step.seq, sides: s.sides, startedAt: step.start, readings };
+      try {
+        await recordStep(ctx.db, input, ctx.ref.actors.cabinet);
+      } catch (e) {
+        if (!(meantOutOfWindow && e instanceof OutOfWindowUnconfirmed)) throw e;
+        await recordStep(ctx.db, { ...input, confirmOutOfWindow: e.confirmation }, ctx.ref.actors.cabinet);
+      }
     });
     if (s.openTrimNc && step.key === "trim") return;
     if (s.polishUsedAsIs && step.key === "machine-polish") {
