@@ -170,7 +170,7 @@ describe.each(ROLES)("the %s user", (role) => {
       const res = await page.goto(url(path));
       expect(res?.status(), path).toBe(200);
       await page.waitForFunction(() => document.title.length > 0);
-      await page.screenshot({ path: join(SHOTS, `${role}-${width}-${slug(path)}.png`), fullPage: true });
+      await page.screenshot({ path: join(SHOTS, `${role}-${width}-${slug(path)}.jpeg`), fullPage: true, type: "jpeg", quality: 70 });
       const found = [...(await problemsOn(page)), ...(await headerProblems(page, width))];
       problems.push(...found.filter((p) => !reported(path, width, p)).map((p) => `${path}: ${p}`));
       await checkNavigation(page, width, path);

@@ -38,9 +38,9 @@ export default async function MatchPage({ searchParams }: { searchParams: Promis
       <PageHeader title="Match left and right" lead="The plan pairs as many measured units as the limit allows and, among those plans, the closest overall: the sum of each pair's RMS band difference is the least possible." />
       <Panel>
         <form method="get" className="flex flex-wrap items-end gap-4" data-testid="match-controls">
-          <label className="flex flex-col gap-1">
+          <label className="flex min-w-0 max-w-full flex-col gap-1">
             <span className="font-bold">Batch</span>
-            <select name="batch" defaultValue={batch?.code} className="h-12 rounded-md border border-line-strong bg-surface px-3">
+            <select name="batch" defaultValue={batch?.code} className="h-12 w-full max-w-full rounded-md border border-line-strong bg-surface px-3">
               {batches.map((b) => (
                 <option key={b.id} value={b.code}>
                   {b.code}: {partWord(b.partType)}s, {b.partNumber} ({b.free} measured and free)
@@ -48,9 +48,9 @@ export default async function MatchPage({ searchParams }: { searchParams: Promis
               ))}
             </select>
           </label>
-          <label className="flex flex-col gap-1">
+          <label className="flex min-w-0 max-w-full flex-col gap-1">
             <span className="font-bold">For model (its limit)</span>
-            <select name="model" defaultValue={model?.code} className="h-12 rounded-md border border-line-strong bg-surface px-3">
+            <select name="model" defaultValue={model?.code} className="h-12 w-full max-w-full rounded-md border border-line-strong bg-surface px-3">
               {modelsFor.map((m) => (
                 <option key={m.id} value={m.code}>
                   {m.code} {m.name}: {formatLimitDb(m.limit)}
@@ -58,11 +58,11 @@ export default async function MatchPage({ searchParams }: { searchParams: Promis
               ))}
             </select>
           </label>
-          <label className="flex flex-col gap-1">
+          <label className="flex min-w-0 max-w-full flex-col gap-1">
             <span className="font-bold">Weight of Fs</span>
             <input name="fs" type="number" step="0.1" min={0} max={10} defaultValue={fsWeight} className="h-12 w-28 rounded-md border border-line-strong bg-surface px-3" />
           </label>
-          <label className="flex flex-col gap-1">
+          <label className="flex min-w-0 max-w-full flex-col gap-1">
             <span className="font-bold">Weight of Qts</span>
             <input name="qts" type="number" step="0.1" min={0} max={10} defaultValue={qtsWeight} className="h-12 w-28 rounded-md border border-line-strong bg-surface px-3" />
           </label>

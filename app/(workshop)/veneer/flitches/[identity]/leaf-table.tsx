@@ -138,7 +138,7 @@ function LeafRow({ flitch, leaf, kinds }: { flitch: string; leaf: LeafRowData; k
 /** The leaves in slicing order, each editable where it stands; one save per row. */
 export function LeafTable({ flitch, leaves, kinds }: { flitch: string; leaves: LeafRowData[]; kinds: readonly string[] }) {
   return (
-    <div className="overflow-x-auto">
+    <div className="relative overflow-x-auto">
       <table className="w-full border-collapse text-left" data-testid="leaf-table">
         <caption className="sr-only">Leaves of {flitch} in slicing order</caption>
         <thead>

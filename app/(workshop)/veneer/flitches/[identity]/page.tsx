@@ -92,9 +92,9 @@ export default async function FlitchPage({ params, searchParams }: { params: Pro
               ))}
             </select>
           </label>
-          <label className="flex flex-col gap-1">
+          <label className="flex min-w-0 max-w-full flex-col gap-1">
             <span className="font-bold">Reserve leaves per pair</span>
-            <select name="reserve" defaultValue={String(reservePerPair)} className="h-12 rounded-md border border-line-strong bg-surface px-3">
+            <select name="reserve" defaultValue={String(reservePerPair)} className="h-12 w-full max-w-full rounded-md border border-line-strong bg-surface px-3">
               {[0, 1, 2, 3, 4].map((n) => (
                 <option key={n} value={n}>
                   {n}

@@ -7,9 +7,9 @@ export function PhotoTarget({ flitch, leaves }: { flitch: string; leaves: { iden
   const [target, setTarget] = useState(flitch);
   return (
     <div className="flex flex-col gap-3">
-      <label className="flex flex-col gap-1">
+      <label className="flex min-w-0 max-w-full flex-col gap-1">
         <span className="font-bold">Photo of</span>
-        <select value={target} onChange={(e) => setTarget(e.target.value)} className="h-12 rounded-md border border-line-strong bg-surface px-3" data-testid="photo-target">
+        <select value={target} onChange={(e) => setTarget(e.target.value)} className="h-12 w-full max-w-full rounded-md border border-line-strong bg-surface px-3" data-testid="photo-target">
           <option value={flitch}>the whole flitch</option>
           {leaves.map((l) => (
             <option key={l.identity} value={l.identity}>
