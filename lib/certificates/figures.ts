@@ -1,11 +1,7 @@
 /** Figures as the workshop writes them, for the certificate and the event log alike (no server code). */
+export { bandLabel, formatHz } from "@/lib/acoustics/format";
 
-/** "1", "0.5", "0.75": a level difference or limit in dB, without trailing zeros. */
+/** "1", "0.5", "0.75": a level difference or limit in dB as a bare number, without trailing zeros; the caller writes the unit. */
 export function formatDb(db: number, digits = 2): string {
   return String(Number(db.toFixed(digits)));
-}
-
-/** "200 Hz", "10 kHz", "12.5 kHz". */
-export function formatHz(hz: number): string {
-  return hz >= 1000 ? `${Number((hz / 1000).toPrecision(4))} kHz` : `${Number(hz.toPrecision(4))} Hz`;
 }

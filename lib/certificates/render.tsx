@@ -4,7 +4,7 @@ import { renderBarcode } from "@/lib/labels/barcodes";
 import { CERT_MONO_FONT as MONO_FONT, CERT_TEXT_FONT as TEXT_FONT, registerCertificateFonts } from "./fonts";
 import type { Side } from "@/lib/vocabulary/sides";
 import type { CertificateData, FinalTestFigure, PositionRow, Replacement, VeneerOrigin } from "./data";
-import { formatDb, formatHz } from "./figures";
+import { bandLabel, formatDb, formatHz } from "./figures";
 import { formatLongDate, formatMonthYear } from "@/lib/format";
 
 // Twinleaf's palette (app/globals.css).
@@ -410,7 +410,7 @@ function Responses({ test, speakers, repairedAt, height }: { test: FinalTestFigu
 
   const dbTicks: number[] = [];
   for (let d = dbLo; d <= dbHi + 1e-9; d += step) dbTicks.push(d);
-  const result = `Largest difference ${formatDb(test.maxDiffDb)} dB at ${test.worstBand}; limit ${formatDb(test.limitDb)} dB: ${test.pass ? "passed" : "not passed"}`;
+  const result = `Largest difference ${formatDb(test.maxDiffDb)} dB at ${bandLabel(test.worstBand)}; limit ${formatDb(test.limitDb)} dB: ${test.pass ? "passed" : "not passed"}`;
 
   return (
     <View wrap={false}>

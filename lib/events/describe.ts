@@ -1,5 +1,5 @@
 import { ROLE_LABELS, isRole } from "@/lib/auth/roles";
-import { formatDb, formatHz } from "@/lib/certificates/figures";
+import { bandLabel, formatDb, formatHz } from "@/lib/certificates/figures";
 import { formatCalendarDay } from "@/lib/format";
 import { parseSerial } from "@/lib/serials/format";
 import type { EventType } from "@/lib/vocabulary/event-types";
@@ -21,8 +21,6 @@ const plural = (n: number, word: string, many = `${word}s`) => `${n} ${n === 1 ?
 /** "3, 5 and 7". */
 const and = (items: string[]) => (items.length <= 1 ? items.join("") : `${items.slice(0, -1).join(", ")} and ${items[items.length - 1]}`);
 const day = (iso: string) => (/^\d{4}-\d{2}-\d{2}$/.test(iso) ? formatCalendarDay(iso) : iso);
-/** A nominal band name as the final test stores it ("2.5k", "800") in words: "2.5 kHz", "800 Hz". */
-const band = (name: string) => (/^[\d.]+k$/.test(name) ? `${name.slice(0, -1)} kHz` : /^[\d.]+$/.test(name) ? `${name} Hz` : name);
 const roleList = (v: unknown[]) => and(v.map((r) => (typeof r === "string" && isRole(r) ? ROLE_LABELS[r] : String(r))));
 
 /** The kind of thing a serial names, from its kind letter; null for a leaf or anything unparsed. */
@@ -201,7 +199,7 @@ const SENTENCES: Record<EventType, Sentence> = {
   "pair.final_tested": (d) => {
     const max = num(d, "maxDiffDb");
     const limit = num(d, "limitDb");
-    const figure = max !== null ? `: largest difference ${formatDb(max)} dB${str(d, "worstBand") ? ` at ${band(str(d, "worstBand"))}` : ""}${limit !== null ? `, limit ${formatDb(limit)} dB` : ""}` : "";
+    const figure = max !== null ? `: largest difference ${formatDb(max)} dB${str(d, "worstBand") ? ` at ${bandLabel(str(d, "worstBand"))}` : ""}${limit !== null ? `, limit ${formatDb(limit)} dB` : ""}` : "";
     return `${d.pass ? "passed" : "failed"} the final pair test${figure}`;
   },
   "pair.packed": (d) => `packed the pair${str(d, "carton") ? ` into carton ${str(d, "carton")}` : ""}${str(d, "location") ? `, stored at ${str(d, "location")}` : ""}`,

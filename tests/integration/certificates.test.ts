@@ -187,7 +187,7 @@ describe("renderCertificate, read back by independent tools", () => {
     expect(text).toContain(`Right face (turned over): leaves ${faces.R.join(", ")}`);
     expect(text).toContain(data.veneer!.flitches[0]!);
     for (const row of data.positions) expect(text).toContain(row.left!);
-    expect(text).toMatch(/Largest difference \d\.\d+ dB at [\d.]+k?; limit 1 dB: passed/);
+    expect(text).toMatch(/Largest difference \d\.\d+ dB at [\d.]+ k?Hz; limit 1 dB: passed/);
     expect(text).not.toContain("COPY");
   });
 

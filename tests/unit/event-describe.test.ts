@@ -37,7 +37,8 @@ describe("describeEvent", () => {
     ["item.state_changed", { identity: SPEAKER, from: "built", to: "shipped", shipment: SHIPMENT }, {}, `changed its state from built to shipped, in shipment ${SHIPMENT}`],
     ["item.state_changed", { identity: PAIR, from: "ready_to_pack", to: "packed", carton: CARTON }, {}, `changed its state from ready to pack to packed, in carton ${CARTON}`],
     ["item.created", { identity: CARTON, kind: "carton", state: "packed" }, {}, "registered the carton"],
-    ["unit.ts_measured", { identity: UNIT, fsHz: 37.51, qts: 0.3783, reOhm: 6, vasL: 30.1, sensitivityDb: 87.5 }, {}, "measured Thiele–Small parameters: Fs 37.51 Hz, Qts 0.378, Re 6 Ω, Vas 30.1 L, sensitivity 87.5 dB"],
+    // Fs to three significant figures below 100 Hz, as the lab writes it (lib/acoustics/format.ts): 37.51 → 37.5 Hz.
+    ["unit.ts_measured", { identity: UNIT, fsHz: 37.51, qts: 0.3783, reOhm: 6, vasL: 30.1, sensitivityDb: 87.5 }, {}, "measured Thiele–Small parameters: Fs 37.5 Hz, Qts 0.378, Re 6 Ω, Vas 30.1 L, sensitivity 87.5 dB"],
     ["unit.response_measured", { identity: UNIT, points: 200, fromHz: 20, toHz: 20000 }, {}, "measured a response of 200 points from 20 Hz to 20 kHz"],
     ["pair.final_tested", { pass: true, maxDiffDb: 0.42, worstBand: "2.5k", limitDb: 1 }, {}, "passed the final pair test: largest difference 0.42 dB at 2.5 kHz, limit 1 dB"],
     ["pair.final_tested", { pass: false, maxDiffDb: 1.3, worstBand: "800", limitDb: 1 }, {}, "failed the final pair test: largest difference 1.3 dB at 800 Hz, limit 1 dB"],

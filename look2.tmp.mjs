@@ -1,0 +1,14 @@
+import { chromium } from "playwright-core";
+const base = "http://127.0.0.1:3900";
+const browser = await chromium.launch({ executablePath: "/usr/bin/chromium", args: ["--no-sandbox","--disable-gpu"] });
+const ctx = await browser.newContext();
+const page = await ctx.newPage();
+await page.goto(base + "/sign-in");
+await page.getByLabel("E-mail").fill(`packing@demo.twinleaf.test`);
+await page.getByLabel("Password").fill("twinleaf-demo");
+await page.getByRole("button", { name: "Sign in" }).click();
+await page.getByTestId("today").waitFor();
+const res = await ctx.request.get(base + "/api/v1/pairs/" + encodeURIComponent(process.argv[2]) + "/certificate");
+console.log(res.status());
+(await import("node:fs")).writeFileSync("/tmp/look/cert.pdf", await res.body());
+await browser.close();
