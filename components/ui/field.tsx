@@ -31,10 +31,10 @@ function FieldShell({ id, label, hint, errors, children }: { id: string; label: 
   );
 }
 
-type TextFieldProps = Omit<ComponentProps<"input">, "id"> & { label: ReactNode; name: string; hint?: ReactNode; errors?: string[] };
+type TextFieldProps = Omit<ComponentProps<"input">, "id"> & { label: ReactNode; name: string; hint?: ReactNode; errors?: string[]; suggestions?: readonly string[] };
 
-/** A labelled input whose hint and error are tied to it with aria-describedby. */
-export function TextField({ label, hint, errors, className, ...input }: TextFieldProps) {
+/** A labelled input whose hint and error are tied to it with aria-describedby; `suggestions` offer earlier values to pick from. */
+export function TextField({ label, hint, errors, className, suggestions, ...input }: TextFieldProps) {
   const id = useId();
   return (
     <FieldShell id={id} label={label} hint={hint} errors={errors}>
@@ -43,8 +43,16 @@ export function TextField({ label, hint, errors, className, ...input }: TextFiel
         className={cx(controlClasses, className)}
         aria-invalid={errors?.length ? true : undefined}
         aria-describedby={describedBy(hint && `${id}-hint`, errors?.length && `${id}-error`)}
+        list={suggestions?.length ? `${id}-suggestions` : undefined}
         {...input}
       />
+      {suggestions?.length ? (
+        <datalist id={`${id}-suggestions`}>
+          {suggestions.map((v) => (
+            <option key={v} value={v} />
+          ))}
+        </datalist>
+      ) : null}
     </FieldShell>
   );
 }

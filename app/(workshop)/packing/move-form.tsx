@@ -1,7 +1,7 @@
 "use client";
-import { useId, useState } from "react";
+import { useState } from "react";
 import { submitKeepingFields, useActionStateThen } from "@/components/ui/kept-form";
-import { controlClasses } from "@/components/ui/field";
+import { SelectField, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { Button } from "@/components/ui/button";
 import { initialFormState } from "@/lib/forms";
@@ -13,7 +13,6 @@ export function MoveForm({ cartons, locations }: { cartons: { carton: string; lo
   const [carton, setCarton] = useState("");
   const [location, setLocation] = useState("");
   const [state, action, pending] = useActionStateThen(moveCartonAction, initialFormState, () => setLocation(""));
-  const id = useId();
   const submit = submitKeepingFields(action, pending);
   const errors = (field: string) => (!state.ok ? state.fieldErrors?.[field] : undefined);
   if (cartons.length === 0) return null;
@@ -25,40 +24,16 @@ export function MoveForm({ cartons, locations }: { cartons: { carton: string; lo
         </Notice>
       ) : null}
       <div className="grid gap-4 sm:grid-cols-[1fr_1fr_auto] sm:items-end">
-        <div className="flex flex-col gap-1.5">
-          <label htmlFor={`${id}-carton`} className="font-bold">
-            Carton
-          </label>
-          <select id={`${id}-carton`} name="carton" value={carton} onChange={(e) => setCarton(e.currentTarget.value)} className={`${controlClasses} serial`} aria-invalid={errors("carton")?.length ? true : undefined} aria-describedby={errors("carton")?.length ? `${id}-carton-error` : undefined}>
-            <option value="">Choose the carton…</option>
-            {cartons.map((c) => (
-              <option key={c.carton} value={c.carton}>
-                {c.location ? `${c.carton}, at ${c.location}` : `${c.carton}, place not recorded`}
-              </option>
-            ))}
-          </select>
-          {errors("carton")?.length ? (
-            <p id={`${id}-carton-error`} className="text-sm font-bold text-danger">
-              {errors("carton")!.join(" ")}
-            </p>
-          ) : null}
-        </div>
-        <div className="flex flex-col gap-1.5">
-          <label htmlFor={`${id}-location`} className="font-bold">
-            New place
-          </label>
-          <input id={`${id}-location`} name="location" value={location} list={`${id}-places`} onChange={(e) => setLocation(e.currentTarget.value)} className={controlClasses} autoComplete="off" placeholder={LOCATION_HINT} aria-invalid={errors("location")?.length ? true : undefined} aria-describedby={errors("location")?.length ? `${id}-location-error` : undefined} />
-          <datalist id={`${id}-places`}>
-            {locations.map((l) => (
-              <option key={l} value={l} />
-            ))}
-          </datalist>
-          {errors("location")?.length ? (
-            <p id={`${id}-location-error`} className="text-sm font-bold text-danger">
-              {errors("location")!.join(" ")}
-            </p>
-          ) : null}
-        </div>
+        <SelectField
+          label="Carton"
+          name="carton"
+          value={carton}
+          onChange={(e) => setCarton(e.currentTarget.value)}
+          className="serial"
+          errors={errors("carton")}
+          options={[{ value: "", label: "Choose the carton…" }, ...cartons.map((c) => ({ value: c.carton, label: c.location ? `${c.carton}, at ${c.location}` : `${c.carton}, place not recorded` }))]}
+        />
+        <TextField label="New place" name="location" value={location} onChange={(e) => setLocation(e.currentTarget.value)} suggestions={locations} autoComplete="off" placeholder={LOCATION_HINT} errors={errors("location")} />
         <Button type="submit" variant="secondary" disabled={pending} aria-busy={pending}>
           {pending ? "Saving…" : "Record the move"}
         </Button>

@@ -2,7 +2,7 @@
 import Link from "next/link";
 import { useId, useState } from "react";
 import { submitKeepingFields, useActionStateThen } from "@/components/ui/kept-form";
-import { controlClasses } from "@/components/ui/field";
+import { SelectField, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { Button } from "@/components/ui/button";
 import { initialFormState } from "@/lib/forms";
@@ -100,41 +100,17 @@ export function ShipForm({ cartons, dealers, today }: { cartons: ShipCarton[]; d
         </fieldset>
       ) : null}
       <div className="grid gap-4 sm:grid-cols-2">
-        <div className="flex flex-col gap-1.5">
-          <label htmlFor={`${id}-dealer`} className="font-bold">
-            Dealer
-          </label>
-          <select id={`${id}-dealer`} name="dealerId" value={dealerId} onChange={(e) => setDealerId(e.currentTarget.value)} className={controlClasses} aria-invalid={errors("dealerId")?.length ? true : undefined} aria-describedby={describe("dealerId")}>
-            <option value="">Choose the dealer…</option>
-            {dealers.map((d) => (
-              <option key={d.id} value={d.id}>
-                {d.name}, {d.city}
-              </option>
-            ))}
-          </select>
-          {errorLine("dealerId")}
-        </div>
-        <div className="flex flex-col gap-1.5">
-          <label htmlFor={`${id}-date`} className="font-bold">
-            Shipped on
-          </label>
-          <input id={`${id}-date`} type="date" name="shippedOn" value={shippedOn} max={today} onChange={(e) => setShippedOn(e.currentTarget.value)} className={controlClasses} aria-invalid={errors("shippedOn")?.length ? true : undefined} aria-describedby={describe("shippedOn")} />
-          {errorLine("shippedOn")}
-        </div>
-        <div className="flex flex-col gap-1.5">
-          <label htmlFor={`${id}-carrier`} className="font-bold">
-            Carrier
-          </label>
-          <input id={`${id}-carrier`} name="carrier" value={carrier} onChange={(e) => setCarrier(e.currentTarget.value)} className={controlClasses} autoComplete="off" aria-invalid={errors("carrier")?.length ? true : undefined} aria-describedby={describe("carrier")} />
-          {errorLine("carrier")}
-        </div>
-        <div className="flex flex-col gap-1.5">
-          <label htmlFor={`${id}-tracking`} className="font-bold">
-            Tracking number
-          </label>
-          <input id={`${id}-tracking`} name="tracking" value={tracking} onChange={(e) => setTracking(e.currentTarget.value)} className={`${controlClasses} serial`} autoComplete="off" spellCheck={false} aria-invalid={errors("tracking")?.length ? true : undefined} aria-describedby={describe("tracking")} />
-          {errorLine("tracking")}
-        </div>
+        <SelectField
+          label="Dealer"
+          name="dealerId"
+          value={dealerId}
+          onChange={(e) => setDealerId(e.currentTarget.value)}
+          errors={errors("dealerId")}
+          options={[{ value: "", label: "Choose the dealer…" }, ...dealers.map((d) => ({ value: d.id, label: `${d.name}, ${d.city}` }))]}
+        />
+        <TextField label="Shipped on" type="date" name="shippedOn" value={shippedOn} max={today} onChange={(e) => setShippedOn(e.currentTarget.value)} errors={errors("shippedOn")} />
+        <TextField label="Carrier" name="carrier" value={carrier} onChange={(e) => setCarrier(e.currentTarget.value)} autoComplete="off" errors={errors("carrier")} />
+        <TextField label="Tracking number" name="tracking" value={tracking} onChange={(e) => setTracking(e.currentTarget.value)} className="serial" autoComplete="off" spellCheck={false} errors={errors("tracking")} />
       </div>
       <p className="text-sm text-ink-soft">The dealer gets one e-mail listing every pair with the tracking number, and each pair&apos;s certificate attached as a PDF copy.</p>
       <div>

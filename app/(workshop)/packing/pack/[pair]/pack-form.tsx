@@ -1,7 +1,7 @@
 "use client";
 import { useActionState, useId, useState } from "react";
 import { submitKeepingFields } from "@/components/ui/kept-form";
-import { controlClasses } from "@/components/ui/field";
+import { TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { Button } from "@/components/ui/button";
 import { initialFormState } from "@/lib/forms";
@@ -64,34 +64,8 @@ export function PackForm({ pair, items, locations }: { pair: string; items: stri
           </p>
         ) : null}
       </fieldset>
-      <div className="flex max-w-md flex-col gap-1.5">
-        <label htmlFor={`${id}-location`} className="font-bold">
-          Storage location
-        </label>
-        <input
-          id={`${id}-location`}
-          name="location"
-          value={location}
-          onChange={(e) => setLocation(e.currentTarget.value)}
-          list={`${id}-places`}
-          className={controlClasses}
-          autoComplete="off"
-          aria-invalid={errors("location")?.length ? true : undefined}
-          aria-describedby={errors("location")?.length ? `${id}-location-hint ${id}-location-error` : `${id}-location-hint`}
-        />
-        <datalist id={`${id}-places`}>
-          {locations.map((l) => (
-            <option key={l} value={l} />
-          ))}
-        </datalist>
-        <p id={`${id}-location-hint`} className="text-sm text-ink-soft">
-          {LOCATION_HINT}
-        </p>
-        {errors("location")?.length ? (
-          <p id={`${id}-location-error`} className="text-sm font-bold text-danger">
-            {errors("location")!.join(" ")}
-          </p>
-        ) : null}
+      <div className="max-w-md">
+        <TextField label="Storage location" name="location" value={location} onChange={(e) => setLocation(e.currentTarget.value)} suggestions={locations} autoComplete="off" hint={LOCATION_HINT} errors={errors("location")} />
       </div>
       <p className="font-bold text-caution">A packed pair is heavy: lift the carton with two people or a lifting aid.</p>
       <div>
