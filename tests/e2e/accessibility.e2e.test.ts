@@ -1,7 +1,7 @@
 import { AxeBuilder } from "@axe-core/playwright";
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser-helpers";
+import { demoEmail, launchBrowser, newPage, signIn, url, visit } from "./browser-helpers";
 
 let browser: Browser;
 beforeAll(async () => {
@@ -22,7 +22,7 @@ async function violations(page: Page) {
 describe("accessibility (axe-core)", () => {
   test("the sign-in page has no WCAG A/AA violations, also when showing errors", async () => {
     const page = await newPage(browser);
-    await page.goto(url("/sign-in"));
+    await visit(page, url("/sign-in"));
     expect(await violations(page)).toEqual([]);
     await page.getByRole("button", { name: "Sign in" }).click();
     await page.getByText("Enter your password.").waitFor();
@@ -43,10 +43,10 @@ describe("accessibility of the veneer room (axe-core)", () => {
     const page = await newPage(browser);
     await signIn(page, demoEmail("veneer"));
     for (const path of ["/veneer", "/veneer/receive", "/cabinet/lacquer"]) {
-      await page.goto(url(path));
+      await visit(page, url(path));
       expect(await violations(page), path).toEqual([]);
     }
-    await page.goto(url("/veneer"));
+    await visit(page, url("/veneer"));
     await page.getByTestId("flitch-table").locator("a").first().click();
     await page.getByTestId("plan-picture").waitFor();
     expect(await violations(page), "flitch page").toEqual([]);

@@ -1,6 +1,6 @@
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { demoEmail, launchBrowser, linkIn, newPage, signIn, url, waitForMail } from "./browser-helpers";
+import { demoEmail, launchBrowser, linkIn, newPage, signIn, url, waitForMail, visit } from "./browser-helpers";
 
 let browser: Browser;
 let admin: Page;
@@ -15,7 +15,7 @@ afterAll(async () => {
 });
 
 async function invite(name: string, email: string, roleLabels: string[]) {
-  await admin.goto(url("/admin/users"));
+  await visit(admin, url("/admin/users"));
   await admin.getByRole("button", { name: "Invite someone" }).click();
   const form = admin.getByTestId("invite-form");
   await form.getByLabel("Name").fill(name);
@@ -30,7 +30,7 @@ async function join(name: string, email: string, roleLabels: string[], password 
   await invite(name, email, roleLabels);
   const link = linkIn(await waitForMail(email, /invitation/i), "/invite/");
   const page = await newPage(browser);
-  await page.goto(link);
+  await visit(page, link);
   await page.getByLabel("New password").fill(password);
   await page.getByLabel("The same again").fill(password);
   await page.getByRole("button", { name: "Set password and sign in" }).click();
@@ -39,7 +39,7 @@ async function join(name: string, email: string, roleLabels: string[], password 
 }
 
 async function openUser(name: string) {
-  await admin.goto(url("/admin/users"));
+  await visit(admin, url("/admin/users"));
   await admin.getByRole("link", { name }).click();
   await admin.getByRole("heading", { name }).waitFor();
 }
@@ -54,7 +54,7 @@ describe("accounts", () => {
     const link = linkIn(mail, "/invite/");
 
     const page = await newPage(browser);
-    await page.goto(link);
+    await visit(page, link);
     await page.getByLabel("New password").fill("a long enough password");
     await page.getByLabel("The same again").fill("a long enough password");
     await page.getByRole("button", { name: "Set password and sign in" }).click();
@@ -63,7 +63,7 @@ describe("accounts", () => {
 
     // The link works once.
     const again = await newPage(browser);
-    await again.goto(link);
+    await visit(again, link);
     await again.getByTestId("token-gone").waitFor();
     await page.context().close();
     await again.context().close();
@@ -73,27 +73,27 @@ describe("accounts", () => {
     const email = "ash.reset@workshop.test";
     await (await join("Ash Merriweather", email, ["Assembly"], "first password here")).context().close();
     const page = await newPage(browser);
-    await page.goto(url("/reset"));
+    await visit(page, url("/reset"));
     await page.getByLabel("E-mail").fill(email);
     await page.getByRole("button", { name: "Send me a link" }).click();
     await page.getByTestId("reset-requested").waitFor();
 
     const link = linkIn(await waitForMail(email, /password/i), "/reset/");
-    await page.goto(link);
+    await visit(page, link);
     await page.getByLabel("New password").fill("assembly bench seven");
     await page.getByLabel("The same again").fill("assembly bench seven");
     await page.getByRole("button", { name: "Save and sign in" }).click();
     await page.getByTestId("today").waitFor();
 
     const other = await newPage(browser);
-    await other.goto(url("/sign-in"));
+    await visit(other, url("/sign-in"));
     await other.getByLabel("E-mail").fill(email);
     await other.getByLabel("Password").fill("first password here");
     await other.getByRole("button", { name: "Sign in" }).click();
     await other.getByTestId("sign-in-error").waitFor();
     await signIn(other, email, "assembly bench seven");
 
-    await page.goto(link);
+    await visit(page, link);
     await page.getByTestId("token-gone").waitFor();
     await page.context().close();
     await other.context().close();
@@ -101,15 +101,15 @@ describe("accounts", () => {
 
   test("a change of roles applies on the user's next request", async () => {
     const user = await join("Rowan Pike", "rowan.roles@workshop.test", ["Packing"]);
-    expect((await user.goto(url("/lab")))?.status()).toBe(403);
+    expect((await visit(user, url("/lab")))?.status()).toBe(403);
 
     await openUser("Rowan Pike");
     await admin.getByTestId("roles-form").getByLabel("Lab").check();
     await admin.getByRole("button", { name: "Save roles" }).click();
     await admin.getByTestId("toast").filter({ hasText: "Roles saved" }).waitFor();
 
-    expect((await user.goto(url("/lab")))?.status()).toBe(200);
-    await user.goto(url("/"));
+    expect((await visit(user, url("/lab")))?.status()).toBe(200);
+    await visit(user, url("/"));
     const links = await user.getByTestId("area-nav").getByRole("link").allTextContents();
     expect(links).toContain("Lab");
     await user.context().close();
@@ -117,7 +117,7 @@ describe("accounts", () => {
 
   test("deactivating a user ends their open session", async () => {
     const user = await join("Sloane Tidwell", "sloane.leaving@workshop.test", ["Cabinet shop"]);
-    expect((await user.goto(url("/cabinet")))?.status()).toBe(200);
+    expect((await visit(user, url("/cabinet")))?.status()).toBe(200);
 
     await openUser("Sloane Tidwell");
     await admin.getByRole("button", { name: "Deactivate…" }).click();
@@ -125,7 +125,7 @@ describe("accounts", () => {
     await admin.getByRole("button", { name: "Deactivate now" }).click();
     await admin.getByTestId("toast").filter({ hasText: "Deactivated" }).waitFor();
 
-    await user.goto(url("/cabinet"));
+    await visit(user, url("/cabinet"));
     expect(new URL(user.url()).pathname).toBe("/sign-in");
     const res = await user.request.get(url("/api/v1/me"));
     expect(res.status()).toBe(401);

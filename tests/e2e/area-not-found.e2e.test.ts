@@ -7,7 +7,7 @@ import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import { areaByKey } from "@/lib/areas";
 import type { Role } from "@/lib/auth/roles";
 import { paths } from "@/lib/paths";
-import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser-helpers";
+import { demoEmail, launchBrowser, newPage, signIn, url, visit } from "./browser-helpers";
 
 let browser: Browser;
 beforeAll(async () => {
@@ -29,7 +29,7 @@ describe("an unknown serial under an area", () => {
   ])("in the %s area (as %s) answers 404 with the area's own page", async (areaKey, role, path, what, asked) => {
     const page = await newPage(browser);
     await signIn(page, demoEmail(role));
-    const res = await page.goto(url(path));
+    const res = await visit(page, url(path));
     expect(res?.status()).toBe(404);
     const notFound = page.getByTestId("area-not-found");
     await notFound.waitFor();
@@ -46,7 +46,7 @@ describe("an unknown serial under an area", () => {
   test("a user or owner that is not there is named by what it is, never by its id", async () => {
     const page = await newPage(browser);
     await signIn(page, demoEmail("admin"));
-    const res = await page.goto(url(`${paths.adminUsers}/no-such-user-7f3a`));
+    const res = await visit(page, url(`${paths.adminUsers}/no-such-user-7f3a`));
     expect(res?.status()).toBe(404);
     const notFound = page.getByTestId("area-not-found");
     expect(await notFound.locator("h1").innerText()).toBe("This user is not registered");

@@ -18,7 +18,7 @@ import { acceptPlan, importResponseFiles, registerBatch } from "@/lib/lab/units"
 import { pairRoute, recordStep } from "@/lib/route/pair-route";
 import { confirmRuns, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
 import { makeLacquerCabinets } from "@/lib/cabinets/lacquer";
-import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser-helpers";
+import { demoEmail, launchBrowser, newPage, signIn, url, visit } from "./browser-helpers";
 import { goodReadings } from "../fixtures/route";
 
 let browser: Browser;
@@ -98,7 +98,7 @@ async function scanInto(key: string, code: string): Promise<string> {
 
 describe("the assembly station", () => {
   test("a pair opened by its label is built from scans; a wrong scan is refused beside its field", async () => {
-    await page.goto(url("/assembly"));
+    await visit(page, url("/assembly"));
     await expect.poll(() => page.getByTestId("assembly-waiting").textContent()).toContain(w.pair);
     expect(await violations()).toEqual([]);
     await page.getByLabel("Scan a pair or cabinet label").fill(w.pair.toLowerCase());
@@ -132,7 +132,7 @@ describe("the assembly station", () => {
   });
 
   test("two finished lacquer cabinets are paired and open as a pair ready to build", async () => {
-    await page.goto(url("/assembly"));
+    await visit(page, url("/assembly"));
     await page.getByLabel("Left cabinet").fill(w.lacquer[0]!);
     await page.getByLabel("Right cabinet").fill(w.lacquer[0]!);
     await page.getByRole("button", { name: "Pair the two cabinets" }).click();

@@ -1,6 +1,6 @@
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser-helpers";
+import { demoEmail, launchBrowser, newPage, signIn, url, visit } from "./browser-helpers";
 
 let browser: Browser;
 beforeAll(async () => {
@@ -24,7 +24,7 @@ describe("sign-in", () => {
   test("a wrong password and an unknown user get the same answer", async () => {
     const page = await newPage(browser);
     const answer = async (email: string) => {
-      await page.goto(url("/sign-in"));
+      await visit(page, url("/sign-in"));
       await page.getByLabel("E-mail").fill(email);
       await page.getByLabel("Password").fill("not-the-password");
       await page.getByRole("button", { name: "Sign in" }).click();
@@ -44,13 +44,13 @@ describe("sign-in", () => {
     const page = await newPage(browser);
     const probe = "throttle-probe@demo.twinleaf.test";
     for (let i = 0; i < 5; i++) {
-      await page.goto(url("/sign-in"));
+      await visit(page, url("/sign-in"));
       await page.getByLabel("E-mail").fill(probe);
       await page.getByLabel("Password").fill(`wrong-${i}`);
       await page.getByRole("button", { name: "Sign in" }).click();
       await page.getByTestId("sign-in-error").waitFor();
     }
-    await page.goto(url("/sign-in"));
+    await visit(page, url("/sign-in"));
     await page.getByLabel("E-mail").fill(probe);
     await page.getByLabel("Password").fill("twinleaf-demo");
     await page.getByRole("button", { name: "Sign in" }).click();
@@ -60,7 +60,7 @@ describe("sign-in", () => {
 
   test("the signed-out are sent to sign-in, and the API answers 401", async () => {
     const page = await newPage(browser);
-    await page.goto(url("/admin/users"));
+    await visit(page, url("/admin/users"));
     expect(new URL(page.url()).pathname).toBe("/sign-in");
     const res = await fetch(url("/api/v1/me"));
     expect(res.status).toBe(401);

@@ -48,3 +48,14 @@ export function linkIn(message: MailboxMessage, pathPrefix: string): string {
   if (!link) throw new Error(`no ${pathPrefix} link in: ${message.text}`);
   return link;
 }
+
+/**
+ * Opens a page and waits until it has settled. A page under a loading boundary streams: React
+ * parks the finished part in a hidden copy and reveals it a moment later (it batches reveals), so
+ * right after `load` a test id can stand twice in the document. This waits until no copy is left.
+ */
+export async function visit(page: Page, to: string) {
+  const res = await page.goto(to);
+  await page.waitForFunction(() => !document.querySelector('div[hidden][id^="S:"]'));
+  return res;
+}

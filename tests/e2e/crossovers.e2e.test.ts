@@ -1,6 +1,6 @@
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser-helpers";
+import { demoEmail, launchBrowser, newPage, signIn, url, visit } from "./browser-helpers";
 
 let browser: Browser;
 let page: Page;
@@ -22,7 +22,7 @@ const response = Array.from({ length: 200 }, (_, i) => {
 
 describe("crossover boards, as the lab builds them", () => {
   test("a board with a slip saves nothing; corrected, with one part out of tolerance, it is recorded as failed with the reason", async () => {
-    await page.goto(url("/lab/crossovers"));
+    await visit(page, url("/lab/crossovers"));
     await page.getByTestId("crossovers-page").waitFor();
     await expect(page.getByTestId("safety-cautions").textContent()).resolves.toMatch(/fume extraction/);
 
@@ -63,7 +63,7 @@ describe("crossover boards, as the lab builds them", () => {
   });
 
   test("a reading typed without a unit is read in the nominal's unit, as the preview shows; one ten times away is refused as a slip", async () => {
-    await page.goto(url("/lab/crossovers"));
+    await visit(page, url("/lab/crossovers"));
     const form = page.getByTestId("build-form");
     for (const name of ["Remove part 5 (R1)", "Remove part 4 (L2)", "Remove part 3 (L1)", "Remove part 2 (C2)"]) await form.getByRole("button", { name }).click();
     const row = form.getByTestId("part-row").first();

@@ -8,7 +8,7 @@ import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, inject, test } from "vitest";
 import { openDb } from "@/db";
 import { certificates, dealers, items, links } from "@/db/schema";
-import { demoEmail, launchBrowser, newPage, signIn, url, waitForMail } from "./browser-helpers";
+import { demoEmail, launchBrowser, newPage, signIn, url, waitForMail, visit } from "./browser-helpers";
 
 let browser: Browser;
 let page: Page;
@@ -37,7 +37,7 @@ describe("dispatch, as a packer does it", () => {
   const tracking = `E2E-${Date.now().toString(36).toUpperCase()}`;
 
   test("packs a tested pair from the packers' home: every item ticked, a storage place", async () => {
-    await page.goto(url("/packing"));
+    await visit(page, url("/packing"));
     await page.getByTestId("area-packing").waitFor();
     await expect(page.getByTestId("safety-cautions").textContent()).resolves.toMatch(/two people or a lifting aid/);
     expect(await violations(page), "/packing").toEqual([]);
@@ -86,7 +86,7 @@ describe("dispatch, as a packer does it", () => {
 
   test("ships it to a dealer; the dealer's e-mail arrives with the certificate attached", async () => {
     const [dealer] = await db.select().from(dealers).where(eq(dealers.code, "MLR"));
-    await page.goto(url("/packing"));
+    await visit(page, url("/packing"));
     const form = page.getByTestId("ship-form");
     await form.locator(`input[name="cartons"][value="${carton}"]`).check();
     await form.getByLabel("Dealer").selectOption(dealer!.id);
@@ -103,7 +103,7 @@ describe("dispatch, as a packer does it", () => {
     expect(await form.locator('input[name="cartons"]:checked').count()).toBe(0);
 
     // After a reload, "Shipped today (n)" counts the rows it lists, ours among them.
-    await page.goto(url("/packing"));
+    await visit(page, url("/packing"));
     const heading = (await page.getByRole("heading", { name: /^Shipped today \(\d+\)$/ }).textContent())!;
     const rows = page.getByTestId("shipped-today").locator("tbody tr");
     expect(Number(/\((\d+)\)/.exec(heading)![1])).toBe(await rows.count());
@@ -136,7 +136,7 @@ describe("dispatch, as a packer does it", () => {
   test("at 800 px the pair's page says where it is in words, and no serial is cut", async () => {
     await page.setViewportSize({ width: 800, height: 900 });
     try {
-      await page.goto(url(`/register/items/${encodeURIComponent(pair)}`));
+      await visit(page, url(`/register/items/${encodeURIComponent(pair)}`));
       const place = (await page.getByTestId("current-place").first().textContent())!;
       expect(place).toMatch(new RegExp(`^In carton ${carton}, shipped to Merrow Lane[^,]* on \\d{1,2} \\w{3}( \\d{4})? in shipment H-MLR-`));
       await expect(page.getByTestId("shipped-when").textContent()).resolves.toMatch(/to Merrow Lane.* in shipment H-MLR-/);
@@ -162,7 +162,7 @@ describe("dispatch, as a packer does it", () => {
     try {
       const admin = await context.newPage();
       await signIn(admin, demoEmail("admin"));
-      await admin.goto(url("/admin/mail"));
+      await visit(admin, url("/admin/mail"));
       await admin.getByRole("link", { name: `Shipped: 1 matched pair, tracking ${tracking}` }).click();
       const attachment = admin.getByTestId("mail-attachment");
       await expect(attachment.textContent()).resolves.toMatch(new RegExp(`^certificate-${pair}\\.pdfPDF document · [\\d.]+ KBDownload$`));
@@ -189,7 +189,7 @@ describe("dispatch, as a packer does it", () => {
     const context = await browser.newContext({ viewport: { width: 390, height: 844 } });
     try {
       const phone = await context.newPage();
-      const res = await phone.goto(url(`/verify/${row!.code}`));
+      const res = await visit(phone, url(`/verify/${row!.code}`));
       expect(res?.status()).toBe(200);
       await expect(phone.getByTestId("verify-genuine").textContent()).resolves.toMatch(/This is a genuine Twinleaf certificate/);
       await expect(phone.getByTestId("verify-pair").textContent()).resolves.toBe(pair);
@@ -198,7 +198,7 @@ describe("dispatch, as a packer does it", () => {
       const body = (await phone.locator("main").textContent())!;
       expect(body).not.toMatch(/Merrow Lane|Fernway|@/);
 
-      const missing = await phone.goto(url(`/verify/${"a".repeat(26)}`));
+      const missing = await visit(phone, url(`/verify/${"a".repeat(26)}`));
       expect(missing?.status()).toBe(404);
       await expect(phone.getByTestId("verify-unknown").textContent()).resolves.toMatch(/No certificate has this code\. Check the address on your certificate\./);
       expect(await violations(phone), "verify 404").toEqual([]);

@@ -18,7 +18,7 @@ import { acceptCrossoverPlan, buildCrossover } from "@/lib/lab/crossovers";
 import { acceptPlan, importResponseFiles, registerBatch } from "@/lib/lab/units";
 import { pairRoute, recordStep } from "@/lib/route/pair-route";
 import { confirmRuns, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
-import { demoEmail, launchBrowser, newPage, signIn, url, waitForMail } from "./browser-helpers";
+import { demoEmail, launchBrowser, newPage, signIn, url, waitForMail, visit } from "./browser-helpers";
 import { goodReadings } from "../fixtures/route";
 
 let browser: Browser;
@@ -76,7 +76,7 @@ describe("a pair from matched parts to a shipped carton, in the browser", () => 
 
   test("assembly builds the speakers from the pair's matched sets", async () => {
     const page = await as("assembly");
-    await page.goto(url(`/assembly/${w.pair}`));
+    await visit(page, url(`/assembly/${w.pair}`));
     await page.getByTestId("build-form").waitFor();
     const scan = async (key: string, code: string) => {
       await page.getByTestId(`scan-${key}`).fill(code);
@@ -98,7 +98,7 @@ describe("a pair from matched parts to a shipped carton, in the browser", () => 
 
   test("the lab passes its final test", async () => {
     const page = await as("lab");
-    await page.goto(url(`/lab/final-test?pair=${w.pair}`));
+    await visit(page, url(`/lab/final-test?pair=${w.pair}`));
     await page.getByTestId("final-left").setInputFiles({ name: "left.txt", mimeType: "text/plain", buffer: Buffer.from(flat("left", 88)) });
     await page.getByTestId("final-right").setInputFiles({ name: "right.txt", mimeType: "text/plain", buffer: Buffer.from(flat("right", 88.4)) });
     await page.getByRole("button", { name: "Compare left and right" }).click();
@@ -109,7 +109,7 @@ describe("a pair from matched parts to a shipped carton, in the browser", () => 
 
   test("a packer packs it, prints its certificate and carton label, and ships it; the dealer's e-mail carries the certificate", async () => {
     const page = await as("packing");
-    await page.goto(url(`/packing/pack/${w.pair}`));
+    await visit(page, url(`/packing/pack/${w.pair}`));
     const boxes = page.getByTestId("pack-item");
     for (let i = 0; i < (await boxes.count()); i++) await boxes.nth(i).check();
     await page.getByLabel("Storage location").fill("Rack J, shelf 2");
@@ -127,7 +127,7 @@ describe("a pair from matched parts to a shipped carton, in the browser", () => 
     const [dealer] = await db.select().from(dealers).limit(1);
     client.close();
     const tracking = `J-${Date.now().toString(36).toUpperCase()}`;
-    await page.goto(url("/packing"));
+    await visit(page, url("/packing"));
     const form = page.getByTestId("ship-form");
     await form.locator(`input[name="cartons"][value="${carton}"]`).check();
     await form.getByLabel("Dealer").selectOption(dealer!.id);
@@ -150,7 +150,7 @@ describe("a pair from matched parts to a shipped carton, in the browser", () => 
     client.close();
     const context = await browser.newContext();
     const phone = await context.newPage();
-    const res = await phone.goto(url(`/verify/${row!.code}`));
+    const res = await visit(phone, url(`/verify/${row!.code}`));
     expect(res?.status()).toBe(200);
     await expect(phone.getByTestId("verify-genuine").textContent()).resolves.toMatch(/genuine/);
     await expect(phone.getByTestId("verify-pair").textContent()).resolves.toBe(w.pair);

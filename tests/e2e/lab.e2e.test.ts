@@ -4,7 +4,7 @@ import { afterAll, beforeAll, describe, expect, inject, test } from "vitest";
 import { openDb } from "@/db";
 import { users } from "@/db/schema";
 import { importResponseFiles, registerBatch } from "@/lib/lab/units";
-import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser-helpers";
+import { demoEmail, launchBrowser, newPage, signIn, url, visit } from "./browser-helpers";
 
 let browser: Browser;
 let page: Page;
@@ -40,7 +40,7 @@ describe("the lab, as a lab user does it", () => {
   let batch = "";
 
   test("a number of units that disagrees with the serials scanned is pointed out as you type, and refused", async () => {
-    await page.goto(url("/lab/batches/new"));
+    await visit(page, url("/lab/batches/new"));
     const form = page.getByTestId("batch-form");
     await form.getByLabel("Part type").selectOption("tweeter");
     await form.getByLabel("Maker's part number").fill("T-E2E-N");
@@ -56,7 +56,7 @@ describe("the lab, as a lab user does it", () => {
   });
 
   test("registers a batch of tweeters by scanning the makers' serials", async () => {
-    await page.goto(url("/lab"));
+    await visit(page, url("/lab"));
     await page.getByTestId("register-batch").click();
     const form = page.getByTestId("batch-form");
     await form.getByLabel("Part type").selectOption("tweeter");
@@ -103,7 +103,7 @@ describe("the lab, as a lab user does it", () => {
     await expect.poll(() => page.getByTestId("pair-chart").first().textContent()).toMatch(/2 kHz5 kHz10 kHz20 kHz/);
     await page.getByRole("button", { name: /Accept the plan/ }).click();
     await expect(page.getByTestId("plan-accepted").textContent()).resolves.toMatch(/2 matched sets reserved/);
-    await page.goto(url("/lab"));
+    await visit(page, url("/lab"));
     await expect(page.getByTestId("lab-sets").textContent()).resolves.toContain(`M-${batch}-001`);
     // The set is in the register: a unit's page names its set and its partner.
     await page.getByTestId("lab-sets").locator("a").first().click();
@@ -111,7 +111,7 @@ describe("the lab, as a lab user does it", () => {
   });
 
   test("matching is not offered for two units that cannot pair; the page says why, and the plan lists them as left over", async () => {
-    await page.goto(url(`/lab/batches/${apart.code}`));
+    await visit(page, url(`/lab/batches/${apart.code}`));
     await page.getByTestId("batch-page").waitFor();
     await expect(page.getByTestId("match-batch").count()).resolves.toBe(0);
     await expect(page.getByTestId("match-not-offered").textContent()).resolves.toContain(
@@ -120,7 +120,7 @@ describe("the lab, as a lab user does it", () => {
     // The columns of the lab's batch table add up to its units.
     await expect(page.getByTestId("batch-counts").textContent()).resolves.toBe("0 waiting for measurement · 2 measured and free to match · 0 reserved in sets · 0 fitted in speakers · 0 failed");
 
-    await page.goto(url(`/lab/match?batch=${apart.code}`));
+    await visit(page, url(`/lab/match?batch=${apart.code}`));
     await expect(page.getByTestId("plan-nothing").textContent()).resolves.toContain("differ by 1.43 dB at 2 kHz");
     await expect(page.getByTestId("plan-single").textContent()).resolves.toMatch(/Left over, not paired \(2\).*no partner within 0\.5 dB: the closest, D-TW-.*, differs by 1\.43 dB at 2 kHz/);
     await expect(page.getByRole("button", { name: /Accept the plan/ }).count()).resolves.toBe(0);

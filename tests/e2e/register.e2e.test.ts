@@ -3,7 +3,7 @@ import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, inject, test } from "vitest";
 import { openDb } from "@/db";
 import { mod37_2Check } from "@/lib/serials";
-import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser-helpers";
+import { demoEmail, launchBrowser, newPage, signIn, url, visit } from "./browser-helpers";
 
 let browser: Browser;
 let page: Page;
@@ -35,7 +35,7 @@ afterAll(async () => {
 });
 
 async function typeInSearch(text: string, enter = false) {
-  await page.goto(url("/"));
+  await visit(page, url("/"));
   const box = page.getByTestId("search-input");
   await box.fill(text);
   if (enter) await box.press("Enter");
@@ -79,7 +79,7 @@ describe("search and trace in the register", () => {
   });
 
   test("the repaired pair shows both halves; now it holds the replacement, as built the failed unit", async () => {
-    await page.goto(url(`/register/items/${encodeURIComponent(repair.pair)}`));
+    await visit(page, url(`/register/items/${encodeURIComponent(repair.pair)}`));
     await page.getByTestId("pair-halves").waitFor();
     await page.getByTestId("trace-tree").waitFor();
     const halves = page.getByTestId("pair-halves");

@@ -3,7 +3,7 @@ import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import { AREAS } from "@/lib/areas";
 import { ROLE_PERMISSIONS } from "@/lib/auth/permissions";
 import { ROLES, type Role } from "@/lib/auth/roles";
-import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser-helpers";
+import { demoEmail, launchBrowser, newPage, signIn, url, visit } from "./browser-helpers";
 
 let browser: Browser;
 const pages = new Map<Role, Page>();
@@ -25,7 +25,7 @@ const allowed = (role: Role) => AREAS.filter((a) => ROLE_PERMISSIONS[role].inclu
 describe.each(ROLES)("the %s user", (role) => {
   test("sees exactly the areas of the role in the navigation", async () => {
     const page = pages.get(role)!;
-    await page.goto(url("/"));
+    await visit(page, url("/"));
     const links = await page.getByTestId("area-nav").getByRole("link").allTextContents();
     expect(links).toEqual(["Today", ...allowed(role).map((a) => a.label)]);
   });
@@ -33,7 +33,7 @@ describe.each(ROLES)("the %s user", (role) => {
   test("opens each own area, and gets 403 for every other area", async () => {
     const page = pages.get(role)!;
     for (const area of AREAS) {
-      const res = await page.goto(url(area.href));
+      const res = await visit(page, url(area.href));
       if (allowed(role).includes(area)) {
         expect(res?.status(), area.href).toBe(200);
         await page.getByTestId(`area-${area.key}`).waitFor();

@@ -6,7 +6,7 @@
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, expect, test } from "vitest";
 import { paths } from "@/lib/paths";
-import { demoEmail, launchBrowser, signIn, url } from "./browser-helpers";
+import { demoEmail, launchBrowser, signIn, url, visit } from "./browser-helpers";
 
 let browser: Browser;
 beforeAll(async () => {
@@ -19,7 +19,7 @@ afterAll(async () => {
 test("a refused limit stays on its reading when the steps move, and undoing the edit saves nothing", async () => {
   const page = await (await browser.newContext({ viewport: { width: 800, height: 1000 } })).newPage();
   await signIn(page, demoEmail("admin"));
-  await page.goto(url(paths.adminRoutes));
+  await visit(page, url(paths.adminRoutes));
   await page.locator("[data-testid^='edit-route-']").first().click();
   await page.getByTestId("route-edit-form").waitFor();
   const editUrl = page.url();

@@ -5,7 +5,7 @@ import { afterAll, beforeAll, describe, expect, inject, test } from "vitest";
 import { openDb } from "@/db";
 import { finishes, models, users } from "@/db/schema";
 import { confirmRuns, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
-import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser-helpers";
+import { demoEmail, launchBrowser, newPage, signIn, url, visit } from "./browser-helpers";
 
 let browser: Browser;
 let cabinet: Page;
@@ -71,7 +71,7 @@ describe("the cabinet route, walked by a cabinet user", () => {
   test("scans a cabinet label and walks the pair from the press to the hand finish as the clock moves", async () => {
     moveClock(0);
     const { pair, left } = made[0]!;
-    await cabinet.goto(url("/cabinet"));
+    await visit(cabinet, url("/cabinet"));
     await cabinet.getByTestId("scan-form").getByRole("textbox").fill(left.toLowerCase());
     await cabinet.getByTestId("scan-form").getByRole("button", { name: "Open" }).click();
     await cabinet.getByTestId("route-page").waitFor();
@@ -90,11 +90,11 @@ describe("the cabinet route, walked by a cabinet user", () => {
     const minute = minuteIn(blocked)!;
     await expect(cabinet.getByTestId("route-cabinets").textContent()).resolves.toContain(`On hold (clamp 2 h and rest 2 h) until ${minute}`);
     await expect(cabinet.getByTestId("times-note").textContent()).resolves.toMatch(/^Times in UTC\./);
-    await cabinet.goto(url("/cabinet"));
+    await visit(cabinet, url("/cabinet"));
     // The home names the zone once for the page, not on every line.
     await expect(cabinet.getByTestId("station-sanding").textContent()).resolves.toContain(`on hold until ${minute.replace(" (UTC)", "")}`);
     await expect(cabinet.getByTestId("times-note").textContent()).resolves.toBe("Times in UTC.");
-    await cabinet.goto(url(`/cabinet/pairs/${pair}`));
+    await visit(cabinet, url(`/cabinet/pairs/${pair}`));
 
     moveClock(4 * HOUR + 60_000);
     await cabinet.reload();
@@ -118,7 +118,7 @@ describe("nonconformances, dispositioned by quality", () => {
   test("a press reading out of window is asked about once; confirmed, it holds the pair; quality accepts it and the pair goes on", async () => {
     moveClock(0);
     const { pair } = made[1]!;
-    await cabinet.goto(url(`/cabinet/pairs/${pair}`));
+    await visit(cabinet, url(`/cabinet/pairs/${pair}`));
     await record(cabinet, { "Platen temperature": "141", "Time in the press": "22" }, true);
     // Asked, with the readings kept; nothing is recorded yet.
     await expect(cabinet.getByTestId("step-confirm").textContent()).resolves.toContain("Platen temperature 141 °C is outside 135–140 °C: record it and open a nonconformance?");
@@ -132,7 +132,7 @@ describe("nonconformances, dispositioned by quality", () => {
     await expect(cabinet.getByTestId("step-form").count()).resolves.toBe(0);
     await expect(cabinet.getByTestId("step-blocked").textContent()).resolves.toMatch(/^The pair is on hold: nonconformance NC-\d{4}-\d{3} is open\. Quality must disposition it first\.$/);
 
-    await quality.goto(url("/quality"));
+    await visit(quality, url("/quality"));
     // The newest open nonconformance is listed last.
     await expect(quality.getByTestId("open-ncs").textContent()).resolves.toMatch(/at step 1, Forming press: Platen temperature 141 °C/);
     const form = quality.locator('[data-testid^="disposition-NC"]').last();
@@ -145,17 +145,17 @@ describe("nonconformances, dispositioned by quality", () => {
     expect(new URL(quality.url()).pathname).toBe("/quality");
     await expect(quality.getByTestId("closed-ncs").textContent()).resolves.toMatch(/use as is/);
 
-    await cabinet.goto(url(`/cabinet/pairs/${pair}`));
+    await visit(cabinet, url(`/cabinet/pairs/${pair}`));
     await record(cabinet, { "Trim deviation": "0.05" });
   });
 
   test("quality scraps one cabinet: its partner is left unpartnered", async () => {
     const { pair, right } = made[2]!;
-    await cabinet.goto(url(`/cabinet/pairs/${pair}`));
+    await visit(cabinet, url(`/cabinet/pairs/${pair}`));
     await record(cabinet, { "Platen temperature": "152", "Time in the press": "22" }, true);
     await cabinet.getByRole("button", { name: "Record it and open a nonconformance" }).click();
     await cabinet.getByTestId("route-hold").waitFor();
-    await quality.goto(url(`/cabinet/pairs/${pair}`));
+    await visit(quality, url(`/cabinet/pairs/${pair}`));
     const form = quality.locator('[data-testid^="disposition-NC"]').first();
     await form.getByLabel("Disposition").selectOption("scrap");
     await form.getByLabel("Cabinet to scrap").selectOption("R");
@@ -166,7 +166,7 @@ describe("nonconformances, dispositioned by quality", () => {
     await expect(quality.getByTestId("disposition-recorded").textContent()).resolves.toMatch(new RegExp(`^NC-\\d{4}-\\d{3}: scrap the right cabinet ${right}\\. The pair is unpartnered until quality signs off a new partner\\.$`));
     await quality.getByTestId("unpartnered").waitFor();
     await quality.getByTestId("repartner-form").waitFor();
-    await quality.goto(url(`/register/items/${right}`));
+    await visit(quality, url(`/register/items/${right}`));
     await expect(quality.getByTestId("item-page").textContent()).resolves.toMatch(/scrapped/);
   });
 });

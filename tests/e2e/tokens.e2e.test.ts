@@ -1,6 +1,6 @@
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser-helpers";
+import { demoEmail, launchBrowser, newPage, signIn, url, visit } from "./browser-helpers";
 
 let browser: Browser;
 let admin: Page;
@@ -23,7 +23,7 @@ async function whoami(token: string) {
 describe("machine tokens", () => {
   test("the admin makes a token, reads it once, a bench uses it, and revoking it shuts the bench out", async () => {
     const name = "Lab bench 2";
-    await admin.goto(url("/admin"));
+    await visit(admin, url("/admin"));
     await admin.getByRole("link", { name: "Open" }).and(admin.locator('[href="/admin/tokens"]')).click();
     await admin.getByRole("heading", { name: "Machine tokens", level: 1 }).waitFor();
 
@@ -59,7 +59,7 @@ describe("machine tokens", () => {
   });
 
   test("a lab token cannot reach the rest of the API", async () => {
-    await admin.goto(url("/admin/tokens"));
+    await visit(admin, url("/admin/tokens"));
     await admin.getByTestId("create-token-form").getByLabel("Name").fill("Lab bench 3");
     await admin.getByRole("button", { name: "Make token" }).click();
     const token = await admin.getByTestId("new-token-value").inputValue();

@@ -1,6 +1,6 @@
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { demoEmail, launchBrowser, newPage, signIn, url } from "./browser-helpers";
+import { demoEmail, launchBrowser, newPage, signIn, url, visit } from "./browser-helpers";
 
 let browser: Browser;
 let page: Page;
@@ -21,7 +21,7 @@ describe("the veneer room, as a veneer user does it", () => {
   let flitch = "";
 
   test("receives a flitch of 12 leaves", async () => {
-    await page.goto(url("/veneer"));
+    await visit(page, url("/veneer"));
     await page.getByTestId("receive-flitch").click();
     const form = page.getByTestId("receive-form");
     await form.waitFor();
@@ -100,7 +100,7 @@ describe("photos of a flitch", () => {
     const raw = Buffer.alloc(width * height * 3);
     for (let i = 0; i < width * height; i++) raw.set([120 + (i % width), 80, 40 + Math.floor(i / width)], i * 3);
     const png = await sharp(raw, { raw: { width, height, channels: 3 } }).png().toBuffer();
-    await page.goto(url("/veneer"));
+    await visit(page, url("/veneer"));
     await page.getByTestId("flitch-table").locator("a").first().click();
     await page.getByTestId("flitch-page").waitFor();
     const form = page.getByTestId("photo-upload");

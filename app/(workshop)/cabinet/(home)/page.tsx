@@ -17,8 +17,8 @@ import { ncsToDisposition } from "@/lib/route/nonconformances";
 import { ncWhere } from "@/lib/route/words";
 import { workshopDayEnd } from "@/lib/workshop-time";
 import { STATION_NAME } from "@/lib/vocabulary/stations";
-import { AutoRefresh } from "./auto-refresh";
-import { ScanForm } from "./scan-form";
+import { AutoRefresh } from "../auto-refresh";
+import { ScanForm } from "../scan-form";
 
 export const metadata: Metadata = { title: "Cabinet shop" };
 

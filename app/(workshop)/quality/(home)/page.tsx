@@ -12,7 +12,7 @@ import { now } from "@/lib/clock";
 import { formatWhen, timesNote } from "@/lib/format";
 import { dispositionedNonconformances, dispositionSummary, ncsToDisposition } from "@/lib/route/nonconformances";
 import { DISPOSITION_WORDS, dispositionPhrase, ncWhere } from "@/lib/route/words";
-import { DispositionForm } from "./disposition-form";
+import { DispositionForm } from "../disposition-form";
 
 export const metadata: Metadata = { title: "Quality" };
 

@@ -11,8 +11,8 @@ import { areaByKey } from "@/lib/areas";
 import { requirePage } from "@/lib/auth/guard";
 import { formatWhen } from "@/lib/format";
 import { listModels } from "@/lib/workshop/queries";
-import { LacquerPairForm } from "./lacquer-form";
-import { ScanForm } from "./scan-form";
+import { LacquerPairForm } from "../lacquer-form";
+import { ScanForm } from "../scan-form";
 
 export const metadata: Metadata = { title: "Assembly" };
 

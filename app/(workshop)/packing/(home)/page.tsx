@@ -14,8 +14,8 @@ import { isoDay } from "@/lib/dispatch/dates";
 import { formatCalendarDay, formatDate } from "@/lib/format";
 import { SerialLink } from "@/components/register/serial-link";
 import { listDealers } from "@/lib/workshop/queries";
-import { MoveForm } from "./move-form";
-import { ShipForm } from "./ship-form";
+import { MoveForm } from "../move-form";
+import { ShipForm } from "../ship-form";
 
 export const metadata: Metadata = { title: "Dispatch" };
 
