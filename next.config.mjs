@@ -1,7 +1,11 @@
 /** @type {import('next').NextConfig} */
 const nextConfig = {
-  // forbidden() renders app/forbidden.tsx with status 403.
-  experimental: { authInterrupts: true },
+  experimental: {
+    // forbidden() renders app/forbidden.tsx with status 403.
+    authInterrupts: true,
+    // The lab's forms take a 2 MB response file; the proxy answers 413 above this (lib/input/body.ts ACTION_BODY_LIMIT, the same 3 MB).
+    serverActions: { bodySizeLimit: "3mb" },
+  },
   // Native or Node-only packages stay outside the server bundle.
   serverExternalPackages: ["@node-rs/argon2", "@libsql/client", "libsql", "nodemailer", "smtp-server", "mailparser"],
   poweredByHeader: false,

@@ -7,7 +7,10 @@ import { forbidden, redirect } from "next/navigation";
 import type { Cookie } from "lucia";
 import { cache } from "react";
 import { z } from "zod";
-import { echoValues, formDataToObject, type FormState } from "@/lib/forms";
+import { echoPlan, echoValues, formDataToObject, type FormState } from "@/lib/forms";
+import { DEFAULT_BODY_LIMIT, readJsonCapped } from "@/lib/input/body";
+import { localPath } from "@/lib/input/local-path";
+import { pathParams } from "@/lib/input/path-params";
 import { getDb } from "@/db";
 import { AppError, forbiddenError, unauthenticated } from "./errors";
 import { SESSION_COOKIE } from "./lucia";
@@ -49,6 +52,8 @@ type Guarded<F> = F & { permission: Permission | null };
 
 const FAILED = "Something went wrong and nothing was saved. Try again; if it keeps happening, tell an administrator.";
 
+const REDIRECT_REFUSED = "This was saved, but the page to go to next is not valid. Reload the page to see what was recorded, and tell an administrator.";
+
 function failure(e: unknown): FormState {
   if (e instanceof AppError) return { ok: false, status: e.status, message: e.message, fieldErrors: e.fieldErrors };
   console.error(e);
@@ -60,13 +65,15 @@ function makeAction<S extends z.ZodType>(
   schema: S,
   body: (input: z.output<S>, user: AuthUser | null) => Promise<ActionResult | void>,
 ): Guarded<(prev: FormState | undefined, formData: FormData) => Promise<FormState>> {
+  // Only fields the schema declares (and none marked secret) are ever sent back.
+  const plan = echoPlan(schema);
   const action = async (_prev: FormState | undefined, formData: FormData): Promise<FormState> => {
     const raw = formDataToObject(formData);
     let user: AuthUser | null = null;
     if (permission) {
       user = await currentUser();
-      if (!user) return { ...failure(unauthenticated()), values: echoValues(raw) };
-      if (!user.permissions.has(permission)) return { ...failure(forbiddenError()), values: echoValues(raw) };
+      if (!user) return { ...failure(unauthenticated()), values: echoValues(raw, plan) };
+      if (!user.permissions.has(permission)) return { ...failure(forbiddenError()), values: echoValues(raw, plan) };
     }
     const parsed = schema.safeParse(raw);
     if (!parsed.success) {
@@ -75,17 +82,26 @@ function makeAction<S extends z.ZodType>(
         status: 400,
         message: "Some fields need attention.",
         fieldErrors: z.flattenError(parsed.error).fieldErrors as Record<string, string[]>,
-        values: echoValues(raw),
+        values: echoValues(raw, plan),
       };
     }
     let result: ActionResult;
     try {
       result = (await body(parsed.data, user)) ?? { ok: true };
     } catch (e) {
-      return { ...failure(e), values: echoValues(raw) };
+      return { ...failure(e), values: echoValues(raw, plan) };
+    }
+    let to: string | null = null;
+    if (result.redirectTo) {
+      // Every redirect passes the one gate; one it refuses is a programming slip, not the user's.
+      to = localPath(result.redirectTo);
+      if (to === null) {
+        console.error(`guardedAction: refused to redirect to ${JSON.stringify(result.redirectTo.slice(0, 200))}`);
+        return { ok: false, status: 500, message: REDIRECT_REFUSED };
+      }
     }
     for (const path of result.revalidate ?? []) revalidatePath(path);
-    if (result.redirectTo) redirect(result.redirectTo);
+    if (to) redirect(to);
     const { revalidate: _r, redirectTo: _d, ...state } = result;
     return state;
   };
@@ -112,6 +128,7 @@ function json(status: number, body: unknown, init?: ResponseInit) {
   return Response.json(body, { ...init, status });
 }
 
+export const NOT_AN_ADDRESS = "Nothing is found at this address.";
 export const MACHINE_ROUTE_ONLY = "Machine tokens may only reach the lab's endpoints.";
 export const MACHINE_TOKEN_INVALID = "This machine token is not valid (unknown or revoked).";
 
@@ -152,7 +169,7 @@ export function guardedRoute<
   M extends MachineScope | undefined = undefined,
 >(
   permission: Permission,
-  opts: { query?: Q; body?: B; machine?: M },
+  opts: { query?: Q; body?: B; machine?: M; bodyLimit?: number },
   handler: (args: RouteArgs<Q, B> & CallerOf<M>) => Promise<unknown>,
 ): GuardedRoute {
   const machine: MachineScope | null = opts.machine ?? null;
@@ -178,19 +195,23 @@ export function guardedRoute<
     const url = new URL(req.url);
     const query = (opts.query ?? z.object({})).safeParse(Object.fromEntries(url.searchParams));
     if (!query.success) return json(400, { error: "The query is not valid.", fieldErrors: z.flattenError(query.error as z.ZodError).fieldErrors });
+    // A value Next decoded from the path that no serial, code or id could be is not found, not a crash.
+    const params = pathParams((await ctx.params) ?? {});
+    if (!params) return json(404, { error: NOT_AN_ADDRESS });
     let bodyValue: unknown = undefined;
     if (opts.body) {
       try {
-        bodyValue = await req.json();
-      } catch {
-        return json(400, { error: "The body must be JSON." });
+        bodyValue = await readJsonCapped(req, opts.bodyLimit ?? DEFAULT_BODY_LIMIT);
+      } catch (e) {
+        const f = failure(e);
+        return json(f.status ?? 400, { error: f.message });
       }
       const parsed = opts.body.safeParse(bodyValue);
       if (!parsed.success) return json(400, { error: "The body is not valid.", fieldErrors: z.flattenError(parsed.error).fieldErrors });
       bodyValue = parsed.data;
     }
     try {
-      const args = { req, ...caller, query: query.data as z.output<Q>, body: bodyValue as z.output<B>, params: (await ctx.params) ?? {} };
+      const args = { req, ...caller, query: query.data as z.output<Q>, body: bodyValue as z.output<B>, params };
       // A session caller satisfies both shapes of CallerOf; a machine one only reaches routes that declared it.
       const out = await handler(args as RouteArgs<Q, B> & CallerOf<M>);
       return out instanceof Response ? out : json(200, out);

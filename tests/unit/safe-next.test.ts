@@ -19,3 +19,10 @@ describe("safeNext", () => {
     expect(safeNext(input)).toBe(expected);
   });
 });
+
+// The probe's own attack and its variants: the path is normalised by the browser after the check.
+describe("safeNext after normalising", () => {
+  test.each([["/.//evil.example"], ["/..//evil.example"], ["/%2e%2e//evil.example"], ["/%2F%2Fevil.example"], ["/a/../..//evil.example"]])("%j → /", (input) => {
+    expect(safeNext(input)).toBe("/");
+  });
+});

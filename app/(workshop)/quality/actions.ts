@@ -9,5 +9,5 @@ import { dispositionSchema, withQuery } from "./schemas";
 export const dispositionAction = guardedAction("quality.work", dispositionSchema, async (input, user) => {
   const { code } = await dispositionNc(getDb(), { ncId: input.ncId, disposition: input.disposition, reworkToSeq: input.reworkToSeq, scrapSide: input.scrapSide, reason: input.reason }, { id: user.id });
   const back = input.back || paths.quality;
-  return { ok: true, revalidate: [paths.quality, paths.cabinet, back.split(/[?#]/)[0]!], redirectTo: withQuery(back, "dispositioned", code) };
+  return { ok: true, revalidate: [paths.quality, paths.cabinet, back.split(/[?#]/)[0]!], redirectTo: withQuery(back, "dispositioned", code) ?? paths.quality };
 });

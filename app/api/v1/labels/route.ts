@@ -10,7 +10,7 @@ import { recordLabelPrints } from "@/lib/labels/queries";
 import { renderLabelSheet, SHEET_LAYOUTS, type SheetLayout } from "@/lib/labels/sheets";
 
 const labelRequest = z.object({
-  identities: z.array(z.string().trim().min(1)).min(1, "Name at least one serial.").max(240, "At most 240 labels at once (10 sheets)."),
+  identities: z.array(z.string().trim().min(1).max(64, "A serial is at most 64 characters.")).min(1, "Name at least one serial.").max(240, "At most 240 labels at once (10 sheets)."),
   layout: z.enum(SHEET_LAYOUTS as [SheetLayout, ...SheetLayout[]], { error: "layout is a4-3x8 or thermal-100x50." }),
   symbology: z.enum(SYMBOLOGIES as [Symbology, ...Symbology[]]).optional(),
   startAt: z.number().int().min(0).max(23).default(0),

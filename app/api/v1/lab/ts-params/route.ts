@@ -2,10 +2,14 @@ import { z } from "zod";
 import { getDb } from "@/db";
 import { AppError } from "@/lib/auth/errors";
 import { guardedRoute } from "@/lib/auth/guard";
+import { KiB } from "@/lib/input/sizes";
 import { labActor } from "@/lib/lab/principal";
 import { batchByCode, importTsRows } from "@/lib/lab/units";
 
 const num = z.number().finite().nullable().optional().transform((v) => v ?? null);
+/** 1,000 units of a serial and seven numbers each, about 200 bytes a unit in JSON, with room to spare. */
+const BODY_LIMIT = 512 * KiB;
+
 const body = z.object({
   batch: z.string().trim().min(1).max(40).optional(),
   units: z
@@ -19,7 +23,7 @@ const body = z.object({
  * `{ batch?, units: [{ serial, fs, qts, qes, qms, re, vas, sensitivity }] }` (Hz, Ω, litres, dB).
  * Every unit is checked first; nothing is saved if any is wrong.
  */
-export const POST = guardedRoute("lab.work", { body, machine: "lab" }, async ({ body, ...caller }) => {
+export const POST = guardedRoute("lab.work", { body, machine: "lab", bodyLimit: BODY_LIMIT }, async ({ body, ...caller }) => {
   const db = getDb();
   const batch = body.batch ? await batchByCode(db, body.batch) : null;
   if (body.batch && !batch) throw new AppError(404, `There is no batch ${body.batch}.`);

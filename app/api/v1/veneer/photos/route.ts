@@ -2,6 +2,7 @@ import { z } from "zod";
 import { getDb } from "@/db";
 import { AppError } from "@/lib/auth/errors";
 import { guardedRoute } from "@/lib/auth/guard";
+import { readFormCapped } from "@/lib/input/body";
 import { itemByIdentity } from "@/lib/genealogy/graph";
 import { normaliseScan } from "@/lib/serials";
 import { CAPTION_MAX, formatSize, MAX_FILES_PER_BATCH, MAX_UPLOAD_BYTES, storeUploads } from "@/lib/uploads";
@@ -15,52 +16,16 @@ const fields = z.object({
   caption: z.string().max(CAPTION_MAX, `The caption is at most ${CAPTION_MAX} characters.`).optional(),
 });
 
-/** Reads the body, stopping as soon as it passes the limit (a missing or false Content-Length cannot get past). */
-async function readCapped(req: Request, limit: number): Promise<Uint8Array<ArrayBuffer>> {
-  const chunks: Uint8Array[] = [];
-  let total = 0;
-  if (req.body) {
-    const reader = req.body.getReader();
-    for (;;) {
-      const { done, value } = await reader.read();
-      if (done) break;
-      total += value.byteLength;
-      if (total > limit) {
-        await reader.cancel().catch(() => undefined);
-        throw tooLarge(total);
-      }
-      chunks.push(value);
-    }
-  }
-  const out = new Uint8Array(total);
-  let at = 0;
-  for (const c of chunks) {
-    out.set(c, at);
-    at += c.byteLength;
-  }
-  return out;
-}
-
-const tooLarge = (bytes: number) =>
-  new AppError(413, `The upload is ${formatSize(bytes)}; at most ${MAX_FILES_PER_BATCH} photos of ${formatSize(MAX_UPLOAD_BYTES)} each can be sent at once.`);
+const tooLarge = (_limit: number, declared: number | null) =>
+  `The upload is ${declared === null ? "too large" : formatSize(declared)}; at most ${MAX_FILES_PER_BATCH} photos of ${formatSize(MAX_UPLOAD_BYTES)} each can be sent at once.`;
 
 /**
  * Photos of a flitch or a leaf (multipart: identity, caption?, one or more file). Every photo is
  * checked before any is kept; the answer is 201 with what was stored.
  */
 export const POST = guardedRoute("veneer.work", {}, async ({ req, user }) => {
-  const type = req.headers.get("content-type") ?? "";
-  if (!/^multipart\/form-data\s*;/i.test(type)) throw new AppError(415, "Send the photos as a multipart form (multipart/form-data).");
-  const declared = Number(req.headers.get("content-length"));
-  if (Number.isFinite(declared) && declared > MAX_BODY_BYTES) throw tooLarge(declared);
-
-  let form: FormData;
-  const body = await readCapped(req, MAX_BODY_BYTES);
-  try {
-    form = await new Response(body, { headers: { "content-type": type } }).formData();
-  } catch {
-    throw new AppError(400, "The form could not be read. Choose the photos again and resend.");
-  }
+  // 415 when not multipart, 413 past the limit (declared or counted while reading), 400 when unreadable.
+  const form = await readFormCapped(req, MAX_BODY_BYTES, tooLarge);
 
   const parsed = fields.safeParse({ identity: form.get("identity") ?? undefined, caption: form.get("caption") ?? undefined });
   if (!parsed.success) {
