@@ -3,14 +3,14 @@ import "server-only";
 // a redirect, a 403 page, a form state or a JSON answer. Everything it decides comes from lib/auth.
 import { revalidatePath } from "next/cache";
 import { cookies, headers } from "next/headers";
-import { forbidden, redirect } from "next/navigation";
+import { forbidden, notFound, redirect } from "next/navigation";
 import type { Cookie } from "lucia";
 import { cache } from "react";
 import { z } from "zod";
 import { echoPlan, echoValues, formDataToObject, type FormState } from "@/lib/forms";
 import { DEFAULT_BODY_LIMIT, readJsonCapped } from "@/lib/input/body";
 import { localPath } from "@/lib/input/local-path";
-import { pathParams } from "@/lib/input/path-params";
+import { pathParam, pathParams } from "@/lib/input/path-params";
 import { getDb } from "@/db";
 import { AppError, forbiddenError, unauthenticated } from "./errors";
 import { SESSION_COOKIE } from "./lucia";
@@ -40,6 +40,16 @@ export async function requirePage(permission: Permission): Promise<AuthUser> {
   if (!user) redirect("/sign-in");
   if (!user.permissions.has(permission)) forbidden();
   return user;
+}
+
+/**
+ * A page's path parameter as Next.js decoded it (never decoded again: "%25" stays "%"), or the
+ * not-found page when no serial, code or id could be it (lib/input/path-params.ts).
+ */
+export function pageParam(value: unknown): string {
+  const v = pathParam(value);
+  if (v === null) notFound();
+  return v;
 }
 
 export interface ActionResult extends FormState {

@@ -1,6 +1,6 @@
 import { notFound } from "next/navigation";
 import { getDb } from "@/db";
-import { clientAddress } from "@/lib/auth/guard";
+import { clientAddress, pageParam } from "@/lib/auth/guard";
 import { verifyCertificate } from "@/lib/dispatch";
 import { verifyLimiter } from "@/lib/dispatch/rate-limit";
 import { formatDay } from "@/lib/format";
@@ -20,12 +20,7 @@ export default async function Page({ params }: { params: Promise<{ code: string 
     );
   }
   const { code } = await params;
-  let text: string;
-  try {
-    text = decodeURIComponent(code);
-  } catch {
-    notFound(); // a broken %-escape is no certificate code either
-  }
+  const text = pageParam(code);
   const found = await verifyCertificate(getDb(), text);
   if (!found) notFound();
 

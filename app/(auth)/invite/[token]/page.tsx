@@ -2,13 +2,14 @@ import type { Metadata } from "next";
 import { NewPasswordForm } from "@/components/auth/new-password-form";
 import { Notice } from "@/components/ui/notice";
 import { getDb } from "@/db";
+import { pageParam } from "@/lib/auth/guard";
 import { findToken } from "@/lib/users/queries";
 import { acceptInviteAction } from "./actions";
 
 export const metadata: Metadata = { title: "Join the register" };
 
 export default async function InvitePage({ params }: { params: Promise<{ token: string }> }) {
-  const { token } = await params;
+  const token = pageParam((await params).token);
   const found = await findToken(getDb(), token, "invite");
   return (
     <>

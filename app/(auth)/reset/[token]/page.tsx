@@ -3,13 +3,14 @@ import Link from "next/link";
 import { NewPasswordForm } from "@/components/auth/new-password-form";
 import { Notice } from "@/components/ui/notice";
 import { getDb } from "@/db";
+import { pageParam } from "@/lib/auth/guard";
 import { findToken } from "@/lib/users/queries";
 import { resetPasswordAction } from "../actions";
 
 export const metadata: Metadata = { title: "Set a new password" };
 
 export default async function ResetTokenPage({ params }: { params: Promise<{ token: string }> }) {
-  const { token } = await params;
+  const token = pageParam((await params).token);
   const found = await findToken(getDb(), token, "reset");
   return (
     <>

@@ -12,14 +12,14 @@ import { getDb } from "@/db";
 import { areaByKey } from "@/lib/areas";
 import { assemblyView, reservedSets } from "@/lib/assembly";
 import { sideWord } from "@/lib/vocabulary/sides";
-import { requirePage } from "@/lib/auth/guard";
+import { pageParam, requirePage } from "@/lib/auth/guard";
 import { kindLabel, stateLabel } from "@/lib/vocabulary/item-kinds";
 import { isPartType, PART_TYPE_LABEL } from "@/lib/vocabulary/part-types";
 import { positionName } from "@/lib/vocabulary/positions";
 import { BuildForm, BuiltSpeakers } from "./build-form";
 
 export async function generateMetadata({ params }: { params: Promise<{ pair: string }> }): Promise<Metadata> {
-  return { title: `Assembly of ${decodeURIComponent((await params).pair)}` };
+  return { title: `Assembly of ${pageParam((await params).pair)}` };
 }
 
 const capitalised = (text: string) => `${text.charAt(0).toUpperCase()}${text.slice(1)}`;
@@ -30,7 +30,7 @@ const PART_TYPE_NAME: Record<string, string> = { tweeter: "Tweeters", midrange: 
 export default async function AssemblyPairPage({ params }: { params: Promise<{ pair: string }> }) {
   await requirePage("assembly.work");
   const db = getDb();
-  const view = await assemblyView(db, decodeURIComponent((await params).pair));
+  const view = await assemblyView(db, pageParam((await params).pair));
   if (!view) notFound();
   const { pair, model } = view;
   const built = view.speakers.length > 0;

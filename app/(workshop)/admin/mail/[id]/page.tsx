@@ -3,7 +3,7 @@ import { notFound } from "next/navigation";
 import { SerialText } from "@/components/register/serial-text";
 import { BackLink } from "@/components/ui/back-link";
 import { Panel, PageHeader } from "@/components/ui/panel";
-import { requirePage } from "@/lib/auth/guard";
+import { pageParam, requirePage } from "@/lib/auth/guard";
 import { readMailConfig } from "@/lib/mail/config";
 import { attachmentTypeWords, isMessageId, readMessage, type MailboxAttachment } from "@/lib/mail/mailbox";
 import { paths } from "@/lib/paths";
@@ -53,12 +53,7 @@ function Attachments({ id, list }: { id: string; list: MailboxAttachment[] }) {
 export default async function CaughtMessagePage({ params }: { params: Promise<{ id: string }> }) {
   await requirePage("admin.mail");
   const { id: raw } = await params;
-  let id: string;
-  try {
-    id = decodeURIComponent(raw);
-  } catch {
-    notFound();
-  }
+  const id = pageParam(raw);
   if (!isMessageId(id)) notFound();
   const message = await readMessage(readMailConfig().mailboxDir, id);
   if (!message) notFound();

@@ -5,7 +5,7 @@ import { BackLink } from "@/components/ui/back-link";
 import { Badge } from "@/components/ui/badge";
 import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
-import { requirePage } from "@/lib/auth/guard";
+import { pageParam, requirePage } from "@/lib/auth/guard";
 import { recentEvents } from "@/lib/events/queries";
 import { getUserSummary } from "@/lib/users/queries";
 import { ActivationForm, RolesForm } from "./user-forms";
@@ -14,7 +14,7 @@ export const metadata: Metadata = { title: "User" };
 
 export default async function UserPage({ params }: { params: Promise<{ id: string }> }) {
   const me = await requirePage("admin.users");
-  const { id } = await params;
+  const id = pageParam((await params).id);
   const db = getDb();
   const user = await getUserSummary(db, id);
   if (!user) notFound();

@@ -9,7 +9,7 @@ import { DataTable } from "@/components/ui/data-table";
 import { Notice } from "@/components/ui/notice";
 import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
-import { requirePage } from "@/lib/auth/guard";
+import { pageParam, requirePage } from "@/lib/auth/guard";
 import { now } from "@/lib/clock";
 import { formatAllowedFrom, formatWhen, timesNote } from "@/lib/format";
 import { itemByIdentity } from "@/lib/genealogy/graph";
@@ -24,7 +24,7 @@ import { RepartnerForm } from "./repartner-form";
 import { StepForm } from "./step-form";
 
 export async function generateMetadata({ params }: { params: Promise<{ identity: string }> }): Promise<Metadata> {
-  return { title: `Route of ${decodeURIComponent((await params).identity)}` };
+  return { title: `Route of ${pageParam((await params).identity)}` };
 }
 
 type Search = Promise<Record<string, string | string[] | undefined>>;
@@ -33,7 +33,7 @@ const one = (v: string | string[] | undefined) => (typeof v === "string" ? v : u
 export default async function PairRoutePage({ params, searchParams }: { params: Promise<{ identity: string }>; searchParams: Search }) {
   const user = await requirePage("register.read");
   const db = getDb();
-  const identity = decodeURIComponent((await params).identity);
+  const identity = pageParam((await params).identity);
   const pair = await itemByIdentity(db, identity);
   if (!pair || (pair.kind !== "pair" && !(await isLoneLacquerCabinet(db, pair)))) notFound();
   // A lacquer cabinet made in a batch travels the route alone until assembly pairs it.

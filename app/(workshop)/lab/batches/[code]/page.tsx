@@ -10,7 +10,7 @@ import { DataTable } from "@/components/ui/data-table";
 import { Notice } from "@/components/ui/notice";
 import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
-import { requirePage } from "@/lib/auth/guard";
+import { pageParam, requirePage } from "@/lib/auth/guard";
 import { formatCalendarDay, formatWhen } from "@/lib/format";
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { formatTs } from "@/lib/acoustics";
@@ -21,7 +21,7 @@ import { BulkTabs } from "./bulk-tabs";
 import { MeasureDialog } from "./measure-dialog";
 
 export async function generateMetadata({ params }: { params: Promise<{ code: string }> }): Promise<Metadata> {
-  return { title: `Batch ${decodeURIComponent((await params).code)}` };
+  return { title: `Batch ${pageParam((await params).code)}` };
 }
 
 const ts = (field: Parameters<typeof formatTs>[0], n: number | null) => (n === null ? "" : formatTs(field, n));
@@ -30,7 +30,7 @@ const TONE: Record<string, "info" | "leaf" | "walnut" | "danger" | "neutral"> = 
 export default async function BatchPage({ params, searchParams }: { params: Promise<{ code: string }>; searchParams: Promise<{ registered?: string }> }) {
   await requirePage("lab.work");
   const db = getDb();
-  const code = decodeURIComponent((await params).code);
+  const code = pageParam((await params).code);
   const batch = await batchByCode(db, code);
   if (!batch) notFound();
   const units = await batchUnitsView(db, batch.id);

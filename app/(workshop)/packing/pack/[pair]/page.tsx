@@ -9,7 +9,7 @@ import { Notice } from "@/components/ui/notice";
 import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
 import { areaByKey } from "@/lib/areas";
-import { requirePage } from "@/lib/auth/guard";
+import { pageParam, requirePage } from "@/lib/auth/guard";
 import { knownLocations, packingList, pairForPacking, PACKABLE_STATES } from "@/lib/dispatch";
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { PackForm } from "./pack-form";
@@ -24,12 +24,7 @@ export default async function Page({ params, searchParams }: { params: Promise<{
   const db = getDb();
   const { pair: raw } = await params;
   const sp = await searchParams;
-  let serial: string;
-  try {
-    serial = decodeURIComponent(raw);
-  } catch {
-    notFound();
-  }
+  const serial = pageParam(raw);
   const pair = await pairForPacking(db, serial);
   if (!pair) notFound();
   const packable = (PACKABLE_STATES as readonly string[]).includes(pair.state);

@@ -5,7 +5,7 @@ import { Badge } from "@/components/ui/badge";
 import { DataTable } from "@/components/ui/data-table";
 import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
-import { requirePage } from "@/lib/auth/guard";
+import { pageParam, requirePage } from "@/lib/auth/guard";
 import { formatDate } from "@/lib/format";
 import { dealerWithShipments } from "@/lib/genealogy/queries";
 import { SerialLink } from "@/components/register/serial-link";
@@ -15,7 +15,7 @@ export const metadata: Metadata = { title: "Dealer" };
 
 export default async function DealerPage({ params }: { params: Promise<{ code: string }> }) {
   await requirePage("register.read");
-  const found = await dealerWithShipments(getDb(), decodeURIComponent((await params).code));
+  const found = await dealerWithShipments(getDb(), pageParam((await params).code));
   if (!found) notFound();
   const { dealer, shipments } = found;
   return (

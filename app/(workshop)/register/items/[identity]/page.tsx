@@ -14,7 +14,7 @@ import { DataTable } from "@/components/ui/data-table";
 import { Notice } from "@/components/ui/notice";
 import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
-import { requirePage } from "@/lib/auth/guard";
+import { pageParam, requirePage } from "@/lib/auth/guard";
 import { recentEvents } from "@/lib/events/queries";
 import { formatCalendarDay, formatDay, formatWhen, timesNote } from "@/lib/format";
 import { noonUtc } from "@/lib/dispatch/dates";
@@ -43,7 +43,7 @@ function VeneerOrigin({ identity, kind, inVeneerRoom }: { identity: string; kind
 }
 
 export async function generateMetadata({ params }: { params: Promise<{ identity: string }> }): Promise<Metadata> {
-  return { title: decodeURIComponent((await params).identity) };
+  return { title: pageParam((await params).identity) };
 }
 
 
@@ -71,7 +71,7 @@ function HolderSummary({ holders }: { holders: { kind: string }[] }) {
 export default async function ItemPage({ params, searchParams }: { params: Promise<{ identity: string }>; searchParams: Promise<{ at?: string }> }) {
   const user = await requirePage("register.read");
   const db = getDb();
-  const identity = decodeURIComponent((await params).identity);
+  const identity = pageParam((await params).identity);
   const found = await itemDetails(db, identity);
   if (!found) notFound();
   const { item, model, finish, dealer, parents, shippedAt } = found;

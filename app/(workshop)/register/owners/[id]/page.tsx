@@ -4,7 +4,7 @@ import { BackLink } from "@/components/ui/back-link";
 import { DataTable } from "@/components/ui/data-table";
 import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
-import { requirePage } from "@/lib/auth/guard";
+import { pageParam, requirePage } from "@/lib/auth/guard";
 import { formatDate } from "@/lib/format";
 import { ownerWithItems } from "@/lib/genealogy/queries";
 import { SerialLink } from "@/components/register/serial-link";
@@ -14,7 +14,7 @@ export const metadata: Metadata = { title: "Owner" };
 
 export default async function OwnerPage({ params }: { params: Promise<{ id: string }> }) {
   await requirePage("register.read");
-  const found = await ownerWithItems(getDb(), (await params).id);
+  const found = await ownerWithItems(getDb(), pageParam((await params).id));
   if (!found) notFound();
   const { owner, held } = found;
   return (

@@ -14,7 +14,7 @@ import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
 import { DEFECT_KINDS } from "@/lib/vocabulary/defects";
 import { areaByKey } from "@/lib/areas";
-import { requirePage } from "@/lib/auth/guard";
+import { pageParam, requirePage } from "@/lib/auth/guard";
 import { recentEvents } from "@/lib/events/queries";
 import { formatCalendarDay } from "@/lib/format";
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
@@ -26,13 +26,13 @@ import { LeafTable, type LeafRowData } from "./leaf-table";
 import { FlitchPhotos } from "./photos";
 
 export async function generateMetadata({ params }: { params: Promise<{ identity: string }> }): Promise<Metadata> {
-  return { title: `Flitch ${decodeURIComponent((await params).identity)}` };
+  return { title: `Flitch ${pageParam((await params).identity)}` };
 }
 
 export default async function FlitchPage({ params, searchParams }: { params: Promise<{ identity: string }>; searchParams: Promise<{ model?: string; reserve?: string; received?: string }> }) {
   await requirePage("veneer.work");
   const db = getDb();
-  const identity = decodeURIComponent((await params).identity);
+  const identity = pageParam((await params).identity);
   const view = await flitchView(db, identity);
   if (!view) notFound();
   const sp = await searchParams;

@@ -5,7 +5,7 @@ import { itemDetails } from "@/lib/genealogy/queries";
 
 /** One item: identity, kind, state, model, finish, dealer, where it sits now and when it shipped. */
 export const GET = guardedRoute("register.read", {}, async ({ params }) => {
-  const identity = decodeURIComponent(String(params.identity ?? ""));
+  const identity = String(params.identity ?? "") // decoded once by Next, checked by guardedRoute;
   const found = await itemDetails(getDb(), identity);
   if (!found) throw new AppError(404, "No item with that serial.");
   return found;

@@ -3,19 +3,19 @@ import { notFound } from "next/navigation";
 import { BackLink } from "@/components/ui/back-link";
 import { PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
-import { requirePage } from "@/lib/auth/guard";
+import { pageParam, requirePage } from "@/lib/auth/guard";
 import { formatDate } from "@/lib/format";
 import { defaultRoute } from "@/lib/route/default-spec";
 import { routeEditorContext } from "@/lib/route/specs";
 import { RouteEditForm } from "./edit-form";
 
 export async function generateMetadata({ params }: { params: Promise<{ model: string }> }): Promise<Metadata> {
-  return { title: `Edit the route of ${decodeURIComponent((await params).model)}` };
+  return { title: `Edit the route of ${pageParam((await params).model)}` };
 }
 
 export default async function EditRoutePage({ params }: { params: Promise<{ model: string }> }) {
   await requirePage("admin.reference");
-  const code = decodeURIComponent((await params).model).toUpperCase();
+  const code = pageParam((await params).model).toUpperCase();
   const context = await routeEditorContext(getDb(), code);
   if (!context) notFound();
   const { model, current, savedBy, pairs } = context;

@@ -7,7 +7,7 @@ import { BackLink } from "@/components/ui/back-link";
 import { Notice } from "@/components/ui/notice";
 import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
-import { requirePage } from "@/lib/auth/guard";
+import { pageParam, requirePage } from "@/lib/auth/guard";
 import { flitchView } from "@/lib/veneer/flitches";
 import { LabelSheet } from "./label-sheet";
 
@@ -18,7 +18,7 @@ export const metadata: Metadata = { title: "New pairs" };
 /** After confirming: the pairs just made, their cabinets and leaves, and their label sheet. */
 export default async function ConfirmedPage({ params, searchParams }: { params: Promise<{ identity: string }>; searchParams: Promise<{ pairs?: string }> }) {
   await requirePage("veneer.work");
-  const identity = decodeURIComponent((await params).identity);
+  const identity = pageParam((await params).identity);
   const view = await flitchView(getDb(), identity);
   if (!view) notFound();
   const wanted = ((await searchParams).pairs ?? "").split(",").filter(Boolean);

@@ -15,7 +15,7 @@ const query = z.object({
  */
 export const GET = guardedRoute("labels.print", { query }, async ({ params, query, user }) => {
   const db = getDb();
-  const identity = decodeURIComponent(String(params.identity ?? ""));
+  const identity = String(params.identity ?? "") // decoded once by Next, checked by guardedRoute;
   const data = await cartonLabelData(db, identity);
   const pdf = await renderCartonLabel(data, query.printerDpi ? { printerDpi: Number(query.printerDpi) } : {});
   await recordLabelPrints(db, { items: [{ id: data.cartonId, identity: data.carton, symbology: "gs1-128" }], layout: CARTON_LABEL_LAYOUT, actorId: user.id, station: "packing" });

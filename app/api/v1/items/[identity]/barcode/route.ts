@@ -13,7 +13,7 @@ const query = z.object({
 
 /** An item's barcode as PNG or SVG (viewing only; printing a label is POST /api/v1/labels and is recorded). */
 export const GET = guardedRoute("register.read", { query }, async ({ params, query }) => {
-  const identity = decodeURIComponent(String(params.identity ?? ""));
+  const identity = String(params.identity ?? "") // decoded once by Next, checked by guardedRoute;
   const [details] = await itemsWithNames(getDb(), [identity]);
   if (!details) throw new AppError(404, "No item with that serial.");
   const symbology = (query.symbology ?? defaultSymbology(details.item.kind)) as (typeof SYMBOLOGIES)[number];

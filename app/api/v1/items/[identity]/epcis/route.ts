@@ -7,7 +7,7 @@ import { itemByIdentity } from "@/lib/genealogy/graph";
 /** A serial's whole history (it and everything ever inside it) as a GS1 EPCIS 2.0 JSON-LD download. */
 export const GET = guardedRoute("register.read", {}, async ({ params }) => {
   const db = getDb();
-  const identity = decodeURIComponent(String(params.identity ?? ""));
+  const identity = String(params.identity ?? "") // decoded once by Next, checked by guardedRoute;
   const item = await itemByIdentity(db, identity);
   if (!item) throw new AppError(404, "No item with that serial.");
   const doc = await epcisDocumentForItem(db, item.id, { baseUri: await appBaseUrl() });

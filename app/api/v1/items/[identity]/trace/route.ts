@@ -15,7 +15,7 @@ const query = z.object({
 /** Backward (everything inside) or forward (everything holding it) trace, now, as built, ever or as of a date. */
 export const GET = guardedRoute("register.read", { query }, async ({ params, query }) => {
   const db = getDb();
-  const identity = decodeURIComponent(String(params.identity ?? ""));
+  const identity = String(params.identity ?? "") // decoded once by Next, checked by guardedRoute;
   const found = await itemDetails(db, identity);
   if (!found) throw new AppError(404, "No item with that serial.");
   const { moment, label, note } = resolveMoment(query.asOf, found.shippedAt);

@@ -18,7 +18,7 @@ const query = z.object({
  */
 export const GET = guardedRoute("labels.print", { query }, async ({ params, query, user }) => {
   const db = getDb();
-  const identity = decodeURIComponent(String(params.identity ?? ""));
+  const identity = String(params.identity ?? "") // decoded once by Next, checked by guardedRoute;
   const pair = await pairByIdentity(db, identity);
   if (!pair) throw new AppError(404, "No pair with that serial.");
   const certificate = await issueCertificate(db, pair.id, user.id);
