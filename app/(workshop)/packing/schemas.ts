@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { calendarDate } from "@/lib/input/dates";
 import { stringList } from "@/lib/forms";
 
 /**
@@ -30,7 +31,7 @@ export const moveSchema = z.object({
 export const shipSchema = z.object({
   dealerId: z.string({ error: "Choose the dealer the cartons go to." }).trim().min(1, "Choose the dealer the cartons go to."),
   cartons: stringList(z.string().trim().max(60)).pipe(z.array(z.string()).min(1, "Tick at least one carton to ship.").max(100, "At most 100 cartons in one shipment.")),
-  shippedOn: z.string({ error: "Give the date the cartons left." }).trim().regex(/^\d{4}-\d{2}-\d{2}$/, "Give the date the cartons left, as YYYY-MM-DD."),
+  shippedOn: calendarDate("Give the date the cartons left, as YYYY-MM-DD."),
   carrier: z.string({ error: "Name the carrier." }).trim().min(1, "Name the carrier.").max(80, "At most 80 characters."),
   tracking: z.string({ error: "Give the carrier's tracking number." }).trim().min(1, "Give the carrier's tracking number.").max(80, "At most 80 characters."),
 });

@@ -1,42 +1,38 @@
 import { z } from "zod";
+import { now } from "@/lib/clock";
+import { isoDay } from "@/lib/dispatch/dates";
+import { calendarDate } from "@/lib/input/dates";
+import { measure, wholeNumber } from "@/lib/input/numbers";
 import { DEFECT_KINDS } from "@/lib/vocabulary/defects";
 import { LEAF_MAX } from "@/lib/serials/format";
 
 /** A size in mm typed by hand: a decimal comma is fine; empty means "not measured". */
-const toNumber = (v: unknown) => {
-  if (typeof v !== "string") return v;
-  const t = v.trim().replace(",", ".");
-  return t === "" ? null : Number(t);
-};
-
 const mm = (label: string, max = 5000, zeroAllowed = false) =>
-  z.preprocess(
-    toNumber,
+  measure(
     z
       .number({ error: `${label} is a number of millimetres.` })
       .refine((n) => (zeroAllowed ? n >= 0 : n > 0), zeroAllowed ? `${label} cannot be below 0 mm.` : `${label} must be more than 0 mm.`)
       .refine((n) => n <= max, `${label} is at most ${max} mm.`)
       .nullable(),
+    { empty: null },
   );
 
-const isoDate = z
-  .string()
-  .trim()
-  .regex(/^\d{4}-\d{2}-\d{2}$/, "Give the date as YYYY-MM-DD.")
-  .refine((d) => !Number.isNaN(Date.parse(`${d}T00:00:00Z`)), "That is not a calendar date.")
-  .refine((d) => Date.parse(`${d}T00:00:00Z`) <= Date.now() + 86_400_000, "The date received cannot be in the future.");
+/** A day up to tomorrow (a time zone apart), by the workshop's clock. */
+const isoDate = calendarDate().refine((d) => d <= isoDay(new Date(now().getTime() + 86_400_000)), "The date received cannot be in the future.");
 
 export const receiveSchema = z.object({
   finishId: z.string().min(1, "Choose the species."),
   logReference: z.string().trim().min(1, "Enter the log or bundle reference.").max(60, "Keep the reference under 60 characters."),
   supplier: z.string().trim().min(2, "Enter the supplier.").max(120, "Keep the supplier under 120 characters."),
   receivedOn: isoDate,
-  leafThicknessMm: z.preprocess(toNumber, z.number({ error: "Give the thickness in millimetres." }).min(0.1, "Decorative veneer is at least 0.1 mm.").max(5, "At most 5 mm.")),
-  leafCount: z.coerce
-    .number({ error: "Give the number of leaves." })
-    .int("A whole number of leaves.")
-    .min(1, "At least one leaf.")
-    .max(LEAF_MAX, `At most ${LEAF_MAX} leaves in one flitch.`),
+  leafThicknessMm: measure(z.number({ error: "Give the thickness in millimetres, such as 0.6." }).min(0.1, "Decorative veneer is at least 0.1 mm.").max(5, "At most 5 mm.")),
+  leafCount: wholeNumber(
+    z
+      .number({ error: "Give the number of leaves, as a whole number such as 24." })
+      .int("A whole number of leaves.")
+      .min(1, "At least one leaf.")
+      .max(LEAF_MAX, `At most ${LEAF_MAX} leaves in one flitch.`),
+  ),
 });
 
 export const measureSchema = z.object({
@@ -58,7 +54,7 @@ export const defectSchema = z.object({
 
 export const clearDefectSchema = z.object({
   flitch: z.string().min(1),
-  defectId: z.coerce.number().int().positive(),
+  defectId: wholeNumber(z.number({ error: "Choose the defect." }).int().positive("Choose the defect.")),
   reason: z.string().trim().min(3, "Say why the defect is cleared.").max(200),
 });
 
@@ -81,7 +77,7 @@ export const confirmSchema = z.object({
   flitch: z.string().min(1),
   flitchId: z.string().min(1),
   modelId: z.string().min(1, "Choose the model."),
-  reservePerPair: z.coerce.number().int().min(0).max(4),
+  reservePerPair: wholeNumber(z.number({ error: "Give the reserve leaves per pair, 0 to 4." }).int().min(0, "At least 0.").max(4, "At most 4 reserve leaves per pair.")),
   runs: z.preprocess((v) => (v === undefined || v === "" ? [] : Array.isArray(v) ? v : [v]), z.array(runText)).refine((r) => r.length > 0, "Tick at least one run to confirm."),
 });
 

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { measure } from "@/lib/input/numbers";
 
 /**
  * The build form sends its rows as JSON in one hidden field, `parts`: an array of
@@ -40,14 +41,8 @@ export const buildSchema = z.object({
   responseText: z.string().max(2_000_000, "The response file is too large (2 MB at most).").default(""),
 });
 
-const toNumber = (v: unknown) => {
-  if (typeof v !== "string") return v;
-  const t = v.trim().replace(",", ".");
-  return t === "" ? undefined : Number(t);
-};
-
 /** The limit of the "Pair boards" form and of an accepted plan: dB, greater than 0. */
-export const limitSchema = z.preprocess(toNumber, z.number({ error: "Give the limit in dB." }).positive("The limit is greater than 0 dB.").max(10, "At most 10 dB."));
+export const limitSchema = measure(z.number({ error: "Give the limit in dB, such as 0.5." }).positive("The limit is greater than 0 dB.").max(10, "At most 10 dB."));
 
 export const acceptCrossoversSchema = z.object({
   modelId: z.string({ error: "Choose the model." }).min(1, "Choose the model."),
