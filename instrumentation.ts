@@ -3,6 +3,9 @@
 // anyone is looking at a page.
 export async function register() {
   if (process.env.NEXT_RUNTIME !== "nodejs") return;
+  // Before any request is served: limits read the connection's address from this stamp.
+  const { stampPeerAddress } = await import("./lib/auth/peer-stamp");
+  stampPeerAddress();
   const { checkSettingsAtStart } = await import("./lib/start-checks");
   checkSettingsAtStart();
   if (process.env.MAIL_SENDER === "off") return;

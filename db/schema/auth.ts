@@ -61,17 +61,4 @@ export const authTokens = sqliteTable(
   (t) => [index("auth_tokens_user_idx").on(t.userId)],
 );
 
-/** Every sign-in attempt, kept for throttling by account and by client address. */
-export const signInAttempts = sqliteTable(
-  "sign_in_attempts",
-  {
-    id: integer("id").primaryKey({ autoIncrement: true }),
-    email: text("email").notNull(),
-    address: text("address").notNull(),
-    ok: integer("ok", { mode: "boolean" }).notNull(),
-    at: integer("at", { mode: "timestamp_ms" }).notNull(),
-  },
-  (t) => [index("sign_in_attempts_email_idx").on(t.email, t.at), index("sign_in_attempts_address_idx").on(t.address, t.at)],
-);
-
 export type User = typeof users.$inferSelect;

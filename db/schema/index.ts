@@ -8,3 +8,4 @@ export * from "./uploads";
 export * from "./lab";
 export * from "./route";
 export * from "./dispatch";
+export * from "./limits";

@@ -12,6 +12,7 @@ import { DEFAULT_BODY_LIMIT, readJsonCapped } from "@/lib/input/body";
 import { localPath } from "@/lib/input/local-path";
 import { pathParam, pathParams } from "@/lib/input/path-params";
 import { getDb } from "@/db";
+import { clientAddressOf, PEER_HEADER, trustedProxyHops } from "./client-address";
 import { AppError, forbiddenError, unauthenticated } from "./errors";
 import { SESSION_COOKIE } from "./lucia";
 import { MACHINE_SCOPE_PERMISSIONS, verifyMachineToken, type MachineScope, type Principal } from "./machine-tokens";
@@ -233,12 +234,14 @@ export function guardedRoute<
   return Object.assign(route, { permission, machine });
 }
 
-/** The client's address as the nearest proxy saw it: the last x-forwarded-for entry. */
+/**
+ * The client's address for limits: the connection's own (stamped by instrumentation.ts, never the
+ * client's word), or with TWINLEAF_TRUSTED_PROXY_HOPS set, the X-Forwarded-For entry that many
+ * proxies back.
+ */
 export async function clientAddress(): Promise<string> {
   const h = await headers();
-  const forwarded = h.get("x-forwarded-for");
-  const last = forwarded?.split(",").map((s) => s.trim()).filter(Boolean).pop();
-  return last || h.get("x-real-ip") || "unknown";
+  return clientAddressOf({ peer: h.get(PEER_HEADER), forwardedFor: h.get("x-forwarded-for"), hops: trustedProxyHops() });
 }
 
 /** The address links in e-mails point at: APP_URL, or the host this request came to. */

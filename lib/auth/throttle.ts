@@ -1,3 +1,6 @@
+import type { Limit } from "@/lib/limits";
+import { waitMs } from "@/lib/limits/window";
+
 /**
  * Sign-in throttling. Failures are counted per account (the e-mail typed, known or not, so the
  * answer never tells whether an account exists) since its last success, and per client address.
@@ -23,14 +26,20 @@ export interface AttemptCounts {
 
 /** Milliseconds until the next try is allowed, or 0 when a try is allowed now. */
 export function retryAfterMs(counts: AttemptCounts, now: Date, policy: ThrottlePolicy = THROTTLE): number {
-  const wait = (failures: Date[], max: number): number => {
-    if (failures.length < max) return 0;
-    const sorted = failures.map((d) => d.getTime()).sort((a, b) => a - b);
-    // The try that would be allowed again is when the oldest counted failure leaves the window.
-    const oldestCounted = sorted[sorted.length - max]!;
-    return Math.max(0, oldestCounted + policy.windowMs - now.getTime());
-  };
-  return Math.max(wait(counts.accountFailures, policy.maxFailuresPerAccount), wait(counts.addressFailures, policy.maxFailuresPerAddress));
+  const t = now.getTime();
+  const times = (dates: Date[]) => dates.map((d) => d.getTime());
+  return Math.max(
+    waitMs(times(counts.accountFailures), { windowMs: policy.windowMs, max: policy.maxFailuresPerAccount }, t),
+    waitMs(times(counts.addressFailures), { windowMs: policy.windowMs, max: policy.maxFailuresPerAddress }, t),
+  );
+}
+
+/** The two limits one sign-in try counts under (lib/limits keys). */
+export function signInLimits(email: string, address: string, policy: ThrottlePolicy = THROTTLE): Limit[] {
+  return [
+    { key: `sign-in:account:${email}`, windowMs: policy.windowMs, max: policy.maxFailuresPerAccount, sinceSuccess: true },
+    { key: `sign-in:address:${address}`, windowMs: policy.windowMs, max: policy.maxFailuresPerAddress },
+  ];
 }
 
 export function normaliseEmail(email: string): string {

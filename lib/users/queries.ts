@@ -8,6 +8,7 @@ import { hashPassword } from "@/lib/auth/password";
 import type { Role } from "@/lib/auth/roles";
 import { isRole, sortRoles } from "@/lib/auth/roles";
 import { normaliseEmail } from "@/lib/auth/throttle";
+import { reserve, type Limit } from "@/lib/limits";
 import { hashToken, newId, newToken } from "@/lib/auth/tokens";
 import { appendEvent } from "@/lib/events/queries";
 import { queueMail } from "@/lib/mail/outbox";
@@ -224,12 +225,27 @@ export function resetPassword(db: Db, input: { token: string; password: string }
   return spendToken(db, input.token, "reset", input.password, "user.password_reset");
 }
 
+/** Reset links asked for: 3 per e-mail and 10 per client address an hour (lib/limits keys). */
+export const RESET_REQUEST_LIMIT = { windowMs: 60 * 60_000, perEmail: 3, perAddress: 10 };
+
+export function resetRequestLimits(email: string, address: string): Limit[] {
+  const { windowMs, perEmail, perAddress } = RESET_REQUEST_LIMIT;
+  return [
+    { key: `reset:account:${email}`, windowMs, max: perEmail },
+    { key: `reset:address:${address}`, windowMs, max: perAddress },
+  ];
+}
+
 /**
  * Sends a reset link when the e-mail belongs to an active account with a password. The caller
  * answers the same whatever happens here, so the form never tells who has an account.
  */
-export async function requestPasswordReset(db: Db, input: { email: string; baseUrl: string }): Promise<void> {
+export async function requestPasswordReset(db: Db, input: { email: string; baseUrl: string; address: string; now?: Date }): Promise<void> {
   const email = normaliseEmail(input.email);
+  // Counted for every e-mail typed, known or not, before the account is looked up; over a limit
+  // nothing is sent and the caller's answer is the same as ever.
+  const allowed = await reserve(db, resetRequestLimits(email, input.address || "unknown"), { now: input.now, state: "counted" });
+  if (!allowed.ok) return;
   const [user] = await db.select().from(users).where(eq(users.email, email)).limit(1);
   if (!user || !user.active || !user.passwordHash) return;
   await db.transaction(async (tx) => {

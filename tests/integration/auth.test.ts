@@ -4,7 +4,7 @@ import { and, eq, sql, type SQL } from "drizzle-orm";
 import type { SQLiteTable } from "drizzle-orm/sqlite-core";
 import { beforeAll, describe, expect, onTestFinished, test } from "vitest";
 import { getDb } from "@/db";
-import { authTokens, events, outbox, sessions, signInAttempts, userRoles, users } from "@/db/schema";
+import { authTokens, events, outbox, sessions, limitHits, userRoles, users } from "@/db/schema";
 import { seedDemo } from "@/db/seed/seed";
 import { AppError } from "@/lib/auth/errors";
 import { ABSOLUTE_EXPIRY_MS, SESSION_COOKIE } from "@/lib/auth/lucia";
@@ -130,7 +130,7 @@ describe("sign-in", () => {
     expect(result).toStrictEqual({ ok: false, reason: "invalid", message: SIGN_IN_REFUSED });
     expect(await count(events)).toBe(eventsBefore);
     // The failure is recorded against the e-mail typed, known or not, for the throttle.
-    expect(await count(signInAttempts, and(eq(signInAttempts.email, email), eq(signInAttempts.ok, false)))).toBe(1);
+    expect(await count(limitHits, and(eq(limitHits.key, `sign-in:account:${email}`), eq(limitHits.state, "counted")))).toBe(1);
   });
 
   test("a user deactivated through deactivateUser is refused like anyone else", async () => {
@@ -164,7 +164,7 @@ describe("sign-in throttling", () => {
     expect(sixth).toStrictEqual({ ok: false, reason: "throttled", retryAfterSeconds: 895, message: throttledMessage(895) });
     expect(sixth.ok === false && sixth.message).toMatch(/Wait 15 minutes/);
     // A throttled try is not checked, so it records no success even with the right password.
-    expect(await count(signInAttempts, and(eq(signInAttempts.email, u.email), eq(signInAttempts.ok, true)))).toBe(0);
+    expect(await count(limitHits, and(eq(limitHits.key, `sign-in:account:${u.email}`), eq(limitHits.state, "success")))).toBe(0);
 
     // From another address too: the account limit is the account's.
     const elsewhere = await signIn(db(), { email: u.email, password: PASSWORD, address: "198.51.100.99", now: at(5000) });
@@ -363,7 +363,7 @@ describe("password reset, end to end", () => {
   ])("a request for %s queues nothing", async (_label, emailOf) => {
     const email = await emailOf();
     const before = await counts();
-    await requestPasswordReset(db(), { email, baseUrl: BASE_URL });
+    await requestPasswordReset(db(), { email, baseUrl: BASE_URL, address: "192.0.2.40" });
     expect(await counts()).toEqual(before);
   });
 
@@ -373,7 +373,7 @@ describe("password reset, end to end", () => {
     const s2 = await startSession(u.id, db());
     const before = await counts();
 
-    await requestPasswordReset(db(), { email: u.email.toUpperCase(), baseUrl: BASE_URL });
+    await requestPasswordReset(db(), { email: u.email.toUpperCase(), baseUrl: BASE_URL, address: "192.0.2.41" });
     const requested = await eventsOf(u.id, "user.reset_requested");
     expect(requested).toHaveLength(1);
     const queued = await db().select().from(outbox).where(eq(outbox.to, u.email));

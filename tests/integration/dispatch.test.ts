@@ -28,7 +28,7 @@ import {
   waitingToShip,
 } from "@/lib/dispatch";
 import { isoDay } from "@/lib/dispatch/dates";
-import { createRateLimiter } from "@/lib/dispatch/rate-limit";
+import { hitVerifyLimit, VERIFY_LIMIT } from "@/lib/dispatch/rate-limit";
 import { PUBLIC_CERTIFICATE_FIELDS } from "@/lib/dispatch/verify";
 import { startFakeSmtp } from "@/lib/mail/fake-smtp";
 import { deliverDue } from "@/lib/mail/sender";
@@ -447,14 +447,15 @@ describe("verifyCertificate", () => {
   });
 });
 
-describe("the public page's limiter", () => {
-  test("allows max per window per address, then refuses until the oldest hit leaves the window", () => {
-    const limiter = createRateLimiter({ windowMs: 600_000, max: 30 });
-    const t0 = 1_000_000;
-    for (let i = 0; i < 30; i++) expect(limiter.hit("203.0.113.9", t0 + i)).toBe(true);
-    expect(limiter.hit("203.0.113.9", t0 + 31)).toBe(false);
-    expect(limiter.hit("198.51.100.7", t0 + 31)).toBe(true); // another address is not affected
-    expect(limiter.retryAfterMs("203.0.113.9", t0 + 31)).toBe(600_000 - 31);
-    expect(limiter.hit("203.0.113.9", t0 + 600_000)).toBe(true);
+describe("the public page's limit, kept in the database", () => {
+  test("allows 30 per 10 minutes per address, then refuses until the oldest check leaves the window", async () => {
+    expect(VERIFY_LIMIT).toEqual({ windowMs: 600_000, max: 30 });
+    const t0 = new Date("2025-05-05T09:00:00.000Z").getTime();
+    const at = (ms: number) => new Date(t0 + ms);
+    for (let i = 0; i < 30; i++) expect(await hitVerifyLimit(db(), "203.0.113.9", at(i))).toEqual({ ok: true });
+    // Oldest at t0, window 600 s: at t0 + 31 ms, 599.969 s are left, rounded up.
+    expect(await hitVerifyLimit(db(), "203.0.113.9", at(31))).toEqual({ ok: false, retryAfterSeconds: 600 });
+    expect(await hitVerifyLimit(db(), "198.51.100.7", at(31))).toEqual({ ok: true }); // another address is not affected
+    expect(await hitVerifyLimit(db(), "203.0.113.9", at(600_000))).toEqual({ ok: true });
   });
 });

@@ -31,6 +31,8 @@ export const request = {
   sessionId: null as string | null,
   /** Every cookie the code under test set, in order. */
   cookieSets: [] as { name: string; value: string }[],
+  /** Further request headers, e.g. the connection's address stamp or X-Forwarded-For. */
+  headers: {} as Record<string, string>,
 };
 
 export const nextHeaders = {
@@ -41,7 +43,7 @@ export const nextHeaders = {
       request.cookieSets.push({ name: c.name, value: c.value });
     },
   }),
-  headers: async () => new Headers({ host: "localhost:3000" }),
+  headers: async () => new Headers({ host: "localhost:3000", ...request.headers }),
 };
 
 export const nextNavigation = {

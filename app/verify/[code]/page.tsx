@@ -1,24 +1,15 @@
 import { notFound } from "next/navigation";
 import { getDb } from "@/db";
-import { clientAddress, pageParam } from "@/lib/auth/guard";
+import { pageParam } from "@/lib/auth/guard";
 import { verifyCertificate } from "@/lib/dispatch";
-import { verifyLimiter } from "@/lib/dispatch/rate-limit";
 import { formatDay } from "@/lib/format";
 
 /**
  * The public certificate check, reached from the QR code on a pair's certificate. Signed out;
  * shows only what the certificate itself prints (no names, dealer, owner or ids). Limited per
- * client address, so the codes cannot be guessed at speed.
+ * client address in proxy.ts (429 over the limit), so the codes cannot be guessed at speed.
  */
 export default async function Page({ params }: { params: Promise<{ code: string }> }) {
-  if (!verifyLimiter().hit(await clientAddress())) {
-    return (
-      <section className="rounded-xl border-2 border-caution/50 bg-caution-soft px-5 py-4" data-testid="verify-throttled">
-        <h1 className="text-2xl font-bold">Please wait a little</h1>
-        <p className="mt-2">Too many checks from your address; try again in a few minutes.</p>
-      </section>
-    );
-  }
   const { code } = await params;
   const text = pageParam(code);
   const found = await verifyCertificate(getDb(), text);
