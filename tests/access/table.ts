@@ -11,6 +11,12 @@
  * Where the code today lets in other roles than PRODUCT.md names, `differs` says what it does; the
  * walks expect that answer (so the suite stays green) and the difference is reported to the lead.
  * Fixing the code then fails the walk until the `differs` line is removed.
+ *
+ * To add one: an action as "app/…/file.ts#exportName"; a route as "METHOD /api/…/[param]" (the
+ * folder names, brackets kept; add `labToken: true` only if lab benches may call it); a page as its
+ * URL path ("/admin/…/[param]"). Give `may` and `why`; a page with a parameter also names the
+ * `sample` record it opens with (a new kind of sample is added to `Sample` and looked up in the
+ * beforeAll of tests/e2e/roles.e2e.test.ts).
  */
 import type { Role } from "@/lib/auth/roles";
 
