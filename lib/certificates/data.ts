@@ -1,6 +1,5 @@
 import "server-only";
 import { SIDES, type Side } from "@/lib/vocabulary/sides";
-import type { Station } from "@/lib/vocabulary/stations";
 import { and, desc, eq, inArray, isNotNull, isNull } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db";
 import {
