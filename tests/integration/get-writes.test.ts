@@ -102,7 +102,7 @@ describe("GET route handlers write nothing", () => {
     const before = await snapshot();
     const statuses = new Set<number>();
     for (const [who, headers] of callers) {
-      request.sessionId = who === "bench" ? undefined : sessions.get(who);
+      request.sessionId = who === "bench" ? null : sessions.get(who)!;
       for (const t of targets(route.file)) {
         const res = await route.GET!(new Request(t.url, { headers }), { params: Promise.resolve(t.params) });
         await res.arrayBuffer();
