@@ -46,3 +46,26 @@ export const paths = {
 
 /** An item's page in the register. */
 export const itemHref = paths.item;
+
+/**
+ * Addresses of the print routes. Printing is a POST (it is recorded); the POST sends the browser
+ * on to the recorded print, which only the person who printed it may open, for a few minutes.
+ */
+export const printPaths = {
+  certificate: (pair: string, opts: { copy?: boolean } = {}) => `/api/v1/pairs/${seg(pair)}/certificate${opts.copy ? "?copy=1" : ""}`,
+  certificatePrint: (pair: string, printId: string) => `/api/v1/pairs/${seg(pair)}/certificate/prints/${seg(printId)}`,
+  cartonLabel: (carton: string, opts: { printerDpi?: number } = {}) => `/api/v1/cartons/${seg(carton)}/label${opts.printerDpi ? `?printerDpi=${opts.printerDpi}` : ""}`,
+  cartonLabelPrint: (carton: string, printId: number | string, opts: { printerDpi?: number } = {}) =>
+    `/api/v1/cartons/${seg(carton)}/label/prints/${seg(String(printId))}${opts.printerDpi ? `?printerDpi=${opts.printerDpi}` : ""}`,
+  labels: "/api/v1/labels",
+} as const;
+
+/**
+ * A dynamic segment as route handlers get it: Next has decoded it once already (links are built
+ * with one `encodeURIComponent`), so it is never decoded again — a "%" in it is a "%". Null for an
+ * empty segment, which names nothing.
+ */
+export function segmentValue(value: string | string[] | undefined): string | null {
+  const raw = Array.isArray(value) ? value.join("/") : (value ?? "");
+  return raw === "" ? null : raw;
+}

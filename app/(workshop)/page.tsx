@@ -20,7 +20,8 @@ export default async function TodayPage() {
   const mine = AREAS.filter((a) => a.key !== "register" && user.permissions.has(a.permission));
   const isAdmin = user.permissions.has("admin.users");
   const stations = [...new Set(mine.flatMap((a) => a.stations))];
-  const events = isAdmin ? await recentEvents(db, { limit: 20 }) : stations.length ? await recentEvents(db, { stations, limit: 20 }) : [];
+  // What was recorded at my areas' stations; an administrator's Today shows the whole log.
+  const events = isAdmin ? await recentEvents(db, { viewer: user, limit: 20 }) : stations.length ? await recentEvents(db, { viewer: user, stations, limit: 20 }) : [];
   const people = isAdmin ? await listUsers(db) : [];
   const at = now();
 

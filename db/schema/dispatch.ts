@@ -1,5 +1,6 @@
 import { sql } from "drizzle-orm";
 import { check, index, integer, real, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
+import { users } from "./auth";
 import { events } from "./events";
 import { items } from "./genealogy";
 import { responses } from "./lab";
@@ -49,6 +50,33 @@ export const certificates = sqliteTable("certificates", {
     .notNull()
     .references(() => events.id),
 });
+
+/**
+ * Every print of a certificate: the first one not asked for as a copy is the original, every
+ * other a copy (marked COPY). The partial unique index holds it to one original per certificate
+ * whatever the concurrency; the "certificate.printed" event says the same in the log.
+ */
+export const certificatePrints = sqliteTable(
+  "certificate_prints",
+  {
+    id: text("id").primaryKey(),
+    certificateId: text("certificate_id")
+      .notNull()
+      .references(() => certificates.id),
+    original: integer("original", { mode: "boolean" }).notNull(),
+    /** Who printed it: a print is shown again only to them, for a short while. Null: the system (seed). */
+    actorId: text("actor_id").references(() => users.id),
+    eventId: integer("event_id")
+      .notNull()
+      .unique()
+      .references(() => events.id),
+    printedAt: integer("printed_at", { mode: "timestamp_ms" }).notNull(),
+  },
+  (t) => [
+    uniqueIndex("certificate_prints_one_original").on(t.certificateId).where(sql`${t.original} = 1`),
+    index("certificate_prints_certificate_idx").on(t.certificateId, t.printedAt),
+  ],
+);
 
 /** What goes in a model's carton, in packing order (both speakers and the certificate are always first). */
 export const packingItems = sqliteTable(
@@ -104,3 +132,4 @@ export const shipmentDetails = sqliteTable(
 
 export type FinalTest = typeof finalTests.$inferSelect;
 export type Certificate = typeof certificates.$inferSelect;
+export type CertificatePrint = typeof certificatePrints.$inferSelect;

@@ -1,9 +1,9 @@
 import "server-only";
 import { SIDES, type Side } from "@/lib/vocabulary/sides";
-import type { Station } from "@/lib/vocabulary/stations";
 import { and, desc, eq, inArray, isNotNull, isNull } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db";
 import {
+  certificatePrints,
   certificates,
   events,
   finalTests,
@@ -218,38 +218,6 @@ export async function issueCertificate(db: Db, pairId: string, actorId: string |
   }
 }
 
-/** True once the certificate has been printed: every later print is a copy. */
-export async function certificatePrinted(db: DbOrTx, certificate: Pick<Certificate, "id" | "pairId">): Promise<boolean> {
-  const rows = await db
-    .select({ data: events.data })
-    .from(events)
-    .where(and(eq(events.type, "certificate.printed"), eq(events.subjectKind, "item"), eq(events.subjectId, certificate.pairId)));
-  return rows.some((r) => r.data.certificateId === certificate.id);
-}
-
-/** Appends the "certificate.printed" event of one print (the original, or a copy) and returns its id. */
-export async function recordCertificatePrint(
-  db: DbOrTx,
-  certificateId: string,
-  opts: { actorId: string | null; copy: boolean; station: Station },
-): Promise<number> {
-  const [row] = await db
-    .select({ id: certificates.id, pairId: certificates.pairId, identity: items.identity })
-    .from(certificates)
-    .innerJoin(items, eq(items.id, certificates.pairId))
-    .where(eq(certificates.id, certificateId))
-    .limit(1);
-  if (!row) throw new AppError(404, "No such certificate.");
-  return appendEvent(db, {
-    actorId: opts.actorId,
-    station: opts.station,
-    type: "certificate.printed",
-    subjectKind: "item",
-    subjectId: row.pairId,
-    data: { identity: row.identity, certificateId: row.id, copy: opts.copy },
-  });
-}
-
 interface Child {
   parentId: string;
   position: string;
@@ -303,13 +271,13 @@ async function replacementsAfter(db: DbOrTx, speakers: Record<Side, Child>, buil
 }
 
 /** When the original was printed: the first "certificate.printed" of this certificate that was not a copy. */
-async function originalPrint(db: DbOrTx, pairId: string, certificateId: string): Promise<Date | null> {
-  const rows = await db
-    .select({ at: events.at, data: events.data })
-    .from(events)
-    .where(and(eq(events.type, "certificate.printed"), eq(events.subjectKind, "item"), eq(events.subjectId, pairId)))
-    .orderBy(events.id);
-  return rows.find((r) => r.data.certificateId === certificateId && r.data.copy !== true)?.at ?? null;
+async function originalPrint(db: DbOrTx, certificateId: string): Promise<Date | null> {
+  const [row] = await db
+    .select({ at: certificatePrints.printedAt })
+    .from(certificatePrints)
+    .where(and(eq(certificatePrints.certificateId, certificateId), eq(certificatePrints.original, true)))
+    .limit(1);
+  return row?.at ?? null;
 }
 
 /** The newest event of each key step on the pair, with who recorded it. */
@@ -481,7 +449,7 @@ export async function certificateData(db: DbOrTx, pairId: string, opts: { baseUr
   const packed = packedEvent ? { at: packedEvent.at, carton: typeof packedEvent.data.carton === "string" ? packedEvent.data.carton : null } : null;
   const [shippedOn, originalPrintedAt, replacements] = await Promise.all([
     shippedAt(db, pair.id),
-    originalPrint(db, pair.id, certificate.id),
+    originalPrint(db, certificate.id),
     replacementsAfter(db, { L: speakers.L, R: speakers.R }, builtAt, parts),
   ]);
 

@@ -2,12 +2,10 @@
 export {
   certificateData,
   certificateOf,
-  certificatePrinted,
   formatDb,
   formatHz,
   issueCertificate,
   pairByIdentity,
-  recordCertificatePrint,
   type CertificateData,
   type FinalTestFigure,
   type MatchFigure,
@@ -20,4 +18,5 @@ export {
   type VeneerOrigin,
 } from "./data";
 export { copyNote, renderCertificate } from "./render";
+export { openablePrint, originalPrinted, PRINT_OPEN_FOR_MS, recordCertificatePrint, type RecordedPrint } from "./prints";
 export { CERTIFICATE_CODE_LENGTH, CERTIFICATE_CODE_PATTERN, certificateCode, verifyUrl } from "./code";

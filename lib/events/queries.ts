@@ -1,9 +1,11 @@
 import "server-only";
-import { and, desc, eq, inArray, sql, type SQL } from "drizzle-orm";
+import { and, desc, eq, inArray, notInArray, or, sql, type SQL } from "drizzle-orm";
 import { alias, type SQLiteColumn } from "drizzle-orm/sqlite-core";
 import type { DbOrTx } from "@/db";
 import { dealers, events, finishes, items, machineTokens, matchedSets, models, unitBatches, users } from "@/db/schema";
 import { now } from "@/lib/clock";
+import { AREAS } from "@/lib/areas";
+import type { Permission } from "@/lib/auth/permissions";
 import type { EventType } from "@/lib/vocabulary/event-types";
 import type { Station } from "@/lib/vocabulary/stations";
 
@@ -69,12 +71,44 @@ export interface EventRow {
 const subjectUser = alias(users, "subject_user");
 const isSubject = (kind: string, id: SQLiteColumn) => and(eq(events.subjectKind, kind), eq(id, events.subjectId));
 
-/** The newest events, optionally only those recorded at some stations or about one subject. */
+/** Who is reading the log: what they may see of it follows from their permissions (`eventScope`). */
+export interface EventViewer {
+  id: string;
+  permissions: ReadonlySet<Permission>;
+}
+
+/** Subjects that are people's accounts and machines' keys: private to their owner and to administrators. */
+const PRIVATE_SUBJECTS = ["user", "machine_token"];
+/** Subjects of the register (items and what they are made from or sold through): everyone who reads the register sees their history. */
+const REGISTER_SUBJECTS = ["item", "batch", "set", "model", "finish", "dealer"];
+
+/**
+ * The events this person may see. An administrator sees the whole log. Anyone else sees what
+ * was recorded at the stations of the areas their roles may use (lib/areas.ts), the history of
+ * the register's items if they may read the register, and their own account's events; never
+ * another person's account (invitations, e-mail addresses, sign-ins) or the machine tokens.
+ * Undefined: no limit.
+ */
+export function eventScope(viewer: EventViewer): SQL | undefined {
+  if (viewer.permissions.has("admin.users")) return undefined;
+  const stations = [...new Set(AREAS.filter((a) => viewer.permissions.has(a.permission)).flatMap((a) => a.stations))];
+  const seen: SQL[] = [and(eq(events.subjectKind, "user"), eq(events.subjectId, viewer.id))!];
+  if (stations.length) seen.push(and(inArray(events.station, stations), notInArray(events.subjectKind, PRIVATE_SUBJECTS))!);
+  if (viewer.permissions.has("register.read")) seen.push(inArray(events.subjectKind, REGISTER_SUBJECTS));
+  return or(...seen);
+}
+
+/**
+ * The newest events this viewer may see (`eventScope`), optionally only those recorded at some
+ * stations or about one subject. The viewer is required, so no page lists the log unscoped.
+ */
 export async function recentEvents(
   db: DbOrTx,
-  opts: { limit?: number; stations?: string[]; subject?: { kind: string; id: string }; subjects?: { kind: string; ids: string[] } } = {},
+  opts: { viewer: EventViewer; limit?: number; stations?: string[]; subject?: { kind: string; id: string }; subjects?: { kind: string; ids: string[] } },
 ): Promise<EventRow[]> {
   const where: SQL[] = [];
+  const scope = eventScope(opts.viewer);
+  if (scope) where.push(scope);
   if (opts.stations) where.push(inArray(events.station, opts.stations));
   if (opts.subject) where.push(eq(events.subjectKind, opts.subject.kind), eq(events.subjectId, opts.subject.id));
   if (opts.subjects) where.push(eq(events.subjectKind, opts.subjects.kind), inArray(events.subjectId, opts.subjects.ids));

@@ -148,21 +148,21 @@ export const ROUTES: Record<string, RouteAccess> = {
     may: WORKSHOP,
     why: "PRODUCT.md names veneer (cabinet labels) and packing (carton labels) and is silent on the rest: every station handles labelled things and may need to reprint a worn label; admin does no station work.",
   },
-  "GET /api/v1/pairs/[identity]/certificate": {
+  "POST /api/v1/pairs/[identity]/certificate": {
     may: ["packing", "service"],
     why: "PRODUCT.md, packing: prints the pair certificate; service: reissues the certificate.",
-    differs: {
-      may: WORKSHOP,
-      note: "Guarded by labels.print, which every workshop role holds: a cabinet, lab, assembly, quality or veneer user can issue a pair's certificate, and the first print is the original, so the packer's later print comes out marked COPY.",
-    },
   },
-  "GET /api/v1/cartons/[identity]/label": {
+  "GET /api/v1/pairs/[identity]/certificate/prints/[printId]": {
+    may: ["packing", "service"],
+    why: "The PDF of a print just recorded by the POST above; only its printer opens it, for a few minutes.",
+  },
+  "POST /api/v1/cartons/[identity]/label": {
     may: ["packing"],
     why: "PRODUCT.md, packing: prints the pair certificate and carton label.",
-    differs: {
-      may: WORKSHOP,
-      note: "Guarded by labels.print, which every workshop role holds: any of them can print (and record the print of) a carton's GS1-128 label.",
-    },
+  },
+  "GET /api/v1/cartons/[identity]/label/prints/[printId]": {
+    may: ["packing"],
+    why: "The PDF of a carton label print just recorded by the POST above; only its printer opens it.",
   },
 
   "POST /api/v1/veneer/photos": { may: ["veneer"], why: `${VENEER} PRODUCT.md, what it records: flitch … photos.` },

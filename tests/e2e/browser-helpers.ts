@@ -59,3 +59,13 @@ export async function visit(page: Page, to: string) {
   await page.waitForFunction(() => !document.querySelector('div[hidden][id^="S:"]'));
   return res;
 }
+
+/**
+ * Presses a print button (a form POST that opens the PDF in a new tab) as the browser would
+ * send it, with this page's cookies and Origin, following the server's 303 to the recorded print.
+ */
+export async function pressPrint(page: Page, testId: string, nth = 0) {
+  const action = await page.getByTestId(testId).nth(nth).evaluate((b) => (b as HTMLButtonElement).form?.action ?? "");
+  if (!action) throw new Error(`${testId} is not a button in a form`);
+  return page.request.post(action, { headers: { origin: new URL(inject("baseUrl")).origin }, maxRedirects: 1 });
+}

@@ -8,7 +8,7 @@ import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, inject, test } from "vitest";
 import { openDb } from "@/db";
 import { certificates, dealers, items, links } from "@/db/schema";
-import { demoEmail, launchBrowser, newPage, signIn, url, waitForMail, visit } from "./browser-helpers";
+import { demoEmail, launchBrowser, newPage, pressPrint, signIn, url, waitForMail, visit } from "./browser-helpers";
 
 let browser: Browser;
 let page: Page;
@@ -50,7 +50,7 @@ describe("dispatch, as a packer does it", () => {
 
     // The certificate printed first, as the page asks: true of the pair as it stands, tested and not
     // yet packed. Its text is read back by unpdf (pdf.js), as docs/REFERENCES.md, § Reading back what Twinleaf prints suggests.
-    const certificate = await page.request.get(url((await page.getByTestId("print-certificate").getAttribute("href"))!));
+    const certificate = await pressPrint(page, "print-certificate");
     expect(certificate.status()).toBe(200);
     const { text } = await extractText(await getDocumentProxy(new Uint8Array(await certificate.body())), { mergePages: true });
     expect(text).toContain(pair);
@@ -73,12 +73,11 @@ describe("dispatch, as a packer does it", () => {
     await page.getByTestId("packed").waitFor();
     carton = (await page.getByTestId("packed-carton").textContent())!.trim();
     expect(carton).toMatch(/^K-/);
-    await expect(page.getByTestId("print-carton-label").getAttribute("target")).resolves.toBe("_blank");
+    await expect(page.getByTestId("print-carton-label").evaluate((b) => (b as HTMLButtonElement).form?.target)).resolves.toBe("_blank");
   });
 
   test("prints the carton label: a PDF", async () => {
-    const href = await page.getByTestId("print-carton-label").getAttribute("href");
-    const res = await page.request.get(url(href!));
+    const res = await pressPrint(page, "print-carton-label");
     expect(res.status()).toBe(200);
     expect(res.headers()["content-type"]).toBe("application/pdf");
     expect((await res.body()).subarray(0, 5).toString()).toBe("%PDF-");

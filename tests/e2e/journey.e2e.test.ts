@@ -18,7 +18,7 @@ import { acceptCrossoverPlan, buildCrossover } from "@/lib/lab/crossovers";
 import { acceptPlan, importResponseFiles, registerBatch } from "@/lib/lab/units";
 import { pairRoute, recordStep } from "@/lib/route/pair-route";
 import { confirmRuns, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
-import { demoEmail, launchBrowser, newPage, signIn, url, waitForMail, visit } from "./browser-helpers";
+import { demoEmail, launchBrowser, newPage, pressPrint, signIn, url, waitForMail, visit } from "./browser-helpers";
 import { goodReadings } from "../fixtures/route";
 
 let browser: Browser;
@@ -117,10 +117,10 @@ describe("a pair from matched parts to a shipped carton, in the browser", () => 
     await page.getByTestId("packed").waitFor();
     carton = (await page.getByTestId("packed-carton").textContent())!.trim();
 
-    const certificate = await page.request.get(url((await page.getByTestId("print-certificate").first().getAttribute("href"))!));
+    const certificate = await pressPrint(page, "print-certificate");
     expect(certificate.headers()["content-type"]).toBe("application/pdf");
     expect((await certificate.body()).subarray(0, 5).toString()).toBe("%PDF-");
-    const label = await page.request.get(url((await page.getByTestId("print-carton-label").getAttribute("href"))!));
+    const label = await pressPrint(page, "print-carton-label");
     expect((await label.body()).subarray(0, 5).toString()).toBe("%PDF-");
 
     const { client, db } = openDb(inject("databaseUrl"));

@@ -58,7 +58,7 @@ beforeAll(async () => {
   bearer.revoked = `Bearer ${old.token}`;
 
   // A caught message for the admin's mail page: a reset link, as a forgotten password sends.
-  await requestPasswordReset(db, { email: demoEmail("quality"), baseUrl: inject("baseUrl") });
+  await requestPasswordReset(db, { email: demoEmail("quality"), baseUrl: inject("baseUrl"), address: "127.0.0.1" });
   samples.set("mail", { value: (await waitForMail(demoEmail("quality"), /password/i)).id });
 
   const pair = await one<{ identity: string; code: string }>(

@@ -73,6 +73,7 @@ describe("the veneer room, as a veneer user does it", () => {
     await page.getByRole("button", { name: "Confirm and make pairs" }).click();
     await page.getByTestId("confirmed-page").waitFor();
     await expect(page.getByTestId("new-pairs").locator("li").count()).resolves.toBeGreaterThanOrEqual(2);
+    await page.getByTestId("label-sheet-print").click();
     await page.getByTestId("label-sheet").waitFor({ timeout: 20_000 });
     const pdfUrl = await page.getByTestId("label-sheet-open").getAttribute("href");
     const bytes = await page.evaluate(async (u) => new Uint8Array(await (await fetch(u!)).arrayBuffer()).slice(0, 5).join(","), pdfUrl);

@@ -24,7 +24,8 @@ import { request } from "../setup/next-request";
 
 // Signed in by setting request.sessionId: tests/integration/setup.ts mocks next/* with tests/setup/next-request.ts.
 
-const { GET: certificateRoute } = await import("@/app/api/v1/pairs/[identity]/certificate/route");
+const { POST: certificateRoute } = await import("@/app/api/v1/pairs/[identity]/certificate/route");
+const { GET: printRoute } = await import("@/app/api/v1/pairs/[identity]/certificate/prints/[printId]/route");
 
 const db = () => getDb();
 const BASE = "http://localhost:3000";
@@ -292,11 +293,16 @@ async function signInAs(role: string) {
   request.sessionId = (await startSession(users.get(role)!.id, db())).session.id;
 }
 
+/** Presses the print button: a POST from this origin, then the browser follows the 303 to the recorded print. */
 async function print(identity: string, query = "") {
-  const res = await certificateRoute(new Request(`${BASE}/api/v1/pairs/${encodeURIComponent(identity)}/certificate${query}`), {
+  const posted = await certificateRoute(new Request(`${BASE}/api/v1/pairs/${encodeURIComponent(identity)}/certificate${query}`, { method: "POST", headers: { origin: BASE } }), {
     params: Promise.resolve({ identity: encodeURIComponent(identity) }),
   });
-  return { res, body: Buffer.from(await res.arrayBuffer()) };
+  if (posted.status !== 303) return { res: posted, body: Buffer.from(await posted.arrayBuffer()), location: null };
+  const location = posted.headers.get("location")!;
+  const printId = decodeURIComponent(location.split("/").pop()!);
+  const res = await printRoute(new Request(`${BASE}${location}`), { params: Promise.resolve({ identity: encodeURIComponent(identity), printId }) });
+  return { res, body: Buffer.from(await res.arrayBuffer()), location };
 }
 
 async function printEvents(pairId: string) {
@@ -317,7 +323,7 @@ async function passFinalTest(pairId: string) {
   await db().insert(finalTests).values({ pairId, leftResponseId: ids[0]!, rightResponseId: ids[1]!, limitDb: 1, maxDiffDb: template!.maxDiffDb, worstBand: template!.worstBand, pass: true, eventId });
 }
 
-describe("GET /api/v1/pairs/[identity]/certificate", () => {
+describe("POST /api/v1/pairs/[identity]/certificate, then its recorded print", () => {
   test("the first print is the original, the second a copy; each is an event", async () => {
     const [pair] = await pairs(sql`p.state = 'awaiting_test'`);
     await passFinalTest(pair!.id);

@@ -4,7 +4,11 @@ import { getDb } from "@/db";
 import { dealers, events, users } from "@/db/schema";
 import { createItem } from "@/lib/genealogy/graph";
 import { appendEvent, recentEvents } from "@/lib/events/queries";
+import { permissionsOf } from "@/lib/auth/permissions";
 import { failureText } from "./helpers";
+
+/** An administrator reads the whole log (see tests/integration/event-scope.test.ts for everyone else). */
+const viewer = { id: "admin-reader", permissions: permissionsOf(["admin"]) };
 
 describe("the event log is append-only", () => {
   test("an event is appended with server time, and a correction names the event it corrects", async () => {
@@ -15,7 +19,7 @@ describe("the event log is append-only", () => {
       actorId: null, station: "admin", type: "event.corrected", subjectKind: "note", subjectId: "n1",
       data: { text: "second" }, correctsId: first, reason: "typing slip",
     });
-    const rows = await recentEvents(db);
+    const rows = await recentEvents(db, { viewer });
     expect(rows.map((r) => r.id)).toEqual([fix, first]);
     expect(rows[1]!.at.getTime()).toBeGreaterThanOrEqual(before - 1000);
     expect(rows[0]!.correctsId).toBe(first);
@@ -56,7 +60,7 @@ describe("recentEvents names each subject", () => {
     await appendEvent(db, { actorId: "u-named", station: "packing", type: "pair.shipped", subjectKind: "item", subjectId: carton.id, data: { dealer: "NHA" } });
     await appendEvent(db, { actorId: null, station: "admin", type: "user.deactivated", subjectKind: "user", subjectId: "u-named" });
     await appendEvent(db, { actorId: null, station: "admin", type: "dealer.created", subjectKind: "dealer", subjectId: "d-named" });
-    const rows = await recentEvents(db, { limit: 4 });
+    const rows = await recentEvents(db, { viewer, limit: 4 });
     expect(rows.map((r) => [r.type, r.subjectName, r.subjectItemKind])).toEqual([
       ["dealer.created", "North Hall Audio", null],
       ["user.deactivated", "Nell Hart", null],

@@ -108,7 +108,10 @@ async function callAction(e: Entry): Promise<Outcome> {
   }
 }
 
-async function call(e: Entry, authorization?: string): Promise<Outcome> {
+/** What a browser sends with a request made by one of the app's own pages. */
+const SAME_ORIGIN = { origin: "http://localhost:3000", "sec-fetch-site": "same-origin" };
+
+async function call(e: Entry, authorization?: string, origin: Record<string, string> = SAME_ORIGIN): Promise<Outcome> {
   if (e.kind === "action") {
     if (!authorization) return callAction(e);
     // An action reads the request's headers through next/headers: give it the bearer token there.
@@ -120,7 +123,7 @@ async function call(e: Entry, authorization?: string): Promise<Outcome> {
       nextHeaders.headers = plain;
     }
   }
-  const headers: Record<string, string> = authorization ? { authorization } : {};
+  const headers: Record<string, string> = { ...origin, ...(authorization ? { authorization } : {}) };
   const res = await (e.fn as unknown as (req: Request, ctx: { params: Promise<Record<string, string | string[]>> }) => Promise<Response>)(
     new Request(e.url!, { method: e.method, headers }),
     { params: Promise.resolve(e.params ?? {}) },
@@ -234,5 +237,70 @@ describe.each(listed.map((e) => [e.id] as const))("%s", (id) => {
     else expect(out.body).toMatchObject({ error: expect.any(String) });
     if (caller === "unknown session") expect(request.cookieSets).toContainEqual({ name: "twinleaf_session", value: "" });
     expect(await snapshot(getDb())).toEqual(before);
+  });
+});
+
+// Cross-site request forgery: every route that changes state takes requests from this origin only
+// (lib/auth/guard.ts, refuseCrossOrigin), whoever is signed in. OWASP ASVS 4.0.3 V4.2.2.
+const routes = listed.filter((e) => e.kind === "route");
+const writingRoutes = routes.filter((e) => !["GET", "HEAD", "OPTIONS"].includes(e.method!));
+const CROSS_ORIGIN = /did not come from one of Twinleaf's own pages/;
+
+const FOREIGN: [string, Record<string, string>][] = [
+  ["a foreign Origin", { origin: "https://attacker.example.test" }],
+  ["a foreign Origin on this host's port with another name", { origin: "http://localhost.attacker.example.test:3000" }],
+  ["a sibling host (same site, another origin)", { origin: "http://shop.localhost:3000", "sec-fetch-site": "same-site" }],
+  ["Origin null (a sandboxed frame or a file)", { origin: "null" }],
+  ["an Origin of another scheme", { origin: "file://localhost:3000" }],
+  ["Sec-Fetch-Site cross-site, whatever the Origin says", { origin: "http://localhost:3000", "sec-fetch-site": "cross-site" }],
+  ["Sec-Fetch-Site none", { "sec-fetch-site": "none" }],
+  ["neither Origin nor Sec-Fetch-Site", {}],
+  ["a garbled Origin", { origin: "::::" }],
+];
+const OWN: [string, Record<string, string>][] = [
+  ["Origin of this host", { origin: "http://localhost:3000" }],
+  ["Sec-Fetch-Site same-origin alone", { "sec-fetch-site": "same-origin" }],
+  ["both", SAME_ORIGIN],
+];
+
+describe("requests that change state come from this origin", () => {
+  test("the walk finds the routes that change state", () => {
+    expect(writingRoutes.map((e) => e.id)).toEqual(expect.arrayContaining(["POST /api/v1/labels"]));
+  });
+
+  const holders = writingRoutes.flatMap((e) => ROLES.filter((r) => lets(rowOf(e)!, r)).map((role) => [e.id, role, e] as const));
+  test.each(holders.flatMap(([id, role, e]) => FOREIGN.map(([how, headers]) => [id, role, how, e, headers] as const)))(
+    "%s as %s with %s: 403, nothing written",
+    async (_id, role, _how, entry, headers) => {
+      await become(role);
+      const before = await snapshot(getDb());
+      const out = await call(entry, undefined, headers);
+      expect(out.status, JSON.stringify(out.body)).toBe(403);
+      expect(out.body).toEqual({ error: expect.stringMatching(CROSS_ORIGIN) });
+      expect(await snapshot(getDb())).toEqual(before);
+    },
+  );
+
+  test.each(holders.flatMap(([id, role, e]) => OWN.map(([how, headers]) => [id, role, how, e, headers] as const)))(
+    "%s as %s with %s: past the check",
+    async (_id, role, _how, entry, headers) => {
+      await become(role);
+      const out = await call(entry, undefined, headers);
+      expect([401, 403], JSON.stringify(out.body)).not.toContain(out.status);
+    },
+  );
+
+  test.each(writingRoutes.map((e) => [e.id, e] as const))("%s signed out from a foreign origin: refused, nothing written", async (_id, entry) => {
+    await become("signed out");
+    const before = await snapshot(getDb());
+    const out = await call(entry, undefined, { origin: "https://attacker.example.test" });
+    expect(out.status).toBe(403);
+    expect(await snapshot(getDb())).toEqual(before);
+  });
+
+  test.each(routes.filter((e) => e.method === "GET").map((e) => [e.id, e] as const))("%s reads: a link from another site still opens it", async (_id, entry) => {
+    await become("admin");
+    const out = await call(entry, undefined, { origin: "https://attacker.example.test", "sec-fetch-site": "cross-site" });
+    expect(out.body).not.toEqual({ error: expect.stringMatching(CROSS_ORIGIN) });
   });
 });

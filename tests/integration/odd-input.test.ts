@@ -145,14 +145,19 @@ describe("one e-mail address rule (RFC 5321 §4.5.3.1: at most 254 characters)",
 
 type Route = (req: Request, ctx: { params: Promise<Record<string, string | string[]>> }) => Promise<Response>;
 const get = (route: Route, params: Record<string, string>) => route(new Request("http://localhost:3000/api/v1/x"), { params: Promise.resolve(params) });
+/** A print is a POST from one of the app's own pages. */
+const post =
+  (route: Route): Route =>
+  (_req, ctx) =>
+    route(new Request("http://localhost:3000/api/v1/x", { method: "POST", headers: { origin: "http://localhost:3000", "sec-fetch-site": "same-origin" } }), ctx);
 
 const itemRoutes: [string, Route][] = [
   ["item", (await import("@/app/api/v1/items/[identity]/route")).GET as Route],
   ["trace", (await import("@/app/api/v1/items/[identity]/trace/route")).GET as Route],
   ["barcode", (await import("@/app/api/v1/items/[identity]/barcode/route")).GET as Route],
   ["epcis", (await import("@/app/api/v1/items/[identity]/epcis/route")).GET as Route],
-  ["certificate", (await import("@/app/api/v1/pairs/[identity]/certificate/route")).GET as Route],
-  ["carton label", (await import("@/app/api/v1/cartons/[identity]/label/route")).GET as Route],
+  ["certificate", post((await import("@/app/api/v1/pairs/[identity]/certificate/route")).POST as Route)],
+  ["carton label", post((await import("@/app/api/v1/cartons/[identity]/label/route")).POST as Route)],
 ];
 
 describe("a path parameter Next already decoded is not decoded again", () => {

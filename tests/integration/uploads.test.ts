@@ -317,7 +317,7 @@ function photoRequest(fields: Record<string, string>, files: { name: string; byt
   const form = new FormData();
   for (const [k, v] of Object.entries(fields)) form.set(k, v);
   for (const f of files) form.append("file", new File([f.bytes as Uint8Array<ArrayBuffer>], f.name, { type: f.type ?? "image/png" }));
-  return new Request("http://localhost:3000/api/v1/veneer/photos", { method: "POST", body: form, headers });
+  return new Request("http://localhost:3000/api/v1/veneer/photos", { method: "POST", body: form, headers: { origin: "http://localhost:3000", ...headers } });
 }
 
 describe("POST /api/v1/veneer/photos", () => {
@@ -391,7 +391,7 @@ describe("POST /api/v1/veneer/photos", () => {
     await signInAs(veneerUser);
     const req = new Request("http://localhost:3000/api/v1/veneer/photos", {
       method: "POST",
-      headers: { "content-type": "multipart/form-data; boundary=x", "content-length": String(500 * 1024 * 1024) },
+      headers: { origin: "http://localhost:3000", "content-type": "multipart/form-data; boundary=x", "content-length": String(500 * 1024 * 1024) },
       body: "--x--",
     });
     const res = await POST(req, ctx({}));
@@ -401,7 +401,7 @@ describe("POST /api/v1/veneer/photos", () => {
 
   test("JSON instead of a form is refused with 415", async () => {
     await signInAs(veneerUser);
-    const res = await POST(new Request("http://localhost:3000/api/v1/veneer/photos", { method: "POST", headers: { "content-type": "application/json" }, body: "{}" }), ctx({}));
+    const res = await POST(new Request("http://localhost:3000/api/v1/veneer/photos", { method: "POST", headers: { origin: "http://localhost:3000", "content-type": "application/json" }, body: "{}" }), ctx({}));
     expect(res.status).toBe(415);
   });
 

@@ -11,6 +11,7 @@ import { ROLES, type Role } from "@/lib/auth/roles";
 const EXPECTED_PERMISSIONS = [
   "register.read",
   "labels.print",
+  "certificates.print",
   "veneer.work",
   "cabinet.work",
   "cabinet.lacquer",
@@ -28,9 +29,9 @@ const EXPECTED_PERMISSIONS = [
 // register.read: PRODUCT.md, "Every signed-in user may search and read traces", so every role.
 // labels.print: PRODUCT.md names veneer (cabinet labels) and packing (certificate, carton label),
 //   and service reissues the certificate; it is silent on the other stations, which handle
-//   labelled things and may reprint a worn label. Admin does no station work. The permission also
-//   guards the certificate and the carton label, which PRODUCT.md gives to packing and service
-//   only: see the `differs` notes in tests/access/table.ts.
+//   labelled things and may reprint a worn label. Admin does no station work.
+// certificates.print: PRODUCT.md, packing "prints the pair certificate", service "reissues the
+//   certificate"; nobody else. (The carton label is packing's own work: packing.work.)
 // cabinet.lacquer: PRODUCT.md is silent on who makes lacquer cabinets; the veneer room makes every
 //   veneered cabinet and prints cabinet labels, and the cabinet shop works them, so both.
 const EXPECTED_MAP: Record<Role, string[]> = {
@@ -38,8 +39,8 @@ const EXPECTED_MAP: Record<Role, string[]> = {
   cabinet: ["register.read", "labels.print", "cabinet.work", "cabinet.lacquer"], // records each route step of a cabinet pair
   lab: ["register.read", "labels.print", "lab.work"], // measurements, pair matching, the finished pair's acoustic test
   assembly: ["register.read", "labels.print", "assembly.work"], // builds each speaker by scanning labels
-  packing: ["register.read", "labels.print", "packing.work"], // clean check, certificate and carton label, packs, ships
-  service: ["register.read", "labels.print", "service.work"], // service cases, reissues the certificate
+  packing: ["register.read", "labels.print", "certificates.print", "packing.work"], // clean check, certificate and carton label, packs, ships
+  service: ["register.read", "labels.print", "certificates.print", "service.work"], // service cases, reissues the certificate
   quality: ["register.read", "labels.print", "quality.work"], // containments, holds, dispositions, deviations, corrections
   admin: ["register.read", "admin.users", "admin.reference", "admin.mail", "admin.tokens"], // users and roles, models, routes, tokens; no station work
 };
@@ -65,6 +66,7 @@ describe("the permission map", () => {
 const HOLDERS: [string, Role[]][] = [
   ["register.read", ["veneer", "cabinet", "lab", "assembly", "packing", "service", "quality", "admin"]],
   ["labels.print", ["veneer", "cabinet", "lab", "assembly", "packing", "service", "quality"]],
+  ["certificates.print", ["packing", "service"]],
   ["veneer.work", ["veneer"]],
   ["cabinet.work", ["cabinet"]],
   ["cabinet.lacquer", ["veneer", "cabinet"]],
@@ -109,7 +111,7 @@ describe("can, rolesWith and permissionsOf", () => {
 
   test.each([
     [["veneer", "lab"], ["cabinet.lacquer", "lab.work", "labels.print", "register.read", "veneer.work"]],
-    [["admin", "packing"], ["admin.mail", "admin.reference", "admin.tokens", "admin.users", "labels.print", "packing.work", "register.read"]],
+    [["admin", "packing"], ["admin.mail", "admin.reference", "admin.tokens", "admin.users", "certificates.print", "labels.print", "packing.work", "register.read"]],
     [[], []],
   ] as [Role[], string[]][])("permissionsOf(%j) is %j", (roles, permissions) => {
     expect([...permissionsOf(roles)].sort()).toEqual(permissions);

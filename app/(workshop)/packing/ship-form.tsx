@@ -1,11 +1,13 @@
 "use client";
-import Link from "next/link";
 import { useId, useState } from "react";
 import { submitKeepingFields, useActionStateThen } from "@/components/ui/kept-form";
 import { SelectField, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { Button } from "@/components/ui/button";
 import { initialFormState } from "@/lib/forms";
+import { PrintForm } from "@/components/register/print-form";
+import { buttonClasses } from "@/components/ui/button";
+import { printPaths } from "@/lib/paths";
 import { shipCartonsAction } from "./actions";
 
 export interface ShipCarton {
@@ -17,7 +19,6 @@ export interface ShipCarton {
   packedOn: string;
 }
 
-const labelHref = (carton: string) => `/api/v1/cartons/${encodeURIComponent(carton)}/label`;
 
 /**
  * The cartons waiting to ship, each with a box to tick, and the shipment's particulars. Every
@@ -53,6 +54,10 @@ export function ShipForm({ cartons, dealers, today }: { cartons: ShipCarton[]; d
   if (cartons.length === 0 && !state.message) return <p className="text-ink-soft" data-testid="nothing-to-ship">No packed cartons are waiting to ship.</p>;
 
   return (
+    <>
+    {cartons.map((c) => (
+      <PrintForm key={c.carton} formId={`${id}-label-${c.carton}`} action={printPaths.cartonLabel(c.carton)} />
+    ))}
     <form onSubmit={submit} aria-busy={pending} className="flex flex-col gap-4" noValidate data-testid="ship-form">
       {state.message ? (
         <Notice tone={state.ok ? "leaf" : "danger"} testId={state.ok ? "shipped" : "ship-refused"}>
@@ -90,9 +95,10 @@ export function ShipForm({ cartons, dealers, today }: { cartons: ShipCarton[]; d
                   )}
                   <span className="text-ink-soft"> · packed {c.packedOn}</span>
                 </span>
-                <Link href={labelHref(c.carton)} target="_blank" rel="noopener" className="text-sm font-bold text-leaf-dark underline underline-offset-4">
-                  Carton label
-                </Link>
+                {/* Printing is a POST of its own form, outside the shipment's (forms do not nest). */}
+                <button type="submit" form={`${id}-label-${c.carton}`} className={buttonClasses("quiet", "sm")} data-testid="print-carton-label">
+                  Print carton label
+                </button>
               </li>
             ))}
           </ul>
@@ -119,5 +125,6 @@ export function ShipForm({ cartons, dealers, today }: { cartons: ShipCarton[]; d
         </Button>
       </div>
     </form>
+    </>
   );
 }

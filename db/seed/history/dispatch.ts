@@ -28,7 +28,7 @@ export function planPacking(plan: Plan, rng: Rng, p: PairPlan): void {
   });
   plan.add(plus(p.t.packed, MIN), `printing the certificate of ${p.key}`, async (ctx) => {
     const certificateId = String(ctx.notes.get(`${p.key}:certificate`));
-    await ctx.db.transaction((tx) => recordCertificatePrint(tx, certificateId, { actorId: ctx.ref.actors.packing.id, copy: false, station: "packing" }));
+    await recordCertificatePrint(ctx.db, certificateId, { actorId: ctx.ref.actors.packing.id, copy: false, station: "packing" });
   });
 }
 

@@ -18,7 +18,7 @@ export default async function UserPage({ params }: { params: Promise<{ id: strin
   const db = getDb();
   const user = await getUserSummary(db, id);
   if (!user) notFound();
-  const events = await recentEvents(db, { subject: { kind: "user", id: user.id }, limit: 50 });
+  const events = await recentEvents(db, { viewer: me, subject: { kind: "user", id: user.id }, limit: 50 });
   return (
     <div className="flex flex-col gap-6">
       <BackLink href="/admin/users">All users</BackLink>

@@ -1,7 +1,8 @@
-import { paths } from "@/lib/paths";
+import { paths, printPaths } from "@/lib/paths";
 import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
+import { PrintForm } from "@/components/register/print-form";
 import { SafetyCautions } from "@/components/shell/safety-cautions";
 import { BackLink } from "@/components/ui/back-link";
 import { buttonClasses } from "@/components/ui/button";
@@ -16,8 +17,6 @@ import { PackForm } from "./pack-form";
 
 export const metadata: Metadata = { title: "Pack a pair" };
 
-const certificateHref = (pair: string) => `/api/v1/pairs/${encodeURIComponent(pair)}/certificate`;
-const labelHref = (carton: string) => `/api/v1/cartons/${encodeURIComponent(carton)}/label`;
 
 export default async function Page({ params, searchParams }: { params: Promise<{ pair: string }>; searchParams: Promise<{ packed?: string }> }) {
   await requirePage("packing.work");
@@ -31,7 +30,6 @@ export default async function Page({ params, searchParams }: { params: Promise<{
   const [items, locations] = await Promise.all([pair.modelId ? packingList(db, pair.modelId) : Promise.resolve([]), knownLocations(db)]);
   // A pair tested before final tests were recorded gets its certificate when it is packed.
   const certificateReady = pair.hasCertificate || pair.finalTestPassed;
-  const pdfLink = `${buttonClasses("secondary")} no-underline`;
 
   return (
     <div className="flex flex-col gap-6" data-testid="pack-page">
@@ -70,12 +68,12 @@ export default async function Page({ params, searchParams }: { params: Promise<{
             </Notice>
           ) : null}
           <div className="flex flex-wrap gap-3">
-            <a href={labelHref(pair.carton)} target="_blank" rel="noopener" className={buttonClasses("primary")} data-testid="print-carton-label">
+            <PrintForm action={printPaths.cartonLabel(pair.carton)} variant="primary" testId="print-carton-label">
               Print the carton label
-            </a>
-            <a href={certificateHref(pair.identity)} target="_blank" rel="noopener" className={pdfLink} data-testid="print-certificate">
+            </PrintForm>
+            <PrintForm action={printPaths.certificate(pair.identity)} testId="print-certificate">
               {pair.certificatePrints ? "Print a copy of the certificate" : "Print the certificate"}
-            </a>
+            </PrintForm>
             <Link href={paths.packing} className={buttonClasses("quiet")}>
               Back to dispatch
             </Link>
@@ -90,9 +88,9 @@ export default async function Page({ params, searchParams }: { params: Promise<{
         <Panel title="Pack it">
           <div className="mb-5 flex flex-wrap items-center gap-3">
             {certificateReady ? (
-              <a href={certificateHref(pair.identity)} target="_blank" rel="noopener" className={pdfLink} data-testid="print-certificate">
+              <PrintForm action={printPaths.certificate(pair.identity)} testId="print-certificate">
                 Print the certificate
-              </a>
+              </PrintForm>
             ) : null}
             <p className="text-sm text-ink-soft">
               {certificateReady

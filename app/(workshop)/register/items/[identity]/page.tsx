@@ -86,7 +86,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
     moment.mode === "ever" ? null : traceBackward(db, item.id, { mode: "ever" }),
   ]);
   const tree = toTree(inside);
-  const events = await recentEvents(db, { subjects: { kind: "item", ids: [item.id, ...(everInside ?? inside).filter((n) => n.depth === 1).map((n) => n.id)] }, limit: 200 });
+  const events = await recentEvents(db, { viewer: user, subjects: { kind: "item", ids: [item.id, ...(everInside ?? inside).filter((n) => n.depth === 1).map((n) => n.id)] }, limit: 200 });
   const shipments = holders.filter((h) => h.kind === "shipment");
   const [reachedDealers, facts] = await Promise.all([
     dealersOf(db, shipments.map((s) => s.id)),

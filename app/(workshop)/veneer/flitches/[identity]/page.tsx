@@ -30,7 +30,7 @@ export async function generateMetadata({ params }: { params: Promise<{ identity:
 }
 
 export default async function FlitchPage({ params, searchParams }: { params: Promise<{ identity: string }>; searchParams: Promise<{ model?: string; reserve?: string; received?: string }> }) {
-  await requirePage("veneer.work");
+  const user = await requirePage("veneer.work");
   const db = getDb();
   const identity = pageParam((await params).identity);
   const view = await flitchView(db, identity);
@@ -43,7 +43,7 @@ export default async function FlitchPage({ params, searchParams }: { params: Pro
   const spec = model ? specFor(model, reservePerPair) : null;
   const planned = spec ? planView(view, spec) : null;
   const unmeasured = view.leaves.filter((l) => l.lengthMm === null || l.widthMm === null).length;
-  const events = await recentEvents(db, { subjects: { kind: "item", ids: [view.item.id, ...view.leaves.map((l) => l.id)] }, limit: 60 });
+  const events = await recentEvents(db, { viewer: user, subjects: { kind: "item", ids: [view.item.id, ...view.leaves.map((l) => l.id)] }, limit: 60 });
   const area = areaByKey("veneer");
 
   const rows: LeafRowData[] = view.leaves.map((l) => ({

@@ -1,21 +1,21 @@
 "use client";
-import { useEffect, useRef, useState } from "react";
+import { useState } from "react";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 
 /**
- * Makes the new pairs' label sheet as soon as the page opens (A4, 3 × 8: one row per pair with
- * its left cabinet, right cabinet and the pair), shows it and offers it to print. Each print is recorded.
+ * Makes the new pairs' label sheet when asked (A4, 3 × 8: one row per pair with its left
+ * cabinet, right cabinet and the pair), shows it and offers it to print. Each press is a
+ * recorded print, so the sheet is made by the button, never by opening or reloading the page.
  */
 export function LabelSheet({ identities }: { identities: string[] }) {
-  const [state, setState] = useState<{ phase: "making" | "ready" | "failed"; url?: string; error?: string }>({ phase: "making" });
-  const started = useRef(false);
+  const [state, setState] = useState<{ phase: "asked" | "making" | "ready" | "failed"; url?: string; error?: string }>({ phase: "asked" });
   const make = async () => {
     setState({ phase: "making" });
     const res = await fetch("/api/v1/labels", {
       method: "POST",
       headers: { "content-type": "application/json" },
-      body: JSON.stringify({ identities, layout: "a4-3x8", station: "veneer", printerDpi: 600 }),
+      body: JSON.stringify({ identities, layout: "a4-3x8", printerDpi: 600 }),
     });
     if (!res.ok) {
       const body = await res.json().catch(() => ({}));
@@ -24,12 +24,15 @@ export function LabelSheet({ identities }: { identities: string[] }) {
     }
     setState({ phase: "ready", url: URL.createObjectURL(await res.blob()) });
   };
-  useEffect(() => {
-    if (started.current) return;
-    started.current = true;
-    void make();
-    // eslint-disable-next-line react-hooks/exhaustive-deps -- once, when the page opens
-  }, []);
+  if (state.phase === "asked")
+    return (
+      <div className="flex flex-wrap items-center gap-3">
+        <Button onClick={make} data-testid="label-sheet-print">
+          Print the label sheet
+        </Button>
+        <span className="text-sm text-ink-soft">A4, 3 × 8 labels of 70 × 37 mm. The print is recorded in each cabinet&apos;s history.</span>
+      </div>
+    );
   if (state.phase === "making") return <p role="status" data-testid="label-sheet-making">Making the label sheet…</p>;
   if (state.phase === "failed")
     return (

@@ -3,7 +3,8 @@ import { getDb } from "@/db";
 import { homeStation } from "@/lib/areas";
 import { AppError } from "@/lib/auth/errors";
 import { appBaseUrl, guardedRoute } from "@/lib/auth/guard";
-import { certificateData, certificatePrinted, issueCertificate, pairByIdentity, recordCertificatePrint, renderCertificate } from "@/lib/certificates";
+import { certificateData, issueCertificate, pairByIdentity, recordCertificatePrint } from "@/lib/certificates";
+import { printPaths, segmentValue } from "@/lib/paths";
 
 const query = z.object({
   /** `copy=1` asks for a copy even of a certificate never printed (a spare for the service desk). */
@@ -11,27 +12,24 @@ const query = z.object({
 });
 
 /**
- * The pair's certificate as a PDF. Issues it on the first print (refused, 409, before a passing
- * final test); the first print is the original and every later one a copy, marked COPY on the
- * page and `copy: true` in its "certificate.printed" event. Packers and the service desk print
- * it, so it takes "labels.print", which every workshop role holds.
+ * Prints the pair's certificate: issues it on the first print (refused, 409, before a passing
+ * final test), records the print (the first is the original, every later one a copy, marked COPY)
+ * and sends the browser on (303) to the recorded print's PDF. A POST, from a button: opening a
+ * link or reloading a page never prints. Packers and the service desk print it
+ * ("certificates.print"; PRODUCT.md gives it to nobody else).
  */
-export const GET = guardedRoute("labels.print", { query }, async ({ params, query, user }) => {
+export const POST = guardedRoute("certificates.print", { query }, async ({ params, query, user }) => {
   const db = getDb();
-  const identity = String(params.identity ?? "") // decoded once by Next, checked by guardedRoute;
-  const pair = await pairByIdentity(db, identity);
+  const identity = segmentValue(params.identity);
+  const pair = identity ? await pairByIdentity(db, identity) : null;
   if (!pair) throw new AppError(404, "No pair with that serial.");
   const certificate = await issueCertificate(db, pair.id, user.id);
-  const copy = query.copy === "1" || (await certificatePrinted(db, certificate));
-  // Rendered before the print is recorded, so a failure records nothing.
-  const pdf = await renderCertificate(await certificateData(db, pair.id, { baseUrl: await appBaseUrl(), copy }));
-  await recordCertificatePrint(db, certificate.id, { actorId: user.id, copy, station: homeStation(user.roles) });
-  return new Response(new Uint8Array(pdf), {
-    headers: {
-      "content-type": "application/pdf",
-      "content-disposition": `inline; filename="certificate-${pair.identity}.pdf"`,
-      "cache-control": "private, no-store",
-      "x-content-type-options": "nosniff",
-    },
-  });
+  // Everything the certificate prints is gathered first: a pair it cannot be printed for records no print.
+  await certificateData(db, pair.id, { baseUrl: await appBaseUrl(), copy: true });
+  const print = await recordCertificatePrint(db, certificate.id, { actorId: user.id, copy: query.copy === "1", station: homeStation(user.roles) });
+  const href = printPaths.certificatePrint(pair.identity, print.id);
+  return Response.json(
+    { print: { original: print.original, copy: !print.original }, href },
+    { status: 303, headers: { location: href, "cache-control": "no-store" } },
+  );
 });
