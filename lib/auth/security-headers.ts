@@ -41,11 +41,10 @@ export function pagePolicy(nonce: string, opts: { dev?: boolean; https?: boolean
     "default-src 'self'",
     // React needs eval only in development, for its error stacks (Next's guide).
     `script-src 'self' 'nonce-${nonce}' 'strict-dynamic'${opts.dev ? " 'unsafe-eval'" : ""}`,
-    // Style sheets and <style> elements need the nonce; style attributes (a bar's width in a
-    // chart) cannot carry one, and CSS cannot run script, so they are let through.
-    `style-src 'self' 'nonce-${nonce}'`,
-    `style-src-elem 'self' 'nonce-${nonce}'`,
-    "style-src-attr 'unsafe-inline'",
+    // Styles may be inline: style attributes (a bar's width in a chart) cannot carry a nonce, and
+    // the framework's client inserts <style> elements without one. CSS runs no script; the
+    // script policy above is what stops injected code.
+    "style-src 'self' 'unsafe-inline'",
     "img-src 'self' blob: data:",
     "font-src 'self'",
     "connect-src 'self'",
@@ -69,16 +68,20 @@ export function apiPolicy(pathname: string): string {
 }
 
 /**
- * Whether the request came over https: its own URL says so, or a proxy in front that the
- * operator trusts (TWINLEAF_TRUSTED_PROXY=1) says so in X-Forwarded-Proto. Without that setting
- * the header is ignored, since anyone can send it.
+ * Whether the request came over https. `next start` serves plain http only, so https is always
+ * ended by a proxy in front; only one the operator trusts (TWINLEAF_TRUSTED_PROXY=1) is believed
+ * when it says so in X-Forwarded-Proto. The request's URL cannot tell: Next builds its protocol
+ * from that same header, which anyone can send.
  */
-export function cameOverHttps(url: URL, headers: Headers, trustProxy = process.env.TWINLEAF_TRUSTED_PROXY === "1"): boolean {
-  if (url.protocol === "https:") return true;
+export function cameOverHttps(headers: Headers, trustProxy = process.env.TWINLEAF_TRUSTED_PROXY === "1"): boolean {
   if (!trustProxy) return false;
   const proto = headers.get("x-forwarded-proto")?.split(",")[0]?.trim().toLowerCase();
   return proto === "https";
 }
+
+// Files served as they are: scripts, style sheets, fonts, the icon. A page's policy does not apply
+// to them, and they need no nonce.
+const STATIC_FILES = /^\/(?:_next\/static\/|_next\/image|fonts\/|favicon\.ico$)/;
 
 export interface SecurityHeaders {
   /** Headers to add to the request that Next renders (the nonce and the policy it reads it from). */
@@ -87,10 +90,11 @@ export interface SecurityHeaders {
   response: Record<string, string>;
 }
 
-/** The headers of one request, by its path: API answers get the nothing policy, pages a nonce. */
+/** The headers of one request, by its path: files and API answers get the nothing policy, pages a nonce. */
 export function securityHeadersFor(url: URL, headers: Headers, opts: { dev?: boolean; trustProxy?: boolean } = {}): SecurityHeaders {
-  const https = cameOverHttps(url, headers, opts.trustProxy);
+  const https = cameOverHttps(headers, opts.trustProxy);
   const response: Record<string, string> = { ...COMMON_HEADERS, ...(https ? { "Strict-Transport-Security": HSTS } : {}) };
+  if (STATIC_FILES.test(url.pathname)) return { request: {}, response: { ...response, "Content-Security-Policy": NOTHING_POLICY } };
   if (url.pathname === "/api" || url.pathname.startsWith("/api/")) {
     return { request: {}, response: { ...response, "Content-Security-Policy": apiPolicy(url.pathname) } };
   }

@@ -1,5 +1,5 @@
 import { describe, expect, test } from "vitest";
-import { apiPolicy, cameOverHttps, COMMON_HEADERS, newNonce, pagePolicy, securityHeadersFor } from "@/lib/auth/security-headers";
+import { apiPolicy, cameOverHttps, COMMON_HEADERS, newNonce, NOTHING_POLICY, pagePolicy, securityHeadersFor } from "@/lib/auth/security-headers";
 
 /** The directives of a policy, by name (CSP Level 3 § 2.2.1: a policy is a ;-separated list). */
 function directives(policy: string): Map<string, string[]> {
@@ -81,17 +81,30 @@ describe("route handlers' answers", () => {
   });
 });
 
+describe("static files", () => {
+  test.each(["/_next/static/chunks/main.js", "/_next/static/css/app.css", "/fonts/text.woff2", "/favicon.ico", "/_next/image?url=x"])("%s: the nothing policy, no nonce", (path) => {
+    expect(page(path).response["Content-Security-Policy"]).toBe(NOTHING_POLICY);
+    expect(page(path).request).toEqual({});
+  });
+
+  test.each(["/favicon.ico.html", "/fontsx", "/_next/staticx"])("%s is a page like any other", (path) => {
+    expect(page(path).request["x-nonce"]).toBeTruthy();
+  });
+});
+
 describe("HSTS only over https", () => {
   test.each([
     ["http://localhost:3000/sign-in", {}, false, false],
-    ["https://twinleaf.test/sign-in", {}, false, true],
+    ["http://localhost:3000/sign-in", {}, true, false],
+    // Next builds the URL's protocol from X-Forwarded-Proto, so the URL counts for nothing either.
+    ["https://twinleaf.test/sign-in", {}, false, false],
     // Anyone can send X-Forwarded-Proto: it counts only when the operator trusts the proxy in front.
     ["http://localhost:3000/sign-in", { "x-forwarded-proto": "https" }, false, false],
     ["http://localhost:3000/sign-in", { "x-forwarded-proto": "https" }, true, true],
     ["http://localhost:3000/sign-in", { "x-forwarded-proto": "http" }, true, false],
     ["http://localhost:3000/sign-in", { "x-forwarded-proto": "https, http" }, true, true],
   ])("%s with %j, proxy trusted %s: %s", (address, headers, trust, https) => {
-    expect(cameOverHttps(new URL(address), new Headers(headers), trust)).toBe(https);
+    expect(cameOverHttps(new Headers(headers), trust)).toBe(https);
     const got = securityHeadersFor(new URL(address), new Headers(headers), { trustProxy: trust }).response;
     // max-age of one year: OWASP HTTP Strict Transport Security Cheat Sheet.
     expect(got["Strict-Transport-Security"]).toBe(https ? "max-age=31536000; includeSubDomains" : undefined);
