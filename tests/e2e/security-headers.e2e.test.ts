@@ -110,16 +110,24 @@ describe("in the browser", () => {
     const base = new URL(url("/"));
     const hostile = new URL("/framing-test", base);
     hostile.hostname = base.hostname === "localhost" ? "127.0.0.1" : "localhost";
-    await page.route(hostile.href, (r) => r.fulfill({ contentType: "text/html", body: `<iframe src="${url("/sign-in")}"></iframe>` }));
-    const messages: string[] = [];
-    page.on("console", (m) => messages.push(m.text()));
-    const answered = page.waitForResponse((r) => r.url() === url("/sign-in"));
-    await page.goto(hostile.href);
-    // The server did answer the frame, and the browser would not show it.
-    expect((await answered).status()).toBe(200);
-    await expect.poll(() => messages.some((m) => /frame-ancestors 'none'/.test(m)), { timeout: 10_000 }).toBe(true);
-    const frame = page.frames().find((f) => f !== page.mainFrame());
-    expect(await frame!.locator("input[type=password]").count()).toBe(0);
+    // Beside it, a frame of the hostile origin's own, with a password field: frames do show here,
+    // so a missing field in the sign-in frame is the browser's refusal, not a blank test page.
+    const control = new URL("/framing-control", hostile);
+    await page.route(control.href, (r) => r.fulfill({ contentType: "text/html", body: `<input type="password">` }));
+    await page.route(hostile.href, (r) => r.fulfill({ contentType: "text/html", body: `<iframe src="${url("/sign-in")}"></iframe><iframe src="${control.href}"></iframe>` }));
+    const asked: string[] = [];
+    page.on("request", (r) => asked.push(r.url()));
+    await page.goto(hostile.href, { waitUntil: "load" });
+    const passwordFields = async (frameUrl: string) => {
+      const frame = page.frames().find((f) => f.url() === frameUrl);
+      return frame ? frame.locator("input[type=password]").count().catch(() => 0) : 0;
+    };
+    await expect.poll(() => passwordFields(control.href), { timeout: 10_000 }).toBe(1);
+    // The frame did ask for the sign-in page, and the browser would not show it.
+    expect(asked).toContain(url("/sign-in"));
+    expect(await passwordFields(url("/sign-in"))).toBe(0);
+    const signInFrame = page.frames().find((f) => f !== page.mainFrame() && f.url() !== control.href);
+    expect(await signInFrame?.locator("input[type=password]").count().catch(() => 0)).toBe(0);
     await page.context().close();
   });
 
