@@ -1,3 +1,14 @@
+// The security headers of static files (in case one is answered without the proxy) and of the API,
+// which the proxy does not see (proxy.ts sets the same on every path it sees, and a nonce policy on
+// pages; lib/auth/security-headers.ts).
+const STATIC_HEADERS = [
+  { key: "X-Content-Type-Options", value: "nosniff" },
+  { key: "Referrer-Policy", value: "strict-origin-when-cross-origin" },
+  { key: "X-Frame-Options", value: "DENY" },
+  { key: "Permissions-Policy", value: "camera=(), microphone=(), geolocation=(), payment=(), usb=(), serial=(), bluetooth=(), interest-cohort=()" },
+  { key: "Content-Security-Policy", value: "default-src 'none'; frame-ancestors 'none'; base-uri 'none'; form-action 'none'" },
+];
+
 /** @type {import('next').NextConfig} */
 const nextConfig = {
   experimental: {
@@ -9,6 +20,16 @@ const nextConfig = {
   // Native or Node-only packages stay outside the server bundle.
   serverExternalPackages: ["@node-rs/argon2", "@libsql/client", "libsql", "nodemailer", "smtp-server", "mailparser"],
   poweredByHeader: false,
+  async headers() {
+    return [
+      ...["/_next/static/:path*", "/fonts/:path*", "/favicon.ico", "/api/:path*"].map((source) => ({ source, headers: STATIC_HEADERS })),
+      // A caught mail's attachment is shown sandboxed (lib/auth/security-headers.ts apiPolicy).
+      {
+        source: "/api/v1/admin/mail/:id/attachments/:index",
+        headers: [{ key: "Content-Security-Policy", value: `${STATIC_HEADERS.at(-1).value}; sandbox` }],
+      },
+    ];
+  },
   // Each area's URL is its own word (lib/paths.ts); addresses bookmarked under the old words still arrive.
   async redirects() {
     return [

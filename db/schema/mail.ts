@@ -42,4 +42,17 @@ export const mailAttempts = sqliteTable(
   (t) => [index("mail_attempts_outbox_idx").on(t.outboxId)],
 );
 
+/**
+ * The secret parts of a queued message (a one-time link's token), kept apart from the append-only
+ * outbox, which holds the message with a marker in their place. The sender puts them back when it
+ * sends and deletes the row once the message is delivered or given up, so no usable link stays
+ * readable in the database. `values` maps each marker to what it stands for.
+ */
+export const mailSecrets = sqliteTable("mail_secrets", {
+  outboxId: integer("outbox_id")
+    .primaryKey()
+    .references(() => outbox.id),
+  values: text("values", { mode: "json" }).$type<Record<string, string>>().notNull(),
+});
+
 export type OutboxMessage = typeof outbox.$inferSelect;

@@ -3,7 +3,7 @@ import { eq } from "drizzle-orm";
 import type { Cookie, Session } from "lucia";
 import { getDb, type Db } from "@/db";
 import { userRoles } from "@/db/schema";
-import { ABSOLUTE_EXPIRY_MS, getLucia } from "./lucia";
+import { ABSOLUTE_EXPIRY_MS, blankSessionCookie, getLucia, sessionCookie } from "./lucia";
 import { permissionsOf, type Permission } from "./permissions";
 import { isRole, sortRoles, type Role } from "./roles";
 
@@ -18,7 +18,10 @@ export interface AuthUser {
 export interface SessionCheck {
   user: AuthUser | null;
   session: Session | null;
-  /** Set when the cookie must change: a refreshed session, or a blank one to clear it. */
+  /**
+   * Set when the cookie must change: a blank one to clear it. (The cookie lasts as long as the
+   * browser, so extending the session's idle expiry needs no new cookie.)
+   */
   cookie: Cookie | null;
 }
 
@@ -31,13 +34,13 @@ export async function rolesOf(db: Db, userId: string): Promise<Role[]> {
 export async function startSession(userId: string, db: Db = getDb()) {
   const lucia = getLucia(db);
   const session = await lucia.createSession(userId, { createdAt: Math.floor(Date.now() / 1000) });
-  return { session, cookie: lucia.createSessionCookie(session.id) };
+  return { session, cookie: sessionCookie(session.id) };
 }
 
 export async function endSession(sessionId: string, db: Db = getDb()) {
   const lucia = getLucia(db);
   await lucia.invalidateSession(sessionId);
-  return lucia.createBlankSessionCookie();
+  return blankSessionCookie();
 }
 
 /**
@@ -49,15 +52,15 @@ export async function checkSession(sessionId: string | null | undefined, db: Db 
   const lucia = getLucia(db);
   if (!sessionId) return { user: null, session: null, cookie: null };
   const { session, user } = await lucia.validateSession(sessionId);
-  if (!session || !user) return { user: null, session: null, cookie: lucia.createBlankSessionCookie() };
+  if (!session || !user) return { user: null, session: null, cookie: blankSessionCookie() };
   if (session.createdAt * 1000 + ABSOLUTE_EXPIRY_MS <= now || !user.active) {
     await lucia.invalidateSession(session.id);
-    return { user: null, session: null, cookie: lucia.createBlankSessionCookie() };
+    return { user: null, session: null, cookie: blankSessionCookie() };
   }
   const roles = await rolesOf(db, user.id);
   return {
     session,
     user: { id: user.id, email: user.email, name: user.name, roles, permissions: permissionsOf(roles) },
-    cookie: session.fresh ? lucia.createSessionCookie(session.id) : null,
+    cookie: null,
   };
 }

@@ -1,8 +1,9 @@
 import "server-only";
-import { desc, eq, sql, type SQL } from "drizzle-orm";
+import { randomBytes } from "node:crypto";
+import { desc, eq, inArray, sql, type SQL } from "drizzle-orm";
 import { z } from "zod";
 import type { DbOrTx } from "@/db";
-import { mailAttempts, outbox, type OutboxMessage } from "@/db/schema";
+import { mailAttempts, mailSecrets, outbox, type OutboxMessage } from "@/db/schema";
 
 /** Tries per message before it is given up as failed. */
 export const DEFAULT_MAX_ATTEMPTS = 8;
@@ -63,14 +64,20 @@ const attachment = z.object({
   filename: oneLine("the file name").refine((v) => !/[\\/]/.test(v) && v.length <= 120, "the file name must be a plain name of at most 120 characters"),
 });
 
-const newMail = z.object({
-  to: oneLine("the recipient"),
-  subject: oneLine("the subject"),
-  text: z.string().min(1, "the text is empty"),
-  html: z.string().nullish(),
-  eventId: z.number().int().positive().nullish(),
-  attachments: z.array(attachment).max(100, "at most 100 attachments").optional(),
-});
+// A secret goes back into the HTML unescaped, so only URL-safe tokens are accepted as secrets.
+const secret = z.string().regex(/^[A-Za-z0-9_-]{16,}$/, "a secret must be a URL-safe token of at least 16 characters");
+
+const newMail = z
+  .object({
+    to: oneLine("the recipient"),
+    subject: oneLine("the subject"),
+    text: z.string().min(1, "the text is empty"),
+    html: z.string().nullish(),
+    eventId: z.number().int().positive().nullish(),
+    attachments: z.array(attachment).max(100, "at most 100 attachments").optional(),
+    secrets: z.array(secret).max(10, "at most 10 secrets").optional(),
+  })
+  .refine((m) => (m.secrets ?? []).every((s) => m.text.includes(s)), "every secret must appear in the text");
 
 export interface NewMail {
   to: string;
@@ -80,6 +87,45 @@ export interface NewMail {
   eventId?: number | null;
   /** Made when the message is sent, not stored: the outbox keeps what to make. */
   attachments?: MailAttachment[];
+  /**
+   * Parts of the text and HTML that must not stay in the database, such as a one-time link's
+   * token. The outbox keeps a marker in their place; the values wait in mail_secrets until the
+   * sender has delivered the message or given it up, and are deleted then.
+   */
+  secrets?: string[];
+}
+
+/** The placeholder a secret leaves in the stored message: random, so no other text can match it. */
+export function secretMarker(): string {
+  return `[[link:${randomBytes(8).toString("hex")}]]`;
+}
+
+// What secretMarker makes, and what migration 0020 put in mail queued before it.
+const MARKER = /\[\[link:(?:[0-9a-f]{16}|legacy-\d+)\]\]/;
+
+/** Takes each secret out of a text, putting its marker in every place it stood. */
+export function redactSecrets(text: string, markers: Record<string, string>): string {
+  let out = text;
+  for (const [marker, value] of Object.entries(markers)) out = out.split(value).join(marker);
+  return out;
+}
+
+/** Puts the secrets back for sending. Throws if a marker is left over: its secret is gone. */
+export function restoreSecrets(text: string, markers: Record<string, string>): string {
+  let out = text;
+  for (const [marker, value] of Object.entries(markers)) out = out.split(marker).join(value);
+  if (MARKER.test(out)) throw new Error("the message's one-time link is no longer kept; ask for a new one");
+  return out;
+}
+
+/**
+ * Deletes the secrets of these messages. secure_delete (on this transaction's connection) makes
+ * SQLite overwrite the deleted bytes instead of leaving them in the file's free space.
+ */
+export async function forgetSecrets(tx: DbOrTx, outboxIds: number[]): Promise<void> {
+  if (!outboxIds.length) return;
+  await tx.run(sql`PRAGMA secure_delete = ON`);
+  await tx.delete(mailSecrets).where(inArray(mailSecrets.outboxId, outboxIds));
 }
 
 /**
@@ -88,11 +134,21 @@ export interface NewMail {
  */
 export async function queueMail(tx: DbOrTx, msg: NewMail): Promise<number> {
   const m = newMail.parse(msg);
+  const markers: Record<string, string> = {};
+  for (const value of new Set(m.secrets ?? [])) markers[secretMarker()] = value;
   const [row] = await tx
     .insert(outbox)
-    .values({ to: m.to, subject: m.subject, text: m.text, html: m.html ?? null, eventId: m.eventId ?? null, attachments: m.attachments ?? [] })
+    .values({
+      to: m.to,
+      subject: m.subject,
+      text: redactSecrets(m.text, markers),
+      html: m.html == null ? null : redactSecrets(m.html, markers),
+      eventId: m.eventId ?? null,
+      attachments: m.attachments ?? [],
+    })
     .returning({ id: outbox.id });
   if (!row) throw new Error("mail was not queued");
+  if (Object.keys(markers).length) await tx.insert(mailSecrets).values({ outboxId: row.id, values: markers });
   return row.id;
 }
 

@@ -1,8 +1,8 @@
 import "server-only";
-import { and, eq, isNull, or, sql } from "drizzle-orm";
+import { and, eq, isNotNull, isNull, or, sql } from "drizzle-orm";
 import { getDb, withWriteLock, type Db } from "@/db";
-import { certificates, mailAttempts, outbox, type OutboxMessage } from "@/db/schema";
-import { attemptStats, DEFAULT_MAX_ATTEMPTS, retryDelaySql } from "./outbox";
+import { certificates, mailAttempts, mailSecrets, outbox, type OutboxMessage } from "@/db/schema";
+import { attemptStats, DEFAULT_MAX_ATTEMPTS, forgetSecrets, restoreSecrets, retryDelaySql } from "./outbox";
 import { createMailTransport, type MailTransport } from "./transport";
 
 export interface DeliverOptions {
@@ -54,6 +54,10 @@ function describeFailure(e: unknown): string {
  * Each try appends one mail_attempts row. No transaction is held while talking to the server:
  * the due list is read first, and each result is written after its send returns. Delivery is
  * therefore at-least-once: if writing the ok row fails, the message is sent again later.
+ *
+ * A message's secrets (its one-time link) are put back only in what goes to the server, and are
+ * deleted in the same transaction as the attempt that delivers the message or gives it up. Any
+ * left behind by a message already settled (sent, or out of tries) are deleted first.
  */
 export async function deliverDue(
   db: Db,
@@ -63,12 +67,29 @@ export async function deliverDue(
   const maxAttempts = opts.maxAttempts ?? DEFAULT_MAX_ATTEMPTS;
   const now = opts.now ?? new Date();
   const stats = attemptStats(db);
-  const failures = sql`coalesce(${stats.failures}, 0)`;
+  const failures = sql<number>`coalesce(${stats.failures}, 0)`;
+
+  const settled = await db
+    .select({ id: mailSecrets.outboxId })
+    .from(mailSecrets)
+    .innerJoin(stats, eq(stats.outboxId, mailSecrets.outboxId))
+    .where(or(isNotNull(stats.sentAt), sql`${stats.failures} >= ${maxAttempts}`));
+  if (settled.length) await db.transaction((tx) => forgetSecrets(tx, settled.map((r) => r.id)));
 
   const due = await db
-    .select({ id: outbox.id, to: outbox.to, subject: outbox.subject, text: outbox.text, html: outbox.html, attachments: outbox.attachments })
+    .select({
+      id: outbox.id,
+      to: outbox.to,
+      subject: outbox.subject,
+      text: outbox.text,
+      html: outbox.html,
+      attachments: outbox.attachments,
+      failures,
+      secrets: mailSecrets.values,
+    })
     .from(outbox)
     .leftJoin(stats, eq(stats.outboxId, outbox.id))
+    .leftJoin(mailSecrets, eq(mailSecrets.outboxId, outbox.id))
     .where(
       and(
         isNull(stats.sentAt),
@@ -85,13 +106,15 @@ export async function deliverDue(
     let ok: boolean;
     let detail: string;
     try {
+      const text = restoreSecrets(m.text, m.secrets ?? {});
+      const html = m.html ? restoreSecrets(m.html, m.secrets ?? {}) : null;
       const attachments = await attachmentsFor(db, m.attachments, opts.baseUrl ?? defaultBaseUrl());
       const info = await transport.sendMail({
         ...(opts.from ? { from: opts.from } : {}),
         to: m.to,
         subject: m.subject,
-        text: m.text,
-        ...(m.html ? { html: m.html } : {}),
+        text,
+        ...(html ? { html } : {}),
         ...(attachments.length ? { attachments } : {}),
       });
       ok = true;
@@ -100,7 +123,16 @@ export async function deliverDue(
       ok = false;
       detail = describeFailure(e);
     }
-    await withWriteLock(() => db.insert(mailAttempts).values({ outboxId: m.id, at: opts.now ?? new Date(), ok, detail }));
+    const attempt = { outboxId: m.id, at: opts.now ?? new Date(), ok, detail };
+    const settles = ok || Number(m.failures) + 1 >= maxAttempts;
+    if (m.secrets && settles) {
+      await db.transaction(async (tx) => {
+        await tx.insert(mailAttempts).values(attempt);
+        await forgetSecrets(tx, [m.id]);
+      });
+    } else {
+      await withWriteLock(() => db.insert(mailAttempts).values(attempt));
+    }
     if (ok) sent++;
     else failed++;
   }

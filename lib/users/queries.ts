@@ -1,6 +1,6 @@
 import "server-only";
 import type { Actor } from "@/lib/vocabulary/actor";
-import { and, asc, eq, gt, isNotNull, isNull, sql } from "drizzle-orm";
+import { and, asc, eq, gt, isNotNull, isNull, ne, sql } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db";
 import { authTokens, sessions, userRoles, users } from "@/db/schema";
 import { AppError, isConstraintError } from "@/lib/auth/errors";
@@ -10,10 +10,12 @@ import { isRole, sortRoles } from "@/lib/auth/roles";
 import { normaliseEmail } from "@/lib/auth/throttle";
 import { reserve, type Limit } from "@/lib/limits";
 import { hashToken, newId, newToken } from "@/lib/auth/tokens";
+import { now } from "@/lib/clock";
 import { appendEvent } from "@/lib/events/queries";
 import { queueMail } from "@/lib/mail/outbox";
 import { inviteMail, resetMail } from "@/lib/mail/templates";
 
+/** How long a link stays usable: an invitation may wait over a weekend, a reset link is asked for and used at once. */
 export const INVITE_TTL_HOURS = 72;
 export const RESET_TTL_MINUTES = 60;
 
@@ -69,10 +71,25 @@ async function countActiveAdmins(db: DbOrTx, exceptUserId?: string): Promise<num
   return Number(row?.n ?? 0);
 }
 
+/** Revokes every link of the user still open (unused, unrevoked), but `except`; returns how many. */
+async function revokeOpenTokens(tx: DbOrTx, userId: string, except?: string): Promise<number> {
+  const revoked = await tx
+    .update(authTokens)
+    .set({ revokedAt: now() })
+    .where(and(eq(authTokens.userId, userId), isNull(authTokens.usedAt), isNull(authTokens.revokedAt), except ? ne(authTokens.id, except) : undefined))
+    .returning({ id: authTokens.id });
+  return revoked.length;
+}
+
+/**
+ * Makes a one-time token and stores its hash. The raw token goes only into the mail, as a secret
+ * of queueMail, so the outbox never keeps it. Older links of the user stop working.
+ */
 async function issueToken(tx: DbOrTx, userId: string, purpose: "invite" | "reset", ttlMs: number) {
+  await revokeOpenTokens(tx, userId);
   const token = newToken();
-  const expiresAt = new Date(Date.now() + ttlMs);
-  await tx.insert(authTokens).values({ id: newId(), userId, purpose, tokenHash: hashToken(token), expiresAt });
+  const expiresAt = new Date(now().getTime() + ttlMs);
+  await tx.insert(authTokens).values({ id: newId(), userId, purpose, tokenHash: hashToken(token), expiresAt, createdAt: now() });
   return { token, expiresAt };
 }
 
@@ -102,7 +119,7 @@ export async function inviteUser(
         invitedBy: input.actor.name,
         expiresHours: INVITE_TTL_HOURS,
       });
-      await queueMail(tx, { to: email, ...mail, eventId });
+      await queueMail(tx, { to: email, ...mail, eventId, secrets: [token] });
     });
   } catch (e) {
     if (isConstraintError(e, "UNIQUE")) {
@@ -155,6 +172,8 @@ export async function deactivateUser(db: Db, input: { userId: string; actor: Nam
     }
     await tx.update(users).set({ active: false }).where(eq(users.id, user.id));
     const ended = await tx.delete(sessions).where(eq(sessions.userId, user.id)).returning({ id: sessions.id });
+    // Links still open would come back to life on reactivation.
+    await revokeOpenTokens(tx, user.id);
     await appendEvent(tx, {
       actorId: input.actor.id,
       station: "admin",
@@ -176,7 +195,7 @@ export async function reactivateUser(db: Db, input: { userId: string; actor: Nam
   });
 }
 
-/** Finds a usable token: right purpose, not used, not expired, owner active. */
+/** Finds a usable token: right purpose, not used, not revoked, not expired, owner active. */
 export async function findToken(db: DbOrTx, token: string, purpose: "invite" | "reset") {
   const [row] = await db
     .select({ id: authTokens.id, userId: authTokens.userId, expiresAt: authTokens.expiresAt, name: users.name, email: users.email })
@@ -187,7 +206,8 @@ export async function findToken(db: DbOrTx, token: string, purpose: "invite" | "
         eq(authTokens.tokenHash, hashToken(token)),
         eq(authTokens.purpose, purpose),
         isNull(authTokens.usedAt),
-        gt(authTokens.expiresAt, new Date()),
+        isNull(authTokens.revokedAt),
+        gt(authTokens.expiresAt, now()),
         eq(users.active, true),
       ),
     )
@@ -197,7 +217,10 @@ export async function findToken(db: DbOrTx, token: string, purpose: "invite" | "
 
 const TOKEN_GONE = "This link has expired or has already been used. Ask for a new one.";
 
-/** Spends a one-time token and sets the password. The conditional update makes a second use fail. */
+/**
+ * Spends a one-time token and sets the password. The conditional update makes a second use fail;
+ * every other link of the user is revoked with it.
+ */
 async function spendToken(db: Db, token: string, purpose: "invite" | "reset", password: string, eventType: "user.joined" | "user.password_reset") {
   const passwordHash = await hashPassword(password); // hashed before the transaction: never slow work inside one
   return db.transaction(async (tx) => {
@@ -205,10 +228,11 @@ async function spendToken(db: Db, token: string, purpose: "invite" | "reset", pa
     if (!found) throw new AppError(410, TOKEN_GONE);
     const spent = await tx
       .update(authTokens)
-      .set({ usedAt: new Date() })
-      .where(and(eq(authTokens.id, found.id), isNull(authTokens.usedAt)))
+      .set({ usedAt: now() })
+      .where(and(eq(authTokens.id, found.id), isNull(authTokens.usedAt), isNull(authTokens.revokedAt)))
       .returning({ id: authTokens.id });
     if (spent.length !== 1) throw new AppError(410, TOKEN_GONE);
+    await revokeOpenTokens(tx, found.userId, found.id);
     await tx.update(users).set({ passwordHash }).where(eq(users.id, found.userId));
     // A new password ends every session that the old one opened.
     await tx.delete(sessions).where(eq(sessions.userId, found.userId));
@@ -252,6 +276,6 @@ export async function requestPasswordReset(db: Db, input: { email: string; baseU
     const { token } = await issueToken(tx, user.id, "reset", RESET_TTL_MINUTES * 60_000);
     const eventId = await appendEvent(tx, { actorId: null, station: "sign-in", type: "user.reset_requested", subjectKind: "user", subjectId: user.id, data: { email: user.email } });
     const mail = resetMail({ name: user.name, link: `${input.baseUrl}/reset/${token}`, expiresMinutes: RESET_TTL_MINUTES });
-    await queueMail(tx, { to: user.email, ...mail, eventId });
+    await queueMail(tx, { to: user.email, ...mail, eventId, secrets: [token] });
   });
 }

@@ -203,7 +203,9 @@ const { POST: postPhotos } = await import("@/app/api/v1/veneer/photos/route");
 
 describe("bodies past their route's limit get 413 with a message", () => {
   const post = (route: Route, body: BodyInit, headers: Record<string, string>) =>
-    route(new Request("http://localhost:3000/api/v1/x", { method: "POST", body, headers, duplex: "half" } as RequestInit), { params: Promise.resolve({}) });
+    route(new Request("http://localhost:3000/api/v1/x", { method: "POST", body, headers: { origin: "http://localhost:3000", ...headers }, duplex: "half" } as RequestInit), {
+      params: Promise.resolve({}),
+    });
 
   test.each([
     ["labels, declared 50 MB", postLabels as Route, "packing", { "content-type": "application/json", "content-length": String(50 * MiB) }, () => "{}"],

@@ -4,6 +4,7 @@
  * file, so a test only sets `request.sessionId` (sign in) and reads `request.cookieSets`.
  * The setup file and the test share this module instance: vitest runs both in the file's context.
  */
+import { ResponseCookies } from "next/dist/server/web/spec-extension/cookies";
 import { SESSION_COOKIE } from "@/lib/auth/lucia-cookie";
 
 /** redirect() in a test: thrown like Next's own, so the code after it never runs. */
@@ -33,14 +34,21 @@ export const request = {
   cookieSets: [] as { name: string; value: string }[],
   /** Further request headers, e.g. the connection's address stamp or X-Forwarded-For. */
   headers: {} as Record<string, string>,
+  /** The Set-Cookie header lines those sets make, written by Next's own cookie serializer. */
+  setCookieHeaders: [] as string[],
 };
+
+type CookieOptions = Parameters<ResponseCookies["set"]>[2];
 
 export const nextHeaders = {
   cookies: async () => ({
     get: (name: string) => (name === SESSION_COOKIE && request.sessionId ? { name, value: request.sessionId } : undefined),
-    set: (nameOrCookie: string | { name: string; value: string }, value?: string) => {
+    set: (nameOrCookie: string | { name: string; value: string }, value?: string, options?: CookieOptions) => {
       const c = typeof nameOrCookie === "string" ? { name: nameOrCookie, value: value ?? "" } : nameOrCookie;
       request.cookieSets.push({ name: c.name, value: c.value });
+      const headers = new Headers();
+      new ResponseCookies(headers).set(c.name, c.value, options);
+      request.setCookieHeaders.push(...headers.getSetCookie());
     },
   }),
   headers: async () => new Headers({ host: "localhost:3000", ...request.headers }),
