@@ -1,6 +1,7 @@
 import { createHash } from "node:crypto";
 import { cpSync, existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
+import { sql } from "drizzle-orm";
 import sharp from "sharp";
 import { beforeAll, describe, expect, test } from "vitest";
 import { getDb, openDb } from "@/db";
@@ -70,7 +71,7 @@ describe("a backup taken while the register writes", () => {
     for (const [file, want] of Object.entries(manifest.files)) expect(sha(join(backupDir, file))).toBe(want.sha256);
     expect(manifest.tables.events).toBe(manifest.auditHead!.id);
     // Some pairs were recorded after the snapshot: the live register moved on, the backup did not.
-    const live = Number((await db().$client.execute("SELECT count(*) AS n FROM items")).rows[0]!.n);
+    const live = Number((await db().all<{ n: number }>(sql`SELECT count(*) AS n FROM items`))[0]!.n);
     expect(manifest.tables.items).toBeLessThan(live);
     expect(manifest.tables.items).toBeGreaterThan(1);
   });
@@ -92,9 +93,9 @@ describe("a backup taken while the register writes", () => {
       expect(report.intact).toBe(true);
       expect(report.head).toMatchObject(manifest.auditHead!);
       // The restored log is the live log up to the snapshot, hash for hash.
-      const live = await db().$client.execute({ sql: "SELECT hash FROM events WHERE id <= ? ORDER BY id", args: [manifest.auditHead!.id] });
+      const live = await db().all<{ hash: string }>(sql`SELECT hash FROM events WHERE id <= ${manifest.auditHead!.id} ORDER BY id`);
       const back = await client.execute("SELECT hash FROM events ORDER BY id");
-      expect(back.rows.map((r) => r.hash)).toEqual(live.rows.map((r) => r.hash));
+      expect(back.rows.map((r) => r.hash)).toEqual(live.map((r) => r.hash));
       expect((await client.execute("PRAGMA journal_mode")).rows[0]!.journal_mode).toBe("wal");
     } finally {
       client.close();
