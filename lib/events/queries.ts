@@ -1,6 +1,6 @@
 import "server-only";
 import { and, desc, eq, inArray, sql, type SQL } from "drizzle-orm";
-import { alias, type SQLiteColumn, SQLiteTransaction } from "drizzle-orm/sqlite-core";
+import { alias, type SQLiteColumn } from "drizzle-orm/sqlite-core";
 import type { DbOrTx } from "@/db";
 import { dealers, events, finishes, items, machineTokens, matchedSets, models, unitBatches, users } from "@/db/schema";
 import { eventHash, type StoredEvent } from "@/lib/audit/chain";
@@ -32,7 +32,12 @@ export interface NewEvent {
  * writer can append in between; handed the database rather than a transaction, it opens one.
  */
 export async function appendEvent(db: DbOrTx, event: NewEvent): Promise<number> {
-  if (!(db instanceof SQLiteTransaction)) return db.transaction((tx) => appendEvent(tx, event));
+  // A transaction is told apart by its rollback(), not instanceof: a bundler may load drizzle's
+  // classes twice, and a wrong answer here would nest savepoints without end.
+  return "rollback" in db ? appendInTransaction(db, event) : db.transaction((tx) => appendInTransaction(tx, event));
+}
+
+async function appendInTransaction(db: DbOrTx, event: NewEvent): Promise<number> {
   const head = await chainHead(db);
   const stored: StoredEvent = {
     id: head.nextId,
