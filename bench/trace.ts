@@ -20,6 +20,7 @@ import { type SQL, sql } from "drizzle-orm";
 import { SQLiteAsyncDialect } from "drizzle-orm/sqlite-core";
 import { type Db, openClient, openDb } from "@/db";
 import { migrateDatabase } from "@/db/migrate";
+import { eventHash, GENESIS_HASH } from "@/lib/audit/chain";
 import { SEED_DEALERS, SEED_FINISHES, SEED_MODELS } from "@/db/seed/data";
 import { traceBackward, traceForward } from "@/lib/genealogy/trace";
 
@@ -158,9 +159,10 @@ async function buildRegister(url: string): Promise<Built> {
         sql: "INSERT INTO dealers (id, code, name, city, country, email) VALUES (?, ?, ?, ?, ?, ?)",
         args: [dealerIds[i]!, d.code, d.name, d.city, d.country, d.email],
       })),
+      // The first event of a fresh log, chained as appendEvent would (a trigger refuses it otherwise).
       {
-        sql: "INSERT INTO events (at, station, type, subject_kind, subject_id, data) VALUES (?, 'bench', 'bench.synthetic', 'bench', 'trace', '{}')",
-        args: [START],
+        sql: "INSERT INTO events (id, at, station, type, subject_kind, subject_id, data, prev_hash, hash) VALUES (1, ?, 'bench', 'bench.synthetic', 'bench', 'trace', '{}', ?, ?)",
+        args: [START, GENESIS_HASH, eventHash({ id: 1, at: START, actorId: null, station: "bench", type: "bench.synthetic", subjectKind: "bench", subjectId: "trace", data: "{}", reason: null, correctsId: null }, GENESIS_HASH)],
       },
     ],
     "write",

@@ -38,6 +38,7 @@ export const paths = {
   quality: "/quality",
 
   admin: "/admin",
+  adminAudit: "/admin/audit",
   adminMail: "/admin/mail",
   adminRoutes: "/admin/routes",
   adminTokens: "/admin/tokens",

@@ -4,7 +4,8 @@ import { users } from "./auth";
 
 /**
  * The event log: every step, reading, link, hold, deviation, correction and notice.
- * Rows are only ever appended; triggers in the migrations reject UPDATE and DELETE.
+ * Rows are only ever appended; triggers in the migrations reject UPDATE, DELETE and REPLACE, and
+ * each event is chained to the one before it by a hash, so a change behind the app's back shows.
  */
 export const events = sqliteTable(
   "events",
@@ -29,6 +30,13 @@ export const events = sqliteTable(
     reason: text("reason"),
     /** For a correction: the event it corrects. */
     correctsId: integer("corrects_id").references((): AnySQLiteColumn => events.id),
+    /**
+     * The audit chain (lib/audit/chain.ts): the previous event's hash (64 zeros before the first),
+     * and SHA-256 over this event's every column and that previous hash. Set by `appendEvent`
+     * inside the appending transaction; a trigger refuses an event that does not extend the head.
+     */
+    prevHash: text("prev_hash"),
+    hash: text("hash"),
   },
   (t) => [
     index("events_subject_idx").on(t.subjectKind, t.subjectId, t.at),

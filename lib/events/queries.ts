@@ -3,6 +3,8 @@ import { and, desc, eq, inArray, notInArray, or, sql, type SQL } from "drizzle-o
 import { alias, type SQLiteColumn } from "drizzle-orm/sqlite-core";
 import type { DbOrTx } from "@/db";
 import { dealers, events, finishes, items, machineTokens, matchedSets, models, unitBatches, users } from "@/db/schema";
+import { eventHash, type StoredEvent } from "@/lib/audit/chain";
+import { chainHead } from "@/lib/audit/head";
 import { now } from "@/lib/clock";
 import { AREAS } from "@/lib/areas";
 import type { Permission } from "@/lib/auth/permissions";
@@ -25,24 +27,41 @@ export interface NewEvent {
   at?: Date;
 }
 
-/** Appends one event and returns its id. Call it inside the transaction that makes the change. */
+/**
+ * Appends one event and returns its id. Call it inside the transaction that makes the change.
+ * The event is chained (lib/audit/chain.ts): its id, its previous hash and its own hash are worked
+ * out here from the newest event, read inside the same BEGIN IMMEDIATE transaction so no other
+ * writer can append in between; handed the database rather than a transaction, it opens one.
+ */
 export async function appendEvent(db: DbOrTx, event: NewEvent): Promise<number> {
-  const [row] = await db
-    .insert(events)
-    .values({
-      actorId: event.actorId,
-      station: event.station,
-      type: event.type,
-      subjectKind: event.subjectKind,
-      subjectId: event.subjectId,
-      data: event.data ?? {},
-      reason: event.reason ?? null,
-      correctsId: event.correctsId ?? null,
-      at: event.at ?? now(),
-    })
-    .returning({ id: events.id });
-  if (!row) throw new Error("event was not written");
-  return row.id;
+  // A transaction is told apart by its rollback(), not instanceof: a bundler may load drizzle's
+  // classes twice, and a wrong answer here would nest savepoints without end.
+  return "rollback" in db ? appendInTransaction(db, event) : db.transaction((tx) => appendInTransaction(tx, event));
+}
+
+async function appendInTransaction(db: DbOrTx, event: NewEvent): Promise<number> {
+  const head = await chainHead(db);
+  const stored: StoredEvent = {
+    id: head.nextId,
+    at: (event.at ?? now()).getTime(),
+    actorId: event.actorId,
+    station: event.station,
+    type: event.type,
+    subjectKind: event.subjectKind,
+    subjectId: event.subjectId,
+    data: JSON.stringify(event.data ?? {}),
+    reason: event.reason ?? null,
+    correctsId: event.correctsId ?? null,
+  };
+  await db.insert(events).values({
+    ...stored,
+    at: new Date(stored.at),
+    // The exact text that was hashed, not a second serialisation by the column's mapper.
+    data: sql`${stored.data}`,
+    prevHash: head.prevHash,
+    hash: eventHash(stored, head.prevHash),
+  });
+  return stored.id;
 }
 
 export interface EventRow {

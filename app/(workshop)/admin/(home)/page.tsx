@@ -5,6 +5,7 @@ import { buttonClasses } from "@/components/ui/button";
 import { Panel } from "@/components/ui/panel";
 import { areaByKey } from "@/lib/areas";
 import { requirePage } from "@/lib/auth/guard";
+import { paths } from "@/lib/paths";
 
 export const metadata: Metadata = { title: "Administration" };
 
@@ -13,6 +14,7 @@ const SECTIONS = [
   { href: "/admin/tokens", title: "Machine tokens", text: "Keys for the lab's test benches to post measurements; make one, or revoke one that is lost or retired." },
   { href: "/admin/routes", title: "Cabinet routes", text: "Each model's steps through the shop, their readings and waits; edit one as a new version, and see which pairs follow which." },
   { href: "/admin/mail", title: "Mail", text: "Every message Twinleaf queued, whether it was delivered, and the demo's caught mail." },
+  { href: paths.adminAudit, title: "Audit trail", text: "Check that no recorded event has been changed, removed or moved outside Twinleaf, and that the database's protective rules are in place." },
   { href: "/register", title: "Models, finishes and dealers", text: "The workshop's reference data." },
 ];
 
