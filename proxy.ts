@@ -3,6 +3,7 @@ import { clientAddressOf, PEER_HEADER, trustedProxyHops } from "./lib/auth/clien
 import { SESSION_COOKIE } from "./lib/auth/lucia-cookie";
 import { localPath } from "./lib/input/local-path";
 import { refuseMalformed } from "./lib/input/requests";
+import { comesFromHere, CROSS_ORIGIN_REFUSED } from "./lib/auth/origin";
 import { securityHeadersFor } from "./lib/auth/security-headers";
 
 /** Paths anyone may open: sign-in and its links, the certificate check, the API (answers 401 itself), assets. */
@@ -31,6 +32,15 @@ async function verifyRefusal(req: NextRequest): Promise<NextResponse | null> {
   return hit.ok ? null : tooManyChecks(hit.retryAfterSeconds);
 }
 
+/**
+ * A server action from another origin: Next refuses it itself, but with an HTTP 500. Refused here
+ * first, 403 with words (text/plain, which Next's client shows), by the same rule as route handlers.
+ */
+function crossOriginAction(req: NextRequest): NextResponse | null {
+  if (req.method !== "POST" || !req.headers.has("next-action") || comesFromHere(req)) return null;
+  return new NextResponse(CROSS_ORIGIN_REFUSED, { status: 403, headers: { "content-type": "text/plain", "cache-control": "no-store" } });
+}
+
 // Only a convenience: sends the signed-out to sign-in. Every page, action and route still checks
 // the session and the permission itself.
 function signInRedirect(req: NextRequest): NextResponse | null {
@@ -57,7 +67,8 @@ async function withSecurityHeaders(req: NextRequest, answer: (requestHeaders: He
   return res;
 }
 
-// Refuses what Next.js would answer with a 500 (a broken %-escape, an oversized action body),
+// Refuses what Next.js would answer with a 500 (a broken %-escape, an oversized action body, an
+// action from another origin),
 // counts the certificate check's limit, sends the signed-out to sign-in, and sets the security
 // headers on every answer.
 export function proxy(req: NextRequest) {
@@ -65,6 +76,7 @@ export function proxy(req: NextRequest) {
     req,
     async (requestHeaders) =>
       (await refuseMalformed(req, req.nextUrl.pathname)) ??
+      crossOriginAction(req) ??
       (await verifyRefusal(req)) ??
       signInRedirect(req) ??
       NextResponse.next({ request: { headers: requestHeaders } }),

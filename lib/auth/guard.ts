@@ -11,6 +11,7 @@ import { echoPlan, echoValues, formDataToObject, type FormState } from "@/lib/fo
 import { DEFAULT_BODY_LIMIT, readJsonCapped } from "@/lib/input/body";
 import { localPath } from "@/lib/input/local-path";
 import { pathParam, pathParams } from "@/lib/input/path-params";
+import { comesFromHere, CROSS_ORIGIN_REFUSED } from "./origin";
 import { getDb } from "@/db";
 import { clientAddressOf, PEER_HEADER, trustedProxyHops } from "./client-address";
 import { AppError, forbiddenError, unauthenticated } from "./errors";
@@ -238,53 +239,15 @@ export function guardedRoute<
   return Object.assign(route, { permission, machine });
 }
 
-export const CROSS_ORIGIN_REFUSED =
-  "Refused: this request did not come from one of Twinleaf's own pages, so nothing was done. Open Twinleaf and do it from there.";
-
-/** Methods that only read; every other method changes something and must come from this origin. */
-const READ_METHODS = new Set(["GET", "HEAD", "OPTIONS"]);
+export { CROSS_ORIGIN_REFUSED };
 
 /**
- * Cross-site request forgery: a browser sends the session cookie with a form or fetch that
- * another site makes, but it also says where the request came from. A request that changes
- * state goes on only with an `Origin` naming this host (the host the browser sent it to, as
- * Next compares it for server actions) and, when the browser sends `Sec-Fetch-Site`, with that
- * saying "same-origin"; with neither header it is refused. A machine token (`Authorization:
- * Bearer`) is judged by the token instead: no other site can make a browser send that header.
- * Returns the 403 answer, or null when the request may go on.
+ * Cross-site request forgery: a state-changing request must come from this origin or carry a
+ * machine token (lib/auth/origin.ts, `comesFromHere`). Returns the 403 answer, or null when the
+ * request may go on.
  */
 export function refuseCrossOrigin(req: Request): Response | null {
-  if (READ_METHODS.has(req.method.toUpperCase())) return null;
-  if (/^Bearer(\s|$)/i.test(req.headers.get("authorization")?.trim() ?? "")) return null;
-  const origin = req.headers.get("origin");
-  const site = req.headers.get("sec-fetch-site");
-  const refused = json(403, { error: CROSS_ORIGIN_REFUSED });
-  if (site !== null && site.trim().toLowerCase() !== "same-origin") return refused;
-  if (origin !== null) return ownHosts(req).has(hostOf(origin) ?? "") ? null : refused;
-  return site === null ? refused : null;
-}
-
-function hostOf(origin: string): string | null {
-  try {
-    const u = new URL(origin);
-    return u.protocol === "http:" || u.protocol === "https:" ? u.host.toLowerCase() : null;
-  } catch {
-    return null; // "null" (a sandboxed frame, a file) or garbage
-  }
-}
-
-/** The names this app answers to: the host the request was sent to (as a proxy forwards it) and APP_URL's. */
-function ownHosts(req: Request): Set<string> {
-  const out = new Set<string>();
-  const add = (h: string | null | undefined) => {
-    const v = h?.split(",")[0]?.trim().toLowerCase();
-    if (v) out.add(v);
-  };
-  add(req.headers.get("x-forwarded-host"));
-  add(req.headers.get("host"));
-  add(new URL(req.url).host);
-  if (process.env.APP_URL) add(hostOf(process.env.APP_URL));
-  return out;
+  return comesFromHere(req) ? null : json(403, { error: CROSS_ORIGIN_REFUSED });
 }
 
 /**

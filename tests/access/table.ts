@@ -228,6 +228,7 @@ export const PAGES: Record<string, PageAccess> = {
   "/admin/tokens": { may: ["admin"], why: ADMIN_TOKENS },
   "/admin/mail": { may: ["admin"], why: ADMIN_MAIL },
   "/admin/mail/[id]": { may: ["admin"], why: ADMIN_MAIL, sample: "mail" },
+  "/admin/audit": { may: ["admin"], why: "PRODUCT.md is silent on who checks the audit trail; an administrator keeps the system and its records (21 CFR Part 11 §11.10(e), EU GMP Annex 11 §9 expect the trail reviewable)." },
 };
 
 /** The roles the code is expected to let in today: `differs` where it differs, else `may`. */

@@ -43,7 +43,8 @@ async function capture(page: Page, path: string, fill: (page: Page) => Promise<v
 
 async function replay(c: Captured, swaps: [string, string][], extraHeaders: Record<string, string> = {}) {
   const body = swaps.reduce((b, [from, to]) => b.split(from).join(to), c.body);
-  const res = await fetch(c.url, { method: "POST", headers: { ...c.headers, ...extraHeaders }, body, redirect: "manual" });
+  // A browser sends its page's Origin with every POST (the request record may leave it out).
+  const res = await fetch(c.url, { method: "POST", headers: { origin: new URL(c.url).origin, ...c.headers, ...extraHeaders }, body, redirect: "manual" });
   const text = await res.text();
   return { text, session: (res.headers.get("set-cookie") ?? "").includes("twinleaf_session=") };
 }

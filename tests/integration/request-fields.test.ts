@@ -40,7 +40,7 @@ const post = (path: string, body?: unknown) =>
 const CASES: [string, string, () => Promise<unknown>, string, string][] = [
   ["labels: body and query", "veneer", () => labelsRoute(post(`/api/v1/labels?${forgedQuery()}`, { identities: [pair], layout: "a4-3x8", ...forged() }), { params: Promise.resolve({}) }), "label.printed", "veneer"],
   ["certificate print: query", "packing", () => certificateRoute(post(`/api/v1/pairs/${encodeURIComponent(pair)}/certificate?${forgedQuery()}`), { params: Promise.resolve({ identity: encodeURIComponent(pair) }) }), "certificate.printed", "packing"],
-  ["carton label: query", "service", () => cartonLabelRoute(post(`/api/v1/cartons/${encodeURIComponent(carton)}/label?${forgedQuery()}`), { params: Promise.resolve({ identity: encodeURIComponent(carton) }) }), "label.printed", "packing"],
+  ["carton label: query", "packing", () => cartonLabelRoute(post(`/api/v1/cartons/${encodeURIComponent(carton)}/label?${forgedQuery()}`), { params: Promise.resolve({ identity: encodeURIComponent(carton) }) }), "label.printed", "packing"],
   [
     "moving a carton: form fields",
     "packing",
