@@ -35,6 +35,12 @@ export const paths = {
   pack: (identity: string) => `/packing/pack/${seg(identity)}`,
 
   service: "/service",
+  serviceIntake: "/service/cases/new",
+  serviceCase: (code: string) => `/service/cases/${seg(code)}`,
+  serviceReplace: (code: string, side: string, position: string) => `/service/cases/${seg(code)}/replace?side=${seg(side)}&position=${seg(position)}`,
+  serviceRetest: (code: string) => `/service/cases/${seg(code)}/retest`,
+  serviceQuote: (code: string) => `/service/cases/${seg(code)}/quote`,
+  serviceReturn: (code: string) => `/service/cases/${seg(code)}/return`,
   quality: "/quality",
 
   admin: "/admin",

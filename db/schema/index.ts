@@ -9,3 +9,4 @@ export * from "./lab";
 export * from "./route";
 export * from "./dispatch";
 export * from "./limits";
+export * from "./service";

@@ -20,6 +20,11 @@ export const models = sqliteTable(
     responseMaxHz: real("response_max_hz").notNull(),
     /** GTIN-14 of the packed pair. */
     pairGtin: text("pair_gtin").notNull(),
+    /**
+     * Warranty from the day the pair shipped (or its owner registered it, where that is later), in
+     * months, 0–600 (a CHECK on the column, added with it by migration 0024).
+     */
+    warrantyMonths: integer("warranty_months").notNull().default(24),
     active: integer("active", { mode: "boolean" }).notNull().default(true),
   },
   (t) => [

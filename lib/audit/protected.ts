@@ -31,6 +31,8 @@ export const APPEND_ONLY_TABLES = {
   certificate_prints: "certificate prints",
   carton_locations: "carton locations",
   shipment_details: "shipments",
+  service_cases: "service cases",
+  case_findings: "diagnosis findings",
 } as const satisfies Record<string, string>;
 
 export type AppendOnlyTable = keyof typeof APPEND_ONLY_TABLES;

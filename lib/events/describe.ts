@@ -1,4 +1,5 @@
 import { ROLE_LABELS, isRole } from "@/lib/auth/roles";
+import { CASE_STATE_WORDS, isCaseState } from "@/lib/vocabulary/case-states";
 import { bandLabel, formatDb, formatHz } from "@/lib/certificates/figures";
 import { formatCalendarDay } from "@/lib/format";
 import { parseSerial } from "@/lib/serials/format";
@@ -92,6 +93,8 @@ export interface DescribeContext {
 type Sentence = (d: Data, ctx: DescribeContext) => string | null;
 
 /** A sentence that needs these fields; without them (data of an older shape) the plain phrase is said. */
+const caseStateWords = (state: string): string => (isCaseState(state) ? CASE_STATE_WORDS[state].toLowerCase() : state || "?");
+
 const needs =
   (keys: string[], say: Sentence): Sentence =>
   (d, ctx) =>
@@ -215,6 +218,20 @@ const SENTENCES: Record<EventType, Sentence> = {
   }),
   "machine_token.created": (d) => `created the machine token${str(d, "name") ? ` ${str(d, "name")}` : ""}`,
   "machine_token.revoked": (d) => `revoked the machine token${str(d, "name") ? ` ${str(d, "name")}` : ""}`,
+  "case.opened": (d) => `opened service case ${str(d, "code") || ""}${str(d, "serial") ? ` for ${str(d, "serial")}` : ""}`.trim(),
+  "case.moved": (d) => `moved service case ${str(d, "code")} from ${caseStateWords(str(d, "from"))} to ${caseStateWords(str(d, "to"))}`,
+  "case.finding_recorded": (d) => `found ${str(d, "finding") || "a fault"} at ${str(d, "side") === "R" ? "the right" : "the left"} speaker's ${str(d, "position")}`,
+  "case.file_added": (d) => `added ${str(d, "name") || "a file"} to service case ${str(d, "code")}`,
+  "case.part_reserved": (d) => `reserved ${str(d, "serial") || "a part"} for service case ${str(d, "code")}`,
+  "case.reservation_released": (d) => `released ${str(d, "serial") || "a reserved part"} from service case ${str(d, "code")}`,
+  "case.retested": (d) => `re-tested the pair of service case ${str(d, "code")}${d.pass === true ? ": passed" : d.pass === false ? ": failed" : ""}`,
+  "case.quoted": (d) => `quoted service case ${str(d, "code")}`,
+  "case.sent_back": (d) => `sent service case ${str(d, "code")}'s speaker back`,
+  "certificate.revised": (d) => `issued revision ${str(d, "revision") || ""} of the certificate`.replace("  ", " "),
+  "payment.requested": (d) => `sent a payment link for service case ${str(d, "code")}`,
+  "payment.received": (d) => `recorded a payment for service case ${str(d, "code")}`,
+  "payment.refunded": (d) => `refunded the payment of service case ${str(d, "code")}`,
+  "owner.consent_recorded": (d) => (d.consent === true ? "recorded the owner's consent to be contacted" : "recorded that the owner does not wish to be contacted"),
 };
 
 /** A short sentence for an event; a type recorded before the vocabulary existed gets its nearest words. */
