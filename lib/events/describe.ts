@@ -93,7 +93,8 @@ export interface DescribeContext {
 type Sentence = (d: Data, ctx: DescribeContext) => string | null;
 
 /** A sentence that needs these fields; without them (data of an older shape) the plain phrase is said. */
-const caseStateWords = (state: string): string => (isCaseState(state) ? CASE_STATE_WORDS[state].toLowerCase() : state || "?");
+const caseStateWords = (state: string): string => (isCaseState(state) ? CASE_STATE_WORDS[state].toLowerCase() : "another state");
+const caseName = (d: Data): string => (str(d, "code") ? `service case ${str(d, "code")}` : "a service case");
 
 const needs =
   (keys: string[], say: Sentence): Sentence =>
@@ -218,20 +219,23 @@ const SENTENCES: Record<EventType, Sentence> = {
   }),
   "machine_token.created": (d) => `created the machine token${str(d, "name") ? ` ${str(d, "name")}` : ""}`,
   "machine_token.revoked": (d) => `revoked the machine token${str(d, "name") ? ` ${str(d, "name")}` : ""}`,
-  "case.opened": (d) => `opened service case ${str(d, "code") || ""}${str(d, "serial") ? ` for ${str(d, "serial")}` : ""}`.trim(),
-  "case.moved": (d) => `moved service case ${str(d, "code")} from ${caseStateWords(str(d, "from"))} to ${caseStateWords(str(d, "to"))}`,
-  "case.finding_recorded": (d) => `found ${str(d, "finding") || "a fault"} at ${str(d, "side") === "R" ? "the right" : "the left"} speaker's ${str(d, "position")}`,
-  "case.file_added": (d) => `added ${str(d, "name") || "a file"} to service case ${str(d, "code")}`,
-  "case.part_reserved": (d) => `reserved ${str(d, "serial") || "a part"} for service case ${str(d, "code")}`,
-  "case.reservation_released": (d) => `released ${str(d, "serial") || "a reserved part"} from service case ${str(d, "code")}`,
-  "case.retested": (d) => `re-tested the pair of service case ${str(d, "code")}${d.pass === true ? ": passed" : d.pass === false ? ": failed" : ""}`,
-  "case.quoted": (d) => `quoted service case ${str(d, "code")}`,
-  "case.sent_back": (d) => `sent service case ${str(d, "code")}'s speaker back`,
-  "certificate.revised": (d) => `issued revision ${str(d, "revision") || ""} of the certificate`.replace("  ", " "),
-  "payment.requested": (d) => `sent a payment link for service case ${str(d, "code")}`,
-  "payment.received": (d) => `recorded a payment for service case ${str(d, "code")}`,
-  "payment.refunded": (d) => `refunded the payment of service case ${str(d, "code")}`,
-  "owner.consent_recorded": (d) => (d.consent === true ? "recorded the owner's consent to be contacted" : "recorded that the owner does not wish to be contacted"),
+  "case.opened": (d) => `opened ${caseName(d)}${str(d, "serial") ? ` for ${str(d, "serial")}` : ""}`,
+  "case.moved": needs(["from", "to"], (d) => `moved ${caseName(d)} from ${caseStateWords(str(d, "from"))} to ${caseStateWords(str(d, "to"))}`),
+  "case.finding_recorded": needs(["side", "position"], (d) => `found ${str(d, "finding") || "a fault"} at the ${str(d, "side") === "R" ? "right" : "left"} speaker's ${positionName(str(d, "position"))}`),
+  "case.file_added": (d) => `added ${str(d, "name") || "a file"} to ${caseName(d)}`,
+  "case.part_reserved": (d) => `reserved ${str(d, "serial") || "a part"} for ${caseName(d)}`,
+  "case.reservation_released": (d) => `released ${str(d, "serial") || "a reserved part"} from ${caseName(d)}`,
+  "case.retested": (d) => `re-tested the pair of ${caseName(d)}${d.pass === true ? ": passed" : d.pass === false ? ": failed" : ""}`,
+  "case.quoted": (d) => `quoted ${caseName(d)}`,
+  "case.sent_back": (d) => `sent the speaker of ${caseName(d)} back`,
+  "certificate.revised": (d) => {
+    const n = str(d, "revision") || (num(d, "revision") !== null ? String(num(d, "revision")) : "");
+    return n ? `issued revision ${n} of the certificate` : "issued a revised certificate";
+  },
+  "payment.requested": (d) => `sent a payment link for ${caseName(d)}`,
+  "payment.received": (d) => `recorded a payment for ${caseName(d)}`,
+  "payment.refunded": (d) => `refunded the payment of ${caseName(d)}`,
+  "owner.consent_recorded": (d) => (d.consent === false ? "recorded that the owner does not wish to be contacted" : "recorded the owner's consent to be contacted"),
 };
 
 /** A short sentence for an event; a type recorded before the vocabulary existed gets its nearest words. */
