@@ -4,6 +4,7 @@ import { and, desc, eq, inArray, isNotNull, isNull } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db";
 import {
   certificatePrints,
+  certificateRevisionPrints,
   certificateRevisions,
   certificates,
   events,
@@ -159,7 +160,7 @@ export interface CertificateData {
   packed: { at: Date; carton: string | null } | null;
   /** When it first left in a shipment; null while it is still in the workshop. */
   shipped: { at: Date } | null;
-  /** When the original (the first print that was not a copy) was printed; null if never. */
+  /** When the original (the first print that was not a copy) was printed, of the revision printed when there is one; null if never. */
   originalPrintedAt: Date | null;
   /** Parts fitted after the pair was built, oldest first: the certificate shows the pair as it is now. */
   replacements: Replacement[];
@@ -296,6 +297,16 @@ async function originalPrint(db: DbOrTx, certificateId: string): Promise<Date | 
     .select({ at: certificatePrints.printedAt })
     .from(certificatePrints)
     .where(and(eq(certificatePrints.certificateId, certificateId), eq(certificatePrints.original, true)))
+    .limit(1);
+  return row?.at ?? null;
+}
+
+/** When a revision's original was printed, if it was. */
+async function originalRevisionPrint(db: DbOrTx, revisionId: string): Promise<Date | null> {
+  const [row] = await db
+    .select({ at: certificateRevisionPrints.printedAt })
+    .from(certificateRevisionPrints)
+    .where(and(eq(certificateRevisionPrints.revisionId, revisionId), eq(certificateRevisionPrints.original, true)))
     .limit(1);
   return row?.at ?? null;
 }
@@ -481,7 +492,7 @@ export async function certificateData(db: DbOrTx, pairId: string, opts: { baseUr
   const packed = packedEvent ? { at: packedEvent.at, carton: typeof packedEvent.data.carton === "string" ? packedEvent.data.carton : null } : null;
   const [shippedOn, originalPrintedAt, replacements] = await Promise.all([
     shippedAt(db, pair.id),
-    originalPrint(db, certificate.id),
+    revision ? originalRevisionPrint(db, revision.id) : originalPrint(db, certificate.id),
     replacementsAfter(db, { L: speakers.L, R: speakers.R }, builtAt, parts),
   ]);
 

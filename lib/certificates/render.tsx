@@ -84,8 +84,8 @@ const lastRepair = (data: Pick<CertificateData, "replacements">): Date | null =>
  * What a copy says of the original, from where the pair stands as it is printed: only what is
  * true then (nothing about a carton before packing, nothing about shipping before it ships).
  */
-export function copyNote(data: Pick<CertificateData, "issuedAt" | "originalPrintedAt" | "packed" | "shipped" | "replacements">): string {
-  const lines = [`Reprint of the certificate issued on ${longDate(data.issuedAt)}.`];
+export function copyNote(data: Pick<CertificateData, "issuedAt" | "originalPrintedAt" | "packed" | "shipped" | "replacements"> & { revision?: CertificateData["revision"] }): string {
+  const lines = [data.revision ? `Reprint of revision ${data.revision.number} of the certificate, issued on ${longDate(data.revision.issuedAt)}.` : `Reprint of the certificate issued on ${longDate(data.issuedAt)}.`];
   const original = data.originalPrintedAt;
   if (original && data.shipped && original.getTime() <= data.shipped.at.getTime()) lines.push("The original shipped with the pair.");
   else if (original && data.packed && !data.shipped) lines.push(data.packed.carton ? `The original went into carton ${data.packed.carton} with the pair.` : "The original went into the carton with the pair.");

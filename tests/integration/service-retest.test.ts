@@ -148,6 +148,9 @@ describe("the re-test of a repaired pair", () => {
     const first = await recordRevisionPrint(db(), rev!.id, { actorId: desk, copy: false, station: "service" });
     const later = await recordRevisionPrint(db(), rev!.id, { actorId: desk, copy: false, station: "service" });
     expect([first.original, later.original]).toEqual([true, false]);
+    const copy = await renderCertificate(await certificateData(db(), r.pair.id, { baseUrl: BASE, copy: true, revisionId: rev!.id }));
+    const copyText = (await extractText(await getDocumentProxy(new Uint8Array(copy)), { mergePages: true })).text.replace(/\s+/g, " ");
+    expect(copyText).toContain("Reprint of revision 2 of the certificate, issued on 4 December 2026.");
     expect((await certificateOf(db(), r.pair.id))!.code).toBe(r.certificate.code);
   });
 
