@@ -87,8 +87,9 @@ export async function issueRevision(
     type: "certificate.revised",
     subjectKind: "item",
     subjectId: input.pairId,
-    // The revision's code stays out of the log, like the certificate's.
-    data: { identity: input.pairIdentity, certificateId: certificate.id, revisionId: id, revision: number, code: input.caseCode, finalTestId: input.finalTestId, replaced: replaced.length },
+    // The revision's code stays out of the log, like the certificate's. The number is written as
+    // text because the event's sentence (lib/events/describe.ts) reads it as text.
+    data: { identity: input.pairIdentity, certificateId: certificate.id, revisionId: id, revision: String(number), code: input.caseCode, finalTestId: input.finalTestId, replaced: replaced.length },
   });
   try {
     const [row] = await tx

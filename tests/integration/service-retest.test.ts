@@ -18,6 +18,7 @@ import { seedDemo } from "@/db/seed/seed";
 import { certificateData, certificateOf, issueCertificate, recordRevisionPrint, renderCertificate } from "@/lib/certificates";
 import { setClock } from "@/lib/clock";
 import { verifyCertificate } from "@/lib/dispatch";
+import { describeEvent } from "@/lib/events/describe";
 import { moveCase } from "@/lib/service/states";
 import { retestCase } from "@/lib/service/retest";
 import { repairedCase, shippedPair } from "../fixtures/service-repair";
@@ -80,6 +81,10 @@ describe("the re-test of a repaired pair", () => {
     expect(rev!.repairLine).toBe("Right speaker's tweeter replaced on 4 December 2026 after a service visit");
     expect(rev!.replaced).toEqual([{ side: "R", position: "T", part: "tweeter", removed: r.tweeters.R.identity, fitted: r.case.fitted.identity, at: expect.any(Number) }]);
     expect(rev!.code).not.toBe(r.certificate.code);
+    const [revised] = await db().all<{ id: number }>(sql`SELECT id FROM events WHERE id = ${rev!.eventId} AND type = 'certificate.revised' AND station = 'service'`);
+    expect(revised).toBeDefined();
+    const [row] = await db().all<{ type: string; data: string }>(sql`SELECT type, data FROM events WHERE id = ${rev!.eventId}`);
+    expect(describeEvent(row!.type, JSON.parse(row!.data))).toBe("issued revision 2 of the certificate");
     expect(await failureText(() => retestCase(db(), { code: r.case.code, left: flat(90), right: flat(90) }, { id: desk }))).toMatch(/only a repaired pair/);
   });
 
