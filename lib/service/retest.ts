@@ -1,7 +1,7 @@
 import "server-only";
 import { and, desc, eq, inArray, isNull } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db";
-import { finalTests, items, links, models, responses, serviceCases, type CertificateRevision, type ServiceCase } from "@/db/schema";
+import { certificateRevisions, finalTests, items, links, models, responses, serviceCases, type CertificateRevision, type ServiceCase } from "@/db/schema";
 import { compareResponses, parseResponseFile, type ResponseComparison } from "@/lib/acoustics";
 import { AppError } from "@/lib/auth/errors";
 import { now as clockNow } from "@/lib/clock";
@@ -34,7 +34,15 @@ export async function retestView(db: DbOrTx, code: string) {
   const rs = test ? await db.select().from(responses).where(inArray(responses.id, [test.leftResponseId, test.rightResponseId])) : [];
   // Only a test made for this case counts as its re-test (an older one is the lab's, from the build).
   const mine = test && test.createdAt.getTime() >= found.openedAt.getTime() ? test : null;
+  const [revision] = await db
+    .select({ revision: certificateRevisions.revision, repairLine: certificateRevisions.repairLine, issuedAt: certificateRevisions.issuedAt })
+    .from(certificateRevisions)
+    .where(eq(certificateRevisions.caseId, found.id))
+    .orderBy(desc(certificateRevisions.revision))
+    .limit(1);
   return {
+    /** The certificate revision this case's passing re-test issued, if any. */
+    revision: revision ?? null,
     case: found,
     pair: pair ?? null,
     model: model ?? null,

@@ -20,7 +20,7 @@ import { setClock } from "@/lib/clock";
 import { verifyCertificate } from "@/lib/dispatch";
 import { describeEvent } from "@/lib/events/describe";
 import { moveCase } from "@/lib/service/states";
-import { retestCase } from "@/lib/service/retest";
+import { retestCase, retestView } from "@/lib/service/retest";
 import { repairedCase, shippedPair } from "../fixtures/service-repair";
 import { failureText } from "./helpers";
 
@@ -81,6 +81,7 @@ describe("the re-test of a repaired pair", () => {
     expect(rev!.repairLine).toBe("Right speaker's tweeter replaced on 4 December 2026 after a service visit");
     expect(rev!.replaced).toEqual([{ side: "R", position: "T", part: "tweeter", removed: r.tweeters.R.identity, fitted: r.case.fitted.identity, at: expect.any(Number) }]);
     expect(rev!.code).not.toBe(r.certificate.code);
+    expect((await retestView(db(), r.case.code.toLowerCase()))!).toMatchObject({ revision: { revision: 2, repairLine: rev!.repairLine }, test: { id: result.finalTestId, pass: true } });
     const [revised] = await db().all<{ id: number }>(sql`SELECT id FROM events WHERE id = ${rev!.eventId} AND type = 'certificate.revised' AND station = 'service'`);
     expect(revised).toBeDefined();
     const [row] = await db().all<{ type: string; data: string }>(sql`SELECT type, data FROM events WHERE id = ${rev!.eventId}`);

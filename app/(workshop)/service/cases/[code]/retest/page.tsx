@@ -9,6 +9,7 @@ import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
 import { bandLabel, compareResponses, formatDb, formatHzRange, formatLimitDb } from "@/lib/acoustics";
 import { pageParam, requirePage } from "@/lib/auth/guard";
+import { formatDay } from "@/lib/format";
 import { paths, printPaths } from "@/lib/paths";
 import { retestView } from "@/lib/service/retest";
 import { CASE_STATE_WORDS } from "@/lib/vocabulary/case-states";
@@ -25,7 +26,7 @@ export default async function Page({ params }: { params: Promise<{ code: string 
   const code = pageParam((await params).code);
   const view = await retestView(getDb(), code);
   if (!view || !view.pair || !view.model) notFound();
-  const { case: c, pair, model, test } = view;
+  const { case: c, pair, model, test, revision } = view;
   const canPrint = user.permissions.has("certificates.print");
   const pts = (r: { points: number[][] }) => r.points.map((p) => [p[0]!, p[1]!] as [number, number]);
   const hzDb = (r: { points: number[][] }) => r.points.map((p) => ({ hz: p[0]!, db: p[1]! }));
@@ -56,6 +57,11 @@ export default async function Page({ params }: { params: Promise<{ code: string 
             minHz={model.responseMinHz}
             maxHz={model.responseMaxHz}
           />
+          {test.pass && revision ? (
+            <p className="mt-4" data-testid="retest-revision">
+              {`Revision ${revision.revision} of the certificate, issued ${formatDay(revision.issuedAt)}. The owner reads: “${revision.repairLine}.”`}
+            </p>
+          ) : null}
           {test.pass && canPrint ? (
             <div className="mt-4">
               <PrintForm action={printPaths.certificate(pair.identity)} variant="primary" testId="retest-print">
