@@ -33,6 +33,8 @@ export const APPEND_ONLY_TABLES = {
   shipment_details: "shipments",
   service_cases: "service cases",
   case_findings: "diagnosis findings",
+  certificate_revisions: "certificate revisions",
+  certificate_revision_prints: "prints of certificate revisions",
 } as const satisfies Record<string, string>;
 
 export type AppendOnlyTable = keyof typeof APPEND_ONLY_TABLES;

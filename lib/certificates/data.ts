@@ -4,6 +4,8 @@ import { and, desc, eq, inArray, isNotNull, isNull } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db";
 import {
   certificatePrints,
+  certificateRevisionPrints,
+  certificateRevisions,
   certificates,
   events,
   finalTests,
@@ -123,6 +125,17 @@ export interface Signature {
   meaning: string;
 }
 
+/** A revision of the certificate, issued after a repair and a passing re-test. */
+export interface RevisionFigure {
+  id: string;
+  /** 2, 3…: the original is revision 1. */
+  number: number;
+  issuedAt: Date;
+  /** The owner's line: "Right speaker's tweeter replaced on 4 December 2026 after a service visit". */
+  repairLine: string;
+  repairedAt: Date;
+}
+
 /** Everything the certificate prints, read from the register. */
 export interface CertificateData {
   certificateId: string;
@@ -147,10 +160,12 @@ export interface CertificateData {
   packed: { at: Date; carton: string | null } | null;
   /** When it first left in a shipment; null while it is still in the workshop. */
   shipped: { at: Date } | null;
-  /** When the original (the first print that was not a copy) was printed; null if never. */
+  /** When the original (the first print that was not a copy) was printed, of the revision printed when there is one; null if never. */
   originalPrintedAt: Date | null;
   /** Parts fitted after the pair was built, oldest first: the certificate shows the pair as it is now. */
   replacements: Replacement[];
+  /** The revision printed (its code is the one in the link and QR code); null for the original. */
+  revision: RevisionFigure | null;
 }
 
 const PART_ORDER: Record<string, number> = { tweeter: 0, midrange: 1, bass: 2, crossover: 3 };
@@ -188,26 +203,7 @@ export async function issueCertificate(db: Db, pairId: string, actorId: string |
   const existing = await certificateOf(db, pairId);
   if (existing) return existing;
   try {
-    return await db.transaction(async (tx) => {
-      // Read again inside the write transaction (BEGIN IMMEDIATE): no second issue can slip in between.
-      const again = await certificateOf(tx, pairId);
-      if (again) return again;
-      const pair = await pairById(tx, pairId);
-      const test = await newestFinalTest(tx, pairId);
-      if (!test?.pass && !PAST_FINAL_TEST.has(pair.state)) throw new AppError(409, `${pair.identity} has no passing final test yet.`);
-      const id = newId();
-      const eventId = await appendEvent(tx, {
-        actorId,
-        station: "packing",
-        type: "certificate.issued",
-        subjectKind: "item",
-        subjectId: pair.id,
-        // The code stays out of the log: event data is readable by every signed-in user.
-        data: { identity: pair.identity, certificateId: id, finalTestId: test?.id ?? null },
-      });
-      const [row] = await tx.insert(certificates).values({ id, pairId, code: certificateCode(), issuedAt: clockNow(), eventId }).returning();
-      return row!;
-    });
+    return await db.transaction((tx) => issueCertificateIn(tx, pairId, actorId));
   } catch (e) {
     // Another process issued it first: theirs is the certificate.
     if (isConstraintError(e, "UNIQUE")) {
@@ -216,6 +212,31 @@ export async function issueCertificate(db: Db, pairId: string, actorId: string |
     }
     throw e;
   }
+}
+
+/**
+ * `issueCertificate` inside the caller's write transaction (BEGIN IMMEDIATE): the existing
+ * certificate, or a new one with its event. A revision issued after a repair needs the original first.
+ */
+export async function issueCertificateIn(tx: DbOrTx, pairId: string, actorId: string | null): Promise<Certificate> {
+  // Read again inside the write transaction: no second issue can slip in between.
+  const again = await certificateOf(tx, pairId);
+  if (again) return again;
+  const pair = await pairById(tx, pairId);
+  const test = await newestFinalTest(tx, pairId);
+  if (!test?.pass && !PAST_FINAL_TEST.has(pair.state)) throw new AppError(409, `${pair.identity} has no passing final test yet.`);
+  const id = newId();
+  const eventId = await appendEvent(tx, {
+    actorId,
+    station: "packing",
+    type: "certificate.issued",
+    subjectKind: "item",
+    subjectId: pair.id,
+    // The code stays out of the log: event data is readable by every signed-in user.
+    data: { identity: pair.identity, certificateId: id, finalTestId: test?.id ?? null },
+  });
+  const [row] = await tx.insert(certificates).values({ id, pairId, code: certificateCode(), issuedAt: clockNow(), eventId }).returning();
+  return row!;
 }
 
 interface Child {
@@ -276,6 +297,16 @@ async function originalPrint(db: DbOrTx, certificateId: string): Promise<Date | 
     .select({ at: certificatePrints.printedAt })
     .from(certificatePrints)
     .where(and(eq(certificatePrints.certificateId, certificateId), eq(certificatePrints.original, true)))
+    .limit(1);
+  return row?.at ?? null;
+}
+
+/** When a revision's original was printed, if it was. */
+async function originalRevisionPrint(db: DbOrTx, revisionId: string): Promise<Date | null> {
+  const [row] = await db
+    .select({ at: certificateRevisionPrints.printedAt })
+    .from(certificateRevisionPrints)
+    .where(and(eq(certificateRevisionPrints.revisionId, revisionId), eq(certificateRevisionPrints.original, true)))
     .limit(1);
   return row?.at ?? null;
 }
@@ -357,10 +388,22 @@ function pointsOf(raw: unknown): [number, number][] {
  * line is true at that moment. The certificate must have been issued (`issueCertificate`); `copy`
  * marks a reprint.
  */
-export async function certificateData(db: DbOrTx, pairId: string, opts: { baseUrl: string; copy: boolean }): Promise<CertificateData> {
+export async function certificateData(db: DbOrTx, pairId: string, opts: { baseUrl: string; copy: boolean; revisionId?: string | null }): Promise<CertificateData> {
   const pair = await pairById(db, pairId);
   const certificate = await certificateOf(db, pairId);
   if (!certificate) throw new AppError(409, `${pair.identity} has no certificate yet.`);
+  let revision: (typeof certificateRevisions.$inferSelect) | null = null;
+  if (opts.revisionId) {
+    revision =
+      (
+        await db
+          .select()
+          .from(certificateRevisions)
+          .where(and(eq(certificateRevisions.id, opts.revisionId), eq(certificateRevisions.certificateId, certificate.id)))
+          .limit(1)
+      )[0] ?? null;
+    if (!revision) throw new AppError(404, `${pair.identity}'s certificate has no such revision.`);
+  }
   const [model] = pair.modelId ? await db.select().from(models).where(eq(models.id, pair.modelId)).limit(1) : [];
   if (!model) throw new AppError(409, `${pair.identity} has no model.`);
   const [finish] = pair.finishId ? await db.select().from(finishes).where(eq(finishes.id, pair.finishId)).limit(1) : [];
@@ -449,14 +492,14 @@ export async function certificateData(db: DbOrTx, pairId: string, opts: { baseUr
   const packed = packedEvent ? { at: packedEvent.at, carton: typeof packedEvent.data.carton === "string" ? packedEvent.data.carton : null } : null;
   const [shippedOn, originalPrintedAt, replacements] = await Promise.all([
     shippedAt(db, pair.id),
-    originalPrint(db, certificate.id),
+    revision ? originalRevisionPrint(db, revision.id) : originalPrint(db, certificate.id),
     replacementsAfter(db, { L: speakers.L, R: speakers.R }, builtAt, parts),
   ]);
 
   return {
     certificateId: certificate.id,
-    code: certificate.code,
-    verifyUrl: verifyUrl(opts.baseUrl, certificate.code),
+    code: revision?.code ?? certificate.code,
+    verifyUrl: verifyUrl(opts.baseUrl, revision?.code ?? certificate.code),
     issuedAt: certificate.issuedAt,
     copy: opts.copy,
     pair: { id: pair.id, identity: pair.identity, state: pair.state },
@@ -472,5 +515,6 @@ export async function certificateData(db: DbOrTx, pairId: string, opts: { baseUr
     shipped: shippedOn ? { at: shippedOn } : null,
     originalPrintedAt,
     replacements,
+    revision: revision ? { id: revision.id, number: revision.revision, issuedAt: revision.issuedAt, repairLine: revision.repairLine, repairedAt: revision.repairedAt } : null,
   };
 }

@@ -11,6 +11,8 @@ export {
   type MatchFigure,
   type PositionRow,
   type Replacement,
+  type RevisionFigure,
+  issueCertificateIn,
   type Signature,
   type SignatureStep,
   type VeneerFace,
@@ -20,3 +22,5 @@ export {
 export { copyNote, renderCertificate } from "./render";
 export { openablePrint, originalPrinted, PRINT_OPEN_FOR_MS, recordCertificatePrint, type RecordedPrint } from "./prints";
 export { CERTIFICATE_CODE_LENGTH, CERTIFICATE_CODE_PATTERN, certificateCode, verifyUrl } from "./code";
+export { currentRevision, issueRevision, recordRevisionPrint, replacementsSince, revisionsOf } from "./revisions";
+export { repairLine, type RepairPart } from "./repair-line";

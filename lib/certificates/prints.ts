@@ -1,7 +1,7 @@
 import "server-only";
 import { and, eq, gte } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
-import { certificatePrints, certificates, items, type CertificatePrint } from "@/db/schema";
+import { certificatePrints, certificateRevisionPrints, certificateRevisions, certificates, items } from "@/db/schema";
 import { AppError, isConstraintError } from "@/lib/auth/errors";
 import { newId } from "@/lib/auth/tokens";
 import { now } from "@/lib/clock";
@@ -74,13 +74,15 @@ export async function originalPrinted(db: DbOrTx, certificateId: string): Promis
 }
 
 /**
- * A recorded print of the pair's certificate that this person made within `PRINT_OPEN_FOR_MS`,
- * to show again; null for anyone else's print, an older one, or another pair's.
+ * A recorded print of the pair's certificate (the original certificate or one of its revisions)
+ * that this person made within `PRINT_OPEN_FOR_MS`, to show again; null for anyone else's print,
+ * an older one, or another pair's. `revisionId` names the revision printed (null: the original).
  */
 export async function openablePrint(
   db: DbOrTx,
   input: { printId: string; pairId: string; actorId: string },
-): Promise<(CertificatePrint & { pairId: string }) | null> {
+): Promise<{ id: string; original: boolean; pairId: string; revisionId: string | null } | null> {
+  const since = new Date(now().getTime() - PRINT_OPEN_FOR_MS);
   const [row] = await db
     .select({ print: certificatePrints, pairId: certificates.pairId })
     .from(certificatePrints)
@@ -90,9 +92,24 @@ export async function openablePrint(
         eq(certificatePrints.id, input.printId),
         eq(certificates.pairId, input.pairId),
         eq(certificatePrints.actorId, input.actorId),
-        gte(certificatePrints.printedAt, new Date(now().getTime() - PRINT_OPEN_FOR_MS)),
+        gte(certificatePrints.printedAt, since),
       ),
     )
     .limit(1);
-  return row ? { ...row.print, pairId: row.pairId } : null;
+  if (row) return { id: row.print.id, original: row.print.original, pairId: row.pairId, revisionId: null };
+  const [rev] = await db
+    .select({ id: certificateRevisionPrints.id, original: certificateRevisionPrints.original, revisionId: certificateRevisionPrints.revisionId, pairId: certificates.pairId })
+    .from(certificateRevisionPrints)
+    .innerJoin(certificateRevisions, eq(certificateRevisions.id, certificateRevisionPrints.revisionId))
+    .innerJoin(certificates, eq(certificates.id, certificateRevisions.certificateId))
+    .where(
+      and(
+        eq(certificateRevisionPrints.id, input.printId),
+        eq(certificates.pairId, input.pairId),
+        eq(certificateRevisionPrints.actorId, input.actorId),
+        gte(certificateRevisionPrints.printedAt, since),
+      ),
+    )
+    .limit(1);
+  return rev ?? null;
 }

@@ -47,7 +47,7 @@ export async function renderCertificate(data: CertificateData): Promise<Buffer> 
   // Scale 4: 8 pixels a module, so the printed code stays sharp when placed at about 29 mm.
   const qr = await renderBarcode({ symbology: "qrcode", text: data.verifyUrl, format: "png", scale: 4 });
   const doc = (
-    <Document title={`Certificate of the matched pair ${data.pair.identity}${data.copy ? " (copy)" : ""}`} author="Twinleaf" creator="Twinleaf" producer="Twinleaf">
+    <Document title={`Certificate of the matched pair ${data.pair.identity}${data.revision ? `, revision ${data.revision.number}` : ""}${data.copy ? " (copy)" : ""}`} author="Twinleaf" creator="Twinleaf" producer="Twinleaf">
       <Page size="A4" style={{ fontFamily: TEXT_FONT, color: INK, fontSize: 8.5, paddingHorizontal: MARGIN_X, paddingTop: 30, paddingBottom: 24 }}>
         <Header data={data} />
         <Serials data={data} />
@@ -84,8 +84,8 @@ const lastRepair = (data: Pick<CertificateData, "replacements">): Date | null =>
  * What a copy says of the original, from where the pair stands as it is printed: only what is
  * true then (nothing about a carton before packing, nothing about shipping before it ships).
  */
-export function copyNote(data: Pick<CertificateData, "issuedAt" | "originalPrintedAt" | "packed" | "shipped" | "replacements">): string {
-  const lines = [`Reprint of the certificate issued on ${longDate(data.issuedAt)}.`];
+export function copyNote(data: Pick<CertificateData, "issuedAt" | "originalPrintedAt" | "packed" | "shipped" | "replacements"> & { revision?: CertificateData["revision"] }): string {
+  const lines = [data.revision ? `Reprint of revision ${data.revision.number} of the certificate, issued on ${longDate(data.revision.issuedAt)}.` : `Reprint of the certificate issued on ${longDate(data.issuedAt)}.`];
   const original = data.originalPrintedAt;
   if (original && data.shipped && original.getTime() <= data.shipped.at.getTime()) lines.push("The original shipped with the pair.");
   else if (original && data.packed && !data.shipped) lines.push(data.packed.carton ? `The original went into carton ${data.packed.carton} with the pair.` : "The original went into the carton with the pair.");
@@ -102,6 +102,7 @@ function Header({ data }: { data: CertificateData }) {
         <View>
           <Text style={{ fontSize: 8, fontWeight: 700, color: LEAF, letterSpacing: 0.8 }}>TWINLEAF</Text>
           <Text style={{ fontSize: 21, fontWeight: 700, marginTop: 3 }}>Certificate of a matched pair</Text>
+          {data.revision ? <Text style={{ fontSize: 11, fontWeight: 700, color: WALNUT, marginTop: 2 }}>{`Revision ${data.revision.number}`}</Text> : null}
           <Text style={{ fontSize: 10, marginTop: 4 }}>
             {data.model.name} ({data.model.code}){data.finish ? `, ${finishLine(data)}` : ""}
           </Text>
@@ -146,7 +147,13 @@ function Serials({ data }: { data: CertificateData }) {
       </View>
       <Text style={{ marginTop: 5, color: SOFT }}>
         {built} · Certificate issued on {longDate(data.issuedAt)}
+        {data.revision ? ` · Revision ${data.revision.number} issued on ${longDate(data.revision.issuedAt)}` : ""}
       </Text>
+      {data.revision ? (
+        <Text style={{ marginTop: 3, fontWeight: 700, color: WALNUT }}>
+          {`Revision ${data.revision.number}: ${data.revision.repairLine}. It takes the place of every earlier revision; the link and QR code below are this revision's own.`}
+        </Text>
+      ) : null}
     </View>
   );
 }

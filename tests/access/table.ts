@@ -50,6 +50,7 @@ export type Sample =
   | "dealer"
   | "owner"
   | "certificate" // the code of a pair certificate (its public verification link)
+  | "case" // the code of a service case
   | "mail" // a message caught by the stand-in SMTP server
   | "token"; // an invitation or reset token (unknown ones show their own message)
 
@@ -120,6 +121,7 @@ export const ACTIONS: Record<string, Access> = {
   "app/(workshop)/lab/crossovers/actions.ts#buildCrossoverAction": { may: ["lab"], why: LAB_UNITS },
   "app/(workshop)/lab/crossovers/actions.ts#acceptCrossoverPlanAction": { may: ["lab"], why: LAB_UNITS },
   "app/(workshop)/lab/final-test/actions.ts#finalTestAction": { may: ["lab"], why: LAB_FINAL },
+  "app/(workshop)/service/cases/[code]/retest/actions.ts#retestAction": { may: ["service"], why: `${SERVICE} The repaired pair takes its final test again at the desk (issue 13, § 7).` },
 
   "app/(workshop)/assembly/actions.ts#openPairAction": { may: ["assembly"], why: ASSEMBLY },
   "app/(workshop)/assembly/actions.ts#checkScanAction": { may: ["assembly"], why: ASSEMBLY },
@@ -218,6 +220,7 @@ export const PAGES: Record<string, PageAccess> = {
   "/packing/pack/[pair]": { may: ["packing"], why: PACKING, sample: "pair" },
 
   "/service": { may: ["service"], why: SERVICE },
+  "/service/cases/[code]/retest": { may: ["service"], why: `${SERVICE} The repaired pair takes its final test again at the desk.`, sample: "case" },
   "/quality": { may: ["quality"], why: QUALITY },
 
   "/admin": { may: ["admin"], why: "PRODUCT.md, admin: users and roles, models, … machine tokens." },

@@ -18,11 +18,13 @@ export const GET = guardedRoute("certificates.print", {}, async ({ params, user 
   if (!pair) throw new AppError(404, "No pair with that serial.");
   const print = printId ? await openablePrint(db, { printId, pairId: pair.id, actorId: user.id }) : null;
   if (!print) throw new AppError(404, GONE);
-  const pdf = await renderCertificate(await certificateData(db, pair.id, { baseUrl: await appBaseUrl(), copy: !print.original }));
+  const data = await certificateData(db, pair.id, { baseUrl: await appBaseUrl(), copy: !print.original, revisionId: print.revisionId });
+  const revision = data.revision;
+  const pdf = await renderCertificate(data);
   return new Response(new Uint8Array(pdf), {
     headers: {
       "content-type": "application/pdf",
-      "content-disposition": `inline; filename="certificate-${pair.identity}${print.original ? "" : "-copy"}.pdf"`,
+      "content-disposition": `inline; filename="certificate-${pair.identity}${revision ? `-revision-${revision.number}` : ""}${print.original ? "" : "-copy"}.pdf"`,
       "cache-control": "private, no-store",
       "x-content-type-options": "nosniff",
     },
