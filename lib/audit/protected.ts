@@ -33,6 +33,10 @@ export const APPEND_ONLY_TABLES = {
   shipment_details: "shipments",
   service_cases: "service cases",
   case_findings: "diagnosis findings",
+  quotes: "repair quotes",
+  payment_requests: "payment links",
+  payments: "payments",
+  refunds: "refunds",
 } as const satisfies Record<string, string>;
 
 export type AppendOnlyTable = keyof typeof APPEND_ONLY_TABLES;
