@@ -278,6 +278,24 @@ export function signedRoute<T>(
   return Object.assign(route, { permission: null, machine: null, signedBy });
 }
 
+/**
+ * A GET for people with no account (the page an owner lands on after the payment service): no
+ * session, no permission, nothing written; the query still passes its zod schema.
+ */
+export function publicGetRoute<Q extends z.ZodType>(query: Q, handler: (args: { req: Request; query: z.output<Q> }) => Promise<Response>): GuardedRoute {
+  const route = async (req: Request): Promise<Response> => {
+    const q = query.safeParse(Object.fromEntries(new URL(req.url).searchParams));
+    if (!q.success) return json(400, { error: "The query is not valid." });
+    try {
+      return await handler({ req, query: q.data });
+    } catch (e) {
+      const f = failure(e);
+      return json(f.status ?? 500, { error: f.message });
+    }
+  };
+  return Object.assign(route, { permission: null, machine: null });
+}
+
 export { CROSS_ORIGIN_REFUSED };
 
 /**

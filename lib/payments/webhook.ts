@@ -24,9 +24,9 @@ export const BAD_SIGNATURE = "The signature of this webhook is missing, wrong or
  * webhook secret within the tolerance; otherwise a 400 AppError. Checked by the provider's SDK.
  */
 export function verifyWebhook(raw: string, signature: string | null, env: Record<string, string | undefined> = process.env): Stripe.Event {
+  if (!signature) throw new AppError(400, BAD_SIGNATURE);
   const config = readProviderConfig(env);
   if (!config?.webhookSecret) throw new AppError(503, "Payments are not set up on this server (STRIPE_WEBHOOK_SECRET is missing). Nothing was recorded.");
-  if (!signature) throw new AppError(400, BAD_SIGNATURE);
   try {
     return providerClient(config).webhooks.constructEvent(raw, signature, config.webhookSecret, SIGNATURE_TOLERANCE_S);
   } catch {

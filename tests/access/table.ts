@@ -38,6 +38,11 @@ export interface Access {
 export interface RouteAccess extends Access {
   /** A lab test bench's machine token (`Authorization: Bearer tlm_…`, scope "lab") is let in too. */
   labToken?: true;
+  /**
+   * Another system's server calls it (signedRoute in lib/auth/guard.ts): no session, no same-origin
+   * rule, only a valid signature on the body; without one every caller gets 400 and nothing is written.
+   */
+  signature?: true;
 }
 
 /** A record of the demo workshop a page with a parameter is opened with (looked up by the e2e walk). */
@@ -171,6 +176,16 @@ export const ROUTES: Record<string, RouteAccess> = {
   "GET /api/v1/lab/batches/[code]": { may: ["lab"], labToken: true, why: `${LAB_UNITS} ${LAB_BENCH}` },
   "POST /api/v1/lab/responses": { may: ["lab"], labToken: true, why: `${LAB_UNITS} ${LAB_BENCH}` },
   "POST /api/v1/lab/ts-params": { may: ["lab"], labToken: true, why: `${LAB_UNITS} ${LAB_BENCH}` },
+
+  "POST /api/v1/payments/webhook": {
+    may: "public",
+    signature: true,
+    why: "The payment provider's server calls it, with no session and from another origin: it is let in by the signature on its raw body alone (checked with the provider's SDK), never by a role.",
+  },
+  "GET /api/v1/payments/done": {
+    may: "public",
+    why: "Where an owner, who has no account, lands after the payment page: a word of thanks; it reads and writes nothing.",
+  },
 
   "GET /api/v1/admin/users": { may: ["admin"], why: ADMIN_USERS },
   "GET /api/v1/admin/mail/[id]/attachments/[index]": { may: ["admin"], why: ADMIN_MAIL },
