@@ -108,9 +108,10 @@ export function parseProviderForm(body: string): Record<string, unknown> {
     const m = /^([^[\]]+)((?:\[[^[\]]*\])*)$/.exec(key);
     if (!m) continue;
     const path = [m[1]!, ...[...m[2]!.matchAll(/\[([^[\]]*)\]/g)].map((p) => p[1]!)];
+    // A key that would reach an object's prototype is dropped whole.
+    if (path.some((part) => ["__proto__", "constructor", "prototype"].includes(part))) continue;
     let node: Record<string, unknown> = out;
     path.forEach((part, i) => {
-      if (["__proto__", "constructor", "prototype"].includes(part)) return;
       if (i === path.length - 1) node[part] = value;
       else node = (node[part] ??= {}) as Record<string, unknown>;
     });
