@@ -50,15 +50,15 @@ export function parseMoney(text: string, currency: Currency): ParsedMoney {
   const t = /^\d{1,3}(?:[ \u00a0\u202f]\d{3})+(?:[.,]\d+)?$/.test(typed) ? typed.replace(/[ \u00a0\u202f]/g, "") : typed;
   if (t === "") return { ok: false, message: "Give a price." };
   const m = /^(\d+)(?:[.,](\d+))?$/.exec(t);
-  if (!m) return { ok: false, message: `“${typed}” is not a price: write it like ${example(currency)}, with no other signs.` };
+  if (!m) return { ok: false, message: `“${typed}” is not a price: write it like ${priceExample(currency)}, with no other signs.` };
   const [, whole, fraction = ""] = m as unknown as [string, string, string | undefined];
   if (fraction.length > currency.exponent) {
     return {
       ok: false,
       message:
         currency.exponent === 0
-          ? `${currency.code} has no smaller unit: give a whole number, like ${example(currency)}.`
-          : `${currency.code} has ${currency.exponent} decimal places at most: write it like ${example(currency)}.`,
+          ? `${currency.code} has no smaller unit: give a whole number, like ${priceExample(currency)}.`
+          : `${currency.code} has ${currency.exponent} decimal places at most: write it like ${priceExample(currency)}.`,
     };
   }
   // Digits joined as text, then read once: no float ever holds the amount.
@@ -67,7 +67,8 @@ export function parseMoney(text: string, currency: Currency): ParsedMoney {
   return { ok: true, minor: Number(digits) };
 }
 
-function example(currency: Currency): string {
+/** A price written the way parseMoney reads it, for hints: "120.50", "1200". */
+export function priceExample(currency: Currency): string {
   return currency.exponent === 0 ? "1200" : `120.${"5".padEnd(currency.exponent, "0")}`;
 }
 

@@ -56,7 +56,8 @@ export type Sample =
   | "owner"
   | "certificate" // the code of a pair certificate (its public verification link)
   | "mail" // a message caught by the stand-in SMTP server
-  | "token"; // an invitation or reset token (unknown ones show their own message)
+  | "token" // an invitation or reset token (unknown ones show their own message)
+  | "case"; // the code of a service case
 
 export interface PageAccess extends Access {
   /** The record its one parameter names; pages without a parameter have none. */
@@ -136,6 +137,9 @@ export const ACTIONS: Record<string, Access> = {
   "app/(workshop)/packing/actions.ts#shipCartonsAction": { may: ["packing"], why: PACKING },
 
   "app/(workshop)/quality/actions.ts#dispositionAction": { may: ["quality"], why: QUALITY },
+
+  "app/(workshop)/service/cases/[code]/quote/actions.ts#createQuoteAction": { may: ["service"], why: `${SERVICE} An out-of-warranty repair is quoted by the desk.` },
+  "app/(workshop)/service/cases/[code]/quote/actions.ts#sendPaymentLinkAction": { may: ["service"], why: `${SERVICE} The desk sends the owner the quote's payment link.` },
 };
 
 /** Route handlers, as "METHOD /path" with the folder names of its parameters. */
@@ -244,6 +248,7 @@ export const PAGES: Record<string, PageAccess> = {
   "/admin/mail": { may: ["admin"], why: ADMIN_MAIL },
   "/admin/mail/[id]": { may: ["admin"], why: ADMIN_MAIL, sample: "mail" },
   "/admin/audit": { may: ["admin"], why: "PRODUCT.md is silent on who checks the audit trail; an administrator keeps the system and its records (21 CFR Part 11 §11.10(e), EU GMP Annex 11 §9 expect the trail reviewable)." },
+  "/service/cases/[code]/quote": { may: ["service"], why: `${SERVICE} Quoting and charging an out-of-warranty repair is the desk's work.`, sample: "case" },
 };
 
 /** The roles the code is expected to let in today: `differs` where it differs, else `may`. */
