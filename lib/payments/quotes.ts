@@ -35,7 +35,7 @@ export const typedLine = z.object({
 
 /**
  * Reads typed lines into quote lines, or refuses with a message per field ("lines.2.unitPrice").
- * Blank lines (nothing typed at all) are left out.
+ * Unused rows (no description and no price) are left out.
  */
 export function readLines(typed: readonly TypedLine[], currency: Currency): { lines: QuoteLine[]; errors: Record<string, string[]> } {
   const lines: QuoteLine[] = [];
@@ -43,7 +43,8 @@ export function readLines(typed: readonly TypedLine[], currency: Currency): { li
   const add = (key: string, message: string) => (errors[key] ??= []).push(message);
   typed.forEach((l, i) => {
     const description = l.description.trim();
-    if (!description && !l.quantity.trim() && !l.unitPrice.trim()) return;
+    // A row with neither words nor a price is an unused row of the form (its quantity starts at 1).
+    if (!description && !l.unitPrice.trim()) return;
     if (!description) add(`lines.${i}.description`, "Say what this line is for.");
     else if (description.length > 200) add(`lines.${i}.description`, "At most 200 characters.");
     const q = l.quantity.trim() || "1";

@@ -20,7 +20,11 @@ import { refundForCancelledCase } from "@/lib/payments/refunds";
 import { startPaymentStandIn, type PaymentStandIn } from "@/lib/payments/stand-in";
 import { moveCase } from "@/lib/service/states";
 import { POST as webhookRoute } from "@/app/api/v1/payments/webhook/route";
+import { startSession } from "@/lib/auth/sessions";
+import type { FormState } from "@/lib/forms";
+import { createQuoteAction, sendPaymentLinkAction } from "@/app/(workshop)/service/cases/[code]/quote/actions";
 import { snapshot } from "../access/snapshot";
+import { request } from "../setup/next-request";
 import { daysAgo, makeServiceCase, type MadeCase } from "../fixtures/service-case";
 import { failureText } from "./helpers";
 
@@ -261,5 +265,39 @@ describe("refunds", () => {
   test("an open case's payment is not refunded by the cancel hook", async () => {
     const c = await quotedCase();
     expect(await failureText(() => refundForCancelledCase(db(), c.caseId, c.actor, sdk))).toMatch(/Only a cancelled case/);
+  });
+});
+
+describe("the quote page's actions, as the browser sends them", () => {
+  /** The form's five rows, as FormData carries them: unused rows keep their quantity of 1. */
+  function form(code: string, rows: [string, string, string, string][]) {
+    const fd = new FormData();
+    fd.set("code", code);
+    for (const [kind, description, quantity, unitPrice] of rows) {
+      fd.append("kind", kind);
+      fd.append("description", description);
+      fd.append("quantity", quantity);
+      fd.append("unitPrice", unitPrice);
+    }
+    return fd;
+  }
+  const unused: [string, string, string, string] = ["part", "", "1", ""];
+  const call = (action: (prev: FormState | undefined, fd: FormData) => Promise<FormState>, fd: FormData) => action(undefined, fd);
+
+  test("a quote with unused rows is saved; a bad price is answered beside its cell; then the link is sent", async () => {
+    const c = await makeServiceCase(db(), { shippedOn: daysAgo(1500), warrantyMonths: 24 });
+    request.sessionId = (await startSession(c.actor.id, db())).session.id;
+    const before = await snapshot(db(), ["sessions"]);
+    const refused = await call(createQuoteAction, form(c.code, [["part", "Tweeter", "1", "120.505"], unused, unused, unused, ["labour", "Bench time", "2", "45"]]));
+    expect(refused).toMatchObject({ ok: false, status: 400, fieldErrors: { "lines.0.unitPrice": [expect.stringMatching(/2 decimal places/)] } });
+    expect(Object.keys(refused.fieldErrors ?? {})).toEqual(["lines.0.unitPrice"]);
+    expect(await snapshot(db(), ["sessions"])).toEqual(before);
+    const saved = await call(createQuoteAction, form(c.code, [["part", "Tweeter", "1", "120,50"], unused, unused, unused, ["labour", "Bench time", "2", "45"]]));
+    expect(saved).toMatchObject({ ok: true, message: expect.stringContaining("€210.50") });
+    const only = new FormData();
+    only.set("code", c.code);
+    const sent = await call(sendPaymentLinkAction, only);
+    expect(sent).toMatchObject({ ok: true });
+    expect(await stateOf(c.caseId)).toBe("waiting_payment");
   });
 });
