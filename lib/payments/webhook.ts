@@ -60,7 +60,7 @@ async function sessionCompleted(db: DbOrTx, eventId: string, session: Stripe.Che
     return { outcome: "ignored", why: "the amount paid is not the amount asked" };
   }
 
-  let recorded: { payment: Payment; cancelled: boolean } | null;
+  let recorded: Payment | null;
   try {
     recorded = await db.transaction(async (tx) => {
       const [seen] = await tx
@@ -70,14 +70,13 @@ async function sessionCompleted(db: DbOrTx, eventId: string, session: Stripe.Che
       if (seen) return null;
       const [c] = await tx.select().from(serviceCases).where(eq(serviceCases.id, request.caseId));
       if (!c) throw new AppError(404, "No such service case.");
-      const cancelled = c.state === "cancelled";
       const eventRow = await appendEvent(tx, {
         actorId: null,
         station: SERVICE_STATION,
         type: "payment.received",
         subjectKind: "case",
         subjectId: c.id,
-        data: { code: c.code, quoteId: request.quoteId, sessionId: session.id, amountMinor: request.amountMinor, currency: request.currency, ...(cancelled ? { refundDue: true } : {}) },
+        data: { code: c.code, quoteId: request.quoteId, sessionId: session.id, amountMinor: request.amountMinor, currency: request.currency, ...(c.state === "cancelled" ? { refundDue: true } : {}) },
       });
       const [payment] = await tx
         .insert(payments)
@@ -95,18 +94,25 @@ async function sessionCompleted(db: DbOrTx, eventId: string, session: Stripe.Che
         .returning();
       // Paid: ready to repair. A case the desk already moved on stays where it is.
       if (c.state === "waiting_payment") await moveCase(tx, { caseId: c.id, from: "waiting_payment", to: "diagnosed", data: { paid: true } }, NO_ACTOR);
-      return { payment: payment!, cancelled };
+      return payment!;
     });
   } catch (e) {
     // The same delivery at the same moment on another connection: the schema let one through.
-    if (isConstraintError(e, "UNIQUE")) return { outcome: "already recorded" };
-    throw e;
+    if (!isConstraintError(e, "UNIQUE")) throw e;
+    recorded = null;
   }
-  if (!recorded) return { outcome: "already recorded" };
-  if (!recorded.cancelled) return { outcome: "recorded", paymentId: recorded.payment.id };
-  // A payment for a cancelled case is given back, not taken.
-  await refundPayment(db, recorded.payment, "The case was cancelled before the payment arrived.", NO_ACTOR, client ?? provider());
-  return { outcome: "refunded", paymentId: recorded.payment.id };
+  // A payment for a cancelled case is given back, not taken. Checked on every delivery, so one
+  // whose refund failed (the provider then delivers again) is refunded on the next.
+  const [payment] = recorded ? [recorded] : await db.select().from(payments).where(eq(payments.sessionId, session.id));
+  const [c] = await db.select({ state: serviceCases.state }).from(serviceCases).where(eq(serviceCases.id, request.caseId));
+  if (payment && c?.state === "cancelled") {
+    const [refunded] = await db.select({ id: refunds.id }).from(refunds).where(eq(refunds.paymentId, payment.id));
+    if (!refunded) {
+      await refundPayment(db, payment, "The case was cancelled before the payment arrived.", NO_ACTOR, client ?? provider());
+      return { outcome: "refunded", paymentId: payment.id };
+    }
+  }
+  return recorded ? { outcome: "recorded", paymentId: recorded.id } : { outcome: "already recorded" };
 }
 
 /** A refund the provider reports (one Twinleaf asked for, or one made at the provider): recorded once. */

@@ -17,6 +17,7 @@ import { requestPayment } from "@/lib/payments/checkout";
 import { providerClient, readProviderConfig } from "@/lib/payments/provider";
 import { createQuote, currentQuote } from "@/lib/payments/quotes";
 import { refundForCancelledCase } from "@/lib/payments/refunds";
+import { handleProviderEvent } from "@/lib/payments/webhook";
 import { startPaymentStandIn, type PaymentStandIn } from "@/lib/payments/stand-in";
 import { moveCase } from "@/lib/service/states";
 import { POST as webhookRoute } from "@/app/api/v1/payments/webhook/route";
@@ -260,6 +261,24 @@ describe("refunds", () => {
     expect(await countOf(refunds, c.caseId)).toBe(1);
     expect(await stateOf(c.caseId)).toBe("cancelled");
     expect(Object.values(standIn.state().refunds).filter((r) => r.metadata.caseId === c.caseId)).toHaveLength(1);
+  });
+
+  test("when the refund of a cancelled case's payment fails, the provider's next delivery refunds it, once", async () => {
+    const c = await quotedCase();
+    const req = await requestPayment(db(), { caseId: c.caseId, appUrl: APP }, c.actor, sdk);
+    await moveCase(db(), { caseId: c.caseId, to: "cancelled", reason: "The owner collected the speaker unrepaired." }, c.actor);
+    const event = JSON.parse(completedEvent({ id: req.sessionId, amount_total: 21050, currency: "eur", payment_intent: "pi_test_late" })) as Stripe.Event;
+    // The stand-in knows no such payment, so its refund is refused: the delivery fails (502), the payment stays recorded.
+    const refused = await handleProviderEvent(db(), event, sdk).catch((e: unknown) => e);
+    expect(refused).toMatchObject({ status: 502 });
+    expect(await countOf(payments, c.caseId)).toBe(1);
+    expect(await countOf(refunds, c.caseId)).toBe(0);
+    // Now the provider can refund it (a stand-in that answers any refund, as the provider would for its own payment).
+    const answering = { refunds: { create: async () => ({ id: "re_test_late", amount: 21050 }) } } as unknown as Stripe;
+    expect(await handleProviderEvent(db(), event, answering)).toMatchObject({ outcome: "refunded" });
+    expect(await handleProviderEvent(db(), event, answering)).toEqual({ outcome: "already recorded" });
+    expect(await countOf(refunds, c.caseId)).toBe(1);
+    expect(await eventsOf(c.caseId, "payment.refunded")).toBe(1);
   });
 
   test("an open case's payment is not refunded by the cancel hook", async () => {
