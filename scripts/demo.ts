@@ -6,6 +6,7 @@
 // running demo's build instead of rebuilding it under that demo's feet; and when both use the same
 // database, only the first sends the queued mail (one sender per database).
 import { spawn, spawnSync } from "node:child_process";
+import { randomBytes } from "node:crypto";
 import { mkdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { createServer } from "node:net";
 import { resolve } from "node:path";
@@ -15,6 +16,7 @@ import { formatSignIns } from "../db/seed/print";
 import { SeedRefusedError, seedDemo } from "../db/seed/seed";
 import { readMailConfig } from "../lib/mail/config";
 import { SmtpPortTakenError, startFakeSmtp } from "../lib/mail/fake-smtp";
+import { startPaymentStandIn, type PaymentStandIn } from "../lib/payments/stand-in";
 
 const port = Number(process.env.PORT) || 3000;
 const url = databaseUrl();
@@ -93,6 +95,22 @@ console.log(
   `stand-in SMTP server on ${mail.smtp.host}:${smtp.port}${smtp.movedFrom === undefined ? "" : ` (${smtp.movedFrom} was taken)`}, keeping mail in ${mail.mailboxDir}`,
 );
 
+const appUrl = process.env.APP_URL || `http://localhost:${port}`;
+
+// The payment provider's stand-in, beside the SMTP one, unless a real provider is configured
+// (STRIPE_SECRET_KEY set): then the app reaches it with no change.
+let payments: PaymentStandIn | null = null;
+let paymentEnv: Record<string, string> = {};
+if (!process.env.STRIPE_SECRET_KEY?.trim()) {
+  const secretKey = `sk_test_standin_${randomBytes(12).toString("hex")}`;
+  const webhookSecret = `whsec_standin_${randomBytes(16).toString("hex")}`;
+  payments = await startPaymentStandIn({ port: 0, stateFile: resolve("data", "fake-payments.json"), secretKey, webhookSecret, webhookUrl: `${appUrl.replace(/\/$/, "")}/api/v1/payments/webhook` });
+  paymentEnv = { STRIPE_SECRET_KEY: secretKey, STRIPE_WEBHOOK_SECRET: webhookSecret, STRIPE_API_BASE: payments.url };
+  console.log(`stand-in payment service on ${payments.url} (its pay pages are where the owners' payment links lead)`);
+} else {
+  console.log("STRIPE_SECRET_KEY is set: payments go to the provider it names, not to the stand-in.");
+}
+
 const next = resolve("node_modules/.bin/next");
 if (other) {
   console.log(`Another demo from this folder is running on port ${other.port}: using its build rather than rebuilding under it.`);
@@ -101,6 +119,7 @@ if (other) {
   const build = spawnSync(next, ["build"], { stdio: "inherit", env: process.env });
   if (build.status !== 0) {
     await smtp.close();
+    await payments?.close();
     process.exit(build.status ?? 1);
   }
 }
@@ -108,7 +127,6 @@ if (other) {
 const sharesDatabase = other !== null && other.databaseUrl === url;
 if (sharesDatabase) console.log(`The demo on port ${other.port} sends the queued mail of the database both use.`);
 
-const appUrl = process.env.APP_URL || `http://localhost:${port}`;
 const server = spawn(next, ["start", "-p", String(port)], {
   stdio: "inherit",
   env: {
@@ -118,6 +136,7 @@ const server = spawn(next, ["start", "-p", String(port)], {
     SMTP_PORT: String(smtp.port),
     MAILBOX_DIR: mail.mailboxDir,
     APP_URL: appUrl,
+    ...paymentEnv,
     ...(sharesDatabase ? { MAIL_SENDER: "off" } : {}),
   },
 });
@@ -135,6 +154,7 @@ const stop = async () => {
   if (ours) rmSync(RUNNING, { force: true });
   server.kill("SIGTERM");
   await smtp.close();
+  await payments?.close();
 };
 process.on("SIGINT", () => void stop().then(() => process.exit(0)));
 process.on("SIGTERM", () => void stop().then(() => process.exit(0)));

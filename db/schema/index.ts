@@ -11,3 +11,4 @@ export * from "./dispatch";
 export * from "./limits";
 export * from "./service";
 export * from "./certificate-revisions";
+export * from "./payments";

@@ -35,6 +35,10 @@ export const APPEND_ONLY_TABLES = {
   case_findings: "diagnosis findings",
   certificate_revisions: "certificate revisions",
   certificate_revision_prints: "prints of certificate revisions",
+  quotes: "repair quotes",
+  payment_requests: "payment links",
+  payments: "payments",
+  refunds: "refunds",
 } as const satisfies Record<string, string>;
 
 export type AppendOnlyTable = keyof typeof APPEND_ONLY_TABLES;

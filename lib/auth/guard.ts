@@ -8,7 +8,7 @@ import type { Cookie } from "lucia";
 import { cache } from "react";
 import { z } from "zod";
 import { echoPlan, echoValues, formDataToObject, type FormState } from "@/lib/forms";
-import { DEFAULT_BODY_LIMIT, readJsonCapped } from "@/lib/input/body";
+import { DEFAULT_BODY_LIMIT, readCapped, readJsonCapped } from "@/lib/input/body";
 import { localPath } from "@/lib/input/local-path";
 import { pathParam, pathParams } from "@/lib/input/path-params";
 import { comesFromHere, CROSS_ORIGIN_REFUSED } from "./origin";
@@ -237,6 +237,63 @@ export function guardedRoute<
     }
   };
   return Object.assign(route, { permission, machine });
+}
+
+/** A route let in by a signature on its body instead of a session (see `signedRoute`). */
+export type SignedRoute = GuardedRoute & {
+  /** Who signs: the route checks that sender's signature on the raw body before anything else. */
+  signedBy: string;
+};
+
+/**
+ * A route handler for another system's signed calls (the payment provider's webhook): no session,
+ * no permission, no same-origin rule, because the caller is a server of another origin. Instead
+ * the raw body, read within `bodyLimit`, must pass `verify` (the sender's signature over those exact
+ * bytes, checked with its own SDK), which returns what the body says or throws an AppError (400);
+ * the handler sees only what `verify` returned. A session cookie or Bearer token the request also
+ * carries counts for nothing. Errors are JSON like guardedRoute's, never a stack trace.
+ */
+export function signedRoute<T>(
+  signedBy: string,
+  opts: { bodyLimit?: number; verify: (raw: string, req: Request) => T },
+  handler: (args: { req: Request; verified: T }) => Promise<unknown>,
+): SignedRoute {
+  const route = async (req: Request): Promise<Response> => {
+    let verified: T;
+    try {
+      const raw = new TextDecoder("utf-8", { fatal: true }).decode(await readCapped(req, opts.bodyLimit ?? DEFAULT_BODY_LIMIT));
+      verified = opts.verify(raw, req);
+    } catch (e) {
+      const f = e instanceof TypeError ? { status: 400, message: "The body is not UTF-8 text." } : failure(e);
+      return json(f.status === 500 ? 400 : (f.status ?? 400), { error: f.message });
+    }
+    try {
+      const out = await handler({ req, verified });
+      return out instanceof Response ? out : json(200, out);
+    } catch (e) {
+      const f = failure(e);
+      return json(f.status ?? 500, { error: f.message });
+    }
+  };
+  return Object.assign(route, { permission: null, machine: null, signedBy });
+}
+
+/**
+ * A GET for people with no account (the page an owner lands on after the payment service): no
+ * session, no permission, nothing written; the query still passes its zod schema.
+ */
+export function publicGetRoute<Q extends z.ZodType>(query: Q, handler: (args: { req: Request; query: z.output<Q> }) => Promise<Response>): GuardedRoute {
+  const route = async (req: Request): Promise<Response> => {
+    const q = query.safeParse(Object.fromEntries(new URL(req.url).searchParams));
+    if (!q.success) return json(400, { error: "The query is not valid." });
+    try {
+      return await handler({ req, query: q.data });
+    } catch (e) {
+      const f = failure(e);
+      return json(f.status ?? 500, { error: f.message });
+    }
+  };
+  return Object.assign(route, { permission: null, machine: null });
 }
 
 export { CROSS_ORIGIN_REFUSED };

@@ -38,6 +38,11 @@ export interface Access {
 export interface RouteAccess extends Access {
   /** A lab test bench's machine token (`Authorization: Bearer tlm_…`, scope "lab") is let in too. */
   labToken?: true;
+  /**
+   * Another system's server calls it (signedRoute in lib/auth/guard.ts): no session, no same-origin
+   * rule, only a valid signature on the body; without one every caller gets 400 and nothing is written.
+   */
+  signature?: true;
 }
 
 /** A record of the demo workshop a page with a parameter is opened with (looked up by the e2e walk). */
@@ -52,7 +57,8 @@ export type Sample =
   | "certificate" // the code of a pair certificate (its public verification link)
   | "case" // the code of a service case
   | "mail" // a message caught by the stand-in SMTP server
-  | "token"; // an invitation or reset token (unknown ones show their own message)
+  | "token" // an invitation or reset token (unknown ones show their own message)
+  | "case"; // the code of a service case
 
 export interface PageAccess extends Access {
   /** The record its one parameter names; pages without a parameter have none. */
@@ -133,6 +139,9 @@ export const ACTIONS: Record<string, Access> = {
   "app/(workshop)/packing/actions.ts#shipCartonsAction": { may: ["packing"], why: PACKING },
 
   "app/(workshop)/quality/actions.ts#dispositionAction": { may: ["quality"], why: QUALITY },
+
+  "app/(workshop)/service/cases/[code]/quote/actions.ts#createQuoteAction": { may: ["service"], why: `${SERVICE} An out-of-warranty repair is quoted by the desk.` },
+  "app/(workshop)/service/cases/[code]/quote/actions.ts#sendPaymentLinkAction": { may: ["service"], why: `${SERVICE} The desk sends the owner the quote's payment link.` },
 };
 
 /** Route handlers, as "METHOD /path" with the folder names of its parameters. */
@@ -173,6 +182,16 @@ export const ROUTES: Record<string, RouteAccess> = {
   "GET /api/v1/lab/batches/[code]": { may: ["lab"], labToken: true, why: `${LAB_UNITS} ${LAB_BENCH}` },
   "POST /api/v1/lab/responses": { may: ["lab"], labToken: true, why: `${LAB_UNITS} ${LAB_BENCH}` },
   "POST /api/v1/lab/ts-params": { may: ["lab"], labToken: true, why: `${LAB_UNITS} ${LAB_BENCH}` },
+
+  "POST /api/v1/payments/webhook": {
+    may: "public",
+    signature: true,
+    why: "The payment provider's server calls it, with no session and from another origin: it is let in by the signature on its raw body alone (checked with the provider's SDK), never by a role.",
+  },
+  "GET /api/v1/payments/done": {
+    may: "public",
+    why: "Where an owner, who has no account, lands after the payment page: a word of thanks; it reads and writes nothing.",
+  },
 
   "GET /api/v1/admin/users": { may: ["admin"], why: ADMIN_USERS },
   "GET /api/v1/admin/mail/[id]/attachments/[index]": { may: ["admin"], why: ADMIN_MAIL },
@@ -232,6 +251,7 @@ export const PAGES: Record<string, PageAccess> = {
   "/admin/mail": { may: ["admin"], why: ADMIN_MAIL },
   "/admin/mail/[id]": { may: ["admin"], why: ADMIN_MAIL, sample: "mail" },
   "/admin/audit": { may: ["admin"], why: "PRODUCT.md is silent on who checks the audit trail; an administrator keeps the system and its records (21 CFR Part 11 §11.10(e), EU GMP Annex 11 §9 expect the trail reviewable)." },
+  "/service/cases/[code]/quote": { may: ["service"], why: `${SERVICE} Quoting and charging an out-of-warranty repair is the desk's work.`, sample: "case" },
 };
 
 /** The roles the code is expected to let in today: `differs` where it differs, else `may`. */

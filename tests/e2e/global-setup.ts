@@ -8,6 +8,7 @@ import { openDb } from "@/db";
 import { migrateDatabase } from "@/db/migrate";
 import { seedDemo } from "@/db/seed/seed";
 import { startFakeSmtp } from "@/lib/mail/fake-smtp";
+import { startPaymentStandIn } from "@/lib/payments/stand-in";
 
 declare module "vitest" {
   export interface ProvidedContext {
@@ -16,6 +17,8 @@ declare module "vitest" {
     /** Write an ISO time or "+<ms>" here to move the app's clock (lib/clock.ts). */
     clockFile: string;
     databaseUrl: string;
+    /** The payment provider's stand-in (lib/payments/stand-in.ts) the app is pointed at. */
+    paymentsUrl: string;
   }
 }
 
@@ -64,6 +67,12 @@ export default async function setup(project: TestProject) {
   const smtp = await startFakeSmtp({ port: 0, dir: mailboxDir });
   const port = await freePort();
   const baseUrl = `http://127.0.0.1:${port}`;
+  const payments = await startPaymentStandIn({
+    stateFile: join(dir, "fake-payments.json"),
+    secretKey: "sk_test_e2e_standin",
+    webhookSecret: "whsec_e2e_standin",
+    webhookUrl: `${baseUrl}/api/v1/payments/webhook`,
+  });
   const server = spawn(next, ["start", "-p", String(port), "-H", "127.0.0.1"], {
     stdio: ["ignore", "ignore", "inherit"],
     env: {
@@ -77,6 +86,9 @@ export default async function setup(project: TestProject) {
       TWINLEAF_CLOCK_FILE: join(dir, "clock"),
       APP_URL: baseUrl,
       MAIL_SEND_INTERVAL_MS: "300",
+      STRIPE_SECRET_KEY: "sk_test_e2e_standin",
+      STRIPE_WEBHOOK_SECRET: "whsec_e2e_standin",
+      STRIPE_API_BASE: payments.url,
     },
   });
   await waitForServer(`${baseUrl}/sign-in`, server);
@@ -85,9 +97,11 @@ export default async function setup(project: TestProject) {
   project.provide("mailboxDir", mailboxDir);
   project.provide("databaseUrl", databaseUrl);
   project.provide("clockFile", join(dir, "clock"));
+  project.provide("paymentsUrl", payments.url);
 
   return async () => {
     server.kill("SIGTERM");
     await smtp.close();
+    await payments.close();
   };
 }

@@ -210,6 +210,12 @@ describe("the table and app/ list the same things", () => {
     expect(inlineServerFiles).toEqual([]);
   });
 
+  test("a route the table marks signature-checked is made with signedRoute, and only those are", () => {
+    for (const e of listed.filter((x) => x.kind === "route")) {
+      expect(Object.hasOwn(e.fn, "signedBy"), e.id).toBe(Boolean((rowOf(e) as RouteAccess).signature));
+    }
+  });
+
   test.each(entries.map((e) => [e.id, e] as const))("%s is made with guardedAction, publicAction or guardedRoute", (_id, e) => {
     // The wrappers mark what they make; a bare function would have no guard at all.
     expect(Object.hasOwn(e.fn, "permission")).toBe(true);
@@ -243,7 +249,9 @@ describe.each(listed.map((e) => [e.id] as const))("%s", (id) => {
 // Cross-site request forgery: every route that changes state takes requests from this origin only
 // (lib/auth/guard.ts, refuseCrossOrigin), whoever is signed in. OWASP ASVS 4.0.3 V4.2.2.
 const routes = listed.filter((e) => e.kind === "route");
-const writingRoutes = routes.filter((e) => !["GET", "HEAD", "OPTIONS"].includes(e.method!));
+// A signature-checked route (the payment webhook) is called by another origin's server: its own walk is below.
+const signedRoutes = routes.filter((e) => (rowOf(e) as RouteAccess).signature);
+const writingRoutes = routes.filter((e) => !["GET", "HEAD", "OPTIONS"].includes(e.method!) && !signedRoutes.includes(e));
 const CROSS_ORIGIN = /did not come from one of Twinleaf's own pages/;
 
 const FOREIGN: [string, Record<string, string>][] = [
@@ -303,4 +311,33 @@ describe("requests that change state come from this origin", () => {
     const out = await call(entry, undefined, { origin: "https://attacker.example.test", "sec-fetch-site": "cross-site" });
     expect(out.body).not.toEqual({ error: expect.stringMatching(CROSS_ORIGIN) });
   });
+});
+
+// Signature-checked routes: whoever calls, from wherever, without a valid signature: 400, nothing written.
+describe("routes let in by a signature alone", () => {
+  beforeAll(() => {
+    // As a site with payments set up has them (the values are this walk's own).
+    process.env.STRIPE_SECRET_KEY ??= "sk_test_walk";
+    process.env.STRIPE_WEBHOOK_SECRET ??= "whsec_walk";
+  });
+  test("the walk finds the payment webhook", () => {
+    expect(signedRoutes.map((e) => e.id)).toEqual(["POST /api/v1/payments/webhook"]);
+  });
+  const callers: Caller[] = ["admin", "service", "signed out", "lab token"];
+  const signatures: [string, Record<string, string>][] = [
+    ["no signature", {}],
+    ["a made-up signature", { "stripe-signature": "t=1700000000,v1=00" }],
+  ];
+  test.each(signedRoutes.flatMap((e) => callers.flatMap((c) => signatures.map(([how, h]) => [e.id, c, how, e, h] as const))))(
+    "%s as %s with %s: 400, nothing written",
+    async (_id, caller, _how, entry, sig) => {
+      const authorization = await become(caller);
+      const before = await snapshot(getDb());
+      const headers = { origin: "https://provider.example.test", ...(authorization ? { authorization } : {}), ...sig };
+      const res = await (entry.fn as unknown as (req: Request) => Promise<Response>)(new Request(entry.url!, { method: entry.method, headers, body: "{}" }));
+      expect(res.status).toBe(400);
+      expect(await res.json()).toEqual({ error: expect.any(String) });
+      expect(await snapshot(getDb())).toEqual(before);
+    },
+  );
 });

@@ -1,0 +1,35 @@
+/** What the quote page shows of a case: its speaker, owner, warranty, quote and payments. */
+import "server-only";
+import { eq } from "drizzle-orm";
+import type { DbOrTx } from "@/db";
+import { items, owners, serviceCases } from "@/db/schema";
+import { paidFor, paymentHistory } from "./checkout";
+import { currencyOf, workshopCurrency, type Currency } from "./money";
+import { currentQuote, outOfWarranty, QUOTABLE_STATES } from "./quotes";
+
+export async function quotePage(db: DbOrTx, code: string) {
+  const [row] = await db
+    .select({ c: serviceCases, serial: items.identity, ownerName: owners.name, ownerEmail: owners.email })
+    .from(serviceCases)
+    .innerJoin(items, eq(items.id, serviceCases.itemId))
+    .leftJoin(owners, eq(owners.id, serviceCases.ownerId))
+    .where(eq(serviceCases.code, code));
+  if (!row) return null;
+  const quote = await currentQuote(db, row.c.id);
+  const currency: Currency = (quote && currencyOf(quote.currency)) || workshopCurrency();
+  return {
+    caseId: row.c.id,
+    code: row.c.code,
+    state: row.c.state,
+    serial: row.serial,
+    owner: row.ownerName ? { name: row.ownerName, email: row.ownerEmail } : null,
+    warranty: await outOfWarranty(db, row.c.id),
+    quotable: QUOTABLE_STATES.includes(row.c.state),
+    quote,
+    currency,
+    paid: (await paidFor(db, row.c.id)) !== null,
+    history: await paymentHistory(db, row.c.id),
+  };
+}
+
+export type QuotePage = NonNullable<Awaited<ReturnType<typeof quotePage>>>;
