@@ -76,7 +76,7 @@ export async function changeCaseState(
   db: DbOrTx,
   input: { code: string; from?: CaseState; to: CaseState; reason?: string | null; quote?: OwnerQuote | null },
   actor: Actor,
-): Promise<ServiceCase> {
+): Promise<ServiceCase & { moveEventId: number }> {
   const c = await openCaseOrRefuse(db, input.code);
   if (!DESK_MOVES.includes(input.to)) throw new AppError(409, `“${CASE_STATE_WORDS[input.to]}” is recorded on its own page, with the work it stands for.`);
   if (!canMove(c.state, input.to)) throw new AppError(409, `A case that is “${CASE_STATE_WORDS[c.state]}” cannot become “${CASE_STATE_WORDS[input.to]}”. Nothing was changed.`);

@@ -45,7 +45,7 @@ beforeAll(async () => {
 }, 180_000);
 
 async function counts() {
-  const [row] = await db().all<Record<string, number>>(sql`
+  const [row] = await db().all<{ cases: number; events: number; outbox: number; owners: number; consents: number; findings: number; ownerships: number }>(sql`
     SELECT (SELECT count(*) FROM service_cases) AS cases, (SELECT count(*) FROM events) AS events, (SELECT count(*) FROM outbox) AS outbox,
            (SELECT count(*) FROM owners) AS owners, (SELECT count(*) FROM owner_consents) AS consents, (SELECT count(*) FROM case_findings) AS findings,
            (SELECT count(*) FROM ownerships) AS ownerships`);
