@@ -7,6 +7,7 @@ import { AppError, isConstraintError } from "@/lib/auth/errors";
 import { newId } from "@/lib/auth/tokens";
 import { now } from "@/lib/clock";
 import { appendEvent } from "@/lib/events/queries";
+import { formatCalendarDay } from "@/lib/format";
 import { isCalendarDate } from "@/lib/input/dates";
 import { checkOwner, ownerById, ownerOnRecord, recordConsent, type OwnerDetails } from "@/lib/owners";
 import { search } from "@/lib/search/search";
@@ -190,3 +191,30 @@ export async function openCase(db: DbOrTx, input: IntakeInput, actor: Actor): Pr
 /** The item kinds a serial may name at intake (for the form's hint). */
 export const INTAKE_KINDS = ["speaker", "pair"] as const;
 
+
+export interface ReturnedLookUp {
+  identity: string | null;
+  pairId: string | null;
+  /** What was found, in a sentence; or the reason it cannot be taken in. */
+  words: string;
+  problem: string | null;
+  dealer: string | null;
+}
+
+/** What intake would find for a serial, read only: the page offers the pair's owners from it. */
+export async function lookUpReturned(db: DbOrTx, serial: string): Promise<ReturnedLookUp> {
+  let hit: Awaited<ReturnType<typeof findReturned>>;
+  try {
+    hit = await findReturned(db, serial);
+  } catch (e) {
+    if (e instanceof AppError) return { identity: null, pairId: null, words: "", problem: e.message, dealer: null };
+    throw e;
+  }
+  const pair = hit.kind === "pair" ? { id: hit.id, identity: hit.identity } : await pairOfSpeaker(db, hit.id);
+  if (!pair) return { identity: hit.identity, pairId: null, words: "", problem: `${hit.identity} has not been built into a pair.`, dealer: null };
+  const [shipment, open] = await Promise.all([shipmentOfPair(db, pair.id), openCaseOfPair(db, pair.id)]);
+  const dealer = shipment?.dealer ? `${shipment.dealer.name}, ${shipment.dealer.city}` : null;
+  const problem = !shipment ? `Pair ${pair.identity} has not shipped yet.` : open ? `Pair ${pair.identity} is already in open case ${open.code}.` : null;
+  const what = hit.kind === "pair" ? `Pair ${pair.identity}` : `Speaker ${hit.identity} of pair ${pair.identity}`;
+  return { identity: hit.identity, pairId: pair.id, words: `${what}, shipped ${shipment ? formatCalendarDay(shipment.shippedOn) : "—"}${dealer ? ` to ${dealer}` : ""}.`, problem, dealer };
+}
