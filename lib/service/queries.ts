@@ -1,6 +1,8 @@
 /** Reads of the service desk: cases, their pair's shipment, warranty facts, history and messages. */
 import "server-only";
 import { and, asc, desc, eq, inArray, sql } from "drizzle-orm";
+import { shippedAt, traceBackward, type TraceNode } from "@/lib/genealogy/trace";
+import { compareTraces } from "./trace-diff";
 import type { DbOrTx } from "@/db";
 import { caseFindings, dealers, events, items, mailAttempts, models, outbox, ownerships, serviceCases, users, type CaseFinding, type ServiceCase } from "@/db/schema";
 import { ownerById, type OwnerWithConsent } from "@/lib/owners";
@@ -247,4 +249,23 @@ export async function caseParticulars(db: DbOrTx, c: ServiceCase): Promise<CaseP
     shipment,
     warranty,
   };
+}
+
+/** The parts the desk replaces; veneer leaves and component lots are read on the register's trace. */
+const TRACE_KINDS = new Set(["speaker", "cabinet", "drive_unit", "crossover"]);
+
+/**
+ * What came back as built (the moment the pair shipped) and as it is now, compared: a part
+ * removed since shipping and a part fitted are marked (lib/service/trace-diff.ts).
+ */
+export async function caseTraces(db: DbOrTx, c: Pick<ServiceCase, "itemId" | "pairId">) {
+  const shipped = await shippedAt(db, c.pairId);
+  const [built, current] = await Promise.all([shipped ? traceBackward(db, c.itemId, { mode: "at", at: shipped }) : Promise.resolve([]), traceBackward(db, c.itemId, { mode: "now" })]);
+  const parts = (nodes: TraceNode[]) => {
+    const name = new Map(nodes.map((n) => [n.id, n.identity]));
+    return nodes
+      .filter((n) => n.depth > 0 && TRACE_KINDS.has(n.kind))
+      .map((n) => ({ id: n.id, identity: n.identity, kind: n.kind, holder: n.via ? (name.get(n.via) ?? null) : null, position: n.position, partType: n.partType }));
+  };
+  return { shippedAt: shipped, ...compareTraces(parts(built), parts(current)) };
 }
