@@ -3,6 +3,7 @@
  * state change the desk makes, and the ones the database refuses.
  */
 import { eq, sql } from "drizzle-orm";
+import sharp from "sharp";
 import { beforeAll, describe, expect, test } from "vitest";
 import { getDb } from "@/db";
 import { outbox, ownerConsents, serviceCases, users } from "@/db/schema";
@@ -18,7 +19,7 @@ import { failureText } from "./helpers";
 import { request } from "../setup/next-request";
 
 const { GET: listRoute, POST: postRoute } = await import("@/app/api/v1/service/cases/route");
-const { GET: oneRoute } = await import("@/app/api/v1/service/cases/[code]/route");
+const { GET: oneRoute, POST: photoRoute } = await import("@/app/api/v1/service/cases/[code]/route");
 
 const db = () => getDb();
 let desk: { id: string };
@@ -302,5 +303,28 @@ describe("the JSON API", () => {
     await as("lab");
     expect((await listRoute(new Request(`${BASE}/api/v1/service/cases?state=lost`), { params: Promise.resolve({}) })).status).toBe(400);
     expect((await oneRoute(new Request(`${BASE}/api/v1/service/cases/RT0000-0001`), { params: Promise.resolve({ code: "RT0000-0001" }) })).status).toBe(404);
+  });
+
+  test("photos: a picture is kept with its event; a file that is not one is refused and nothing is kept", async () => {
+    await as("service");
+    const { case: c } = await openCase(db(), intake(take().pair, { returnedBy: "dealer", owner: null }), desk);
+    const raw = Buffer.alloc(32 * 24 * 3, 90);
+    const png = new Uint8Array(await sharp(raw, { raw: { width: 32, height: 24, channels: 3 } }).png().toBuffer());
+    const send = (name: string, bytes: Uint8Array) => {
+      const form = new FormData();
+      form.append("file", new File([bytes as BlobPart], name));
+      return photoRoute(new Request(`${BASE}/api/v1/service/cases/${c.code}`, { method: "POST", headers: { origin: BASE }, body: form }), { params: Promise.resolve({ code: c.code }) });
+    };
+    const uploadsBefore = (await db().all<{ n: number }>(sql`SELECT count(*) AS n FROM uploads`))[0]!.n;
+    const bad = await send("notes.txt", new TextEncoder().encode("not a picture"));
+    expect(bad.status).toBeGreaterThanOrEqual(400);
+    expect(bad.status).toBeLessThan(500);
+    expect((await db().all<{ n: number }>(sql`SELECT count(*) AS n FROM uploads`))[0]!.n).toBe(uploadsBefore);
+    const ok = await send("front.png", png);
+    expect(ok.status).toBe(201);
+    const [ev] = await db().all<{ n: number }>(sql`SELECT count(*) AS n FROM events WHERE type = 'case.file_added' AND subject_id = ${c.id}`);
+    expect(ev!.n).toBe(1);
+    await as("lab");
+    expect((await send("front.png", png)).status).toBe(403);
   });
 });
