@@ -12,3 +12,4 @@ export * from "./limits";
 export * from "./service";
 export * from "./certificate-revisions";
 export * from "./payments";
+export * from "./service-owners";

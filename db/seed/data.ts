@@ -38,6 +38,8 @@ export interface SeedUser {
 export const SEED_MODELS: SeedModel[] = [
   {
     code: "PW2",
+    // The workshop's own choice for the stand-mount: two years (demo).
+    warrantyMonths: 24,
     name: "Pennywort 2",
     // Two-way stand-mount, cabinet 380 × 230 × 300 mm: two leaves per side panel.
     leavesPerFace: 2,
@@ -58,6 +60,8 @@ export const SEED_MODELS: SeedModel[] = [
   },
   {
     code: "SL3",
+    // The workshop's own choice for the studio three-way: three years (demo).
+    warrantyMonths: 36,
     name: "Sallow Studio",
     // Three-way stand-mount, cabinet 500 × 260 × 360 mm: three leaves per side panel.
     leavesPerFace: 3,
@@ -80,6 +84,8 @@ export const SEED_MODELS: SeedModel[] = [
   },
   {
     code: "TB3",
+    // The workshop's own choice for the tower: five years (demo).
+    warrantyMonths: 60,
     name: "Thornbeam Tower",
     // Three-way floor-stander, cabinet 1050 × 240 × 400 mm, two bass units: four leaves per side panel.
     leavesPerFace: 4,

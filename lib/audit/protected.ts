@@ -39,6 +39,7 @@ export const APPEND_ONLY_TABLES = {
   payment_requests: "payment links",
   payments: "payments",
   refunds: "refunds",
+  owner_consents: "owners' consents to be contacted",
 } as const satisfies Record<string, string>;
 
 export type AppendOnlyTable = keyof typeof APPEND_ONLY_TABLES;

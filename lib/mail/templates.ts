@@ -98,3 +98,96 @@ export function resetMail(input: { name: string; link: string; expiresMinutes: n
   );
   return { subject, text, html };
 }
+
+// ——— The service desk's messages to an owner ———
+
+/** A quote as the owner reads it: lines in minor units of one currency (ISO 4217), never floats. */
+export interface OwnerQuote {
+  lines: { description: string; amountMinor: number }[];
+  totalMinor: number;
+  currency: string;
+}
+
+/**
+ * An amount in minor units as money: the currency's own number of minor digits (ISO 4217, as
+ * Intl reports it), with the decimal point placed in the digits' text so no float is rounded.
+ */
+export function formatMinor(amountMinor: number, currency: string): string {
+  if (!Number.isSafeInteger(amountMinor)) throw new RangeError("an amount is a whole number of minor units");
+  const fmt = new Intl.NumberFormat("en-GB", { style: "currency", currency });
+  const digits = fmt.resolvedOptions().maximumFractionDigits ?? 2;
+  const sign = amountMinor < 0 ? "-" : "";
+  const abs = String(Math.abs(amountMinor)).padStart(digits + 1, "0");
+  const decimal = digits === 0 ? abs : `${abs.slice(0, -digits)}.${abs.slice(-digits)}`;
+  // Intl reads a decimal string exactly (ECMA-402 "Intl.NumberFormat v3").
+  return fmt.format(`${sign}${decimal}` as unknown as number);
+}
+
+export type CaseMessageKind = "received" | "diagnosis" | "on_its_way" | "closed";
+
+export interface CaseMessageInput {
+  kind: CaseMessageKind;
+  ownerName: string;
+  caseCode: string;
+  /** What came back, e.g. "the left speaker of pair P-…" (already in words). */
+  what: string;
+  model: string;
+  /** Workshop day it was received, already formatted. */
+  receivedOn?: string;
+  findings?: string[];
+  inWarranty?: boolean;
+  quote?: OwnerQuote | null;
+  /** Where it is going back to, in words ("to you", "to Willow Hi-Fi"). */
+  sentTo?: string | null;
+}
+
+function plainFrame(paragraphs: string[]): string {
+  const p = (t: string) => `<p style="margin:0 0 16px">${t}</p>`;
+  return [
+    "<!doctype html>",
+    '<html lang="en"><body style="margin:0;padding:24px;background:#f6f4ef;color:#23211d;font:16px/1.5 system-ui,sans-serif">',
+    '<div style="max-width:520px;margin:0 auto;background:#ffffff;padding:24px;border-radius:8px">',
+    ...paragraphs.map(p),
+    p("Twinleaf"),
+    "</div></body></html>",
+  ].join("\n");
+}
+
+/**
+ * One of the four messages to an owner about their case. Every value is escaped in the HTML; the
+ * text part carries the same words.
+ */
+export function caseMessageMail(input: CaseMessageInput): MailContent {
+  const e = escapeHtml;
+  const hello = `Hello ${input.ownerName},`;
+  let subject: string;
+  let paras: string[];
+  switch (input.kind) {
+    case "received":
+      subject = `We have received your ${input.model} (case ${input.caseCode})`;
+      paras = [`We received ${input.what} on ${input.receivedOn ?? "the day it arrived"} and opened service case ${input.caseCode}.`, "We will look at it and write again once we know what needs doing."];
+      break;
+    case "diagnosis": {
+      subject = `What we found in your ${input.model} (case ${input.caseCode})`;
+      const found = input.findings?.length ? `We found: ${input.findings.join("; ")}.` : "We have looked at it.";
+      const cover = input.inWarranty === false ? "It is out of warranty, so the repair is charged." : input.inWarranty === true ? "It is in warranty: the repair costs you nothing." : "";
+      paras = [found, cover].filter(Boolean);
+      if (input.quote) {
+        const lines = input.quote.lines.map((l) => `${l.description}: ${formatMinor(l.amountMinor, input.quote!.currency)}`);
+        paras.push(`Our quote:\n${lines.join("\n")}\nTotal: ${formatMinor(input.quote.totalMinor, input.quote.currency)}`);
+      }
+      break;
+    }
+    case "on_its_way":
+      subject = `Your ${input.model} is repaired and on its way (case ${input.caseCode})`;
+      paras = [`The repair is done and the pair passed its test again. ${input.what.charAt(0).toUpperCase()}${input.what.slice(1)} is on its way back${input.sentTo ? ` ${input.sentTo}` : ""}.`];
+      break;
+    case "closed":
+      subject = `Service case ${input.caseCode} is closed`;
+      paras = [`We have closed service case ${input.caseCode} for your ${input.model}. Thank you for your patience.`];
+      break;
+  }
+  const text = [hello, "", ...paras.flatMap((p) => [p, ""]), "Twinleaf", ""].join("\n");
+  const html = plainFrame([e(hello), ...paras.map((p) => e(p).replace(/\n/g, "<br>"))]);
+  return { subject, text, html };
+}

@@ -57,8 +57,7 @@ export type Sample =
   | "certificate" // the code of a pair certificate (its public verification link)
   | "case" // the code of a service case
   | "mail" // a message caught by the stand-in SMTP server
-  | "token" // an invitation or reset token (unknown ones show their own message)
-  | "case"; // the code of a service case
+  | "token"; // an invitation or reset token (unknown ones show their own message)
 
 export interface PageAccess extends Access {
   /** The record its one parameter names; pages without a parameter have none. */
@@ -137,6 +136,9 @@ export const ACTIONS: Record<string, Access> = {
   "app/(workshop)/packing/actions.ts#packPairAction": { may: ["packing"], why: PACKING },
   "app/(workshop)/packing/actions.ts#moveCartonAction": { may: ["packing"], why: PACKING },
   "app/(workshop)/packing/actions.ts#shipCartonsAction": { may: ["packing"], why: PACKING },
+  "app/(workshop)/service/cases/new/actions.ts#openCaseAction": { may: ["service"], why: SERVICE },
+  "app/(workshop)/service/cases/[code]/actions.ts#moveCaseAction": { may: ["service"], why: SERVICE },
+  "app/(workshop)/service/cases/[code]/actions.ts#recordFindingAction": { may: ["service"], why: SERVICE },
 
   "app/(workshop)/quality/actions.ts#dispositionAction": { may: ["quality"], why: QUALITY },
 
@@ -176,6 +178,10 @@ export const ROUTES: Record<string, RouteAccess> = {
     why: "The PDF of a carton label print just recorded by the POST above; only its printer opens it.",
   },
 
+  "GET /api/v1/service/cases": { may: SIGNED_IN, why: `${READ} The issue of the service desk: reads of cases need register.read.` },
+  "POST /api/v1/service/cases": { may: ["service"], why: SERVICE },
+  "GET /api/v1/service/cases/[code]": { may: SIGNED_IN, why: `${READ} The issue of the service desk: reads of cases need register.read.` },
+  "POST /api/v1/service/cases/[code]": { may: ["service"], why: `${SERVICE} Photos of what came back, through lib/uploads.` },
   "POST /api/v1/veneer/photos": { may: ["veneer"], why: `${VENEER} PRODUCT.md, what it records: flitch … photos.` },
 
   "GET /api/v1/lab/whoami": { may: ["lab"], labToken: true, why: LAB_BENCH },
@@ -240,6 +246,8 @@ export const PAGES: Record<string, PageAccess> = {
 
   "/service": { may: ["service"], why: SERVICE },
   "/service/cases/[code]/retest": { may: ["service"], why: `${SERVICE} The repaired pair takes its final test again at the desk.`, sample: "case" },
+  "/service/cases/new": { may: ["service"], why: SERVICE },
+  "/service/cases/[code]": { may: ["service"], why: `${SERVICE} The case page holds the desk's forms, so it stays in the service area.`, sample: "case" },
   "/quality": { may: ["quality"], why: QUALITY },
 
   "/admin": { may: ["admin"], why: "PRODUCT.md, admin: users and roles, models, … machine tokens." },
