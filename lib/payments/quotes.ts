@@ -1,5 +1,6 @@
 /** Quotes for out-of-warranty repairs: parts and labour in minor units; the newest one counts. */
 import "server-only";
+import { warrantyFacts } from "@/lib/service/queries";
 import { randomUUID } from "node:crypto";
 import { desc, eq, sql } from "drizzle-orm";
 import { z } from "zod";
@@ -72,22 +73,13 @@ export function readLines(typed: readonly TypedLine[], currency: Currency): { li
  * (the two must agree); it is kept here so a quote can never be made for a case in warranty.
  */
 export async function outOfWarranty(db: DbOrTx, caseId: string): Promise<{ outOf: boolean; endsOn: string | null }> {
-  const rows = await db.all<{ received_on: string; ends_on: string | null }>(sql`
-    SELECT sc.received_on,
-      (SELECT date(min(sd.shipped_on), '+' || m.warranty_months || ' months')
-         FROM links pl
-         JOIN links cl ON cl.child_id = pl.parent_id
-         JOIN shipment_details sd ON sd.item_id = cl.parent_id
-        WHERE pl.child_id = sc.pair_id AND pl.position = 'PAIR') AS ends_on
-    FROM service_cases sc
-    JOIN items p ON p.id = sc.pair_id
-    LEFT JOIN models m ON m.id = p.model_id
-    WHERE sc.id = ${caseId}`);
-  const row = rows[0];
-  if (!row) throw new AppError(404, "No such service case.");
+  const [c] = await db.select().from(serviceCases).where(eq(serviceCases.id, caseId));
+  if (!c) throw new AppError(404, "No such service case.");
+  // The desk's one warranty rule (lib/service/warranty.ts), so the quote and the case agree.
+  const w = await warrantyFacts(db, c);
   // No ship day on record: the speaker never left under a warranty this register knows, so it is charged.
-  if (!row.ends_on) return { outOf: true, endsOn: null };
-  return { outOf: row.received_on > row.ends_on, endsOn: row.ends_on };
+  if (!w) return { outOf: true, endsOn: null };
+  return { outOf: !w.inWarranty, endsOn: w.endsOn };
 }
 
 /** Records a quote (appended; it replaces the case's last one) with its "case.quoted" event. */

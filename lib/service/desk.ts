@@ -1,5 +1,6 @@
 /** What the desk does to an open case: findings, moves (with their owner messages), photos. */
 import "server-only";
+import { refundForCancelledCase } from "@/lib/payments/refunds";
 import type { DbOrTx } from "@/db";
 import { caseFindings, type CaseFinding, type ServiceCase } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
@@ -92,13 +93,18 @@ export async function changeCaseState(
   const owner = kind && c.ownerId ? await ownerById(db, c.ownerId) : null;
   const outcome = kind ? ownerMailOutcome(owner) : null;
   const warranty = kind === "diagnosis" ? await warrantyFacts(db, c) : null;
-  return db.transaction(async (tx) => {
+  const moved = await db.transaction(async (tx) => {
     const moved = await moveCase(tx, { caseId: c.id, from: input.from ?? c.state, to: input.to, reason, data: kind && outcome ? ownerMailData(kind, outcome) : undefined }, actor);
     if (kind) {
       await queueOwnerMessage(tx, { case: moved, kind, eventId: moved.moveEventId, inWarranty: warranty?.inWarranty, quote: input.quote ?? null });
     }
     return moved;
   });
+  // A case cancelled after the owner paid is refunded through the payment service, once the
+  // cancel is on record; should the service refuse, its words are shown and the payment stays on
+  // record unrefunded (refundForCancelledCase refunds only what has no refund yet).
+  if (input.to === "cancelled") await refundForCancelledCase(db, c.id, actor);
+  return moved;
 }
 
 /** Photos of what came back, through lib/uploads (all checked before any is kept), each with its event. */
