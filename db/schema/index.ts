@@ -10,3 +10,4 @@ export * from "./route";
 export * from "./dispatch";
 export * from "./limits";
 export * from "./service";
+export * from "./service-parts";

@@ -33,6 +33,7 @@ export const APPEND_ONLY_TABLES = {
   shipment_details: "shipments",
   service_cases: "service cases",
   case_findings: "diagnosis findings",
+  case_reservations: "parts reserved for service cases",
 } as const satisfies Record<string, string>;
 
 export type AppendOnlyTable = keyof typeof APPEND_ONLY_TABLES;

@@ -5,7 +5,7 @@ import { describe, expect, test } from "vitest";
 import { openClient } from "@/db";
 import { migrateDatabase, MIGRATIONS_FOLDER } from "@/db/migrate";
 
-const TABLES = ["auth_tokens", "batch_units", "carton_locations", "case_findings", "certificate_prints", "certificates", "crossover_parts", "dealers", "events", "final_tests", "finishes", "flitches", "holdings", "items", "leaf_allocations", "leaf_defects", "limit_hits", "links", "machine_tokens", "mail_attempts", "mail_secrets", "matched_sets", "model_positions", "model_tolerances", "models", "nonconformances", "outbox", "owners", "ownerships", "packing_items", "process_specs", "responses", "route_records", "route_starts", "serial_sequences", "service_cases", "sessions", "set_members", "shipment_details", "ts_params", "unit_batches", "uploads", "user_roles", "users", "veneer_leaves"];
+const TABLES = ["auth_tokens", "batch_units", "carton_locations", "case_findings", "case_reservations", "certificate_prints", "certificates", "crossover_parts", "dealers", "events", "final_tests", "finishes", "flitches", "holdings", "items", "leaf_allocations", "leaf_defects", "limit_hits", "links", "machine_tokens", "mail_attempts", "mail_secrets", "matched_sets", "model_positions", "model_tolerances", "models", "nonconformances", "outbox", "owners", "ownerships", "packing_items", "process_specs", "responses", "route_records", "route_starts", "serial_sequences", "service_cases", "sessions", "set_members", "shipment_details", "ts_params", "unit_batches", "uploads", "user_roles", "users", "veneer_leaves"];
 
 describe("migrations on an empty database", () => {
   const dir = mkdtempSync(join(tmpdir(), "twinleaf-mig-"));
