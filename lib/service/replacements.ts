@@ -380,9 +380,18 @@ export async function reserveReplacementSet(
   );
 }
 
+/** Releases every open reservation of a case (a case cancelled gives its parts back), in the caller's transaction. */
+export async function releaseAllOfCase(db: DbOrTx, caseId: string, actor: Actor): Promise<string[]> {
+  const [c] = await db.select().from(serviceCases).where(eq(serviceCases.id, caseId)).limit(1);
+  if (!c) return [];
+  const open = (await reservationsOfCase(db, caseId)).filter((r) => r.endedAt === null);
+  for (const r of open) await releaseReservation(db, { code: c.code, serial: r.serial, reason: "the case is cancelled" }, actor);
+  return open.map((r) => r.serial);
+}
+
 /** Ends an open reservation of the case as released: the part goes back to the state it had. */
 export async function releaseReservation(db: DbOrTx, input: { code: string; serial: string; reason?: string | null }, actor: Actor): Promise<{ serial: string }> {
-  return db.transaction(async (tx) => {
+  const work = async (tx: DbOrTx) => {
     const c = await caseByCode(tx, input.code);
     if (!c) throw new AppError(404, `There is no service case ${input.code}.`);
     const [row] = await tx
@@ -414,5 +423,6 @@ export async function releaseReservation(db: DbOrTx, input: { code: string; seri
     const from = (reserved?.data as { from?: unknown } | undefined)?.from;
     await changeState(tx, row.item, from === "measured" || from === "in_stock" ? from : "in_stock", { actorId: actor.id, station: SERVICE_STATION, at }, { case: c.code, released: true });
     return { serial: row.item.identity };
-  });
+  };
+  return "rollback" in db ? work(db) : db.transaction(work);
 }
