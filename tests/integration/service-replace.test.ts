@@ -21,7 +21,20 @@ import { acceptPlan, batchUnitsView, freeUnitRows, importResponseFiles, listBatc
 import { fitReplacement, markRepaired, repairsOfCase } from "@/lib/service/repair";
 import { partAt, releaseAllOfCase, releaseReservation, replacementView, reservationsOfCase, reserveReplacement, reserveReplacementSet, speakerOf } from "@/lib/service/replacements";
 import { moveCase } from "@/lib/service/states";
+import { startSession } from "@/lib/auth/sessions";
+import { request } from "../setup/next-request";
 import { failureText } from "./helpers";
+
+const { GET: getReplacements } = await import("@/app/api/v1/service/cases/[code]/replacements/route");
+const { reserveAction } = await import("@/app/(workshop)/service/cases/[code]/replace/actions");
+
+async function signInAs(email: string) {
+  const [u] = await db().select().from(users).where(eq(users.email, email));
+  request.sessionId = (await startSession(u!.id, db())).session.id;
+}
+
+const callReplacements = (code: string, query: string) =>
+  getReplacements(new Request(`http://localhost:3000/api/v1/service/cases/${encodeURIComponent(code)}/replacements?${query}`), { params: Promise.resolve({ code }) });
 
 const db = () => getDb();
 let desk: { id: string };
@@ -117,6 +130,19 @@ describe("the ranking against the survivor", () => {
     expect(view.limitDb).toBe(0.5); // db/seed/data.ts: every demo model's tweeter limit
     expect(view.sets).toEqual([]);
     void u31;
+  });
+
+  test("crossovers: the survivor is the partner's board, ranked against the model's free boards on its response range", async () => {
+    const c = await openCase(worlds[0]!);
+    const view = await replacementView(db(), { code: c.code, side: "L", position: "XO" });
+    const partnerBoard = await partAt(db(), worlds[0]!.speakers.R.id, "XO");
+    expect(view.survivor.identity).toBe(partnerBoard!.identity);
+    expect(view.partType).toBeNull();
+    // lib/lab/crossovers crossoverModels: the tightest drive-unit limit, never looser than the pair's (0.5 dB for the demo models).
+    expect(view.limitDb).toBe(0.5);
+    for (const x of view.candidates) expect(x.maxDiffDb).toBeLessThanOrEqual(view.limitDb + 1e-9);
+    for (const id of view.stock.keys()) expect(id).toMatch(/^X-/);
+    expect(view.candidates.length + view.sets.length + (view.why ? 1 : 0)).toBeGreaterThan(0);
   });
 
   test.each<[string, Record<string, string>, RegExp]>([
@@ -253,5 +279,58 @@ describe("the repair", () => {
     expect((await partAt(db(), w.speakers.L.id, "T"))?.identity).toBe(a.identity);
     expect((await partAt(db(), w.speakers.R.id, "T"))?.identity).toBe(b.identity);
     expect(await stateOf(w.tweeters.R.id)).toBe("scrapped");
+  });
+});
+
+describe("the replacements JSON route", () => {
+  test("answers the survivor, the limit, the candidates best first and no sets when one fits", async () => {
+    const c = await openCase(worlds[0]!);
+    await signInAs("veneer@demo.twinleaf.test"); // register.read is every role's
+    const res = await callReplacements(c.code, "side=L&position=T");
+    expect(res.status).toBe(200);
+    const body = (await res.json()) as { survivor: { serial: string; partType: string }; limitDb: number; candidates: { serial: string; cost: number; maxDiffDb: number }[]; sets: unknown[] };
+    expect(body.survivor).toEqual({ serial: (await partAt(db(), worlds[0]!.speakers.R.id, "T"))!.identity, partType: "tweeter" });
+    expect(body.limitDb).toBe(0.5);
+    expect(body.candidates.length).toBeGreaterThan(0);
+    for (const x of body.candidates) expect(Object.keys(x).sort()).toEqual(["cost", "maxDiffDb", "serial"]);
+    expect(body.candidates.map((x) => x.cost)).toEqual([...body.candidates.map((x) => x.cost)].sort((a, b) => a - b));
+    expect(body.sets).toEqual([]);
+  });
+
+  test.each<[string, string, number, RegExp]>([
+    ["a side that is not L or R", "side=Q&position=T", 400, /Choose the side/],
+    ["no side", "position=T", 400, /not valid/],
+    ["a position the model has not", "side=L&position=Z", 400, /has no position/],
+  ])("refuses %s with JSON words", async (_name, query, status, words) => {
+    const c = await openCase(worlds[0]!);
+    await signInAs("service@demo.twinleaf.test");
+    const res = await callReplacements(c.code, query);
+    expect(res.status).toBe(status);
+    const body = (await res.json()) as { error: string };
+    expect(body.error).toMatch(words);
+  });
+
+  test("an unknown case is 404 in JSON; signed out is 401", async () => {
+    await signInAs("service@demo.twinleaf.test");
+    const res = await callReplacements("RT-NONE", "side=L&position=T");
+    expect(res.status).toBe(404);
+    expect(((await res.json()) as { error: string }).error).toMatch(/no service case RT-NONE/);
+    request.sessionId = null;
+    expect((await callReplacements("RT-NONE", "side=L&position=T")).status).toBe(401);
+  });
+});
+
+describe("the reserve action", () => {
+  test("a serial out of tolerance typed by hand is refused next to the field, and nothing is written", async () => {
+    const c = await openCase(worlds[0]!);
+    await signInAs("service@demo.twinleaf.test");
+    const before = await count(caseReservations);
+    const form = new FormData();
+    for (const [k, v] of Object.entries({ code: c.code, side: "L", position: "T", serial: stock.units[2]!.identity, fsWeight: "", qtsWeight: "" })) form.set(k, v);
+    const state = await reserveAction(undefined, form);
+    expect(state.ok).toBe(false);
+    expect(state.status).toBe(400);
+    expect(state.fieldErrors?.serial?.[0]).toMatch(/over the 0\.5 dB limit/);
+    expect(await count(caseReservations)).toBe(before);
   });
 });
