@@ -494,14 +494,23 @@ export async function acceptCrossoverPlan(db: DbOrTx, input: { modelId: string; 
   if (!input.pairs.length) throw new AppError(400, "The plan has no pair to accept.");
   const ids = input.pairs.flatMap((p) => [p.a, p.b]);
   if (new Set(ids).size !== ids.length) throw new AppError(400, "A board appears in two pairs of the plan.");
-  const held = async (h: DbOrTx) =>
-    (
+  const held = async (h: DbOrTx) => [
+    ...(
       await h
         .select({ identity: items.identity })
         .from(setMembers)
         .innerJoin(items, eq(items.id, setMembers.itemId))
         .where(and(inArray(items.identity, ids), isNull(setMembers.endedAt)))
-    ).map((r) => r.identity);
+    ).map((r) => r.identity),
+    // Held by a service case (migration 0027 refuses a set for it).
+    ...(
+      await h
+        .select({ identity: items.identity })
+        .from(caseReservations)
+        .innerJoin(items, eq(items.id, caseReservations.itemId))
+        .where(and(inArray(items.identity, ids), isNull(caseReservations.endedAt)))
+    ).map((r) => r.identity),
+  ];
   try {
     return await db.transaction(async (tx) => {
       const view = await matchCrossovers(tx, { modelId: model.id, limitDb: input.limitDb });
