@@ -12,6 +12,9 @@ import { fileURLToPath } from "node:url";
 import { sql } from "drizzle-orm";
 import { beforeAll, describe, expect, test } from "vitest";
 import { getDb } from "@/db";
+import { serviceCases } from "@/db/schema";
+import { newId } from "@/lib/auth/tokens";
+import { appendEvent } from "@/lib/events/queries";
 import { seedDemo } from "@/db/seed/seed";
 import { createMachineToken } from "@/lib/auth/machine-tokens";
 import { ROLES } from "@/lib/auth/roles";
@@ -34,6 +37,10 @@ const people = new Map<string, string>();
 /** Real values for each dynamic segment, by its name; each route is called with every combination. */
 const values: Record<string, string[]> = {};
 let benchToken = "";
+/** The query a route needs to reach its body (its other calls are refused with 400, which is fine too). */
+const QUERIES: Record<string, string> = {
+  "app/api/v1/service/cases/[code]/replacements/route.ts": "side=L&position=T",
+};
 
 async function snapshot(): Promise<Record<string, string>> {
   const tables = await db().all<{ name: string }>(sql`SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' AND name NOT LIKE '__drizzle%' ORDER BY name`);
@@ -66,6 +73,18 @@ beforeAll(async () => {
   values.id = [...(await first(sql`SELECT id AS v FROM outbox ORDER BY id DESC LIMIT 1`)), ...(await first(sql`SELECT id AS v FROM uploads LIMIT 1`))];
   values.index = ["0"];
   values.code = await first(sql`SELECT code AS v FROM unit_batches LIMIT 1`);
+  // A service case on a shipped pair whose right tweeter was measured, for the service routes under [code].
+  const [ret] = await db().all<{ pair: string; l: string; r: string }>(sql`
+    SELECT p.id AS pair, sl.child_id AS l, sr.child_id AS r FROM items p
+    JOIN links sl ON sl.parent_id = p.id AND sl.position = 'L' AND sl.ended_at IS NULL
+    JOIN links sr ON sr.parent_id = p.id AND sr.position = 'R' AND sr.ended_at IS NULL
+    JOIN links tr ON tr.parent_id = sr.child_id AND tr.position = 'T' AND tr.ended_at IS NULL
+    WHERE p.kind = 'pair' AND p.state = 'shipped' AND EXISTS (SELECT 1 FROM responses x WHERE x.item_id = tr.child_id AND x.purpose = 'unit')
+    LIMIT 1`);
+  const caseId = newId();
+  const opened = await appendEvent(db(), { actorId: people.get("service")!, station: "service", type: "case.opened", subjectKind: "case", subjectId: caseId, data: { code: "RT-WALK-1" } });
+  await db().insert(serviceCases).values({ id: caseId, code: "RT-WALK-1", itemId: ret!.l, pairId: ret!.pair, partnerId: ret!.r, returnedBy: "owner", receivedOn: "2026-12-01", symptom: "a walk probe", openedAt: new Date(), eventId: opened });
+  values.code.push("RT-WALK-1");
   benchToken = (await createMachineToken(db(), { name: "Walk bench", scope: "lab", actorId: people.get("admin")! })).token;
   // Serials and prints must be real: the routes that once wrote are reached only with them.
   for (const name of ["identity", "printId", "code"]) expect(values[name]!.length, `a real value for [${name}]`).toBeGreaterThan(0);
@@ -80,7 +99,8 @@ function targets(file: string): { url: string; params: Record<string, string> }[
     const options = m ? (values[m[1]!]?.length ? values[m[1]!]! : ["walk-probe"]) : [s];
     out = out.flatMap((t) => options.map((v) => ({ path: [...t.path, m ? encodeURIComponent(v) : v], params: m ? { ...t.params, [m[1]!]: encodeURIComponent(v) } : t.params })));
   }
-  return out.map((t) => ({ url: `${BASE}/${t.path.join("/")}`, params: t.params }));
+  const query = QUERIES[file] ? `?${QUERIES[file]}` : "";
+  return out.map((t) => ({ url: `${BASE}/${t.path.join("/")}${query}`, params: t.params }));
 }
 
 const getRoutes = await Promise.all(
