@@ -10,7 +10,7 @@ import { getDb } from "@/db";
 import { formatDb, formatHzRange, formatLimitDb } from "@/lib/acoustics/format";
 import { areaByKey } from "@/lib/areas";
 import { AppError } from "@/lib/auth/errors";
-import { requirePage } from "@/lib/auth/guard";
+import { pageParam, requirePage } from "@/lib/auth/guard";
 import { now } from "@/lib/clock";
 import { formatShopTime } from "@/lib/format";
 import { paths } from "@/lib/paths";
@@ -31,8 +31,7 @@ const weightOf = (v: string) => {
 export default async function ReplacePage({ params, searchParams }: { params: Promise<{ code: string }>; searchParams: Promise<Record<string, string | string[] | undefined>> }) {
   await requirePage("service.work");
   const db = getDb();
-  const { code: rawCode } = await params;
-  const code = decodeURIComponent(rawCode);
+  const code = pageParam((await params).code);
   const sp = await searchParams;
   const input = { code, side: first(sp.side), position: first(sp.position), fsWeight: weightOf(first(sp.fs)), qtsWeight: weightOf(first(sp.qts)) };
   let view: Awaited<ReturnType<typeof replacementView>>;
