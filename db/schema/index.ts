@@ -13,3 +13,4 @@ export * from "./service";
 export * from "./certificate-revisions";
 export * from "./payments";
 export * from "./service-owners";
+export * from "./service-parts";

@@ -40,6 +40,7 @@ export const APPEND_ONLY_TABLES = {
   payments: "payments",
   refunds: "refunds",
   owner_consents: "owners' consents to be contacted",
+  case_reservations: "parts reserved for service cases",
 } as const satisfies Record<string, string>;
 
 export type AppendOnlyTable = keyof typeof APPEND_ONLY_TABLES;

@@ -1,7 +1,7 @@
 import "server-only";
 import { and, asc, desc, eq, inArray, isNull, like, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
-import { crossoverParts, events, items, matchedSets, modelTolerances, models, responses, setMembers, type Item, type Model } from "@/db/schema";
+import { caseReservations, crossoverParts, events, items, matchedSets, modelTolerances, models, responses, setMembers, type Item, type Model } from "@/db/schema";
 import { AppError, isConstraintError } from "@/lib/auth/errors";
 import { now } from "@/lib/clock";
 import { newId } from "@/lib/auth/tokens";
@@ -410,26 +410,28 @@ function checkLimit(model: Model, limitDb: number) {
   }
 }
 
-/**
- * The optimal plan for a model's boards that passed their check, have a response and are in no
- * open set: band levels over the model's response range in one-third octaves, then `planPairs`.
- */
-export async function matchCrossovers(db: DbOrTx, input: { modelId: string; limitDb: number }): Promise<CrossoverMatchView> {
-  const model = await modelById(db, input.modelId);
-  checkLimit(model, input.limitDb);
-  const bands = thirdOctaveBands(model.responseMinHz, model.responseMaxHz);
-  const boards = await db
+/** A model's boards free to pair: passed their check and in stock, in no open matched set and held by no service case. */
+export function freeBoards(db: DbOrTx, modelId: string) {
+  return db
     .select({ id: items.id, identity: items.identity })
     .from(items)
     .where(
       and(
         eq(items.kind, "crossover"),
-        eq(items.modelId, model.id),
+        eq(items.modelId, modelId),
         eq(items.state, "in_stock"),
         sql`NOT EXISTS (SELECT 1 FROM ${setMembers} sm WHERE sm.item_id = ${items.id} AND sm.ended_at IS NULL)`,
+        sql`NOT EXISTS (SELECT 1 FROM ${caseReservations} cr WHERE cr.item_id = ${items.id} AND cr.ended_at IS NULL)`,
       ),
     )
     .orderBy(asc(items.identity));
+}
+
+/**
+ * Boards as pairing takes them: band levels over `bands` from each board's newest response; a
+ * board with none (or one that does not cover the bands) is not ready, with the reason.
+ */
+export async function boardUnitsOf(db: DbOrTx, boards: { id: string; identity: string }[], bands: ReturnType<typeof thirdOctaveBands>): Promise<Pick<CrossoverMatchView, "units" | "notReady">> {
   const ids = boards.map((b) => b.id);
   const latest = ids.length
     ? await db
@@ -453,6 +455,19 @@ export async function matchCrossovers(db: DbOrTx, input: { modelId: string; limi
       notReady.push({ identity: b.identity, reason: (e as Error).message });
     }
   }
+  return { units, notReady };
+}
+
+/**
+ * The optimal plan for a model's boards that passed their check, have a response and are in no
+ * open set: band levels over the model's response range in one-third octaves, then `planPairs`.
+ */
+export async function matchCrossovers(db: DbOrTx, input: { modelId: string; limitDb: number }): Promise<CrossoverMatchView> {
+  const model = await modelById(db, input.modelId);
+  checkLimit(model, input.limitDb);
+  const bands = thirdOctaveBands(model.responseMinHz, model.responseMaxHz);
+  const boards = await freeBoards(db, model.id);
+  const { units, notReady } = await boardUnitsOf(db, boards, bands);
   const plan = planPairs(units, { limitDb: input.limitDb, bandLabels: bands.map((b) => bandLabel(b.nominal)) });
   return { model, bands, units, notReady, plan, limitDb: input.limitDb };
 }
@@ -479,14 +494,23 @@ export async function acceptCrossoverPlan(db: DbOrTx, input: { modelId: string; 
   if (!input.pairs.length) throw new AppError(400, "The plan has no pair to accept.");
   const ids = input.pairs.flatMap((p) => [p.a, p.b]);
   if (new Set(ids).size !== ids.length) throw new AppError(400, "A board appears in two pairs of the plan.");
-  const held = async (h: DbOrTx) =>
-    (
+  const held = async (h: DbOrTx) => [
+    ...(
       await h
         .select({ identity: items.identity })
         .from(setMembers)
         .innerJoin(items, eq(items.id, setMembers.itemId))
         .where(and(inArray(items.identity, ids), isNull(setMembers.endedAt)))
-    ).map((r) => r.identity);
+    ).map((r) => r.identity),
+    // Held by a service case (migration 0027 refuses a set for it).
+    ...(
+      await h
+        .select({ identity: items.identity })
+        .from(caseReservations)
+        .innerJoin(items, eq(items.id, caseReservations.itemId))
+        .where(and(inArray(items.identity, ids), isNull(caseReservations.endedAt)))
+    ).map((r) => r.identity),
+  ];
   try {
     return await db.transaction(async (tx) => {
       const view = await matchCrossovers(tx, { modelId: model.id, limitDb: input.limitDb });

@@ -2,7 +2,7 @@ import "server-only";
 import type { LabActor } from "@/lib/vocabulary/actor";
 import { and, asc, desc, eq, inArray, isNull, like, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
-import { batchUnits, items, matchedSets, modelTolerances, models, responses, setMembers, tsParams, unitBatches, type Item } from "@/db/schema";
+import { batchUnits, caseReservations, items, matchedSets, modelTolerances, models, responses, serviceCases, setMembers, tsParams, unitBatches, type Item } from "@/db/schema";
 import { partWord, type PartType } from "@/lib/vocabulary/part-types";
 import { AppError, isConstraintError } from "@/lib/auth/errors";
 import { now } from "@/lib/clock";
@@ -120,9 +120,11 @@ export interface UnitRow {
   vasL: number | null;
   sensitivityDb: number | null;
   setCode: string | null;
+  /** The service case that holds it for a repair, if one does. */
+  caseCode: string | null;
 }
 
-/** A batch's units with their newest response and Thiele–Small set, and the set that holds them. */
+/** A batch's units with their newest response and Thiele–Small set, and the set or service case that holds them. */
 export async function batchUnitsView(db: DbOrTx, batchId: string, opts: { withPoints?: boolean } = {}): Promise<UnitRow[]> {
   const rows = await db
     .select({ id: items.id, identity: items.identity, state: items.state, makerSerial: batchUnits.makerSerial })
@@ -130,6 +132,38 @@ export async function batchUnitsView(db: DbOrTx, batchId: string, opts: { withPo
     .innerJoin(items, eq(items.id, batchUnits.itemId))
     .where(eq(batchUnits.batchId, batchId))
     .orderBy(asc(items.identity));
+  return unitRowsOf(db, rows, opts);
+}
+
+/**
+ * Drive units of a part type free to match, from every batch: measured (or back in stock), held
+ * by no open matched set and by no open service-case reservation. The service desk ranks
+ * replacements from these with the lab's own loading (`unitRowsOf`, `matchUnitsOf`).
+ */
+export async function freeUnitRows(db: DbOrTx, partType: PartType, opts: { withPoints?: boolean } = {}): Promise<UnitRow[]> {
+  const rows = await db
+    .select({ id: items.id, identity: items.identity, state: items.state, makerSerial: batchUnits.makerSerial })
+    .from(items)
+    .leftJoin(batchUnits, eq(batchUnits.itemId, items.id))
+    .where(
+      and(
+        eq(items.kind, "drive_unit"),
+        eq(items.partType, partType),
+        inArray(items.state, ["measured", "in_stock"]),
+        sql`NOT EXISTS (SELECT 1 FROM ${setMembers} sm WHERE sm.item_id = ${items.id} AND sm.ended_at IS NULL)`,
+        sql`NOT EXISTS (SELECT 1 FROM ${caseReservations} cr WHERE cr.item_id = ${items.id} AND cr.ended_at IS NULL)`,
+      ),
+    )
+    .orderBy(asc(items.identity));
+  return unitRowsOf(db, rows, opts);
+}
+
+/** Units (any state) with their newest response and Thiele–Small set, and the set or service case that holds them now. */
+export async function unitRowsOf(
+  db: DbOrTx,
+  rows: { id: string; identity: string; state: string; makerSerial: string | null }[],
+  opts: { withPoints?: boolean } = {},
+): Promise<UnitRow[]> {
   const ids = rows.map((r) => r.id);
   if (!ids.length) return [];
   const latestResponse = await db
@@ -145,6 +179,11 @@ export async function batchUnitsView(db: DbOrTx, batchId: string, opts: { withPo
     .from(setMembers)
     .innerJoin(matchedSets, eq(matchedSets.id, setMembers.setId))
     .where(and(inArray(setMembers.itemId, ids), isNull(setMembers.endedAt)));
+  const cases = await db
+    .select({ itemId: caseReservations.itemId, code: serviceCases.code })
+    .from(caseReservations)
+    .innerJoin(serviceCases, eq(serviceCases.id, caseReservations.caseId))
+    .where(and(inArray(caseReservations.itemId, ids), isNull(caseReservations.endedAt)));
   return rows.map((r) => {
     const resp = latestResponse.find((x) => x.itemId === r.id);
     const ts = latestTs.find((x) => x.itemId === r.id);
@@ -161,6 +200,7 @@ export async function batchUnitsView(db: DbOrTx, batchId: string, opts: { withPo
       vasL: ts?.vasL ?? null,
       sensitivityDb: ts?.sensitivityDb ?? null,
       setCode: sets.find((s) => s.itemId === r.id)?.code ?? null,
+      caseCode: cases.find((c) => c.itemId === r.id)?.code ?? null,
     };
   });
 }
@@ -428,22 +468,14 @@ export interface MatchView {
 }
 
 /**
- * The optimal plan for a batch's measured, unreserved units against a model's limit for the part
- * type, on one-third-octave bands over the part type's passband.
+ * Units as matching takes them: band levels over `bands` from each row's newest response, with Fs
+ * and Qts where measured; a unit with no response (or one that does not cover the bands) is not
+ * ready, with the reason. Needs rows read `withPoints`.
  */
-export async function matchBatch(db: DbOrTx, batch: { id: string; partType: PartType }, opts: { limitDb: number; fsWeight?: number; qtsWeight?: number }): Promise<MatchView> {
-  const pass = PASSBANDS[batch.partType];
-  const bands = thirdOctaveBands(pass.minHz, pass.maxHz);
-  const rows = await batchUnitsView(db, batch.id, { withPoints: true });
+export function matchUnitsOf(rows: UnitRow[], bands: ReturnType<typeof thirdOctaveBands>): { units: MatchView["units"]; notReady: MatchView["notReady"] } {
   const units: MatchView["units"] = [];
   const notReady: MatchView["notReady"] = [];
   for (const r of rows) {
-    if (r.setCode) continue;
-    if (r.state === "failed") {
-      notReady.push({ identity: r.identity, reason: "failed on the bench" });
-      continue;
-    }
-    if (r.state !== "measured" && r.state !== "in_stock") continue;
     if (!r.points) {
       notReady.push({ identity: r.identity, reason: "no response measured yet" });
       continue;
@@ -455,6 +487,31 @@ export async function matchBatch(db: DbOrTx, batch: { id: string; partType: Part
       notReady.push({ identity: r.identity, reason: (e as Error).message });
     }
   }
+  return { units, notReady };
+}
+
+/**
+ * The optimal plan for a batch's measured, unreserved units against a model's limit for the part
+ * type, on one-third-octave bands over the part type's passband.
+ */
+export async function matchBatch(db: DbOrTx, batch: { id: string; partType: PartType }, opts: { limitDb: number; fsWeight?: number; qtsWeight?: number }): Promise<MatchView> {
+  const pass = PASSBANDS[batch.partType];
+  const bands = thirdOctaveBands(pass.minHz, pass.maxHz);
+  const rows = await batchUnitsView(db, batch.id, { withPoints: true });
+  const notReady: MatchView["notReady"] = [];
+  const ready: UnitRow[] = [];
+  for (const r of rows) {
+    if (r.setCode || r.caseCode) continue;
+    if (r.state === "failed") {
+      notReady.push({ identity: r.identity, reason: "failed on the bench" });
+      continue;
+    }
+    if (r.state !== "measured" && r.state !== "in_stock") continue;
+    ready.push(r);
+  }
+  const read = matchUnitsOf(ready, bands);
+  const units = read.units;
+  notReady.push(...read.notReady);
   const plan = planPairs(units, { ...opts, bandLabels: bands.map((b) => bandLabel(b.nominal)) });
   return { bands, units, notReady, plan, limitDb: opts.limitDb };
 }
@@ -477,7 +534,7 @@ export async function matchReadiness(db: DbOrTx, batch: { id: string; partType: 
   const limits = await modelsTakingPartType(db, batch.partType);
   const loosest = limits.sort((a, b) => b.limit - a.limit)[0];
   if (!loosest) {
-    const free = (await batchUnitsView(db, batch.id)).filter((u) => !u.setCode && (u.state === "measured" || u.state === "in_stock") && u.responseId !== null).length;
+    const free = (await batchUnitsView(db, batch.id)).filter((u) => !u.setCode && !u.caseCode && (u.state === "measured" || u.state === "in_stock") && u.responseId !== null).length;
     return { free, canMatch: false, why: free >= 2 ? `No model in production has a mismatch limit for ${partWord(batch.partType)}s, so there is nothing to match them against.` : null };
   }
   const view = await matchBatch(db, batch, { limitDb: loosest.limit });
@@ -558,7 +615,9 @@ export async function acceptPlan(
     if (e instanceof AppError) throw e;
     if (isConstraintError(e, "UNIQUE")) {
       const held = await db.select({ identity: items.identity }).from(setMembers).innerJoin(items, eq(items.id, setMembers.itemId)).where(and(inArray(items.identity, ids), isNull(setMembers.endedAt)));
-      throw new UnitsTakenError(held.map((h) => h.identity));
+      // A service case may have taken one meanwhile (migration 0027 refuses the set then).
+      const forCases = await db.select({ identity: items.identity }).from(caseReservations).innerJoin(items, eq(items.id, caseReservations.itemId)).where(and(inArray(items.identity, ids), isNull(caseReservations.endedAt)));
+      throw new UnitsTakenError([...held, ...forCases].map((h) => h.identity));
     }
     throw e;
   }
@@ -593,7 +652,8 @@ export async function listBatches(db: DbOrTx): Promise<(typeof unitBatches.$infe
     db.select().from(unitBatches).orderBy(desc(unitBatches.receivedOn), desc(unitBatches.code)),
     db.all<{ batchId: string; state: string; inOpenSet: number; n: number }>(sql`
       SELECT bu.batch_id AS batchId, i.state AS state,
-        EXISTS (SELECT 1 FROM set_members sm WHERE sm.item_id = i.id AND sm.ended_at IS NULL) AS inOpenSet,
+        (EXISTS (SELECT 1 FROM set_members sm WHERE sm.item_id = i.id AND sm.ended_at IS NULL)
+          OR EXISTS (SELECT 1 FROM case_reservations cr WHERE cr.item_id = i.id AND cr.ended_at IS NULL)) AS inOpenSet,
         count(*) AS n
       FROM batch_units bu JOIN items i ON i.id = bu.item_id
       GROUP BY bu.batch_id, i.state, inOpenSet`),

@@ -83,6 +83,7 @@ const ASSEMBLY = "PRODUCT.md, assembly: builds each speaker of a pair from its c
 const ASSEMBLY_LACQUER = "PRODUCT.md, finish: a lacquer pair's two cabinets are paired later, at assembly.";
 const PACKING = "PRODUCT.md, packing: final clean check, prints the pair certificate and carton label, packs, ships to a dealer.";
 const SERVICE = "PRODUCT.md, service: opens a service case for a returned serial … ships it back.";
+const SERVICE_PARTS = "PRODUCT.md, service: picks a matched replacement and records the repair (reserving stock, fitting it, the case repaired).";
 const QUALITY = "PRODUCT.md, quality: dispositions nonconformances, records deviations and corrections.";
 const REPARTNER =
   "PRODUCT.md, quality: dispositions nonconformances; a scrapped cabinet's new partner is part of that disposition.";
@@ -90,6 +91,11 @@ const PUBLIC_AUTH = "Signing in, a forgotten password and an invitation come bef
 
 /** Server actions, as "file#export". */
 export const ACTIONS: Record<string, Access> = {
+  "app/(workshop)/service/cases/[code]/replace/actions.ts#reserveAction": { may: ["service"], why: SERVICE_PARTS },
+  "app/(workshop)/service/cases/[code]/replace/actions.ts#reserveSetAction": { may: ["service"], why: SERVICE_PARTS },
+  "app/(workshop)/service/cases/[code]/replace/actions.ts#releaseAction": { may: ["service"], why: SERVICE_PARTS },
+  "app/(workshop)/service/cases/[code]/replace/actions.ts#fitAction": { may: ["service"], why: SERVICE_PARTS },
+  "app/(workshop)/service/cases/[code]/replace/actions.ts#markRepairedAction": { may: ["service"], why: SERVICE_PARTS },
   "app/(auth)/sign-in/actions.ts#signInAction": { may: "public", why: PUBLIC_AUTH },
   "app/(auth)/reset/actions.ts#requestResetAction": { may: "public", why: PUBLIC_AUTH },
   "app/(auth)/reset/actions.ts#resetPasswordAction": { may: "public", why: PUBLIC_AUTH },
@@ -184,6 +190,7 @@ export const ROUTES: Record<string, RouteAccess> = {
   "POST /api/v1/service/cases/[code]": { may: ["service"], why: `${SERVICE} Photos of what came back, through lib/uploads.` },
   "POST /api/v1/veneer/photos": { may: ["veneer"], why: `${VENEER} PRODUCT.md, what it records: flitch … photos.` },
 
+  "GET /api/v1/service/cases/[code]/replacements": { may: SIGNED_IN, why: `${READ} The issue's JSON API: reads of the service desk need register.read.` },
   "GET /api/v1/lab/whoami": { may: ["lab"], labToken: true, why: LAB_BENCH },
   "GET /api/v1/lab/batches/[code]": { may: ["lab"], labToken: true, why: `${LAB_UNITS} ${LAB_BENCH}` },
   "POST /api/v1/lab/responses": { may: ["lab"], labToken: true, why: `${LAB_UNITS} ${LAB_BENCH}` },
@@ -248,6 +255,7 @@ export const PAGES: Record<string, PageAccess> = {
   "/service/cases/[code]/retest": { may: ["service"], why: `${SERVICE} The repaired pair takes its final test again at the desk.`, sample: "case" },
   "/service/cases/new": { may: ["service"], why: SERVICE },
   "/service/cases/[code]": { may: ["service"], why: `${SERVICE} The case page holds the desk's forms, so it stays in the service area.`, sample: "case" },
+  "/service/cases/[code]/replace": { may: ["service"], why: SERVICE_PARTS, sample: "case" },
   "/quality": { may: ["quality"], why: QUALITY },
 
   "/admin": { may: ["admin"], why: "PRODUCT.md, admin: users and roles, models, … machine tokens." },

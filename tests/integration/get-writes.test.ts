@@ -12,6 +12,9 @@ import { fileURLToPath } from "node:url";
 import { sql } from "drizzle-orm";
 import { beforeAll, describe, expect, test } from "vitest";
 import { getDb } from "@/db";
+import { serviceCases } from "@/db/schema";
+import { newId } from "@/lib/auth/tokens";
+import { appendEvent } from "@/lib/events/queries";
 import { seedDemo } from "@/db/seed/seed";
 import { createMachineToken } from "@/lib/auth/machine-tokens";
 import { ROLES } from "@/lib/auth/roles";
@@ -35,6 +38,10 @@ const people = new Map<string, string>();
 /** Real values for each dynamic segment, by its name; each route is called with every combination. */
 const values: Record<string, string[]> = {};
 let benchToken = "";
+/** The query a route needs to reach its body (its other calls are refused with 400, which is fine too). */
+const QUERIES: Record<string, string> = {
+  "app/api/v1/service/cases/[code]/replacements/route.ts": "side=L&position=T",
+};
 
 async function snapshot(): Promise<Record<string, string>> {
   const tables = await db().all<{ name: string }>(sql`SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' AND name NOT LIKE '__drizzle%' ORDER BY name`);
@@ -84,7 +91,8 @@ function targets(file: string): { url: string; params: Record<string, string> }[
     const options = m ? (values[m[1]!]?.length ? values[m[1]!]! : ["walk-probe"]) : [s];
     out = out.flatMap((t) => options.map((v) => ({ path: [...t.path, m ? encodeURIComponent(v) : v], params: m ? { ...t.params, [m[1]!]: encodeURIComponent(v) } : t.params })));
   }
-  return out.map((t) => ({ url: `${BASE}/${t.path.join("/")}`, params: t.params }));
+  const query = QUERIES[file] ? `?${QUERIES[file]}` : "";
+  return out.map((t) => ({ url: `${BASE}/${t.path.join("/")}${query}`, params: t.params }));
 }
 
 const getRoutes = await Promise.all(
