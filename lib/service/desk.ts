@@ -1,6 +1,7 @@
 /** What the desk does to an open case: findings, moves (with their owner messages), photos. */
 import "server-only";
 import { refundForCancelledCase } from "@/lib/payments/refunds";
+import { releaseAllOfCase } from "./replacements";
 import type { DbOrTx } from "@/db";
 import { caseFindings, type CaseFinding, type ServiceCase } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
@@ -98,6 +99,8 @@ export async function changeCaseState(
     if (kind) {
       await queueOwnerMessage(tx, { case: moved, kind, eventId: moved.moveEventId, inWarranty: warranty?.inWarranty, quote: input.quote ?? null });
     }
+    // A cancelled case gives back the stock it held, in the same step.
+    if (input.to === "cancelled") await releaseAllOfCase(tx, c.id, actor);
     return moved;
   });
   // A case cancelled after the owner paid is refunded through the payment service, once the
