@@ -133,6 +133,7 @@ export const ACTIONS: Record<string, Access> = {
   "app/(workshop)/lab/crossovers/actions.ts#acceptCrossoverPlanAction": { may: ["lab"], why: LAB_UNITS },
   "app/(workshop)/lab/final-test/actions.ts#finalTestAction": { may: ["lab"], why: LAB_FINAL },
   "app/(workshop)/service/cases/[code]/retest/actions.ts#retestAction": { may: ["service"], why: `${SERVICE} The repaired pair takes its final test again at the desk (issue 13, § 7).` },
+  "app/(workshop)/service/cases/[code]/return/actions.ts#sendBackAction": { may: ["service"], why: `${SERVICE} The tested speaker is packed and shipped back to its owner or dealer (issue 13, § 10).` },
 
   "app/(workshop)/assembly/actions.ts#openPairAction": { may: ["assembly"], why: ASSEMBLY },
   "app/(workshop)/assembly/actions.ts#checkScanAction": { may: ["assembly"], why: ASSEMBLY },
@@ -253,6 +254,7 @@ export const PAGES: Record<string, PageAccess> = {
 
   "/service": { may: ["service"], why: SERVICE },
   "/service/cases/[code]/retest": { may: ["service"], why: `${SERVICE} The repaired pair takes its final test again at the desk.`, sample: "case" },
+  "/service/cases/[code]/return": { may: ["service"], why: `${SERVICE} The tested speaker is packed and shipped back to its owner or dealer.`, sample: "case" },
   "/service/cases/new": { may: ["service"], why: SERVICE },
   "/service/cases/[code]": { may: ["service"], why: `${SERVICE} The case page holds the desk's forms, so it stays in the service area.`, sample: "case" },
   "/service/cases/[code]/replace": { may: ["service"], why: SERVICE_PARTS, sample: "case" },

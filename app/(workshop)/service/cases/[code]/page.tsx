@@ -19,6 +19,7 @@ import { listUploads } from "@/lib/uploads";
 import { DESK_MOVES, FINDING_STATES } from "@/lib/service/desk";
 import { CASE_MESSAGE_WORDS, OWNER_MAIL_WORDS } from "@/lib/service/messages";
 import { caseByCode, caseHistory, caseMessages, caseParticulars, caseTraces, findingsOf } from "@/lib/service/queries";
+import { caseReturnOf } from "@/lib/service/return";
 import { warrantyWorking } from "@/lib/service/warranty";
 import { CASE_STATE_WORDS, CASE_TRANSITIONS, OPEN_CASE_STATES, type CaseState } from "@/lib/vocabulary/case-states";
 import { kindLabel } from "@/lib/vocabulary/item-kinds";
@@ -54,7 +55,14 @@ export default async function CasePage({ params }: { params: Promise<{ code: str
   const db = getDb();
   const c = await caseByCode(db, pageParam((await params).code));
   if (!c) notFound();
-  const [p, findings, history, traces, photos] = await Promise.all([caseParticulars(db, c), findingsOf(db, c.id), caseHistory(db, c.id), caseTraces(db, c), listUploads(db, { kind: "case", id: c.id })]);
+  const [p, findings, history, traces, photos, sent] = await Promise.all([
+    caseParticulars(db, c),
+    findingsOf(db, c.id),
+    caseHistory(db, c.id),
+    caseTraces(db, c),
+    listUploads(db, { kind: "case", id: c.id }),
+    caseReturnOf(db, c.id),
+  ]);
   const messages = await caseMessages(db, c.id, history);
   const day = (iso: string) => formatCalendarDay(iso, new Date(0));
   const open = (OPEN_CASE_STATES as readonly string[]).includes(c.state);
@@ -148,6 +156,17 @@ export default async function CasePage({ params }: { params: Promise<{ code: str
           {!open ? <p>This case is {CASE_STATE_WORDS[c.state].toLowerCase()}: nothing more is done on it.</p> : null}
         </div>
       </Panel>
+
+      {sent ? (
+        <Panel title="On its way home">
+          <p data-testid="case-return">
+            {`Packed in carton ${sent.carton} and shipped to ${sent.sentTo} on ${day(sent.shippedOn)} with ${sent.carrier}, tracking ${sent.tracking} (shipment ${sent.shipment}).`}{" "}
+            <Link className="text-leaf-dark underline" href={paths.serviceReturn(c.code)}>
+              The shipment
+            </Link>
+          </p>
+        </Panel>
+      ) : null}
 
       <Panel title="Diagnosis">
         <div className="flex flex-col gap-4">
