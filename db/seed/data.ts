@@ -38,8 +38,8 @@ export interface SeedUser {
 export const SEED_MODELS: SeedModel[] = [
   {
     code: "PW2",
-    // The workshop's own choice for the stand-mount: two years (demo).
-    warrantyMonths: 24,
+    // The workshop's own choice for the stand-mount: one year (demo).
+    warrantyMonths: 12,
     name: "Pennywort 2",
     // Two-way stand-mount, cabinet 380 × 230 × 300 mm: two leaves per side panel.
     leavesPerFace: 2,

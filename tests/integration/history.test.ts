@@ -3,7 +3,7 @@ import { and, desc, eq, inArray, isNull, sql } from "drizzle-orm";
 import { beforeAll, describe, expect, onTestFinished, test } from "vitest";
 import { getDb, openDb } from "@/db";
 import { migrateDatabase } from "@/db/migrate";
-import { certificates, events, items, links, modelTolerances, models, outbox, responses, unitBatches } from "@/db/schema";
+import { certificateRevisions, certificates, events, items, links, modelTolerances, models, outbox, responses, serviceCases, unitBatches } from "@/db/schema";
 import { seedHistory } from "@/db/seed/history";
 import { seedDemo, type SeedResult } from "@/db/seed/seed";
 import { bandLevels, thirdOctaveBands } from "@/lib/acoustics";
@@ -18,9 +18,12 @@ import { crossoverBoards } from "@/lib/lab/crossovers";
 import { latestFinalTest, pairsAwaitingTest } from "@/lib/lab/final-test";
 import { batchUnitsView, listBatches, matchBatch, openSets, PASSBANDS } from "@/lib/lab/units";
 import { pairCost } from "@/lib/matching";
+import { currentQuote } from "@/lib/payments/quotes";
 import { dispositionedNonconformances, ncsToDisposition } from "@/lib/route/nonconformances";
 import { pairRoute } from "@/lib/route/pair-route";
 import { shopPairs } from "@/lib/route/shop";
+import { warrantyFacts } from "@/lib/service/queries";
+import { caseReturnOf } from "@/lib/service/return";
 import { parseLeafIdentity, parseSerial, SERIAL_KIND_LETTERS, type SerialKind } from "@/lib/serials";
 import { flitchView, listFlitches, planView, specFor } from "@/lib/veneer/flitches";
 import type { PartType } from "@/lib/vocabulary/part-types";
@@ -109,13 +112,21 @@ describe("the seeded production history", () => {
   });
 
   test("the repaired speaker shows the failed tweeter as an ended link and the stock replacement as the open one", async () => {
-    // Units failed on the bench were never fitted; one failed in service.
-    const failed = await db()
+    // Units failed on the bench were never fitted; tweeters failed in service: the history's one
+    // (its removal note), and those the desk's demo cases replaced (db/seed/history/cases.ts).
+    const inService = await db()
       .select()
       .from(items)
       .where(and(eq(items.kind, "drive_unit"), eq(items.state, "failed"), sql`EXISTS (SELECT 1 FROM links l WHERE l.child_id = ${items.id})`));
+    expect(inService.every((u) => u.partType === "tweeter")).toBe(true);
+    const [deskRepairs] = await db().all<{ n: number }>(sql`SELECT count(*) AS n FROM events WHERE type = 'link.removed' AND station = 'service' AND json_extract(data, '$.replacedBy') IS NOT NULL`);
+    const failed = [];
+    for (const u of inService) {
+      const [l] = await db().select({ reason: events.reason }).from(links).innerJoin(events, eq(events.id, links.removeEventId)).where(eq(links.childId, u.id));
+      if (l?.reason === "no output above 3 kHz") failed.push(u);
+    }
     expect(failed).toHaveLength(1);
-    expect(failed[0]!.partType).toBe("tweeter");
+    expect(inService.length - 1).toBe(Number(deskRepairs!.n));
 
     const [old] = await db().select().from(links).where(eq(links.childId, failed[0]!.id));
     expect(old!.position).toBe("T");
@@ -279,12 +290,33 @@ async function levelsOf(identity: string, bands: ReturnType<typeof thirdOctaveBa
   return bandLevels(row!.points.map(([hz, level]) => ({ hz: hz!, db: level! })), bands);
 }
 
+describe("the service desk's demo cases", () => {
+  test("cases in several states: in warranty waiting for a part, out of warranty waiting for payment with a quote, re-tested with a revised certificate, closed", async () => {
+    const cases = await db().select().from(serviceCases).orderBy(serviceCases.openedAt);
+    const states = cases.map((c) => c.state);
+    for (const s of ["received", "diagnosed", "waiting_part", "waiting_payment", "tested", "closed"]) expect(states, s).toContain(s);
+    const waitingPart = cases.find((c) => c.state === "waiting_part")!;
+    expect((await warrantyFacts(db(), waitingPart))?.inWarranty).toBe(true);
+    const waitingPayment = cases.find((c) => c.state === "waiting_payment")!;
+    expect((await warrantyFacts(db(), waitingPayment))?.inWarranty).toBe(false);
+    expect(await currentQuote(db(), waitingPayment.id)).not.toBeNull();
+    const tested = cases.find((c) => c.state === "tested")!;
+    const revisions = await db().select().from(certificateRevisions).where(eq(certificateRevisions.caseId, tested.id));
+    expect(revisions.map((r) => r.revision)).toEqual([2]);
+    const closed = cases.find((c) => c.state === "closed")!;
+    expect(await caseReturnOf(db(), closed.id)).toMatchObject({ to: "dealer" });
+    // The demo's owners did not agree to be contacted: no message to them is queued.
+    const [mails] = await db().all<{ n: number }>(sql`SELECT count(*) AS n FROM outbox o JOIN events e ON e.id = o.event_id WHERE e.subject_kind = 'case'`);
+    expect(Number(mails!.n)).toBe(0);
+  });
+});
+
 describe("the demo tells the truth", () => {
   test("every shipped pair's certificate prints a match figure at every position and the crossover, recomputed from the stored responses", async () => {
     const shipped = await db().select().from(items).where(and(eq(items.kind, "pair"), eq(items.state, "shipped")));
     expect(shipped.length).toBeGreaterThan(40);
-    // The one repaired position: its replacement was chosen against the survivor, in no matched set.
-    const [repaired] = await db().all<{ pair: string; position: string }>(sql`
+    // The repaired positions: each replacement was chosen against the survivor, in no matched set.
+    const repaired = await db().all<{ pair: string; position: string }>(sql`
       SELECT pl.parent_id AS pair, l.position FROM links l JOIN items u ON u.id = l.child_id AND u.state = 'failed'
       JOIN links pl ON pl.child_id = l.parent_id AND pl.ended_at IS NULL WHERE l.ended_at IS NOT NULL`);
     let figures = 0;
@@ -294,7 +326,7 @@ describe("the demo tells the truth", () => {
       const limits = await db().select().from(modelTolerances).where(eq(modelTolerances.modelId, model!.id));
       expect(data.positions.length, pair.identity).toBeGreaterThanOrEqual(3);
       for (const row of data.positions) {
-        if (repaired && pair.id === repaired.pair && row.position === repaired.position) {
+        if (repaired.some((r) => pair.id === r.pair && row.position === r.position)) {
           expect(row.match, `${pair.identity} ${row.position}`).toBeNull();
           continue;
         }

@@ -18,6 +18,7 @@ import { planPacking, planShipments } from "./dispatch";
 import { MakerSerials, planLabToday, planUnitBatches } from "./lab";
 import { Plan, type Ctx } from "./plan";
 import { loadReference } from "./reference";
+import { planCases } from "./cases";
 import { planOwners, planRepair } from "./service";
 import { planFlitches, planFreshFlitch } from "./veneer";
 import { planWorld } from "./world";
@@ -114,6 +115,7 @@ export async function seedHistory(db: Db, options: { now?: Date; seed?: number; 
   planShipments(plan, stage(), world.shipments);
   const repaired = planRepair(plan, stage(), world.pairs, now);
   planOwners(plan, stage(), world.pairs, repaired, now);
+  planCases(plan, stage(), world.pairs, repaired, now);
 
   const before = await tally(db);
   const ctx: Ctx = { db, ref, items: new Map(), sets: new Map(), batches: new Map(), notes: new Map() };

@@ -14,6 +14,8 @@ export interface RefModel {
   minLeafLengthMm: number;
   minLeafWidthMm: number;
   pairResponseLimitDb: number;
+  /** The model's warranty period (the service desk's demo cases pick pairs in and out of it). */
+  warrantyMonths: number;
   responseMinHz: number;
   responseMaxHz: number;
   /** One row per unit a speaker takes, by position code ("T", "B1"…), tweeter first. */
@@ -58,6 +60,7 @@ export async function loadReference(db: Db): Promise<Reference | null> {
     models: modelRows.map((m) => ({
       id: m.id,
       code: m.code,
+      warrantyMonths: m.warrantyMonths,
       leavesPerFace: m.leavesPerFace,
       minLeafLengthMm: m.minLeafLengthMm,
       minLeafWidthMm: m.minLeafWidthMm,
