@@ -104,8 +104,10 @@ export function planCases(plan: Plan, rng: Rng, pairs: PairPlan[], repaired: Pai
       });
       return;
     }
-    // Repaired from stock two days in, re-tested the next day.
-    plan.add(workday(opened, 2, 10), `the repair of ${p.key}`, async (ctx) => {
+    // Repaired from stock two days in, late in the day: the lab measures its batches in the
+    // morning, and a unit is fitted only once its Thiele–Small parameters are in. Re-tested next day.
+    const repairAt = workday(opened, 2, 17);
+    plan.add(repairAt, `the repair of ${p.key}`, async (ctx) => {
       const view = await replacementView(ctx.db, { code: code(ctx), side, position: "T" });
       const best = view.candidates[0];
       if (!best) throw new Error(`history seed: no stock tweeter matches the survivor in ${p.key}`);
@@ -113,18 +115,18 @@ export function planCases(plan: Plan, rng: Rng, pairs: PairPlan[], repaired: Pai
       await fitReplacement(ctx.db, { code: code(ctx), side, position: "T", disposition: "failed", reason: "Voice coil open circuit." }, desk(ctx));
       await markRepaired(ctx.db, { code: code(ctx) }, desk(ctx));
     });
-    plan.add(workday(opened, 3, 11), `the re-test of ${p.key}`, async (ctx) => {
+    plan.add(workday(repairAt, 1, 11), `the re-test of ${p.key}`, async (ctx) => {
       const files = await finalTestFiles(ctx, got(ctx, p.key).id);
       const r = await retestCase(ctx.db, { code: code(ctx), ...files }, desk(ctx));
       if (!r.revision) throw new Error(`history seed: the re-test of ${p.key} failed`);
     });
     if (story.step === "tested") return;
-    const left = workday(opened, 4, 15);
+    const left = workday(repairAt, 2, 15);
     const tracking = `FW ${rng.int(100000, 999999)}`;
     plan.add(left, `${p.key} sent back`, async (ctx) => {
       await sendCaseBack(ctx.db, { code: code(ctx), to: "dealer", shippedOn: workshopDay(left), carrier: "Fernway Freight", tracking }, desk(ctx));
     });
-    plan.add(workday(opened, 9, 10), `${p.key} closed`, async (ctx) => {
+    plan.add(workday(repairAt, 7, 10), `${p.key} closed`, async (ctx) => {
       await changeCaseState(ctx.db, { code: code(ctx), to: "closed", reason: "The dealer confirmed delivery." }, desk(ctx));
     });
   });
