@@ -1,7 +1,7 @@
 /**
  * Every page and every route handler of the built server, asked for as every role, signed out,
  * with a session cookie that names no session, and with a lab test bench's machine token; each
- * answer is compared with the hand-written table in tests/access/table.ts (never with the
+ * answer is compared with the hand-written table in tests/fixtures/access/table.ts (never with the
  * permission map). Pages: let in → 200 and the page; refused → 403 and the forbidden page;
  * signed out → sent to sign-in. Routes: let in → neither 401 nor 403; refused → exactly 401 or
  * 403 in JSON. Nothing any of these requests does may write to the register.
@@ -14,9 +14,9 @@ import { AREAS } from "@/lib/areas";
 import { createMachineToken, revokeMachineToken } from "@/lib/auth/machine-tokens";
 import { ROLES, type Role } from "@/lib/auth/roles";
 import { requestPasswordReset } from "@/lib/users/queries";
-import { fillPath, paramsOf } from "../access/discover";
-import { snapshot } from "../access/snapshot";
-import { expectedToday, lets, PAGES, ROUTES, type PageAccess, type RouteAccess, type Sample } from "../access/table";
+import { fillPath, paramsOf } from "../fixtures/access/discover";
+import { snapshot } from "../fixtures/access/snapshot";
+import { expectedToday, lets, PAGES, ROUTES, type PageAccess, type RouteAccess, type Sample } from "../fixtures/access/table";
 import { demoEmail, launchBrowser, newPage, signIn, url, visit, waitForMail } from "./browser-helpers";
 
 const { client, db } = openDb(inject("databaseUrl"));
