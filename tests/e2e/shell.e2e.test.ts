@@ -16,6 +16,8 @@ import { paths } from "@/lib/paths";
 import { demoEmail, launchBrowser, signIn, url, visit } from "./browser-helpers";
 
 const WIDTHS = [390, 800, 1280] as const;
+/** `E2E_SCREENSHOTS=1` saves every page at every width under .tmp/screenshots. */
+const SCREENSHOTS = process.env.E2E_SCREENSHOTS === "1";
 /** Below this the areas fold behind their button (Tailwind's lg, components/shell/area-navigation.tsx). */
 const SIDEBAR_FROM = 1024;
 const SHOTS = join(process.cwd(), ".tmp/screenshots");
@@ -165,7 +167,8 @@ describe.each(ROLES)("the %s user", (role) => {
         const res = await visit(page, url(path));
         expect(res?.status(), path).toBe(200);
         await page.waitForFunction(() => document.title.length > 0);
-        await page.screenshot({ path: join(SHOTS, `${role}-${width}-${slug(path)}.jpeg`), fullPage: true, type: "jpeg", quality: 70 });
+        // Pictures for people to look at, when asked for: they cost more than the checks.
+        if (SCREENSHOTS) await page.screenshot({ path: join(SHOTS, `${role}-${width}-${slug(path)}.jpeg`), fullPage: true, type: "jpeg", quality: 70 });
         const found = [...(await problemsOn(page)), ...(await headerProblems(page, width))];
         problems.push(...found.map((p) => `${width} px, ${path}: ${p}`));
         await checkNavigation(page, width, path);

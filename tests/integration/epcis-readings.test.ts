@@ -1,7 +1,7 @@
 /**
  * The readings the register records, made by the register's own code (the cabinet route, the lab's
  * Thiele–Small form, a crossover board's build), exported as EPCIS 2.0 sensor reports and validated
- * against GS1's EPCIS 2.0 JSON Schema (./epcis-validate.ts). Units: UN/CEFACT Recommendation 20
+ * against GS1's EPCIS 2.0 JSON Schema (../fixtures/epcis-validate.ts). Units: UN/CEFACT Recommendation 20
  * codes; measurement types: the GS1 Web Vocabulary's (both as listed by the schema's definitions).
  */
 import { eq } from "drizzle-orm";
@@ -17,7 +17,7 @@ import { recordMeasurement } from "@/lib/lab/units";
 import { pairRoute, recordStep } from "@/lib/route/pair-route";
 import { confirmRuns, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
 import { goodReadings } from "../fixtures/route";
-import { validate } from "./epcis-validate";
+import { validate } from "../fixtures/epcis-validate";
 
 const db = () => getDb();
 const BASE = "https://register.example.test";

