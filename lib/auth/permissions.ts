@@ -5,6 +5,7 @@ export const PERMISSIONS = [
   "register.read",
   "labels.print",
   "certificates.print",
+  "cartons.print",
   "veneer.work",
   "cabinet.work",
   "cabinet.lacquer",
@@ -26,8 +27,8 @@ export const ROLE_PERMISSIONS: Record<Role, readonly Permission[]> = {
   cabinet: ["register.read", "labels.print", "cabinet.work", "cabinet.lacquer"],
   lab: ["register.read", "labels.print", "lab.work"],
   assembly: ["register.read", "labels.print", "assembly.work"],
-  packing: ["register.read", "labels.print", "certificates.print", "packing.work"],
-  service: ["register.read", "labels.print", "certificates.print", "service.work"],
+  packing: ["register.read", "labels.print", "certificates.print", "cartons.print", "packing.work"],
+  service: ["register.read", "labels.print", "certificates.print", "cartons.print", "service.work"],
   quality: ["register.read", "labels.print", "quality.work"],
   admin: ["register.read", "admin.users", "admin.reference", "admin.mail", "admin.tokens"],
 };

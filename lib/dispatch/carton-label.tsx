@@ -1,7 +1,7 @@
 import "server-only";
 import { Document, Image, Page, Text, View, renderToBuffer } from "@react-pdf/renderer";
 import { toBuffer } from "bwip-js/node";
-import { and, eq, isNull } from "drizzle-orm";
+import { and, desc, eq, isNull } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { finishes, items, links, models } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
@@ -21,6 +21,8 @@ export interface CartonLabelData {
   pair: string;
   left: string | null;
   right: string | null;
+  /** "pair", or the side of the one speaker a service return carries ("L" / "R"). */
+  contents: "pair" | "L" | "R";
   modelCode: string;
   modelName: string;
   finish: string | null;
@@ -37,14 +39,20 @@ export async function cartonLabelData(db: DbOrTx, cartonText: string): Promise<C
   const carton = t ? await itemByIdentity(db, parsed?.valid ? parsed.canonical : t) : null;
   if (!carton || carton.kind !== "carton") throw new AppError(404, `${cartonText.trim() || "That"} is not a carton in the register.`);
 
+  // A packed pair sits in its carton at PAIR. A service return of one speaker records the speaker
+  // it carries (the speaker stays fitted in its pair: a thing has one holder), and the label names
+  // that pair with only the one speaker, so a scan at the far end still finds the register entry.
   const [held] = await db
     .select({ pair: items })
     .from(links)
     .innerJoin(items, eq(items.id, links.childId))
     .where(and(eq(links.parentId, carton.id), eq(links.position, "PAIR"), isNull(links.endedAt)))
     .limit(1);
-  if (!held) throw new LabelError(`${carton.identity} holds no pair, so it has no label to print.`);
-  const pair = held.pair;
+  const lone = !held && typeof carton.attrs.speaker === "string" ? await itemByIdentity(db, carton.attrs.speaker) : null;
+  const lonePlace = lone?.kind === "speaker" ? await pairOfSpeaker(db, lone.id) : null;
+  if (!held && !lonePlace) throw new LabelError(`${carton.identity} holds no pair, so it has no label to print.`);
+  const pair = held?.pair ?? lonePlace!.pair;
+  const contents: CartonLabelData["contents"] = held ? "pair" : lonePlace!.side;
   const [model] = await db.select().from(models).where(eq(models.id, carton.modelId ?? pair.modelId ?? "")).limit(1);
   if (!model) throw new LabelError(`${carton.identity} has no model, so its label has no GTIN.`);
   const [finish] = pair.finishId ? await db.select({ name: finishes.name }).from(finishes).where(eq(finishes.id, pair.finishId)).limit(1) : [];
@@ -68,8 +76,9 @@ export async function cartonLabelData(db: DbOrTx, cartonText: string): Promise<C
     cartonId: carton.id,
     carton: carton.identity,
     pair: pair.identity,
-    left: speakers.find((s) => s.position === "L")?.identity ?? null,
-    right: speakers.find((s) => s.position === "R")?.identity ?? null,
+    left: contents === "R" ? null : (speakers.find((s) => s.position === "L")?.identity ?? null),
+    right: contents === "L" ? null : (speakers.find((s) => s.position === "R")?.identity ?? null),
+    contents,
     modelCode: model.code,
     modelName: model.name,
     finish: finish?.name ?? null,
@@ -77,6 +86,18 @@ export async function cartonLabelData(db: DbOrTx, cartonText: string): Promise<C
     packedOn,
     element,
   };
+}
+
+/** The pair a speaker is fitted in now (or was last), and its side there. */
+async function pairOfSpeaker(db: DbOrTx, speakerId: string): Promise<{ pair: typeof items.$inferSelect; side: "L" | "R" } | null> {
+  const [row] = await db
+    .select({ pair: items, side: links.position })
+    .from(links)
+    .innerJoin(items, eq(items.id, links.parentId))
+    .where(and(eq(links.childId, speakerId), eq(items.kind, "pair")))
+    .orderBy(desc(isNull(links.endedAt)), desc(links.startedAt))
+    .limit(1);
+  return row && (row.side === "L" || row.side === "R") ? { pair: row.pair, side: row.side } : null;
 }
 
 const PT_PER_MM = 72 / 25.4;
@@ -172,14 +193,14 @@ export async function renderCartonLabel(data: CartonLabelData, opts: { printerDp
     <Document title={`Carton label ${data.carton}`} creator="Twinleaf" producer="Twinleaf">
       <Page size={[mm(PAGE_MM[0]), mm(PAGE_MM[1])]} style={{ fontFamily: TEXT_FONT, color: INK, padding: mm(PAD_MM), flexDirection: "row" }}>
         <View style={{ width: columnPt, height: "100%", flexDirection: "column" }}>
-          <Text style={{ fontSize: 9, fontWeight: 700, color: LEAF, letterSpacing: 1 }}>TWINLEAF · MATCHED PAIR</Text>
+          <Text style={{ fontSize: 9, fontWeight: 700, color: LEAF, letterSpacing: 1 }}>{data.contents === "pair" ? "TWINLEAF · MATCHED PAIR" : `TWINLEAF · ${data.contents === "L" ? "LEFT" : "RIGHT"} SPEAKER ONLY`}</Text>
           <View style={{ borderBottomWidth: 0.8, borderBottomColor: LEAF, marginTop: 3, marginBottom: 5 }} />
           <Text style={{ fontSize: 15, fontWeight: 700 }}>{data.modelCode}</Text>
           <Text style={{ fontSize: 12, fontWeight: 700 }}>{data.modelName}</Text>
           <Text style={{ fontSize: 11, color: SOFT_INK, marginTop: 2 }}>{data.finish ?? "Finish not recorded"}</Text>
           {row("Pair", data.pair, true)}
-          {row("Left speaker", data.left)}
-          {row("Right speaker", data.right)}
+          {data.contents !== "R" ? row("Left speaker", data.left) : null}
+          {data.contents !== "L" ? row("Right speaker", data.right) : null}
           {row("Carton", data.carton)}
           <View style={{ marginTop: 4 }}>
             <Text style={{ fontSize: 8, color: SOFT_INK }}>Packed</Text>

@@ -10,11 +10,13 @@ import { getDb } from "@/db";
 import { dealers, items, links, outbox, serviceCases, users } from "@/db/schema";
 import { seedDemo } from "@/db/seed/seed";
 import { setClock } from "@/lib/clock";
-import { cartonLabelData } from "@/lib/dispatch";
+import { extractText, getDocumentProxy } from "unpdf";
+import { cartonLabelData, renderCartonLabel } from "@/lib/dispatch";
 import { createItem, fit } from "@/lib/genealogy/graph";
 import { recordConsent, ownerOnRecord } from "@/lib/owners";
 import { allocateSerial } from "@/lib/serials/allocator";
 import { changeCaseState } from "@/lib/service/desk";
+import { caseDetailJson } from "@/lib/service/json";
 import { caseReturnOf, sendCaseBack } from "@/lib/service/return";
 import { moveCase } from "@/lib/service/states";
 import { repairedCase, shippedPair } from "../fixtures/service-repair";
@@ -70,11 +72,25 @@ describe("sending a tested case back", () => {
     expect(mails[0]).toMatchObject({ to: "ada.fernhill@example.test" });
     expect(mails[0]!.subject).toContain("on its way");
     expect(mails[0]!.text).toContain("on its way back to you");
+    // One speaker came back: its carton's label names the pair with that speaker alone.
+    const label = await cartonLabelData(db(), r.carton.identity);
+    expect(label).toMatchObject({ contents: "R", pair: c.pair.identity, left: null, right: c.speakers.R.identity, packedOn: "2026-12-04" });
+    expect(label.element.bwipText).toContain(`(21)${c.pair.identity}`);
+    const { text } = await extractText(await getDocumentProxy(new Uint8Array(await renderCartonLabel(label))), { mergePages: true });
+    // The heading is letter-spaced, so the PDF's text runs hold a space between letters.
+    expect(text.replace(/\s+/g, "")).toContain("RIGHTSPEAKERONLY");
+    expect(text).toContain(c.speakers.R.identity);
+    expect(text).not.toContain("Left speaker");
     expect(await caseReturnOf(db(), c.caseId)).toMatchObject({ to: "owner", carton: r.carton.identity, shipment: r.shipment.identity, carrier: "Parcel Ferry", tracking: "PF 1234 5678", shippedOn: "2026-12-04" });
     // Then the desk closes it, with the "closed" message.
     const closed = await changeCaseState(db(), { code: c.code, to: "closed" }, { id: desk });
     expect(closed.state).toBe("closed");
     expect(await db().select().from(outbox).where(eq(outbox.eventId, closed.moveEventId))).toHaveLength(1);
+    // The JSON case shows the way home, by serials.
+    const [row] = await db().select().from(serviceCases).where(eq(serviceCases.id, c.caseId));
+    const detail = await caseDetailJson(db(), row!);
+    expect(detail.sentBack).toMatchObject({ to: "owner", carton: r.carton.identity, shipment: r.shipment.identity, tracking: "PF 1234 5678" });
+    expect(detail.state).toBe("closed");
   });
 
   test("a whole pair to the dealer: the pair leaves its old carton for the new one, whose label prints as usual", async () => {
@@ -96,7 +112,7 @@ describe("sending a tested case back", () => {
     expect(held.map((l) => [l.parentId, l.position])).toEqual([[r.carton.id, "PAIR"]]);
     expect(held[0]!.parentId).not.toBe(old.id);
     const label = await cartonLabelData(db(), r.carton.identity);
-    expect(label).toMatchObject({ carton: r.carton.identity, pair: built.pair.identity, left: built.speakers.L.identity, right: built.speakers.R.identity, packedOn: "2026-12-04" });
+    expect(label).toMatchObject({ contents: "pair", carton: r.carton.identity, pair: built.pair.identity, left: built.speakers.L.identity, right: built.speakers.R.identity, packedOn: "2026-12-04" });
     expect(await caseReturnOf(db(), c.caseId)).toMatchObject({ to: "dealer" });
     // The owner is still told, naming the dealer.
     const [mail] = await db().select().from(outbox).where(eq(outbox.eventId, r.moveEventId));

@@ -12,6 +12,7 @@ const EXPECTED_PERMISSIONS = [
   "register.read",
   "labels.print",
   "certificates.print",
+  "cartons.print",
   "veneer.work",
   "cabinet.work",
   "cabinet.lacquer",
@@ -31,7 +32,9 @@ const EXPECTED_PERMISSIONS = [
 //   and service reissues the certificate; it is silent on the other stations, which handle
 //   labelled things and may reprint a worn label. Admin does no station work.
 // certificates.print: PRODUCT.md, packing "prints the pair certificate", service "reissues the
-//   certificate"; nobody else. (The carton label is packing's own work: packing.work.)
+//   certificate"; nobody else.
+// cartons.print: PRODUCT.md, packing "prints the ... carton label"; service "ships it back", and the
+//   service desk's issue packs a repaired speaker "carton label as usual"; nobody else.
 // cabinet.lacquer: PRODUCT.md is silent on who makes lacquer cabinets; the veneer room makes every
 //   veneered cabinet and prints cabinet labels, and the cabinet shop works them, so both.
 const EXPECTED_MAP: Record<Role, string[]> = {
@@ -39,8 +42,8 @@ const EXPECTED_MAP: Record<Role, string[]> = {
   cabinet: ["register.read", "labels.print", "cabinet.work", "cabinet.lacquer"], // records each route step of a cabinet pair
   lab: ["register.read", "labels.print", "lab.work"], // measurements, pair matching, the finished pair's acoustic test
   assembly: ["register.read", "labels.print", "assembly.work"], // builds each speaker by scanning labels
-  packing: ["register.read", "labels.print", "certificates.print", "packing.work"], // clean check, certificate and carton label, packs, ships
-  service: ["register.read", "labels.print", "certificates.print", "service.work"], // service cases, reissues the certificate
+  packing: ["register.read", "labels.print", "certificates.print", "cartons.print", "packing.work"], // clean check, certificate and carton label, packs, ships
+  service: ["register.read", "labels.print", "certificates.print", "cartons.print", "service.work"], // service cases, reissues the certificate
   quality: ["register.read", "labels.print", "quality.work"], // containments, holds, dispositions, deviations, corrections
   admin: ["register.read", "admin.users", "admin.reference", "admin.mail", "admin.tokens"], // users and roles, models, routes, tokens; no station work
 };
@@ -67,6 +70,7 @@ const HOLDERS: [string, Role[]][] = [
   ["register.read", ["veneer", "cabinet", "lab", "assembly", "packing", "service", "quality", "admin"]],
   ["labels.print", ["veneer", "cabinet", "lab", "assembly", "packing", "service", "quality"]],
   ["certificates.print", ["packing", "service"]],
+  ["cartons.print", ["packing", "service"]],
   ["veneer.work", ["veneer"]],
   ["cabinet.work", ["cabinet"]],
   ["cabinet.lacquer", ["veneer", "cabinet"]],
@@ -111,7 +115,7 @@ describe("can, rolesWith and permissionsOf", () => {
 
   test.each([
     [["veneer", "lab"], ["cabinet.lacquer", "lab.work", "labels.print", "register.read", "veneer.work"]],
-    [["admin", "packing"], ["admin.mail", "admin.reference", "admin.tokens", "admin.users", "certificates.print", "labels.print", "packing.work", "register.read"]],
+    [["admin", "packing"], ["admin.mail", "admin.reference", "admin.tokens", "admin.users", "cartons.print", "certificates.print", "labels.print", "packing.work", "register.read"]],
     [[], []],
   ] as [Role[], string[]][])("permissionsOf(%j) is %j", (roles, permissions) => {
     expect([...permissionsOf(roles)].sort()).toEqual(permissions);

@@ -49,7 +49,7 @@ export default async function Page({ params }: { params: Promise<{ code: string 
             <dt className="font-bold">Carrier</dt>
             <dd>{`${sent.carrier}, tracking ${sent.tracking}`}</dd>
           </dl>
-          {p.item.kind === "pair" && user.permissions.has("labels.print") ? (
+          {user.permissions.has("cartons.print") ? (
             <div className="mt-4">
               <PrintForm action={printPaths.cartonLabel(sent.carton)} testId="return-print-label">
                 Print the carton label

@@ -17,7 +17,7 @@ const query = z.object({
  * link or reloading a page never prints. The label is made first, so an unknown carton or bad
  * data records nothing.
  */
-export const POST = guardedRoute("packing.work", { query }, async ({ params, query, user }) => {
+export const POST = guardedRoute("cartons.print", { query }, async ({ params, query, user }) => {
   const db = getDb();
   const identity = segmentValue(params.identity);
   if (!identity) throw new AppError(404, "No carton with that serial.");

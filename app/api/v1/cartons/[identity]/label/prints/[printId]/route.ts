@@ -16,7 +16,7 @@ const GONE = `This print is not open to you: a print can be opened again only by
  * The PDF of one recorded print of a carton label, for the person who printed it, for a few
  * minutes. Reading it records nothing: printing is the POST.
  */
-export const GET = guardedRoute("packing.work", { query }, async ({ params, query, user }) => {
+export const GET = guardedRoute("cartons.print", { query }, async ({ params, query, user }) => {
   const db = getDb();
   const identity = segmentValue(params.identity);
   const printId = Number(segmentValue(params.printId));
