@@ -24,3 +24,22 @@ export function QuoteSend({ code, to, total, action }: { code: string; to: strin
     </form>
   );
 }
+
+/** Gives a cancelled case's payment back to the owner, when the refund at the cancel did not go through. */
+export function RefundSend({ code, action }: { code: string; action: (state: FormState, formData: FormData) => Promise<FormState> }) {
+  const [state, run] = useActionState(action, initialFormState);
+  return (
+    <form action={run} className="flex flex-col gap-3" data-testid="refund-form">
+      {state.message ? (
+        <Notice tone={state.ok ? "leaf" : "danger"} testId={state.ok ? "refund-done" : "refund-refused"}>
+          {state.message}
+        </Notice>
+      ) : null}
+      <input type="hidden" name="code" value={code} />
+      <p>The case was cancelled after the owner paid, and the refund has not gone through yet. The whole payment goes back through the payment service, once.</p>
+      <div>
+        <SubmitButton pendingLabel="Refunding…">Refund the payment</SubmitButton>
+      </div>
+    </form>
+  );
+}

@@ -8,7 +8,7 @@ import { serviceCases } from "./service";
  * A replacement part held for a service case: one drive unit or crossover board, for one side and
  * one position of the case's pair. Appended when reserved; ends once, when the part is fitted by
  * the repair or released. A unit is held by one open reservation at a time (partial unique index),
- * and never at once by a case and by a lab matched set (triggers of migration 0027, both ways).
+ * and never at once by a case and by a lab matched set (triggers of migration 0033, both ways).
  */
 export const caseReservations = sqliteTable(
   "case_reservations",

@@ -23,6 +23,11 @@ export async function currentRevision(db: DbOrTx, certificateId: string): Promis
   return row ?? null;
 }
 
+/** The revisions a service case issued, oldest first. */
+export async function revisionsOfCase(db: DbOrTx, caseId: string): Promise<CertificateRevision[]> {
+  return db.select().from(certificateRevisions).where(eq(certificateRevisions.caseId, caseId)).orderBy(asc(certificateRevisions.revision));
+}
+
 /**
  * The drive units and crossovers fitted into the pair's speakers after `since` (a repair), each
  * with the serial that sat at that position before it, read from the links the repair wrote.

@@ -502,7 +502,7 @@ export async function acceptCrossoverPlan(db: DbOrTx, input: { modelId: string; 
         .innerJoin(items, eq(items.id, setMembers.itemId))
         .where(and(inArray(items.identity, ids), isNull(setMembers.endedAt)))
     ).map((r) => r.identity),
-    // Held by a service case (migration 0027 refuses a set for it).
+    // Held by a service case (migration 0033 refuses a set for it).
     ...(
       await h
         .select({ identity: items.identity })

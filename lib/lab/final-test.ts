@@ -2,7 +2,7 @@ import "server-only";
 import { nextNcCode } from "@/lib/route/nc-codes";
 import { and, desc, eq, inArray, isNull } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
-import { finalTests, items, links, models, nonconformances, responses } from "@/db/schema";
+import { finalTests, items, links, models, nonconformances, responses, type Item } from "@/db/schema";
 import { bandLabel, compareResponses, formatDb, formatLimitDb, parseResponseFile, type ResponseComparison } from "@/lib/acoustics";
 import { AppError } from "@/lib/auth/errors";
 import { newId } from "@/lib/auth/tokens";
@@ -10,19 +10,78 @@ import { now as clockNow } from "@/lib/clock";
 import { appendEvent } from "@/lib/events/queries";
 import { changeState, itemByIdentity } from "@/lib/genealogy/graph";
 import { parseSerial } from "@/lib/serials/format";
+import type { Station } from "@/lib/vocabulary/stations";
 
 /** Pairs built and waiting for their final test. */
 export const AWAITING_TEST = "awaiting_test";
 /** The state a pair takes when its final test passes (or quality accepts a deviation). */
 export const READY_TO_PACK = "ready_to_pack";
 
-async function speakersOf(db: DbOrTx, pairId: string) {
+/** The two speakers a pair holds now, by side. */
+export async function speakersOf(db: DbOrTx, pairId: string) {
   const rows = await db
     .select({ item: items, position: links.position })
     .from(links)
     .innerJoin(items, eq(items.id, links.childId))
     .where(and(eq(links.parentId, pairId), isNull(links.endedAt), inArray(links.position, ["L", "R"]), eq(items.kind, "speaker")));
   return { L: rows.find((r) => r.position === "L")?.item ?? null, R: rows.find((r) => r.position === "R")?.item ?? null };
+}
+
+type ResponseFile = { name: string; text: string };
+type TestModel = Pick<typeof models.$inferSelect, "responseMinHz" | "responseMaxHz" | "pairResponseLimitDb">;
+
+/**
+ * Reads the left and right final responses and compares them under the acceptance rule: |L − R|
+ * per one-third-octave band over the model's range against its limit (lib/acoustics
+ * `compareResponses`; a band exactly at the limit passes). Writes nothing; bad files are refused
+ * with their lines named. Shared by the lab's final test and the service desk's re-test.
+ */
+export function readPairTest(model: TestModel, files: { left: ResponseFile; right: ResponseFile }) {
+  const problems: string[] = [];
+  const parse = (side: string, f: ResponseFile) => {
+    const r = parseResponseFile(f.text, { name: f.name });
+    if (!r.ok) for (const e of r.errors.slice(0, 8)) problems.push(`${side} (${f.name}), line ${e.line}: ${e.message}`);
+    return r.ok ? r.points : null;
+  };
+  const left = parse("Left", files.left);
+  const right = parse("Right", files.right);
+  if (problems.length || !left || !right) throw new AppError(400, "Nothing was saved: the response files need attention.", { files: problems });
+  try {
+    return { left, right, comparison: compareResponses(left, right, { minHz: model.responseMinHz, maxHz: model.responseMaxHz, limitDb: model.pairResponseLimitDb }) };
+  } catch (e) {
+    throw new AppError(400, `Nothing was saved: ${(e as Error).message}`);
+  }
+}
+
+/**
+ * Records a pair test read by `readPairTest`, in the caller's transaction: each speaker's final
+ * response, "pair.final_tested" with the figures, and the `final_tests` row. `data` is added to
+ * each event (the service desk names its case).
+ */
+export async function recordPairTest(
+  tx: DbOrTx,
+  input: { pair: Item; model: TestModel; files: { left: ResponseFile; right: ResponseFile }; read: ReturnType<typeof readPairTest>; station: Station; data?: Record<string, unknown>; at: Date },
+  actor: { id: string },
+) {
+  const { pair, model, read, station, at } = input;
+  const speakers = await speakersOf(tx, pair.id);
+  if (!speakers.L || !speakers.R) throw new AppError(409, `${pair.identity} does not hold two speakers: fit both before the test.`);
+  const ids: number[] = [];
+  for (const [side, points, file] of [["L", read.left, input.files.left], ["R", read.right, input.files.right]] as const) {
+    const speaker = speakers[side]!;
+    const eventId = await appendEvent(tx, { actorId: actor.id, station, type: "unit.response_measured", subjectKind: "item", subjectId: speaker.id, data: { identity: speaker.identity, purpose: "final", points: points.length, fileName: file.name, ...input.data } });
+    const [row] = await tx.insert(responses).values({ itemId: speaker.id, purpose: "final", points: points.map((p) => (p.phaseDeg === undefined ? [p.hz, p.db] : [p.hz, p.db, p.phaseDeg])), fileName: file.name, source: "upload", eventId, createdAt: at }).returning({ id: responses.id });
+    ids.push(row!.id);
+  }
+  const { comparison } = read;
+  const limitDb = model.pairResponseLimitDb;
+  const figures = { pass: comparison.pass, maxDiffDb: comparison.maxAbsDiffDb, worstBand: comparison.worstBand, limitDb, minHz: model.responseMinHz, maxHz: model.responseMaxHz };
+  const eventId = await appendEvent(tx, { actorId: actor.id, station, type: "pair.final_tested", subjectKind: "item", subjectId: pair.id, data: { identity: pair.identity, ...figures, ...input.data } });
+  const [test] = await tx
+    .insert(finalTests)
+    .values({ pairId: pair.id, leftResponseId: ids[0]!, rightResponseId: ids[1]!, limitDb, maxDiffDb: comparison.maxAbsDiffDb, worstBand: comparison.worstBand, pass: comparison.pass, eventId, createdAt: at })
+    .returning({ id: finalTests.id });
+  return { finalTestId: test!.id, figures };
 }
 
 export interface FinalTestResult {
@@ -42,42 +101,13 @@ export async function recordFinalTest(db: DbOrTx, input: { pair: string; left: {
   if (!pair || pair.kind !== "pair") throw new AppError(404, `${input.pair} is not a pair in the register.`);
   if (pair.state !== AWAITING_TEST) throw new AppError(409, `${pair.identity} is ${pair.state.replace(/_/g, " ")}: only a built pair waiting for its test is tested here.`);
   const [model] = await db.select().from(models).where(eq(models.id, pair.modelId!)).limit(1);
-  const problems: string[] = [];
-  const parse = (side: string, f: { name: string; text: string }) => {
-    const r = parseResponseFile(f.text, { name: f.name });
-    if (!r.ok) for (const e of r.errors.slice(0, 8)) problems.push(`${side} (${f.name}), line ${e.line}: ${e.message}`);
-    return r.ok ? r.points : null;
-  };
-  const left = parse("Left", input.left);
-  const right = parse("Right", input.right);
-  if (problems.length || !left || !right) throw new AppError(400, "Nothing was saved: the response files need attention.", { files: problems });
-  let comparison: ResponseComparison;
-  try {
-    comparison = compareResponses(left, right, { minHz: model!.responseMinHz, maxHz: model!.responseMaxHz, limitDb: model!.pairResponseLimitDb });
-  } catch (e) {
-    throw new AppError(400, `Nothing was saved: ${(e as Error).message}`);
-  }
+  const files = { left: input.left, right: input.right };
+  const read = readPairTest(model!, files);
+  const { comparison } = read;
+  const limitDb = model!.pairResponseLimitDb;
   return db.transaction(async (tx) => {
     const at = clockNow();
-    const speakers = await speakersOf(tx, pair.id);
-    if (!speakers.L || !speakers.R) throw new AppError(409, `${pair.identity} does not hold two speakers.`);
-    const ids: number[] = [];
-    for (const [side, points, file] of [["L", left, input.left], ["R", right, input.right]] as const) {
-      const speaker = speakers[side]!;
-      const eventId = await appendEvent(tx, { actorId: actor.id, station: "lab", type: "unit.response_measured", subjectKind: "item", subjectId: speaker.id, data: { identity: speaker.identity, purpose: "final", points: points.length, fileName: file.name } });
-      const [row] = await tx.insert(responses).values({ itemId: speaker.id, purpose: "final", points: points.map((p) => (p.phaseDeg === undefined ? [p.hz, p.db] : [p.hz, p.db, p.phaseDeg])), fileName: file.name, source: "upload", eventId, createdAt: at }).returning({ id: responses.id });
-      ids.push(row!.id);
-    }
-    const limitDb = model!.pairResponseLimitDb;
-    const eventId = await appendEvent(tx, {
-      actorId: actor.id,
-      station: "lab",
-      type: "pair.final_tested",
-      subjectKind: "item",
-      subjectId: pair.id,
-      data: { identity: pair.identity, pass: comparison.pass, maxDiffDb: comparison.maxAbsDiffDb, worstBand: comparison.worstBand, limitDb, minHz: model!.responseMinHz, maxHz: model!.responseMaxHz },
-    });
-    await tx.insert(finalTests).values({ pairId: pair.id, leftResponseId: ids[0]!, rightResponseId: ids[1]!, limitDb, maxDiffDb: comparison.maxAbsDiffDb, worstBand: comparison.worstBand, pass: comparison.pass, eventId, createdAt: at });
+    await recordPairTest(tx, { pair, model: model!, files, read, station: "lab", at }, actor);
     let nc: string | null = null;
     if (comparison.pass) {
       await changeState(tx, pair, READY_TO_PACK, { actorId: actor.id, station: "lab" });

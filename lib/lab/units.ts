@@ -615,7 +615,7 @@ export async function acceptPlan(
     if (e instanceof AppError) throw e;
     if (isConstraintError(e, "UNIQUE")) {
       const held = await db.select({ identity: items.identity }).from(setMembers).innerJoin(items, eq(items.id, setMembers.itemId)).where(and(inArray(items.identity, ids), isNull(setMembers.endedAt)));
-      // A service case may have taken one meanwhile (migration 0027 refuses the set then).
+      // A service case may have taken one meanwhile (migration 0033 refuses the set then).
       const forCases = await db.select({ identity: items.identity }).from(caseReservations).innerJoin(items, eq(items.id, caseReservations.itemId)).where(and(inArray(items.identity, ids), isNull(caseReservations.endedAt)));
       throw new UnitsTakenError([...held, ...forCases].map((h) => h.identity));
     }

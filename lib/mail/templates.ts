@@ -175,6 +175,9 @@ export function caseMessageMail(input: CaseMessageInput): MailContent {
       if (input.quote) {
         const lines = input.quote.lines.map((l) => `${l.description}: ${formatMinor(l.amountMinor, input.quote!.currency)}`);
         paras.push(`Our quote:\n${lines.join("\n")}\nTotal: ${formatMinor(input.quote.totalMinor, input.quote.currency)}`);
+        paras.push("A link to pay follows in a separate message; we go ahead once it is paid.");
+      } else if (input.inWarranty === false) {
+        paras.push("We will send you a quote with a link to pay before we go ahead.");
       }
       break;
     }

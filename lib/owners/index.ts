@@ -53,24 +53,46 @@ export async function registerOwnership(db: DbOrTx, input: { pairId: string; own
     const [known] = owner.email ? await tx.select({ id: owners.id }).from(owners).where(sql`lower(${owners.email}) = ${owner.email}`).limit(1) : [];
     let ownerId = known?.id;
     if (ownerId) {
-      const [already] = await tx.select({ id: ownerships.id }).from(ownerships).where(and(eq(ownerships.ownerId, ownerId), eq(ownerships.itemId, pair.id))).limit(1);
-      if (already) throw new AppError(409, `${owner.name} is already registered as an owner of ${pair.identity}.`);
+      if (await holdsPair(tx, ownerId, pair.id)) throw new AppError(409, `${owner.name} is already registered as an owner of ${pair.identity}.`);
     } else {
       ownerId = newId();
       await tx.insert(owners).values({ id: ownerId, ...owner, createdAt: at });
     }
-    const eventId = await appendEvent(tx, {
-      actorId: actor.id,
-      station: "service",
-      type: "ownership.registered",
-      subjectKind: "item",
-      subjectId: pair.id,
-      // The owner's particulars stay in their record; the log names them by id.
-      data: { identity: pair.identity, ownerId, newOwner: !known },
-    });
-    await tx.insert(ownerships).values({ ownerId, itemId: pair.id, since: at, eventId });
+    await appendOwnership(tx, { pair, ownerId, newOwner: !known, at }, actor);
     return { ownerId, newOwner: !known };
   });
+}
+
+async function holdsPair(tx: DbOrTx, ownerId: string, pairId: string): Promise<boolean> {
+  const [already] = await tx.select({ id: ownerships.id }).from(ownerships).where(and(eq(ownerships.ownerId, ownerId), eq(ownerships.itemId, pairId))).limit(1);
+  return Boolean(already);
+}
+
+async function appendOwnership(tx: DbOrTx, input: { pair: { id: string; identity: string }; ownerId: string; newOwner: boolean; at: Date; via?: string }, actor: Actor) {
+  const eventId = await appendEvent(tx, {
+    actorId: actor.id,
+    station: "service",
+    type: "ownership.registered",
+    subjectKind: "item",
+    subjectId: input.pair.id,
+    // The owner's particulars stay in their record; the log names them by id.
+    data: { identity: input.pair.identity, ownerId: input.ownerId, newOwner: input.newOwner, ...(input.via ? { via: input.via } : {}) },
+    at: input.at,
+  });
+  await tx.insert(ownerships).values({ ownerId: input.ownerId, itemId: input.pair.id, since: input.at, eventId });
+}
+
+/** How an ownership the desk recorded at intake is marked: it does not start a warranty. */
+export const DESK_REGISTRATION = "service intake";
+
+/**
+ * Inside the caller's transaction: registers the owner the service desk names for a pair that came
+ * back, unless they are registered for it already. Returns whether an ownership was appended.
+ */
+export async function registerOwnerAtDesk(tx: DbOrTx, input: { pair: { id: string; identity: string }; ownerId: string; newOwner: boolean; at: Date }, actor: Actor): Promise<boolean> {
+  if (await holdsPair(tx, input.ownerId, input.pair.id)) return false;
+  await appendOwnership(tx, { ...input, via: DESK_REGISTRATION }, actor);
+  return true;
 }
 
 export interface OwnerWithConsent extends Owner {

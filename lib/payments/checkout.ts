@@ -7,13 +7,14 @@ import { AppError } from "@/lib/auth/errors";
 import { now } from "@/lib/clock";
 import { appendEvent } from "@/lib/events/queries";
 import { queueMail } from "@/lib/mail/outbox";
+import { ownerMailData } from "@/lib/service/messages";
 import { moveCase, SERVICE_STATION } from "@/lib/service/states";
 import type { Actor } from "@/lib/vocabulary/actor";
 import { CASE_STATE_WORDS } from "@/lib/vocabulary/case-states";
 import { paymentLinkMail } from "./mail";
 import { currencyOf, formatMoney } from "./money";
 import { provider, providerFailure, type Stripe } from "./provider";
-import { currentQuote, QUOTABLE_STATES } from "./quotes";
+import { currentQuote, PAYABLE_STATES } from "./quotes";
 
 /** Where the owner lands after paying or turning back (public, writes nothing). */
 export function returnUrls(appUrl: string, caseCode: string) {
@@ -44,7 +45,7 @@ export async function requestPayment(
 ): Promise<PaymentRequest> {
   const [c] = await db.select().from(serviceCases).where(eq(serviceCases.id, input.caseId));
   if (!c) throw new AppError(404, "No such service case.");
-  if (!QUOTABLE_STATES.includes(c.state)) throw new AppError(409, `A case that is “${CASE_STATE_WORDS[c.state]}” is not waiting to be paid for. Nothing was sent.`);
+  if (!PAYABLE_STATES.includes(c.state)) throw new AppError(409, c.state === "received" ? "Diagnose the case first: the owner is told what was found, with the quote, before a link to pay is sent. Nothing was sent." : `A case that is “${CASE_STATE_WORDS[c.state]}” is not waiting to be paid for. Nothing was sent.`);
   const quote = await currentQuote(db, c.id);
   if (!quote) throw new AppError(409, "Make a quote first: the link asks the owner to pay it. Nothing was sent.");
   if (await paidFor(db, c.id)) throw new AppError(409, "This case is already paid. Nothing was sent.");
@@ -80,7 +81,7 @@ export async function requestPayment(
 
   const work = async (tx: DbOrTx) => {
     const [still] = await tx.select().from(serviceCases).where(eq(serviceCases.id, c.id));
-    if (!still || !QUOTABLE_STATES.includes(still.state)) throw new AppError(409, "The case moved meanwhile. Nothing was sent.");
+    if (!still || !PAYABLE_STATES.includes(still.state)) throw new AppError(409, "The case moved meanwhile. Nothing was sent.");
     const [newest] = await tx.select({ id: quotes.id }).from(quotes).where(eq(quotes.caseId, c.id)).orderBy(desc(quotes.createdAt), desc(sql`rowid`)).limit(1);
     if (newest?.id !== quote.id) throw new AppError(409, "A newer quote was made meanwhile. Send the link again. Nothing was sent.");
     if (await paidFor(tx, c.id)) throw new AppError(409, "This case is already paid. Nothing was sent.");
@@ -90,7 +91,9 @@ export async function requestPayment(
       type: "payment.requested",
       subjectKind: "case",
       subjectId: c.id,
-      data: { code: c.code, quoteId: quote.id, sessionId: session.id, amountMinor: quote.totalMinor, currency: quote.currency, to: owner.email },
+      // The link answers the owner's own request for a repair, so it goes whether or not they
+      // agreed to other mail; the case lists it with the owner's messages.
+      data: { code: c.code, quoteId: quote.id, sessionId: session.id, amountMinor: quote.totalMinor, currency: quote.currency, to: owner.email, ...ownerMailData("payment_link", "queued") },
     });
     const [row] = await tx
       .insert(paymentRequests)

@@ -5,7 +5,7 @@ import { randomUUID } from "node:crypto";
 import { desc, eq, sql } from "drizzle-orm";
 import { z } from "zod";
 import type { DbOrTx } from "@/db";
-import { quotes, serviceCases, type Quote, type QuoteLine } from "@/db/schema";
+import { caseFindings, quotes, serviceCases, type Quote, type QuoteLine } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
 import { now } from "@/lib/clock";
 import { appendEvent } from "@/lib/events/queries";
@@ -14,8 +14,13 @@ import type { Actor } from "@/lib/vocabulary/actor";
 import { CASE_STATE_WORDS, type CaseState } from "@/lib/vocabulary/case-states";
 import { parseMoney, totalMinor, workshopCurrency, type Currency } from "./money";
 
-/** States in which a repair may be quoted: after diagnosis, before the repair. */
-export const QUOTABLE_STATES: readonly CaseState[] = ["diagnosed", "waiting_part", "waiting_payment"];
+/**
+ * States in which a repair may be quoted: once something was found (so the diagnosis message can
+ * carry the quote), until the repair.
+ */
+export const QUOTABLE_STATES: readonly CaseState[] = ["received", "diagnosed", "waiting_part", "waiting_payment"];
+/** States from which the owner is sent a link to pay: after the diagnosis, before the repair. */
+export const PAYABLE_STATES: readonly CaseState[] = ["diagnosed", "waiting_part", "waiting_payment"];
 
 export const MAX_LINES = 30;
 
@@ -95,8 +100,10 @@ export async function createQuote(
     const [c] = await tx.select().from(serviceCases).where(eq(serviceCases.id, input.caseId));
     if (!c) throw new AppError(404, "No such service case.");
     if (!QUOTABLE_STATES.includes(c.state)) {
-      throw new AppError(409, `A case that is “${CASE_STATE_WORDS[c.state]}” cannot be quoted: quote after the diagnosis and before the repair. Nothing was saved.`);
+      throw new AppError(409, `A case that is “${CASE_STATE_WORDS[c.state]}” cannot be quoted: quote once something is found and before the repair. Nothing was saved.`);
     }
+    const [found] = await tx.select({ id: caseFindings.id }).from(caseFindings).where(eq(caseFindings.caseId, c.id)).limit(1);
+    if (!found) throw new AppError(409, "Record what was found first: the quote is for the repair of a finding. Nothing was saved.");
     const w = await outOfWarranty(tx, c.id);
     if (!w.outOf) throw new AppError(409, `This speaker is in warranty until ${w.endsOn}: the repair is not charged, so it needs no quote. Nothing was saved.`);
     const total = totalMinor(lines);

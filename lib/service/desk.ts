@@ -1,9 +1,10 @@
 /** What the desk does to an open case: findings, moves (with their owner messages), photos. */
 import "server-only";
+import { currentQuote } from "@/lib/payments/quotes";
 import { refundForCancelledCase } from "@/lib/payments/refunds";
 import { releaseAllOfCase } from "./replacements";
 import type { DbOrTx } from "@/db";
-import { caseFindings, type CaseFinding, type ServiceCase } from "@/db/schema";
+import { caseFindings, type CaseFinding, type Quote, type ServiceCase } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
 import { now } from "@/lib/clock";
 import { appendEvent } from "@/lib/events/queries";
@@ -68,6 +69,11 @@ export async function recordFinding(db: DbOrTx, input: { code: string; side: str
   });
 }
 
+/** A recorded quote as the owner's message shows it: one amount per line. */
+function ownerQuoteOf(q: Quote | null): OwnerQuote | null {
+  return q ? { lines: q.lines.map((l) => ({ description: l.quantity > 1 ? `${l.description} × ${l.quantity}` : l.description, amountMinor: l.quantity * l.unitMinor })), totalMinor: q.totalMinor, currency: q.currency } : null;
+}
+
 /**
  * A move made at the desk, with the desk's rules on top of the state table: a case is diagnosed
  * only with a finding; a cancellation, and a step back to "diagnosed", need a reason. The owner's
@@ -94,10 +100,12 @@ export async function changeCaseState(
   const owner = kind && c.ownerId ? await ownerById(db, c.ownerId) : null;
   const outcome = kind ? ownerMailOutcome(owner) : null;
   const warranty = kind === "diagnosis" ? await warrantyFacts(db, c) : null;
+  // Out of warranty, the diagnosis carries the quote made before it (the link to pay follows).
+  const quote = input.quote ?? (warranty && !warranty.inWarranty ? ownerQuoteOf(await currentQuote(db, c.id)) : null);
   const moved = await db.transaction(async (tx) => {
     const moved = await moveCase(tx, { caseId: c.id, from: input.from ?? c.state, to: input.to, reason, data: kind && outcome ? ownerMailData(kind, outcome) : undefined }, actor);
     if (kind) {
-      await queueOwnerMessage(tx, { case: moved, kind, eventId: moved.moveEventId, inWarranty: warranty?.inWarranty, quote: input.quote ?? null });
+      await queueOwnerMessage(tx, { case: moved, kind, eventId: moved.moveEventId, inWarranty: warranty?.inWarranty, quote });
     }
     // A cancelled case gives back the stock it held, in the same step.
     if (input.to === "cancelled") await releaseAllOfCase(tx, c.id, actor);
@@ -106,7 +114,17 @@ export async function changeCaseState(
   // A case cancelled after the owner paid is refunded through the payment service, once the
   // cancel is on record; should the service refuse, its words are shown and the payment stays on
   // record unrefunded (refundForCancelledCase refunds only what has no refund yet).
-  if (input.to === "cancelled") await refundForCancelledCase(db, c.id, actor);
+  if (input.to === "cancelled") {
+    try {
+      await refundForCancelledCase(db, c.id, actor);
+    } catch (e) {
+      if (!(e instanceof AppError)) throw e;
+      throw new AppError(
+        502,
+        `Case ${c.code} is cancelled, but the owner's payment is not refunded yet: the payment service did not answer as expected. Try the refund again from the case's quote and payment page.`,
+      );
+    }
+  }
   return moved;
 }
 

@@ -16,7 +16,7 @@ export const ownerInput = z.object({
 
 export const caseIntakeBody = z.object({
   serial: text(200, "Give the serial of the speaker or pair that came back."),
-  symptom: text(4000, "Say what is wrong, in at most 2000 characters."),
+  symptom: text(2000, "Say what is wrong, in at most 2000 characters."),
   returnedBy: z.enum(["owner", "dealer"], { error: "returnedBy is owner or dealer." }),
   ownerId: text(64, "ownerId names an owner on record.").nullish(),
   owner: ownerInput.nullish(),

@@ -9,7 +9,7 @@ import { now } from "@/lib/clock";
 import { appendEvent } from "@/lib/events/queries";
 import { formatCalendarDay } from "@/lib/format";
 import { isCalendarDate } from "@/lib/input/dates";
-import { checkOwner, ownerById, ownerOnRecord, recordConsent, type OwnerDetails } from "@/lib/owners";
+import { checkOwner, ownerById, ownerOnRecord, recordConsent, registerOwnerAtDesk, type OwnerDetails } from "@/lib/owners";
 import { search } from "@/lib/search/search";
 import { workshopDay } from "@/lib/workshop-time";
 import type { Actor } from "@/lib/vocabulary/actor";
@@ -130,15 +130,20 @@ export async function openCase(db: DbOrTx, input: IntakeInput, actor: Actor): Pr
       let ownerId = ownerOnFile?.id ?? null;
       let consentNow = ownerOnFile?.consent ?? null;
       let email = ownerOnFile?.email ?? null;
+      let createdOwner = false;
       if (newOwner) {
         const { consent, ...details } = newOwner;
         const got = await ownerOnRecord(tx, details);
         ownerId = got.ownerId;
+        createdOwner = got.newOwner;
         const [o] = await tx.select({ email: owners.email }).from(owners).where(eq(owners.id, ownerId));
         email = o?.email ?? null;
         await recordConsent(tx, { ownerId, consent, data: { via: "service intake" } }, actor);
         consentNow = { given: consent, at };
       }
+      // The owner the desk names is on record as an owner of the pair from now on (service mail
+      // and notices reach them); this does not move the warranty's start (warrantyFacts).
+      if (ownerId) await registerOwnerAtDesk(tx, { pair: pair!, ownerId, newOwner: createdOwner, at }, actor);
 
       const prefix = casePrefix(workshopDay(at));
       const [last] = await tx.all<{ n: number | null }>(sql`

@@ -29,15 +29,19 @@ export const OWNER_MAIL_WORDS: Record<OwnerMailOutcome, string> = {
   no_consent: "Not sent: the owner has not agreed to be contacted",
 };
 
-export const CASE_MESSAGE_WORDS: Record<CaseMessageKind, string> = {
+/** A case message, or the link to pay an out-of-warranty repair (lib/payments/checkout). */
+export type OwnerMessageKind = CaseMessageKind | "payment_link";
+
+export const CASE_MESSAGE_WORDS: Record<OwnerMessageKind, string> = {
   received: "Case received",
   diagnosis: "Diagnosis",
+  payment_link: "Quote with a link to pay",
   on_its_way: "Repaired and on its way",
   closed: "Case closed",
 };
 
 /** What goes in the event's data so the case can say what became of its message. */
-export const ownerMailData = (kind: CaseMessageKind, outcome: OwnerMailOutcome) => ({ ownerMail: { kind, outcome } });
+export const ownerMailData = (kind: OwnerMessageKind, outcome: OwnerMailOutcome) => ({ ownerMail: { kind, outcome } });
 
 /**
  * Queues one message to the case's owner for the event `eventId` (which must carry

@@ -5,7 +5,7 @@ import { shippedAt, traceBackward, type TraceNode } from "@/lib/genealogy/trace"
 import { compareTraces } from "./trace-diff";
 import type { DbOrTx } from "@/db";
 import { caseFindings, dealers, events, items, mailAttempts, models, outbox, ownerships, serviceCases, users, type CaseFinding, type ServiceCase } from "@/db/schema";
-import { ownerById, type OwnerWithConsent } from "@/lib/owners";
+import { DESK_REGISTRATION, ownerById, type OwnerWithConsent } from "@/lib/owners";
 import { attemptStats, DEFAULT_MAX_ATTEMPTS, deriveStatus, type OutboxStatus } from "@/lib/mail/outbox";
 import { workshopDay } from "@/lib/workshop-time";
 import { OPEN_CASE_STATES, type CaseState } from "@/lib/vocabulary/case-states";
@@ -71,10 +71,12 @@ export async function warrantyFacts(db: DbOrTx, c: Pick<ServiceCase, "pairId" | 
   const [pair] = await db.select({ months: models.warrantyMonths }).from(items).innerJoin(models, eq(models.id, items.modelId)).where(eq(items.id, c.pairId)).limit(1);
   const shipment = await shipmentOfPair(db, c.pairId);
   if (!pair || !shipment) return null;
+  // An owner the desk named at a service intake is on record, but did not register the pair.
   const [reg] = await db
     .select({ since: sql<number | null>`min(${ownerships.since})` })
     .from(ownerships)
-    .where(and(eq(ownerships.itemId, c.pairId), sql`${ownerships.since} < ${c.openedAt.getTime()}`));
+    .innerJoin(events, eq(events.id, ownerships.eventId))
+    .where(and(eq(ownerships.itemId, c.pairId), sql`${ownerships.since} < ${c.openedAt.getTime()}`, sql`coalesce(json_extract(${events.data}, '$.via'), '') <> ${DESK_REGISTRATION}`));
   const registeredOn = reg?.since ? workshopDay(new Date(Number(reg.since))) : null;
   return workOutWarranty({ shippedOn: shipment.shippedOn, registeredOn, months: pair.months, receivedOn: c.receivedOn });
 }
@@ -268,4 +270,13 @@ export async function caseTraces(db: DbOrTx, c: Pick<ServiceCase, "itemId" | "pa
       .map((n) => ({ id: n.id, identity: n.identity, kind: n.kind, holder: n.via ? (name.get(n.via) ?? null) : null, position: n.position, partType: n.partType }));
   };
   return { shippedAt: shipped, ...compareTraces(parts(built), parts(current)) };
+}
+
+/** The service cases a speaker or pair was part of (as the item that came back, its pair or its partner), newest first. */
+export async function casesTouching(db: DbOrTx, itemId: string): Promise<Pick<ServiceCase, "code" | "state" | "receivedOn" | "itemId" | "partnerId">[]> {
+  return db
+    .select({ code: serviceCases.code, state: serviceCases.state, receivedOn: serviceCases.receivedOn, itemId: serviceCases.itemId, partnerId: serviceCases.partnerId })
+    .from(serviceCases)
+    .where(sql`${serviceCases.itemId} = ${itemId} OR ${serviceCases.pairId} = ${itemId} OR ${serviceCases.partnerId} = ${itemId}`)
+    .orderBy(desc(serviceCases.openedAt));
 }

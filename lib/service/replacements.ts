@@ -2,7 +2,7 @@
  * Replacement parts for a service case: the stock ranked against the survivor in the partner
  * speaker (lib/service/replacement-plan on the lab's own loading of units and boards), and the
  * case's reservations of parts (`case_reservations`), which the schema keeps apart from the lab's
- * matched sets (migration 0027).
+ * matched sets (migration 0033).
  */
 import "server-only";
 import { and, asc, eq, isNull } from "drizzle-orm";
@@ -22,20 +22,18 @@ import type { Actor } from "@/lib/vocabulary/actor";
 import { CASE_STATE_WORDS, type CaseState } from "@/lib/vocabulary/case-states";
 import { partWord, type PartType } from "@/lib/vocabulary/part-types";
 import { PAIR_SPEAKER_POSITION, positionName } from "@/lib/vocabulary/positions";
-import { SIDES, type Side } from "@/lib/vocabulary/sides";
+import { SIDE_WORD, SIDES, type Side } from "@/lib/vocabulary/sides";
+import { caseByCode } from "./queries";
 import { planReplacement, type ReplacementPlan } from "./replacement-plan";
 import { SERVICE_STATION } from "./states";
 
 /** A case takes parts once it is diagnosed and until it is repaired. */
 export const RESERVING_STATES: readonly CaseState[] = ["diagnosed", "waiting_part", "waiting_payment"];
 
-export const SIDE_WORD: Record<Side, string> = { L: "left", R: "right" };
+export { SIDE_WORD };
 const other = (side: Side): Side => (side === "L" ? "R" : "L");
 
-export async function caseByCode(db: DbOrTx, code: string): Promise<ServiceCase | null> {
-  const [row] = await db.select().from(serviceCases).where(eq(serviceCases.code, code.trim().toUpperCase())).limit(1);
-  return row ?? null;
-}
+export { caseByCode };
 
 /** The speaker at a side of a pair now. */
 export async function speakerOf(db: DbOrTx, pairId: string, side: Side): Promise<Item | null> {

@@ -19,11 +19,14 @@ import { createQuote, currentQuote } from "@/lib/payments/quotes";
 import { refundForCancelledCase } from "@/lib/payments/refunds";
 import { handleProviderEvent } from "@/lib/payments/webhook";
 import { startPaymentStandIn, type PaymentStandIn } from "@/lib/payments/stand-in";
+import { changeCaseState } from "@/lib/service/desk";
+import { caseMessages } from "@/lib/service/queries";
 import { moveCase } from "@/lib/service/states";
 import { POST as webhookRoute } from "@/app/api/v1/payments/webhook/route";
 import { startSession } from "@/lib/auth/sessions";
 import type { FormState } from "@/lib/forms";
-import { createQuoteAction, sendPaymentLinkAction } from "@/app/(workshop)/service/cases/[code]/quote/actions";
+import { createQuoteAction, refundCaseAction, sendPaymentLinkAction } from "@/app/(workshop)/service/cases/[code]/quote/actions";
+import { unrefundedPayments } from "@/lib/payments/queries";
 import { snapshot } from "../fixtures/access/snapshot";
 import { request } from "../setup/next-request";
 import { daysAgo, makeServiceCase, type MadeCase } from "../fixtures/service-case";
@@ -141,6 +144,30 @@ describe("quotes", () => {
   });
 });
 
+describe("the quote in the diagnosis message", () => {
+  test("a quote made before the diagnosis rides on the owner's diagnosis message; no link is sent before the diagnosis", async () => {
+    const c = await makeServiceCase(db(), { shippedOn: daysAgo(1500), warrantyMonths: 24, state: "received" });
+    await createQuote(db(), { caseId: c.caseId, lines: LINES }, c.actor, EUR);
+    const before = await snapshot(db());
+    expect(await failureText(() => requestPayment(db(), { caseId: c.caseId, appUrl: APP }, c.actor, sdk))).toMatch(/Diagnose the case first/);
+    expect(await snapshot(db())).toEqual(before);
+    const moved = await changeCaseState(db(), { code: c.code, to: "diagnosed" }, c.actor);
+    const [mail] = await db().select().from(outbox).where(eq(outbox.eventId, moved.moveEventId));
+    expect(mail!.to).toBe(c.ownerEmail);
+    expect(mail!.text).toContain("out of warranty");
+    // 1 × 120.50 + 2 × 45.00 = 210.50 EUR (ISO 4217: EUR has 2 decimal places).
+    expect(mail!.text).toContain("Bench time × 2: €90.00");
+    expect(mail!.text).toContain("Total: €210.50");
+  });
+
+  test("a case with nothing found yet is not quoted, and nothing is written", async () => {
+    const c = await makeServiceCase(db(), { shippedOn: daysAgo(1500), warrantyMonths: 24, state: "received", finding: false });
+    const before = await snapshot(db());
+    expect(await failureText(() => createQuote(db(), { caseId: c.caseId, lines: LINES }, c.actor, EUR))).toMatch(/Record what was found first/);
+    expect(await snapshot(db())).toEqual(before);
+  });
+});
+
 describe("the payment link, through the SDK and the stand-in", () => {
   test("sending it opens a session for the quote's total, moves the case to waiting for payment and mails the owner", async () => {
     const c = await quotedCase();
@@ -153,6 +180,9 @@ describe("the payment link, through the SDK and the stand-in", () => {
     const [mail] = await db().select().from(outbox).where(eq(outbox.to, c.ownerEmail!));
     expect(mail!.text).toContain(session.url!);
     expect(mail!.text).toContain("€210.50");
+    // The case lists the link among the owner's messages, with its delivery state.
+    const messages = await caseMessages(db(), c.caseId);
+    expect(messages.find((m) => m.kind === "payment_link")).toMatchObject({ outcome: "queued", outbox: { to: c.ownerEmail, status: "pending" } });
   });
 
   test("without an owner's e-mail nothing is sent and nothing written", async () => {
@@ -279,6 +309,35 @@ describe("refunds", () => {
     expect(await handleProviderEvent(db(), event, answering)).toEqual({ outcome: "already recorded" });
     expect(await countOf(refunds, c.caseId)).toBe(1);
     expect(await eventsOf(c.caseId, "payment.refunded")).toBe(1);
+  });
+
+  test("when the refund fails at the desk's cancel, the desk is told the case is cancelled but not refunded, and refunds it from the quote page", async () => {
+    const c = await quotedCase();
+    const req = await requestPayment(db(), { caseId: c.caseId, appUrl: APP }, c.actor, sdk);
+    await standIn.pay(req.sessionId);
+    expect(await countOf(payments, c.caseId)).toBe(1);
+    // The provider refuses the workshop's key for a moment: the refund after the cancel fails.
+    process.env.STRIPE_SECRET_KEY = "sk_test_not_this_one";
+    let message = "";
+    try {
+      message = await failureText(() => changeCaseState(db(), { code: c.code, to: "cancelled", reason: "The owner withdrew the repair." }, c.actor));
+    } finally {
+      process.env.STRIPE_SECRET_KEY = KEY;
+    }
+    expect(message).toMatch(/is cancelled, but the owner's payment is not refunded yet/);
+    expect(await stateOf(c.caseId)).toBe("cancelled");
+    expect(await unrefundedPayments(db(), c.caseId)).toBe(1);
+    expect(await countOf(refunds, c.caseId)).toBe(0);
+    // The desk tries again from the quote page.
+    request.sessionId = (await startSession(c.actor.id, db())).session.id;
+    const fd = new FormData();
+    fd.set("code", c.code);
+    expect(await refundCaseAction(undefined, fd)).toMatchObject({ ok: true, message: expect.stringContaining("€210.50") });
+    expect(await unrefundedPayments(db(), c.caseId)).toBe(0);
+    expect(await eventsOf(c.caseId, "payment.refunded")).toBe(1);
+    // A second press finds nothing left to refund and writes nothing.
+    expect(await refundCaseAction(undefined, fd)).toMatchObject({ ok: true, message: "There was nothing left to refund." });
+    expect(await countOf(refunds, c.caseId)).toBe(1);
   });
 
   test("an open case's payment is not refunded by the cancel hook", async () => {

@@ -10,6 +10,7 @@ import { outbox, ownerConsents, serviceCases, users } from "@/db/schema";
 import { seedDemo } from "@/db/seed/seed";
 import { AppError } from "@/lib/auth/errors";
 import { startSession } from "@/lib/auth/sessions";
+import { ownersOfPair } from "@/lib/owners";
 import { changeCaseState, recordFinding } from "@/lib/service/desk";
 import { openCase, type IntakeInput } from "@/lib/service/intake";
 import { caseByCode, caseMessages, shipmentOfPair } from "@/lib/service/queries";
@@ -110,7 +111,10 @@ describe("intake refusals: a reason next to the field, nothing written", () => {
 
 describe("opening a case", () => {
   test("a speaker typed in lower case without hyphens: pair, partner, dealer, owner, consent, message", async () => {
-    const s = take();
+    // A pair nobody has registered, so that a registration would start its warranty.
+    const i = (await Promise.all(shipped.map(async (x) => (await ownersOfPair(db(), x.pairId)).length))).findIndex((n) => n === 0);
+    expect(i, "a shipped pair with no owner on record").toBeGreaterThanOrEqual(0);
+    const [s] = shipped.splice(i, 1) as [(typeof shipped)[number]];
     const before = await counts();
     const out = await openCase(db(), intake(s.L.toLowerCase().replace(/-/g, " ")), desk);
     expect(out.case.code).toMatch(/^RT\d{4}-\d{4}$/);
@@ -126,14 +130,22 @@ describe("opening a case", () => {
     expect(after.cases - before.cases).toBe(1);
     expect(after.owners - before.owners).toBe(1);
     expect(after.consents - before.consents).toBe(1);
-    // No ownership is registered at the desk: that would move the warranty's start.
-    expect(after.ownerships).toBe(before.ownerships);
+    // The owner the desk names is registered as an owner of the pair (so service mail reaches them)…
+    expect(after.ownerships - before.ownerships).toBe(1);
+    expect((await ownersOfPair(db(), s.pairId)).map((o) => o.email)).toEqual(["ada.fenwick@example.com"]);
     const mail = await db().select().from(outbox).where(eq(outbox.eventId, out.case.eventId));
     expect(mail).toHaveLength(1);
     expect(mail[0]!.to).toBe("ada.fenwick@example.com");
     expect(mail[0]!.subject).toContain(out.case.code);
     const messages = await caseMessages(db(), out.case.id);
     expect(messages).toMatchObject([{ kind: "received", outcome: "queued", outbox: { status: "pending" } }]);
+
+    // …but that does not start the warranty again: a later case on the pair counts from the same day.
+    await changeCaseState(db(), { code: out.case.code, to: "cancelled", reason: "owner collected it unrepaired" }, desk);
+    const again = await openCase(db(), intake(s.R, { owner: null, ownerId: out.case.ownerId }), desk);
+    expect(out.warranty).toMatchObject({ rule: "shipped", startsOn: ship!.shippedOn });
+    expect(again.warranty).toMatchObject({ rule: "shipped", startsOn: ship!.shippedOn });
+    expect((await counts()).ownerships - after.ownerships, "the same owner is not registered twice").toBe(0);
   });
 
   test("the same pair again is refused, naming the open case; so is its partner", async () => {

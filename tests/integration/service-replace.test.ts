@@ -18,6 +18,7 @@ import { now } from "@/lib/clock";
 import { appendEvent } from "@/lib/events/queries";
 import { traceBackward } from "@/lib/genealogy/trace";
 import { acceptPlan, batchUnitsView, freeUnitRows, importResponseFiles, listBatches, matchBatch, registerBatch } from "@/lib/lab/units";
+import { caseDetailJson } from "@/lib/service/json";
 import { fitReplacement, markRepaired, repairsOfCase } from "@/lib/service/repair";
 import { partAt, releaseAllOfCase, releaseReservation, replacementView, reservationsOfCase, reserveReplacement, reserveReplacementSet, speakerOf } from "@/lib/service/replacements";
 import { moveCase } from "@/lib/service/states";
@@ -66,6 +67,7 @@ async function shippedPairs(): Promise<World[]> {
 }
 
 /** Opens a case for the left speaker of a pair (or the whole pair), diagnosed with a finding at the left tweeter. */
+let opened = 0;
 async function openCase(w: World, opts: { whole?: boolean; diagnose?: boolean } = {}) {
   // One open case per pair: the one before is cancelled, its parts released.
   for (const o of await db().select().from(serviceCases).where(eq(serviceCases.pairId, w.pair.id))) {
@@ -74,7 +76,8 @@ async function openCase(w: World, opts: { whole?: boolean; diagnose?: boolean } 
     await moveCase(db(), { caseId: o.id, to: "cancelled" }, desk);
   }
   const id = newId();
-  const code = `RT-TEST-${id.slice(0, 6).toUpperCase()}`;
+  // A code of the desk's own shape, from a month no demo case uses.
+  const code = `RT2601-${String(9000 + ++opened)}`;
   const eventId = await appendEvent(db(), { actorId: desk.id, station: "service", type: "case.opened", subjectKind: "case", subjectId: id, data: { code } });
   await db().insert(serviceCases).values({ id, code, itemId: opts.whole ? w.pair.id : w.speakers.L.id, pairId: w.pair.id, partnerId: opts.whole ? null : w.speakers.R.id, returnedBy: "owner", receivedOn: "2026-12-01", symptom: "no treble from the left speaker", openedAt: now(), eventId });
   if (opts.diagnose !== false) {
@@ -240,6 +243,7 @@ describe("the repair", () => {
     expect(await failureText(() => fitReplacement(db(), { code: c.code, side: "L", position: "T", disposition: "failed", reason: "open voice coil" }, desk))).toMatch(/reserve one first/);
     const u = stock.units[0]!;
     await reserveReplacement(db(), { code: c.code, side: "L", position: "T", serial: u.identity }, desk);
+    expect((await caseDetailJson(db(), caseRow)).reserved).toEqual([expect.objectContaining({ side: "L", position: "T", serial: u.identity })]);
     const before = { links: await count(links), events: await count(events) };
     expect(await failureText(() => fitReplacement(db(), { code: c.code, side: "L", position: "T", disposition: "thrown away", reason: "" }, desk))).toMatch(/Choose what becomes/);
     expect({ links: await count(links), events: await count(events) }).toEqual(before);
@@ -260,6 +264,10 @@ describe("the repair", () => {
     const [res] = await reservationsOfCase(db(), caseRow.id);
     expect(res).toMatchObject({ serial: u.identity, endReason: "fitted" });
     expect(await repairsOfCase(db(), caseRow.id)).toEqual([expect.objectContaining({ side: "L", position: "T", removed: w.tweeters.L.identity, fitted: u.identity, disposition: "returned_to_maker", reason: "open voice coil" })]);
+    // The JSON case answers the same, by serials: nothing held any more, one repair.
+    const detail = await caseDetailJson(db(), caseRow);
+    expect(detail.reserved).toEqual([]);
+    expect(detail.repairs).toEqual([expect.objectContaining({ side: "L", position: "T", removed: w.tweeters.L.identity, fitted: u.identity, disposition: "returned_to_maker" })]);
 
     const moved = await markRepaired(db(), { code: c.code }, desk);
     expect(moved.state).toBe("repaired");

@@ -46,7 +46,7 @@ async function repaired(at = "2026-12-04T10:00:00Z") {
   setClock(new Date(at));
   const built = await shippedPair(db(), desk);
   const certificate = await issueCertificate(db(), built.pair.id, desk);
-  const c = await repairedCase(db(), { pair: built.pair, speakers: built.speakers, failed: built.tweeters.R, side: "R", code: `RT-TEST-${++n}` }, desk);
+  const c = await repairedCase(db(), { pair: built.pair, speakers: built.speakers, failed: built.tweeters.R, side: "R", code: `RT2601-${8000 + ++n}` }, desk);
   return { ...built, certificate, case: c };
 }
 
@@ -105,7 +105,7 @@ describe("the re-test of a repaired pair", () => {
     await moveCase(db(), { caseId: r.case.caseId, from: "tested", to: "sent_back" }, { id: desk });
     await moveCase(db(), { caseId: r.case.caseId, from: "sent_back", to: "closed" }, { id: desk });
     setClock(new Date("2027-03-10T09:00:00Z"));
-    const again = await repairedCase(db(), { pair: r.pair, speakers: r.speakers, failed: r.tweeters.L, side: "L", code: `RT-TEST-${++n}` }, desk);
+    const again = await repairedCase(db(), { pair: r.pair, speakers: r.speakers, failed: r.tweeters.L, side: "L", code: `RT2601-${8000 + ++n}` }, desk);
     await retestCase(db(), { code: again.code, left: flat(90), right: flat(90) }, { id: desk });
     const revs = await revisionsOf(r.certificate.id);
     expect(revs.map((x) => x.revision)).toEqual([2, 3]);

@@ -27,6 +27,8 @@ import { toTree, traceBackward, traceForward } from "@/lib/genealogy/trace";
 import { PairVeneer } from "./pair-veneer";
 import { LabOrigin } from "./lab-origin";
 import { parseLeafIdentity } from "@/lib/serials";
+import { casesTouching } from "@/lib/service/queries";
+import { CASE_STATE_WORDS, OPEN_CASE_STATES } from "@/lib/vocabulary/case-states";
 
 /** A leaf names its flitch and number; a flitch opens in the veneer room for those who work there. */
 function VeneerOrigin({ identity, kind, inVeneerRoom }: { identity: string; kind: "flitch" | "leaf"; inVeneerRoom: boolean }) {
@@ -93,6 +95,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
     // One shipment (or the item is one): its dealer and day, to say where the item went in words.
     shipmentFacts(db, item.kind === "shipment" ? [item.id] : shipments.length === 1 ? [shipments[0]!.id] : []),
   ]);
+  const cases = item.kind === "speaker" || item.kind === "pair" ? await casesTouching(db, item.id) : [];
   const ownShipment = item.kind === "shipment" ? (facts[0] ?? null) : null;
   const shipment = item.kind === "shipment" ? null : (facts[0] ?? null);
 
@@ -111,6 +114,24 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
             Its cabinet route: the steps recorded, holds and nonconformances
           </Link>
         </p>
+      ) : null}
+      {cases.length ? (
+        <Notice tone={cases.some((c) => (OPEN_CASE_STATES as readonly string[]).includes(c.state)) ? "caution" : "info"} testId="item-service-cases">
+          <span className="font-bold">Service: </span>
+          {cases.map((c, i) => (
+            <span key={c.code}>
+              {i ? "; " : ""}
+              {user.permissions.has("service.work") ? (
+                <Link className="serial underline" href={paths.serviceCase(c.code)}>
+                  {c.code}
+                </Link>
+              ) : (
+                <span className="serial">{c.code}</span>
+              )}
+              {` (${CASE_STATE_WORDS[c.state].toLowerCase()}), ${c.itemId === item.id ? "came back" : item.kind === "pair" ? "one speaker came back" : c.partnerId === item.id ? "its partner came back" : "the whole pair came back"} on ${formatCalendarDay(c.receivedOn, new Date(0))}`}
+            </span>
+          ))}
+        </Notice>
       ) : null}
       {item.kind === "drive_unit" || item.kind === "crossover" ? <LabOrigin item={item} inLab={user.permissions.has("lab.work")} /> : null}
       {item.kind === "flitch" || item.kind === "leaf" ? <VeneerOrigin identity={item.identity} kind={item.kind} inVeneerRoom={user.permissions.has("veneer.work")} /> : null}

@@ -15,10 +15,13 @@ import { pageParam, requirePage } from "@/lib/auth/guard";
 import { describeEvent } from "@/lib/events/describe";
 import { formatCalendarDay, formatDate, formatWhen, timesNote } from "@/lib/format";
 import { paths } from "@/lib/paths";
+import { unrefundedPayments } from "@/lib/payments/queries";
 import { listUploads } from "@/lib/uploads";
 import { DESK_MOVES, FINDING_STATES } from "@/lib/service/desk";
 import { CASE_MESSAGE_WORDS, OWNER_MAIL_WORDS } from "@/lib/service/messages";
 import { caseByCode, caseHistory, caseMessages, caseParticulars, caseTraces, findingsOf } from "@/lib/service/queries";
+import { DISPOSITION_WORDS, isDisposition, repairsOfCase } from "@/lib/service/repair";
+import { reservationsOfCase } from "@/lib/service/replacements";
 import { caseReturnOf } from "@/lib/service/return";
 import { warrantyWorking } from "@/lib/service/warranty";
 import { CASE_STATE_WORDS, CASE_TRANSITIONS, OPEN_CASE_STATES, type CaseState } from "@/lib/vocabulary/case-states";
@@ -55,14 +58,18 @@ export default async function CasePage({ params }: { params: Promise<{ code: str
   const db = getDb();
   const c = await caseByCode(db, pageParam((await params).code));
   if (!c) notFound();
-  const [p, findings, history, traces, photos, sent] = await Promise.all([
+  const [p, findings, history, traces, photos, sent, reservations, repairs] = await Promise.all([
     caseParticulars(db, c),
     findingsOf(db, c.id),
     caseHistory(db, c.id),
     caseTraces(db, c),
     listUploads(db, { kind: "case", id: c.id }),
     caseReturnOf(db, c.id),
+    reservationsOfCase(db, c.id),
+    repairsOfCase(db, c.id),
   ]);
+  const owedBack = c.state === "cancelled" ? await unrefundedPayments(db, c.id) : 0;
+  const held = reservations.filter((r) => !r.endedAt);
   const messages = await caseMessages(db, c.id, history);
   const day = (iso: string) => formatCalendarDay(iso, new Date(0));
   const open = (OPEN_CASE_STATES as readonly string[]).includes(c.state);
@@ -72,7 +79,16 @@ export default async function CasePage({ params }: { params: Promise<{ code: str
     .map((to) => ({
       to,
       needsReason: to === "cancelled" || (to === "diagnosed" && c.state !== "received"),
-      hint: to === "diagnosed" && c.state === "received" ? (findings.length ? "The owner is told what was found." : "Record at least one finding first.") : to === "closed" ? "The owner is told the case is closed." : undefined,
+      hint:
+        to === "diagnosed" && c.state === "received"
+          ? !findings.length
+            ? "Record at least one finding first."
+            : p.warranty && !p.warranty.inWarranty
+              ? "The owner is told what was found, with the quote if you have made one (out of warranty)."
+              : "The owner is told what was found."
+          : to === "closed"
+            ? "The owner is told the case is closed."
+            : undefined,
     }));
   const sides = (["L", "R"] as const).filter((s) => p.item.kind === "pair" || p.item.side === s).map((s) => ({ value: s, label: `${SIDE_WORD[s][0]!.toUpperCase()}${SIDE_WORD[s].slice(1)} speaker` }));
   const positions = [...(p.model?.positions ?? []).map((x) => ({ value: x.position, label: positionName(x.position) })), { value: CROSSOVER_POSITION, label: positionName(CROSSOVER_POSITION) }];
@@ -147,8 +163,13 @@ export default async function CasePage({ params }: { params: Promise<{ code: str
         <div className="flex flex-col gap-4">
           <CaseMoves code={c.code} from={c.state} choices={choices} action={moveCaseAction} />
           <div className="flex flex-wrap gap-3" data-testid="case-next-pages">
-            {w && !w.inWarranty && ["diagnosed", "waiting_payment"].includes(c.state) ? (
+            {w && !w.inWarranty && (["diagnosed", "waiting_part", "waiting_payment"].includes(c.state) || (c.state === "received" && findings.length > 0)) ? (
               <Link className={buttonClasses("secondary")} href={paths.serviceQuote(c.code)}>Quote the repair</Link>
+            ) : null}
+            {c.state === "cancelled" && owedBack > 0 ? (
+              <Link className={buttonClasses("primary")} href={paths.serviceQuote(c.code)} data-testid="case-refund-link">
+                Refund the owner&apos;s payment
+              </Link>
             ) : null}
             {c.state === "repaired" ? <Link className={buttonClasses("primary")} href={paths.serviceRetest(c.code)}>Re-test the pair</Link> : null}
             {c.state === "tested" ? <Link className={buttonClasses("primary")} href={paths.serviceReturn(c.code)}>Send it back</Link> : null}
@@ -192,6 +213,33 @@ export default async function CasePage({ params }: { params: Promise<{ code: str
           )}
           {FINDING_STATES.includes(c.state) ? <CaseFindingForm code={c.code} sides={sides} positions={positions} action={recordFindingAction} /> : null}
         </div>
+      </Panel>
+
+      <Panel title="Parts reserved and replaced">
+        {held.length || repairs.length ? (
+          <ul className="flex flex-col gap-2" data-testid="case-parts">
+            {held.map((r) => (
+              <li key={`held-${r.id}`} className="flex flex-wrap items-center gap-3 rounded-lg border border-line px-3 py-2" data-testid="case-reserved">
+                <Badge tone="caution">Reserved</Badge>
+                <span className="font-bold">{`${SIDE_WORD[r.side][0]!.toUpperCase()}${SIDE_WORD[r.side].slice(1)} speaker, ${positionName(r.position)}`}</span>
+                <SerialLink identity={r.serial} bold={false} />
+                <span className="text-sm text-ink-soft">since {formatWhen(r.createdAt)}</span>
+              </li>
+            ))}
+            {repairs.map((r) => (
+              <li key={`fit-${r.fitted}`} className="flex flex-wrap items-center gap-3 rounded-lg border border-line px-3 py-2" data-testid="case-repair">
+                <Badge tone="leaf">Replaced</Badge>
+                <span className="font-bold">{`${SIDE_WORD[r.side][0]!.toUpperCase()}${SIDE_WORD[r.side].slice(1)} speaker, ${positionName(r.position)}`}</span>
+                <span>
+                  <SerialLink identity={r.removed} bold={false} /> out, <SerialLink identity={r.fitted} bold={false} /> in, {formatWhen(r.at)}
+                </span>
+                {r.disposition ? <span className="text-sm text-ink-soft">{`${isDisposition(r.disposition) ? DISPOSITION_WORDS[r.disposition] : r.disposition}${r.reason ? `: “${r.reason}”` : ""}`}</span> : null}
+              </li>
+            ))}
+          </ul>
+        ) : (
+          <p data-testid="no-parts">Nothing reserved or replaced yet.{canRepair && findings.length ? " Find a replacement from a finding above." : ""}</p>
+        )}
       </Panel>
 
       <Panel title="As built and now">

@@ -8,7 +8,7 @@ export const intakeFormSchema = z.object({
   receivedOn: field(32, "Give the day it arrived as YYYY-MM-DD."),
   returnedBy: z.enum(["owner", "dealer"], { error: "Say who sent it back: the owner or the dealer." }),
   dealerCode: field(32, "Choose a dealer from the list."),
-  symptom: field(4000, "Say what is wrong, in at most 2000 characters."),
+  symptom: field(2000, "Say what is wrong, in at most 2000 characters."),
   ownerMode: z.enum(["record", "new", "none"], { error: "Say whether the owner is on record, new, or not known." }),
   ownerId: field(64, "Pick an owner from the list."),
   "owner.name": field(200, "Give the owner's name (at most 200 characters)."),

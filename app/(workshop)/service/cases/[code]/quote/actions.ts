@@ -6,6 +6,7 @@ import { requestPayment } from "@/lib/payments/checkout";
 import { formatMoney } from "@/lib/payments/money";
 import { quotePage } from "@/lib/payments/queries";
 import { createQuote } from "@/lib/payments/quotes";
+import { refundForCancelledCase } from "@/lib/payments/refunds";
 import { paths } from "@/lib/paths";
 import { quoteSchema, sendLinkSchema } from "./schemas";
 
@@ -38,5 +39,15 @@ export const sendPaymentLinkAction = guardedAction("service.work", sendLinkSchem
     ok: true,
     message: `The payment link is on its way to ${c.owner?.email ?? "the owner"}. The case waits for payment.`,
     revalidate: [paths.serviceQuote(c.code), paths.serviceCase(c.code), paths.service],
+  };
+});
+
+export const refundCaseAction = guardedAction("service.work", sendLinkSchema, async (input, user) => {
+  const c = await caseOf(input.code);
+  const refund = await refundForCancelledCase(getDb(), c.caseId, { id: user.id });
+  return {
+    ok: true,
+    message: refund ? `Refunded ${formatMoney(refund.amount, c.currency)} to the owner.` : "There was nothing left to refund.",
+    revalidate: [paths.serviceQuote(c.code), paths.serviceCase(c.code)],
   };
 });

@@ -1,7 +1,7 @@
 import type { Metadata } from "next";
 import { notFound } from "next/navigation";
 import { QuoteForm } from "@/components/service/quote-form";
-import { QuoteSend } from "@/components/service/quote-send";
+import { QuoteSend, RefundSend } from "@/components/service/quote-send";
 import { BackLink } from "@/components/ui/back-link";
 import { Notice } from "@/components/ui/notice";
 import { Panel, PageHeader } from "@/components/ui/panel";
@@ -13,7 +13,7 @@ import { currencyOf, formatMoney, priceExample } from "@/lib/payments/money";
 import { quotePage } from "@/lib/payments/queries";
 import { paths } from "@/lib/paths";
 import { CASE_STATE_WORDS } from "@/lib/vocabulary/case-states";
-import { createQuoteAction, sendPaymentLinkAction } from "./actions";
+import { createQuoteAction, refundCaseAction, sendPaymentLinkAction } from "./actions";
 import { QUOTE_ROWS } from "./schemas";
 
 export const metadata: Metadata = { title: "Quote and payment" };
@@ -101,13 +101,23 @@ export default async function Page({ params }: { params: Promise<{ code: string 
 
       {q && c.quotable && !c.paid ? (
         <Panel title="Payment link">
-          {c.owner?.email ? (
+          {!c.payable ? (
+            <Notice tone="info" testId="quote-before-diagnosis">
+              The owner reads this quote in the diagnosis message. Mark the case diagnosed on its page, then send the link to pay here.
+            </Notice>
+          ) : c.owner?.email ? (
             <QuoteSend code={c.code} to={c.owner.email} total={money(q.totalMinor, q.currency)} action={sendPaymentLinkAction} />
           ) : (
             <Notice tone="danger" testId="no-owner-email">
               The owner has no e-mail address on record, so no payment link can reach them. Add one on the case first.
             </Notice>
           )}
+        </Panel>
+      ) : null}
+
+      {c.state === "cancelled" && c.unrefunded > 0 ? (
+        <Panel title="Refund">
+          <RefundSend code={c.code} action={refundCaseAction} />
         </Panel>
       ) : null}
 
