@@ -81,6 +81,7 @@ beforeAll(async () => {
   samples.set("dealer", { value: (await one<{ code: string }>(sql`SELECT code FROM dealers ORDER BY code LIMIT 1`, "dealer")).code });
   samples.set("owner", { value: (await one<{ id: string }>(sql`SELECT id FROM owners ORDER BY id LIMIT 1`, "owner")).id });
   samples.set("token", { value: "roles-walk-no-such-token" });
+  samples.set("case", { value: (await one<{ code: string }>(sql`SELECT code FROM service_cases ORDER BY code LIMIT 1`, "service case")).code });
 
   before = await snapshot(db, NOT_COMPARED);
 });

@@ -333,6 +333,19 @@ describe("a returned speaker from intake to closed, at the service desk", () => 
     expect(shipped.find((i) => i.identity === carton)).toMatchObject({ state: "shipped", attrs: { case: code, speaker: w.speaker } });
     expect(shipped.find((i) => i.identity === shipment)).toMatchObject({ state: "shipped", attrs: { case: code, to: "owner", carrier: "Invented Parcels", tracking } });
 
+    // The desk prints the carton's label as packing would: one speaker, named alone, under the pair's GS1-128.
+    await page.getByRole("link", { name: "The shipment" }).click();
+    await page.getByTestId("return-shipment").waitFor();
+    const label = await pressPrint(page, "return-print-label");
+    expect(label.status()).toBe(200);
+    expect(label.headers()["content-type"]).toBe("application/pdf");
+    const labelText = (await extractText(await getDocumentProxy(new Uint8Array(await label.body())), { mergePages: true })).text;
+    expect(labelText.replace(/\s+/g, "")).toContain("RIGHTSPEAKERONLY");
+    expect(labelText).toContain(w.speaker);
+    expect(labelText).not.toContain(w.partner);
+    expect(labelText).toContain(carton!);
+    await visit(page, url(paths.serviceCase(code)));
+
     await page.getByTestId("move-closed").getByRole("button", { name: "Mark “Closed”" }).click();
     await stateShown("Closed");
     expect(await page.getByText("This case is closed: nothing more is done on it.").count()).toBe(1);

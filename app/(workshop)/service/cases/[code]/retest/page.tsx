@@ -45,7 +45,7 @@ export default async function Page({ params }: { params: Promise<{ code: string 
         <Panel title={test.pass ? "Passed" : "Failed"}>
           <Notice tone={test.pass ? "leaf" : "danger"} testId="retest-result" className="mb-4">
             {test.pass
-              ? `Passed: the largest difference is ${formatDb(test.maxDiffDb)} at ${bandLabel(test.worstBand)}, within the ${formatLimitDb(test.limitDb)} limit. The case is now “${CASE_STATE_WORDS[c.state]}” and the certificate has a new revision.`
+              ? `Passed: the largest difference is ${formatDb(test.maxDiffDb)} at ${bandLabel(test.worstBand)}, within the ${formatLimitDb(test.limitDb)} limit. ${c.state === "tested" ? "The case is now “Tested” and the certificate has a new revision." : `The certificate got a new revision; the case has since moved on to “${CASE_STATE_WORDS[c.state]}”.`}`
               : `Failed: left and right differ by ${formatDb(test.maxDiffDb)} at ${bandLabel(test.worstBand)}, over the ${formatLimitDb(test.limitDb)} limit. The case stays repaired. Check the fitted parts and their connections, and test again; if the fault is elsewhere, move the case back to diagnosis on its page.`}
           </Notice>
           <PairChart
