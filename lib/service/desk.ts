@@ -92,6 +92,9 @@ export async function changeCaseState(
   if (reason && reason.length > 500) throw new AppError(400, "Keep the reason to 500 characters.", { reason: ["Keep the reason to 500 characters."] });
   if (input.to === "cancelled" && !reason) throw new AppError(400, "Say why the case is cancelled.", { reason: ["Say why the case is cancelled."] });
   if (input.to === "diagnosed" && c.state !== "received" && !reason) throw new AppError(400, "Say why the case goes back to diagnosed.", { reason: ["Say why the case goes back to diagnosed."] });
+  if (input.to === "waiting_payment" && (await warrantyFacts(db, c))?.inWarranty !== false) {
+    throw new AppError(409, "This repair is not charged (in warranty, or the warranty cannot be worked out), so the case does not wait for payment. Nothing was changed.");
+  }
   if (input.to === "diagnosed" && (await findingsOf(db, c.id)).length === 0) {
     throw new AppError(409, "Record at least one finding (a failed position and what was found) before the case is diagnosed.", { finding: ["Record at least one finding first."] });
   }

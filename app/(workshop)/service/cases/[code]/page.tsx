@@ -14,6 +14,7 @@ import { getDb } from "@/db";
 import { pageParam, requirePage } from "@/lib/auth/guard";
 import { describeEvent } from "@/lib/events/describe";
 import { formatCalendarDay, formatDate, formatWhen, timesNote } from "@/lib/format";
+import { revisionsOfCase } from "@/lib/certificates/revisions";
 import { paths } from "@/lib/paths";
 import { unrefundedPayments } from "@/lib/payments/queries";
 import { listUploads } from "@/lib/uploads";
@@ -58,7 +59,7 @@ export default async function CasePage({ params }: { params: Promise<{ code: str
   const db = getDb();
   const c = await caseByCode(db, pageParam((await params).code));
   if (!c) notFound();
-  const [p, findings, history, traces, photos, sent, reservations, repairs] = await Promise.all([
+  const [p, findings, history, traces, photos, sent, reservations, repairs, revisions] = await Promise.all([
     caseParticulars(db, c),
     findingsOf(db, c.id),
     caseHistory(db, c.id),
@@ -67,6 +68,7 @@ export default async function CasePage({ params }: { params: Promise<{ code: str
     caseReturnOf(db, c.id),
     reservationsOfCase(db, c.id),
     repairsOfCase(db, c.id),
+    revisionsOfCase(db, c.id),
   ]);
   const owedBack = c.state === "cancelled" ? await unrefundedPayments(db, c.id) : 0;
   const held = reservations.filter((r) => !r.endedAt);
@@ -76,6 +78,8 @@ export default async function CasePage({ params }: { params: Promise<{ code: str
 
   const choices: MoveChoice[] = CASE_TRANSITIONS[c.state]
     .filter((to) => DESK_MOVES.includes(to))
+    // Only a repair that is charged waits for payment.
+    .filter((to) => to !== "waiting_payment" || (p.warranty !== null && !p.warranty.inWarranty))
     .map((to) => ({
       to,
       needsReason: to === "cancelled" || (to === "diagnosed" && c.state !== "received"),
@@ -237,7 +241,13 @@ export default async function CasePage({ params }: { params: Promise<{ code: str
               </li>
             ))}
           </ul>
-        ) : (
+        ) : null}
+        {revisions.map((r) => (
+          <p key={r.id} className="mt-3" data-testid="case-revision">
+            <Badge tone="leaf">Certificate</Badge> {`Revision ${r.revision}, issued ${formatWhen(r.issuedAt)}. The owner reads: “${r.repairLine}.”`}
+          </p>
+        ))}
+        {held.length || repairs.length ? null : (
           <p data-testid="no-parts">Nothing reserved or replaced yet.{canRepair && findings.length ? " Find a replacement from a finding above." : ""}</p>
         )}
       </Panel>
