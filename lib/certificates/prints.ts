@@ -54,11 +54,18 @@ export async function recordCertificatePrint(
       await tx.insert(certificatePrints).values({ id, certificateId, original, actorId: opts.actorId, eventId, printedAt: now() });
       return { id, original, eventId };
     });
+  return originalOrCopy(opts.copy, attempt);
+}
+
+/**
+ * Runs a print's transaction asking for the original unless a copy was asked for; when another
+ * writer's original came first (the partial unique index says so), runs it again as a copy.
+ */
+export async function originalOrCopy<T>(copy: boolean | undefined, attempt: (wantOriginal: boolean) => Promise<T>): Promise<T> {
   try {
-    return await attempt(!opts.copy);
+    return await attempt(!copy);
   } catch (e) {
-    // Another writer's original came first (the index said so): this print is a copy.
-    if (!opts.copy && isConstraintError(e, "UNIQUE")) return attempt(false);
+    if (!copy && isConstraintError(e, "UNIQUE")) return attempt(false);
     throw e;
   }
 }

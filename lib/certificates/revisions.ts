@@ -9,7 +9,7 @@ import { appendEvent } from "@/lib/events/queries";
 import type { Station } from "@/lib/vocabulary/stations";
 import { certificateCode } from "./code";
 import { issueCertificateIn } from "./data";
-import type { RecordedPrint } from "./prints";
+import { originalOrCopy, type RecordedPrint } from "./prints";
 import { repairLine } from "./repair-line";
 
 /** Every revision of a certificate, oldest first (the original, revision 1, is the certificate itself). */
@@ -157,11 +157,5 @@ export async function recordRevisionPrint(
       await tx.insert(certificateRevisionPrints).values({ id, revisionId, original, actorId: opts.actorId, eventId, printedAt: now() });
       return { id, original, eventId };
     });
-  try {
-    return await attempt(!opts.copy);
-  } catch (e) {
-    // Another writer's original came first (the index said so): this print is a copy.
-    if (!opts.copy && isConstraintError(e, "UNIQUE")) return attempt(false);
-    throw e;
-  }
+  return originalOrCopy(opts.copy, attempt);
 }

@@ -45,7 +45,7 @@ async function findItem(db: DbOrTx, text: string): Promise<Item | null> {
 }
 
 /** The carton a pair sits in now, if any. */
-async function cartonOf(db: DbOrTx, pairId: string): Promise<Item | null> {
+export async function cartonOf(db: DbOrTx, pairId: string): Promise<Item | null> {
   const [row] = await db
     .select({ carton: items })
     .from(links)

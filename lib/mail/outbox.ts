@@ -184,8 +184,9 @@ const toDate = (ms: number | null | undefined) => (ms === null || ms === undefin
  */
 export async function listOutbox(
   db: DbOrTx,
-  opts: { limit?: number; maxAttempts?: number } = {},
+  opts: { limit?: number; maxAttempts?: number; /** Only the messages of these events. */ eventIds?: number[] } = {},
 ): Promise<OutboxEntry[]> {
+  if (opts.eventIds && opts.eventIds.length === 0) return [];
   const maxAttempts = opts.maxAttempts ?? DEFAULT_MAX_ATTEMPTS;
   const stats = attemptStats(db);
   const rows = await db
@@ -206,8 +207,9 @@ export async function listOutbox(
     })
     .from(outbox)
     .leftJoin(stats, eq(stats.outboxId, outbox.id))
+    .where(opts.eventIds ? inArray(outbox.eventId, opts.eventIds) : undefined)
     .orderBy(desc(outbox.id))
-    .limit(opts.limit ?? 50);
+    .limit(opts.limit ?? (opts.eventIds ? opts.eventIds.length * 4 : 50));
 
   return rows.map((r) => {
     const failures = Number(r.failures ?? 0);

@@ -4,9 +4,9 @@ import { and, asc, desc, eq, inArray, sql } from "drizzle-orm";
 import { shippedAt, traceBackward, type TraceNode } from "@/lib/genealogy/trace";
 import { compareTraces } from "./trace-diff";
 import type { DbOrTx } from "@/db";
-import { caseFindings, dealers, events, items, mailAttempts, models, outbox, ownerships, serviceCases, users, type CaseFinding, type ServiceCase } from "@/db/schema";
+import { caseFindings, dealers, events, items, models, ownerships, serviceCases, users, type CaseFinding, type ServiceCase } from "@/db/schema";
 import { DESK_REGISTRATION, ownerById, type OwnerWithConsent } from "@/lib/owners";
-import { attemptStats, DEFAULT_MAX_ATTEMPTS, deriveStatus, type OutboxStatus } from "@/lib/mail/outbox";
+import { listOutbox, type OutboxEntry, type OutboxStatus } from "@/lib/mail/outbox";
 import { workshopDay } from "@/lib/workshop-time";
 import { OPEN_CASE_STATES, type CaseState } from "@/lib/vocabulary/case-states";
 import { normaliseCaseCode } from "./code";
@@ -164,33 +164,18 @@ export interface CaseMessage {
 export async function caseMessages(db: DbOrTx, caseId: string, history?: CaseEvent[]): Promise<CaseMessage[]> {
   const evs = (history ?? (await caseHistory(db, caseId))).filter((e) => e.data && typeof e.data.ownerMail === "object" && e.data.ownerMail !== null);
   if (evs.length === 0) return [];
-  const stats = attemptStats(db);
-  const rows = await db
-    .select({
-      id: outbox.id,
-      eventId: outbox.eventId,
-      to: outbox.to,
-      subject: outbox.subject,
-      attempts: stats.attempts,
-      failures: stats.failures,
-      sentAt: stats.sentAt,
-      lastError: sql<string | null>`(SELECT ${mailAttempts.detail} FROM ${mailAttempts} WHERE ${mailAttempts.outboxId} = ${outbox.id} AND NOT ${mailAttempts.ok} ORDER BY ${mailAttempts.id} DESC LIMIT 1)`,
-    })
-    .from(outbox)
-    .leftJoin(stats, eq(stats.outboxId, outbox.id))
-    .where(inArray(outbox.eventId, evs.map((e) => e.id)))
-    .orderBy(desc(outbox.id));
-  const byEvent = new Map(rows.map((r) => [r.eventId, r]));
+  const rows = await listOutbox(db, { eventIds: evs.map((e) => e.id) });
+  const byEvent = new Map<number | null, OutboxEntry>();
+  for (const r of rows) if (!byEvent.has(r.eventId)) byEvent.set(r.eventId, r);
   return evs.map((e) => {
     const m = e.data.ownerMail as { kind?: string; outcome?: CaseMessage["outcome"] };
     const r = byEvent.get(e.id);
-    const sentAt = r?.sentAt === null || r?.sentAt === undefined ? null : new Date(Number(r.sentAt));
     return {
       eventId: e.id,
       kind: m.kind ?? "",
       outcome: m.outcome ?? "queued",
       at: e.at,
-      outbox: r ? { id: r.id, to: r.to, subject: r.subject, status: deriveStatus(sentAt !== null, Number(r.failures ?? 0), DEFAULT_MAX_ATTEMPTS), attempts: Number(r.attempts ?? 0), sentAt, lastError: r.lastError } : null,
+      outbox: r ? { id: r.id, to: r.to, subject: r.subject, status: r.status, attempts: r.attempts, sentAt: r.sentAt, lastError: r.lastError } : null,
     };
   });
 }

@@ -4,12 +4,13 @@
  * transaction. Bad input writes nothing.
  */
 import "server-only";
-import { and, desc, eq, isNull } from "drizzle-orm";
+import { and, desc, eq } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db";
-import { dealers, events, items, links, models, shipmentDetails, type Item } from "@/db/schema";
+import { dealers, events, models, shipmentDetails, type Item } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
 import { now } from "@/lib/clock";
 import { isCalendarDay, isoDay } from "@/lib/dispatch/dates";
+import { cartonOf } from "@/lib/dispatch";
 import { appendEvent } from "@/lib/events/queries";
 import { changeState, createItem, fit, itemById, removeFrom, type Recorder } from "@/lib/genealogy/graph";
 import { allocateSerial } from "@/lib/serials/allocator";
@@ -117,7 +118,7 @@ export async function sendCaseBack(db: Db, input: ReturnInput, actor: Actor): Pr
       by,
     );
     if (item.kind === "pair") {
-      const old = await cartonHolding(tx, item.id);
+      const old = await cartonOf(tx, item.id);
       if (old) await removeFrom(tx, { parent: old, child: item, data: { case: c.code } }, { ...by, reason: `Came back for service in case ${c.code}` });
       await fit(tx, { parent: carton, child: item, position: "PAIR", data: { case: c.code } }, by);
     }
@@ -143,17 +144,6 @@ export async function sendCaseBack(db: Db, input: ReturnInput, actor: Actor): Pr
     await queueOwnerMessage(tx, { case: moved, kind: "on_its_way", eventId: moved.moveEventId, sentTo });
     return { code: c.code, carton, shipment, moveEventId: moved.moveEventId };
   });
-}
-
-/** The carton a pair sits in now, if any. */
-async function cartonHolding(db: DbOrTx, pairId: string): Promise<Item | null> {
-  const [row] = await db
-    .select({ carton: items })
-    .from(links)
-    .innerJoin(items, eq(items.id, links.parentId))
-    .where(and(eq(links.childId, pairId), isNull(links.endedAt), eq(items.kind, "carton")))
-    .limit(1);
-  return row?.carton ?? null;
 }
 
 /** The case's way home as recorded, or null while it has not been sent back. */

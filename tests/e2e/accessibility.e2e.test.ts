@@ -1,7 +1,6 @@
-import { AxeBuilder } from "@axe-core/playwright";
-import type { Browser, Page } from "playwright-core";
+import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { demoEmail, launchBrowser, newPage, signIn, url, visit } from "./browser-helpers";
+import { axeViolations, demoEmail, launchBrowser, newPage, signIn, url, visit } from "./browser-helpers";
 
 let browser: Browser;
 beforeAll(async () => {
@@ -11,29 +10,21 @@ afterAll(async () => {
   await browser?.close();
 });
 
-// WCAG 2.1 A and AA rules, as axe-core tags them.
-async function violations(page: Page) {
-  // Next streams a dynamic page's metadata after its shell: check the page once it has its title.
-  await page.waitForFunction(() => document.title.length > 0);
-  const result = await new AxeBuilder({ page }).withTags(["wcag2a", "wcag2aa", "wcag21a", "wcag21aa"]).analyze();
-  return result.violations.map((v) => `${v.id}: ${v.help} (${v.nodes.map((n) => n.target.join(" ")).join(", ")})`);
-}
-
 describe("accessibility (axe-core)", () => {
   test("the sign-in page has no WCAG A/AA violations, also when showing errors", async () => {
     const page = await newPage(browser);
     await visit(page, url("/sign-in"));
-    expect(await violations(page)).toEqual([]);
+    expect(await axeViolations(page)).toEqual([]);
     await page.getByRole("button", { name: "Sign in" }).click();
     await page.getByText("Enter your password.").waitFor();
-    expect(await violations(page)).toEqual([]);
+    expect(await axeViolations(page)).toEqual([]);
     await page.context().close();
   });
 
   test.each(["admin", "veneer"])("the home page of the %s user has no WCAG A/AA violations", async (role) => {
     const page = await newPage(browser);
     await signIn(page, demoEmail(role));
-    expect(await violations(page)).toEqual([]);
+    expect(await axeViolations(page)).toEqual([]);
     await page.context().close();
   });
 });
@@ -44,12 +35,12 @@ describe("accessibility of the veneer room (axe-core)", () => {
     await signIn(page, demoEmail("veneer"));
     for (const path of ["/veneer", "/veneer/receive", "/cabinet/lacquer"]) {
       await visit(page, url(path));
-      expect(await violations(page), path).toEqual([]);
+      expect(await axeViolations(page), path).toEqual([]);
     }
     await visit(page, url("/veneer"));
     await page.getByTestId("flitch-table").locator("a").first().click();
     await page.getByTestId("plan-picture").waitFor();
-    expect(await violations(page), "flitch page").toEqual([]);
+    expect(await axeViolations(page), "flitch page").toEqual([]);
     await page.context().close();
   });
 });

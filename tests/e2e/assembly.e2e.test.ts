@@ -5,7 +5,6 @@
  * the test process (a veneered pair walked along its route, matched sets, boards); only the
  * assembly is done through the pages. All serials and responses are invented.
  */
-import { AxeBuilder } from "@axe-core/playwright";
 import { eq } from "drizzle-orm";
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, inject, test } from "vitest";
@@ -18,7 +17,7 @@ import { acceptPlan, importResponseFiles, registerBatch } from "@/lib/lab/units"
 import { pairRoute, recordStep } from "@/lib/route/pair-route";
 import { confirmRuns, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
 import { makeLacquerCabinets } from "@/lib/cabinets/lacquer";
-import { demoEmail, launchBrowser, newPage, signIn, url, visit } from "./browser-helpers";
+import { axeViolations, demoEmail, launchBrowser, newPage, signIn, url, visit } from "./browser-helpers";
 import { goodReadings } from "../fixtures/route";
 
 let browser: Browser;
@@ -76,12 +75,6 @@ afterAll(async () => {
 });
 
 /** WCAG 2.1 A and AA violations, as in accessibility.e2e.test.ts. */
-async function violations() {
-  await page.waitForFunction(() => document.title.length > 0);
-  const result = await new AxeBuilder({ page }).withTags(["wcag2a", "wcag2aa", "wcag21a", "wcag21aa"]).analyze();
-  return result.violations.map((v) => `${v.id}: ${v.help} (${v.nodes.map((n) => n.target.join(" ")).join(", ")})`);
-}
-
 /** Scans into a field as a scanner does (the label, then Enter) and waits for the server's answer. */
 async function scanInto(key: string, code: string): Promise<string> {
   const result = page.getByTestId(`result-${key}`);
@@ -100,14 +93,14 @@ describe("the assembly station", () => {
   test("a pair opened by its label is built from scans; a wrong scan is refused beside its field", async () => {
     await visit(page, url("/assembly"));
     await expect.poll(() => page.getByTestId("assembly-waiting").textContent()).toContain(w.pair);
-    expect(await violations()).toEqual([]);
+    expect(await axeViolations(page)).toEqual([]);
     await page.getByLabel("Scan a pair or cabinet label").fill(w.pair.toLowerCase());
     await page.getByRole("button", { name: "Open" }).click();
     await page.getByTestId("build-form").waitFor();
 
     expect(await scanInto("L.T", w.tweeter[0]!)).toContain(`✓ ${w.tweeter[0]}`);
     expect(await scanInto("R.T", w.tweeter[2]!)).toMatch(/The left tweeter is from set M-.*; the right one must be its partner/);
-    expect(await violations()).toEqual([]);
+    expect(await axeViolations(page)).toEqual([]);
     expect(await scanInto("R.T", w.tweeter[1]!)).toContain(`✓ ${w.tweeter[1]}`);
     expect(await scanInto("L.B", w.xo[0]!)).toContain("is a crossover board; this field is for the bass (B): scan a bass unit.");
     expect(await scanInto("L.B", w.bass[0]!)).toContain("✓");

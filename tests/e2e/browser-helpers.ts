@@ -1,3 +1,4 @@
+import { AxeBuilder } from "@axe-core/playwright";
 import { chromium, type Browser, type Page } from "playwright-core";
 import { inject } from "vitest";
 import { readMailbox, type MailboxMessage } from "@/lib/mail/mailbox";
@@ -68,4 +69,14 @@ export async function pressPrint(page: Page, testId: string, nth = 0) {
   const action = await page.getByTestId(testId).nth(nth).evaluate((b) => (b as HTMLButtonElement).form?.action ?? "");
   if (!action) throw new Error(`${testId} is not a button in a form`);
   return page.request.post(action, { headers: { origin: new URL(inject("baseUrl")).origin }, maxRedirects: 1 });
+}
+
+/**
+ * The page's WCAG 2.1 A and AA failures as axe-core tags them, one line each. Next streams a
+ * dynamic page's metadata after its shell, so the page is checked once it has its title.
+ */
+export async function axeViolations(page: Page): Promise<string[]> {
+  await page.waitForFunction(() => document.title.length > 0);
+  const result = await new AxeBuilder({ page }).withTags(["wcag2a", "wcag2aa", "wcag21a", "wcag21aa"]).analyze();
+  return result.violations.map((v) => `${v.id}: ${v.help} (${v.nodes.map((n) => n.target.join(" ")).join(", ")})`);
 }

@@ -2,13 +2,12 @@ import { readFileSync } from "node:fs";
 import { join } from "node:path";
 import { and, eq, isNull } from "drizzle-orm";
 import { extractText, getDocumentProxy } from "unpdf";
-import { AxeBuilder } from "@axe-core/playwright";
 import { simpleParser } from "mailparser";
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, inject, test } from "vitest";
 import { openDb } from "@/db";
 import { certificates, dealers, items, links } from "@/db/schema";
-import { demoEmail, launchBrowser, newPage, pressPrint, signIn, url, waitForMail, visit } from "./browser-helpers";
+import { axeViolations, demoEmail, launchBrowser, newPage, pressPrint, signIn, url, waitForMail, visit } from "./browser-helpers";
 
 let browser: Browser;
 let page: Page;
@@ -24,13 +23,6 @@ afterAll(async () => {
   client.close();
 });
 
-// WCAG 2.1 A and AA rules, as axe-core tags them (as in accessibility.e2e.test.ts).
-async function violations(p: Page) {
-  await p.waitForFunction(() => document.title.length > 0);
-  const result = await new AxeBuilder({ page: p }).withTags(["wcag2a", "wcag2aa", "wcag21a", "wcag21aa"]).analyze();
-  return result.violations.map((v) => `${v.id}: ${v.help} (${v.nodes.map((n) => n.target.join(" ")).join(", ")})`);
-}
-
 describe("dispatch, as a packer does it", () => {
   let pair = "";
   let carton = "";
@@ -40,13 +32,13 @@ describe("dispatch, as a packer does it", () => {
     await visit(page, url("/packing"));
     await page.getByTestId("area-packing").waitFor();
     await expect(page.getByTestId("safety-cautions").textContent()).resolves.toMatch(/two people or a lifting aid/);
-    expect(await violations(page), "/packing").toEqual([]);
+    expect(await axeViolations(page), "/packing").toEqual([]);
     const row = page.getByTestId("ready-pair").first();
     pair = (await row.locator("td").first().textContent())!.trim();
     expect(pair).toMatch(/^P-/);
     await row.getByRole("link", { name: `Pack ${pair}` }).click();
     await page.getByTestId("pack-page").waitFor();
-    expect(await violations(page), "pack page").toEqual([]);
+    expect(await axeViolations(page), "pack page").toEqual([]);
 
     // The certificate printed first, as the page asks: true of the pair as it stands, tested and not
     // yet packed. Its text is read back by unpdf (pdf.js), as docs/REFERENCES.md, § Reading back what Twinleaf prints suggests.
@@ -65,7 +57,7 @@ describe("dispatch, as a packer does it", () => {
     await page.getByLabel("Storage location").fill("Rack E2E, shelf 1");
     await page.getByTestId("pack-submit").click();
     await expect(page.getByTestId("pack-refused").textContent()).resolves.toMatch(/^Tick every item: .+ is not ticked\.$/);
-    expect(await violations(page), "pack page with its error").toEqual([]);
+    expect(await axeViolations(page), "pack page with its error").toEqual([]);
     expect(await boxes.nth(0).isChecked()).toBe(true);
 
     await boxes.nth(n - 1).check();
@@ -165,7 +157,7 @@ describe("dispatch, as a packer does it", () => {
       await admin.getByRole("link", { name: `Shipped: 1 matched pair, tracking ${tracking}` }).click();
       const attachment = admin.getByTestId("mail-attachment");
       await expect(attachment.textContent()).resolves.toMatch(new RegExp(`^certificate-${pair}\\.pdfPDF document · [\\d.]+ KBDownload$`));
-      expect(await violations(admin), "caught message").toEqual([]);
+      expect(await axeViolations(admin), "caught message").toEqual([]);
       const res = await admin.request.get(url((await attachment.getByRole("link", { name: `Download certificate-${pair}.pdf` }).getAttribute("href"))!));
       expect(res.status()).toBe(200);
       expect(res.headers()["content-type"]).toBe("application/pdf");
@@ -192,7 +184,7 @@ describe("dispatch, as a packer does it", () => {
       expect(res?.status()).toBe(200);
       await expect(phone.getByTestId("verify-genuine").textContent()).resolves.toMatch(/This is a genuine Twinleaf certificate/);
       await expect(phone.getByTestId("verify-pair").textContent()).resolves.toBe(pair);
-      expect(await violations(phone), "verify page").toEqual([]);
+      expect(await axeViolations(phone), "verify page").toEqual([]);
       // Nothing internal: no dealer, no names of people.
       const body = (await phone.locator("main").textContent())!;
       expect(body).not.toMatch(/Merrow Lane|Fernway|@/);
@@ -200,7 +192,7 @@ describe("dispatch, as a packer does it", () => {
       const missing = await visit(phone, url(`/verify/${"a".repeat(26)}`));
       expect(missing?.status()).toBe(404);
       await expect(phone.getByTestId("verify-unknown").textContent()).resolves.toMatch(/No certificate has this code\. Check the address on your certificate\./);
-      expect(await violations(phone), "verify 404").toEqual([]);
+      expect(await axeViolations(phone), "verify 404").toEqual([]);
     } finally {
       await context.close();
     }

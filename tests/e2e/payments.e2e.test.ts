@@ -4,14 +4,13 @@
  * stand-in, the owner's e-mail caught by the stand-in SMTP server, the owner paying on the
  * stand-in's page, its signed webhook recorded once, and the case ready to repair again.
  */
-import { AxeBuilder } from "@axe-core/playwright";
 import { eq, sql } from "drizzle-orm";
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, inject, test } from "vitest";
 import { openDb } from "@/db";
 import { serviceCases } from "@/db/schema";
 import { daysAgo, makeServiceCase, type MadeCase } from "../fixtures/service-case";
-import { demoEmail, launchBrowser, linkIn, newPage, signIn, url, visit, waitForMail } from "./browser-helpers";
+import { axeViolations, demoEmail, launchBrowser, linkIn, newPage, signIn, url, visit, waitForMail } from "./browser-helpers";
 
 let browser: Browser;
 let page: Page;
@@ -30,12 +29,6 @@ afterAll(async () => {
   client.close();
 });
 
-// WCAG 2.1 A and AA rules, as axe-core tags them (as in accessibility.e2e.test.ts).
-async function violations(p: Page) {
-  const result = await new AxeBuilder({ page: p }).withTags(["wcag2a", "wcag2aa", "wcag21a", "wcag21aa"]).analyze();
-  return result.violations.map((v) => `${v.id}: ${v.help} (${v.nodes.map((n) => n.target.join(" ")).join(", ")})`);
-}
-
 const paymentsFor = async (caseId: string) => Number((await db.all<{ n: number }>(sql`SELECT count(*) AS n FROM payments WHERE case_id = ${caseId}`))[0]!.n);
 
 describe("charging an out-of-warranty repair", () => {
@@ -43,7 +36,7 @@ describe("charging an out-of-warranty repair", () => {
     await visit(page, url(`/service/cases/${made.code}/quote`));
     await page.getByTestId("quote-page").waitFor();
     await expect(page.getByTestId("warranty-over").textContent()).resolves.toMatch(/Out of warranty/);
-    expect(await violations(page), "quote page").toEqual([]);
+    expect(await axeViolations(page), "quote page").toEqual([]);
 
     const first = page.getByTestId("quote-line-0");
     await first.getByLabel("What").fill("Tweeter, matched to the surviving unit");
@@ -59,7 +52,7 @@ describe("charging an out-of-warranty repair", () => {
     const described = (await price.getAttribute("aria-describedby"))!;
     await expect(page.locator(`[id="${described}"]`).textContent()).resolves.toMatch(/2 decimal places at most/);
     expect(await db.all(sql`SELECT id FROM quotes WHERE case_id = ${made.caseId}`)).toEqual([]);
-    expect(await violations(page), "quote page with a refusal").toEqual([]);
+    expect(await axeViolations(page), "quote page with a refusal").toEqual([]);
 
     // What was typed stays; corrected, it is saved. 120,50 + 2 × 45 = €210.50.
     await expect(labour.getByLabel("What").inputValue()).resolves.toBe("Bench time");

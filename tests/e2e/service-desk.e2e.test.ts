@@ -2,12 +2,11 @@
  * The service desk in Chromium: a returned speaker taken in (a refusal first), a finding, the
  * diagnosis, the owner's e-mails at the stand-in SMTP server, and the case on the service home.
  */
-import { AxeBuilder } from "@axe-core/playwright";
 import { sql } from "drizzle-orm";
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, inject, test } from "vitest";
 import { openDb } from "@/db";
-import { demoEmail, launchBrowser, newPage, signIn, url, visit, waitForMail } from "./browser-helpers";
+import { axeViolations, demoEmail, launchBrowser, newPage, signIn, url, visit, waitForMail } from "./browser-helpers";
 
 let browser: Browser;
 let page: Page;
@@ -22,13 +21,6 @@ afterAll(async () => {
   await browser?.close();
   client.close();
 });
-
-// WCAG 2.1 A and AA rules, as axe-core tags them (as in accessibility.e2e.test.ts).
-async function violations(p: Page) {
-  await p.waitForFunction(() => document.title.length > 0);
-  const result = await new AxeBuilder({ page: p }).withTags(["wcag2a", "wcag2aa", "wcag21a", "wcag21aa"]).analyze();
-  return result.violations.map((v) => `${v.id}: ${v.help} (${v.nodes.map((n) => n.target.join(" ")).join(", ")})`);
-}
 
 describe("a returned speaker at the desk", () => {
   const ownerEmail = `owner-${Date.now().toString(36)}@example.com`;
@@ -45,7 +37,7 @@ describe("a returned speaker at the desk", () => {
 
     await visit(page, url("/service/cases/new"));
     await page.getByTestId("intake-page").waitFor();
-    expect(await violations(page), "intake page").toEqual([]);
+    expect(await axeViolations(page), "intake page").toEqual([]);
     const form = page.getByTestId("intake-form");
     await form.getByLabel("Serial of the speaker or pair").fill("SP-NOPE-0000");
     await form.getByLabel("Reported symptom").fill("Tweeter silent");
@@ -71,7 +63,7 @@ describe("a returned speaker at the desk", () => {
     await expect(page.getByTestId("case-facts").textContent()).resolves.toContain(row!.pair);
     await expect(page.getByTestId("case-warranty").textContent()).resolves.toMatch(/(In|Out of) warranty.*Starts .*Period: \d+ months/);
     await expect(page.getByTestId("case-messages").textContent()).resolves.toContain("We have received your");
-    expect(await violations(page), "case page").toEqual([]);
+    expect(await axeViolations(page), "case page").toEqual([]);
     const mail = await waitForMail(ownerEmail, new RegExp(`case ${code}`));
     expect(mail.text).toContain(row!.L);
   });
@@ -96,7 +88,7 @@ describe("a returned speaker at the desk", () => {
     await visit(page, url("/service"));
     await page.getByTestId("service-home").waitFor();
     await expect(page.getByTestId("cases-diagnosed").textContent()).resolves.toContain(code);
-    expect(await violations(page), "service home").toEqual([]);
+    expect(await axeViolations(page), "service home").toEqual([]);
     await visit(page, url("/service?stale=nonsense"));
     await page.getByTestId("stale-refused").waitFor();
   });

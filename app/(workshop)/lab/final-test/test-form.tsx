@@ -1,49 +1,15 @@
 "use client";
-import { useActionState, useState } from "react";
-import { controlClasses, TextField } from "@/components/ui/field";
-import { Notice } from "@/components/ui/notice";
-import { SubmitButton } from "@/components/ui/submit-button";
-import { initialFormState } from "@/lib/forms";
+import { PairResponseForm } from "@/components/lab/pair-response-form";
+import { TextField } from "@/components/ui/field";
 import { finalTestAction } from "./actions";
-
-const fileClasses = `${controlClasses} py-2.5 file:mr-3 file:rounded-md file:border-0 file:bg-leaf-soft file:px-3 file:py-1.5 file:font-bold file:text-leaf-dark`;
 
 /** The finished left and right responses of one pair, read in the browser and sent as text. */
 export function FinalTestForm({ pair }: { pair: string }) {
-  const [state, action] = useActionState(finalTestAction, initialFormState);
-  const [files, setFiles] = useState<Record<"left" | "right", { name: string; text: string } | null>>({ left: null, right: null });
-  const pick = (side: "left" | "right") => async (e: React.ChangeEvent<HTMLInputElement>) => {
-    const f = e.currentTarget.files?.[0];
-    const read = f ? { name: f.name, text: await f.text() } : null;
-    setFiles((x) => ({ ...x, [side]: read }));
-  };
   return (
-    <form action={action} className="flex flex-col gap-4" data-testid="final-test-form">
-      {!state.ok && state.message ? (
-        <Notice tone="danger" testId="final-test-error">
-          {state.message}
-          {state.fieldErrors?.files ? (
-            <ul className="mt-1 list-disc pl-5">
-              {state.fieldErrors.files.map((m) => (
-                <li key={m}>{m}</li>
-              ))}
-            </ul>
-          ) : null}
-        </Notice>
-      ) : null}
-      <TextField label="Pair" name="pair" defaultValue={pair} errors={state.fieldErrors?.pair} className="serial" />
-      {(["left", "right"] as const).map((side) => (
-        <label key={side} className="flex flex-col gap-1">
-          <span className="font-bold">{side === "left" ? "Left" : "Right"} speaker’s response</span>
-          <input type="file" accept=".txt,.frd,.csv,.dat,text/plain" className={fileClasses} onChange={pick(side)} data-testid={`final-${side}`} />
-          <input type="hidden" name={`${side}Name`} value={files[side]?.name ?? ""} />
-          <input type="hidden" name={`${side}Text`} value={files[side]?.text ?? ""} />
-          {state.fieldErrors?.[`${side}Text`] ? <span className="text-sm text-danger">{state.fieldErrors[`${side}Text`]![0]}</span> : null}
-        </label>
-      ))}
-      <div>
-        <SubmitButton pendingLabel="Comparing…">Compare left and right</SubmitButton>
-      </div>
-    </form>
+    <PairResponseForm
+      action={finalTestAction}
+      testIds={{ form: "final-test-form", error: "final-test-error", file: "final" }}
+      fields={(state) => <TextField label="Pair" name="pair" defaultValue={pair} errors={state.fieldErrors?.pair} className="serial" />}
+    />
   );
 }
