@@ -33,7 +33,7 @@ async function printed(copy: boolean): Promise<string> {
 const longDate = (d: Date) => new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "long", year: "numeric", timeZone: process.env.TZ || "UTC" }).format(d);
 
 beforeAll(async () => {
-  await seedDemo(db());
+  await seedDemo(db(), { months: 6 });
   for (const r of await db().select({ id: users.id, email: users.email, name: users.name }).from(users)) names.set(r.email.split("@")[0]!, r);
   // A pair that passed its final test in the history and waits to be packed.
   const [row] = await db().all<{ id: string }>(sql`

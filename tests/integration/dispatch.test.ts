@@ -43,7 +43,7 @@ let packer: { id: string };
 // tests/unit/labels.test.ts; its .wasm is loaded from node_modules rather than a CDN.
 beforeAll(async () => {
   // A year of the demo's history is enough here (see history.test.ts).
-  await seedDemo(db(), { months: 12 });
+  await seedDemo(db(), { months: 6 });
   const [u] = await db().select({ id: users.id }).from(users).where(eq(users.email, "packing@demo.twinleaf.test"));
   packer = { id: u!.id };
   const wasm = readFileSync(createRequire(import.meta.url).resolve("zxing-wasm/reader/zxing_reader.wasm"));
