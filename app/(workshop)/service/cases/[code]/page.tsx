@@ -117,7 +117,7 @@ export default async function CasePage({ params }: { params: Promise<{ code: str
 
       <div className="grid gap-6 lg:grid-cols-2">
         <Panel title="What came back">
-          <dl className="grid grid-cols-[max-content_1fr] gap-x-4 gap-y-2" data-testid="case-facts">
+          <dl className="grid gap-x-4 gap-y-1 sm:grid-cols-[max-content_1fr] sm:gap-y-2" data-testid="case-facts">
             <dt className="font-bold">{kindLabel(p.item.kind)}</dt>
             <dd><SerialLink identity={p.item.identity} /></dd>
             {p.item.kind === "speaker" ? (
