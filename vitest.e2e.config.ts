@@ -17,6 +17,9 @@ export default defineConfig({
     globalSetup: ["tests/e2e/global-setup.ts"],
     fileParallelism: false,
     testTimeout: 60_000,
+    // A server action's answer reaches the page in well under a second on a quiet machine; on a
+    // busy two-core one it can take a few (vitest's default wait for expect.poll is 1 s).
+    expect: { poll: { timeout: 10_000 } },
     hookTimeout: 240_000,
   },
 });
