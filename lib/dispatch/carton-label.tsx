@@ -1,11 +1,12 @@
 import "server-only";
 import { Document, Image, Page, Text, View, renderToBuffer } from "@react-pdf/renderer";
 import { toBuffer } from "bwip-js/node";
-import { and, desc, eq, isNull } from "drizzle-orm";
+import { and, eq, isNull } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { finishes, items, links, models } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
 import { itemByIdentity } from "@/lib/genealogy/graph";
+import { pairOfSpeaker } from "@/lib/genealogy/pair-speakers";
 import { barcodeGeometry, LabelError, QUIET_ZONE_MODULES } from "@/lib/labels/barcodes";
 import { MONO_FONT, TEXT_FONT, registerPdfFonts } from "@/lib/labels/fonts";
 import { normaliseScan, parseSerial } from "@/lib/serials/format";
@@ -86,18 +87,6 @@ export async function cartonLabelData(db: DbOrTx, cartonText: string): Promise<C
     packedOn,
     element,
   };
-}
-
-/** The pair a speaker is fitted in now (or was last), and its side there. */
-async function pairOfSpeaker(db: DbOrTx, speakerId: string): Promise<{ pair: typeof items.$inferSelect; side: "L" | "R" } | null> {
-  const [row] = await db
-    .select({ pair: items, side: links.position })
-    .from(links)
-    .innerJoin(items, eq(items.id, links.parentId))
-    .where(and(eq(links.childId, speakerId), eq(items.kind, "pair")))
-    .orderBy(desc(isNull(links.endedAt)), desc(links.startedAt))
-    .limit(1);
-  return row && (row.side === "L" || row.side === "R") ? { pair: row.pair, side: row.side } : null;
 }
 
 const PT_PER_MM = 72 / 25.4;

@@ -1,14 +1,15 @@
 import "server-only";
 import { nextNcCode } from "@/lib/route/nc-codes";
-import { and, desc, eq, inArray, isNull } from "drizzle-orm";
+import { and, desc, eq, inArray } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
-import { finalTests, items, links, models, nonconformances, responses, type Item } from "@/db/schema";
+import { finalTests, items, models, nonconformances, responses, type Item } from "@/db/schema";
 import { bandLabel, compareResponses, formatDb, formatLimitDb, parseResponseFile, type ResponseComparison } from "@/lib/acoustics";
 import { AppError } from "@/lib/auth/errors";
 import { newId } from "@/lib/auth/tokens";
 import { now as clockNow } from "@/lib/clock";
 import { appendEvent } from "@/lib/events/queries";
 import { changeState, itemByIdentity } from "@/lib/genealogy/graph";
+import { speakersOf } from "@/lib/genealogy/pair-speakers";
 import { parseSerial } from "@/lib/serials/format";
 import type { Station } from "@/lib/vocabulary/stations";
 
@@ -16,16 +17,6 @@ import type { Station } from "@/lib/vocabulary/stations";
 export const AWAITING_TEST = "awaiting_test";
 /** The state a pair takes when its final test passes (or quality accepts a deviation). */
 export const READY_TO_PACK = "ready_to_pack";
-
-/** The two speakers a pair holds now, by side. */
-export async function speakersOf(db: DbOrTx, pairId: string) {
-  const rows = await db
-    .select({ item: items, position: links.position })
-    .from(links)
-    .innerJoin(items, eq(items.id, links.childId))
-    .where(and(eq(links.parentId, pairId), isNull(links.endedAt), inArray(links.position, ["L", "R"]), eq(items.kind, "speaker")));
-  return { L: rows.find((r) => r.position === "L")?.item ?? null, R: rows.find((r) => r.position === "R")?.item ?? null };
-}
 
 type ResponseFile = { name: string; text: string };
 type TestModel = Pick<typeof models.$inferSelect, "responseMinHz" | "responseMaxHz" | "pairResponseLimitDb">;

@@ -10,6 +10,7 @@ import { appendEvent } from "@/lib/events/queries";
 import { formatCalendarDay } from "@/lib/format";
 import { isCalendarDate } from "@/lib/input/dates";
 import { checkOwner, ownerById, ownerOnRecord, recordConsent, registerOwnerAtDesk, type OwnerDetails } from "@/lib/owners";
+import { pairOfSpeaker } from "@/lib/genealogy/pair-speakers";
 import { search } from "@/lib/search/search";
 import { workshopDay } from "@/lib/workshop-time";
 import type { Actor } from "@/lib/vocabulary/actor";
@@ -63,14 +64,6 @@ async function findReturned(db: DbOrTx, serial: string) {
   return hit;
 }
 
-/** The pair a speaker sits in now (a speaker always belongs to one pair once assembled). */
-async function pairOfSpeaker(db: DbOrTx, speakerId: string): Promise<{ id: string; identity: string } | null> {
-  const [row] = await db.all<{ id: string; identity: string }>(sql`
-    SELECT p.id, p.identity FROM links l JOIN items p ON p.id = l.parent_id
-    WHERE l.child_id = ${speakerId} AND p.kind = 'pair' ORDER BY l.ended_at IS NULL DESC, l.started_at DESC LIMIT 1`);
-  return row ?? null;
-}
-
 /**
  * Opens a case. Everything is checked before anything is written, and every refusal names its
  * field: an unknown serial (with "did you mean" for a slipped check character), something that is
@@ -87,7 +80,7 @@ export async function openCase(db: DbOrTx, input: IntakeInput, actor: Actor): Pr
 
   const hit = await findReturned(db, input.serial);
   const isPair = hit.kind === "pair";
-  const pair = isPair ? { id: hit.id, identity: hit.identity } : await pairOfSpeaker(db, hit.id);
+  const pair = isPair ? { id: hit.id, identity: hit.identity } : ((await pairOfSpeaker(db, hit.id))?.pair ?? null);
   if (!pair) refuse(409, "serial", `${hit.identity} has not been built into a pair, so it has never left the workshop.`);
   const speakers = await speakersOfPair(db, pair!.id);
   const partner = isPair ? null : speakers.L?.id === hit.id ? speakers.R : speakers.L;
@@ -215,7 +208,7 @@ export async function lookUpReturned(db: DbOrTx, serial: string): Promise<Return
     if (e instanceof AppError) return { identity: null, pairId: null, words: "", problem: e.message, dealer: null };
     throw e;
   }
-  const pair = hit.kind === "pair" ? { id: hit.id, identity: hit.identity } : await pairOfSpeaker(db, hit.id);
+  const pair = hit.kind === "pair" ? { id: hit.id, identity: hit.identity } : ((await pairOfSpeaker(db, hit.id))?.pair ?? null);
   if (!pair) return { identity: hit.identity, pairId: null, words: "", problem: `${hit.identity} has not been built into a pair.`, dealer: null };
   const [shipment, open] = await Promise.all([shipmentOfPair(db, pair.id), openCaseOfPair(db, pair.id)]);
   const dealer = shipment?.dealer ? `${shipment.dealer.name}, ${shipment.dealer.city}` : null;

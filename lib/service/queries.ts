@@ -2,9 +2,10 @@
 import "server-only";
 import { and, asc, desc, eq, inArray, sql } from "drizzle-orm";
 import { shippedAt, traceBackward, type TraceNode } from "@/lib/genealogy/trace";
+import { speakersOf } from "@/lib/genealogy/pair-speakers";
 import { compareTraces } from "./trace-diff";
 import type { DbOrTx } from "@/db";
-import { caseFindings, dealers, events, items, models, ownerships, serviceCases, users, type CaseFinding, type ServiceCase } from "@/db/schema";
+import { caseFindings, dealers, events, items, models, ownerships, serviceCases, users, type CaseFinding, type Item, type ServiceCase } from "@/db/schema";
 import { DESK_REGISTRATION, ownerById, type OwnerWithConsent } from "@/lib/owners";
 import { listOutbox, type OutboxEntry, type OutboxStatus } from "@/lib/mail/outbox";
 import { workshopDay } from "@/lib/workshop-time";
@@ -193,14 +194,11 @@ export interface CaseParticulars {
   warranty: Warranty | null;
 }
 
-/** The speakers a pair holds now (its L and R positions). */
+/** The speakers a pair holds now (its L and R positions), by serial. */
 export async function speakersOfPair(db: DbOrTx, pairId: string): Promise<CaseParticulars["speakers"]> {
-  const rows = await db.all<{ id: string; identity: string; position: string }>(sql`
-    SELECT i.id, i.identity, l.position FROM links l JOIN items i ON i.id = l.child_id
-    WHERE l.parent_id = ${pairId} AND l.ended_at IS NULL AND i.kind = 'speaker' AND l.position IN ('L', 'R')`);
-  const at = (p: string) => rows.find((r) => r.position === p) ?? null;
-  const pick = (r: { id: string; identity: string } | null) => (r ? { id: r.id, identity: r.identity } : null);
-  return { L: pick(at("L")), R: pick(at("R")) };
+  const both = await speakersOf(db, pairId);
+  const pick = (i: Item | null) => (i ? { id: i.id, identity: i.identity } : null);
+  return { L: pick(both.L), R: pick(both.R) };
 }
 
 /** A case with what it is about, in one call (a handful of small queries). */

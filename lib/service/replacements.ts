@@ -23,6 +23,7 @@ import { CASE_STATE_WORDS, type CaseState } from "@/lib/vocabulary/case-states";
 import { partWord, type PartType } from "@/lib/vocabulary/part-types";
 import { PAIR_SPEAKER_POSITION, positionName } from "@/lib/vocabulary/positions";
 import { SIDE_WORD, SIDES, type Side } from "@/lib/vocabulary/sides";
+import { speakersOf } from "@/lib/genealogy/pair-speakers";
 import { caseByCode } from "./queries";
 import { planReplacement, type ReplacementPlan } from "./replacement-plan";
 import { SERVICE_STATION } from "./states";
@@ -37,13 +38,7 @@ export { caseByCode };
 
 /** The speaker at a side of a pair now. */
 export async function speakerOf(db: DbOrTx, pairId: string, side: Side): Promise<Item | null> {
-  const [row] = await db
-    .select({ item: items })
-    .from(links)
-    .innerJoin(items, eq(items.id, links.childId))
-    .where(and(eq(links.parentId, pairId), eq(links.position, PAIR_SPEAKER_POSITION[side]), isNull(links.endedAt)))
-    .limit(1);
-  return row?.item ?? null;
+  return (await speakersOf(db, pairId))[side];
 }
 
 /** What sits at a position of a speaker now. */

@@ -1,5 +1,5 @@
 "use client";
-import type { Side } from "@/lib/vocabulary/sides";
+import { SPEAKER_AT, type Side } from "@/lib/vocabulary/sides";
 import { useActionState, useEffect, useRef, useState } from "react";
 import { PrintLabels } from "@/components/register/print-labels";
 import { SerialLink } from "@/components/register/serial-link";
@@ -12,7 +12,6 @@ import { positionName } from "@/lib/vocabulary/positions";
 import { buildSpeakersAction, checkScanAction } from "../actions";
 
 const SIDES: Side[] = ["L", "R"];
-const SIDE_NAME: Record<Side, string> = { L: "Left speaker", R: "Right speaker" };
 
 export interface SlotOption {
   slot: string;
@@ -180,7 +179,7 @@ export function BuildForm({ pair, pairId, slots }: { pair: string; pairId: strin
       <div className="grid gap-6 md:grid-cols-2">
         {SIDES.map((side) => (
           <fieldset key={side} className="flex flex-col gap-4 rounded-lg border border-line bg-paper p-4" data-testid={`side-${side}`}>
-            <legend className="px-1 text-lg font-bold">{SIDE_NAME[side]}</legend>
+            <legend className="px-1 text-lg font-bold">{SPEAKER_AT[side]}</legend>
             {slots.map((s) => {
               const key = keyOf(side, s.slot);
               const f = fields[key] ?? { status: "empty" };

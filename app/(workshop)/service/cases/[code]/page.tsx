@@ -28,7 +28,7 @@ import { warrantyWorking } from "@/lib/service/warranty";
 import { CASE_STATE_WORDS, CASE_TRANSITIONS, OPEN_CASE_STATES, type CaseState } from "@/lib/vocabulary/case-states";
 import { kindLabel } from "@/lib/vocabulary/item-kinds";
 import { CROSSOVER_POSITION, positionName } from "@/lib/vocabulary/positions";
-import { SIDE_WORD } from "@/lib/vocabulary/sides";
+import { SIDE_WORD, SPEAKER_AT } from "@/lib/vocabulary/sides";
 import { moveCaseAction, recordFindingAction } from "./actions";
 
 export const metadata: Metadata = { title: "Service case" };
@@ -94,7 +94,7 @@ export default async function CasePage({ params }: { params: Promise<{ code: str
             ? "The owner is told the case is closed."
             : undefined,
     }));
-  const sides = (["L", "R"] as const).filter((s) => p.item.kind === "pair" || p.item.side === s).map((s) => ({ value: s, label: `${SIDE_WORD[s][0]!.toUpperCase()}${SIDE_WORD[s].slice(1)} speaker` }));
+  const sides = (["L", "R"] as const).filter((s) => p.item.kind === "pair" || p.item.side === s).map((s) => ({ value: s, label: SPEAKER_AT[s] }));
   const positions = [...(p.model?.positions ?? []).map((x) => ({ value: x.position, label: positionName(x.position) })), { value: CROSSOVER_POSITION, label: positionName(CROSSOVER_POSITION) }];
   const canRepair = ["diagnosed", "waiting_part", "waiting_payment"].includes(c.state);
   const w = p.warranty;
@@ -201,7 +201,7 @@ export default async function CasePage({ params }: { params: Promise<{ code: str
                 const replaceable = f.position === CROSSOVER_POSITION || p.model?.positions.some((x) => x.position === f.position);
                 return (
                   <li key={f.id} className="flex flex-wrap items-center gap-3 rounded-lg border border-line px-3 py-2">
-                    <span className="font-bold">{`${SIDE_WORD[f.side][0]!.toUpperCase()}${SIDE_WORD[f.side].slice(1)} speaker, ${positionName(f.position)}`}</span>
+                    <span className="font-bold">{`${SPEAKER_AT[f.side]}, ${positionName(f.position)}`}</span>
                     <span>{f.finding}</span>
                     {replaceable && canRepair ? (
                       <Link className={buttonClasses("secondary", "sm")} href={paths.serviceReplace(c.code, f.side, f.position)}>
@@ -225,7 +225,7 @@ export default async function CasePage({ params }: { params: Promise<{ code: str
             {held.map((r) => (
               <li key={`held-${r.id}`} className="flex flex-wrap items-center gap-3 rounded-lg border border-line px-3 py-2" data-testid="case-reserved">
                 <Badge tone="caution">Reserved</Badge>
-                <span className="font-bold">{`${SIDE_WORD[r.side][0]!.toUpperCase()}${SIDE_WORD[r.side].slice(1)} speaker, ${positionName(r.position)}`}</span>
+                <span className="font-bold">{`${SPEAKER_AT[r.side]}, ${positionName(r.position)}`}</span>
                 <SerialLink identity={r.serial} bold={false} />
                 <span className="text-sm text-ink-soft">since {formatWhen(r.createdAt)}</span>
               </li>
@@ -233,7 +233,7 @@ export default async function CasePage({ params }: { params: Promise<{ code: str
             {repairs.map((r) => (
               <li key={`fit-${r.fitted}`} className="flex flex-wrap items-center gap-3 rounded-lg border border-line px-3 py-2" data-testid="case-repair">
                 <Badge tone="leaf">Replaced</Badge>
-                <span className="font-bold">{`${SIDE_WORD[r.side][0]!.toUpperCase()}${SIDE_WORD[r.side].slice(1)} speaker, ${positionName(r.position)}`}</span>
+                <span className="font-bold">{`${SPEAKER_AT[r.side]}, ${positionName(r.position)}`}</span>
                 <span>
                   <SerialLink identity={r.removed} bold={false} /> out, <SerialLink identity={r.fitted} bold={false} /> in, {formatWhen(r.at)}
                 </span>
