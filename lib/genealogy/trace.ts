@@ -86,7 +86,7 @@ export interface HolderNode {
 
 // Holders are listed from the nearest kind outwards.
 const HOLDER_ORDER: Record<string, number> = {
-  flitch: 0, leaf: 1, component_lot: 2, drive_unit: 3, crossover: 4, cabinet: 5, speaker: 6, pair: 7, carton: 8, shipment: 9,
+  flitch: 0, leaf: 1, maker_lot: 2, unit_batch: 3, component_lot: 4, drive_unit: 5, crossover: 6, cabinet: 7, speaker: 8, pair: 9, carton: 10, shipment: 11,
 };
 
 /**

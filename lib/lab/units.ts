@@ -8,7 +8,10 @@ import { AppError, isConstraintError } from "@/lib/auth/errors";
 import { now } from "@/lib/clock";
 import { newId } from "@/lib/auth/tokens";
 import { appendEvent } from "@/lib/events/queries";
-import { changeState, createItem, type Recorder } from "@/lib/genealogy/graph";
+import { changeState, createItem, fit, itemByIdentity, type Recorder } from "@/lib/genealogy/graph";
+import { KIND_WORD } from "@/lib/vocabulary/item-kinds";
+import { BATCH_POSITION, MAKER_LOT_POSITION } from "@/lib/vocabulary/positions";
+import { batchCode, makerLotIdentity } from "@/lib/serials/lots";
 import { bandLabel, bandLevels, checkTsParams, formatDb, formatLimitDb, parseResponseFile, thirdOctaveBands, TS_FIELDS } from "@/lib/acoustics";
 import { LIMIT_EPSILON_DB, pairCost, planPairs } from "@/lib/matching";
 import { allocateSerial } from "@/lib/serials/allocator";
@@ -66,7 +69,11 @@ export async function registerBatch(db: DbOrTx, input: BatchIntake, actor: LabAc
   return db.transaction(async (tx) => {
     const month = input.receivedOn.slice(2, 4) + input.receivedOn.slice(5, 7);
     const [n] = await tx.select({ n: sql<number>`count(*)` }).from(unitBatches).where(like(unitBatches.code, `${code}-${month}-%`));
-    const batchCode = `${code}-${month}-${String(Number(n?.n ?? 0) + 1).padStart(2, "0")}`;
+    // The batch becomes a register item named by its code: skip a code some other item already uses.
+    let seq = Number(n?.n ?? 0) + 1;
+    let candidate = batchCode(input.partType, input.receivedOn, seq);
+    while (await itemByIdentity(tx, candidate)) candidate = batchCode(input.partType, input.receivedOn, ++seq);
+    const batchCodeText = candidate;
     const id = newId();
     const eventId = await appendEvent(tx, {
       actorId: actor.id,
@@ -74,9 +81,11 @@ export async function registerBatch(db: DbOrTx, input: BatchIntake, actor: LabAc
       type: "batch.received",
       subjectKind: "batch",
       subjectId: id,
-      data: { code: batchCode, partType: input.partType, partNumber: input.partNumber, maker: input.maker, lot: input.lot, count, ...machineData(actor) },
+      data: { code: batchCodeText, partType: input.partType, partNumber: input.partNumber, maker: input.maker, lot: input.lot, count, ...machineData(actor) },
     });
-    await tx.insert(unitBatches).values({ id, code: batchCode, partType: input.partType, partNumber: input.partNumber, maker: input.maker, lot: input.lot, receivedOn: input.receivedOn, eventId, createdAt: now() });
+    await tx.insert(unitBatches).values({ id, code: batchCodeText, partType: input.partType, partNumber: input.partNumber, maker: input.maker, lot: input.lot, receivedOn: input.receivedOn, eventId, createdAt: now() });
+    const by = recorder(actor);
+    const { batchItem } = await batchSourceItems(tx, { code: batchCodeText, partType: input.partType, partNumber: input.partNumber, maker: input.maker, lot: input.lot, receivedOn: input.receivedOn }, by);
     const year = Number(input.receivedOn.slice(0, 4));
     const units: Item[] = [];
     for (let i = 0; i < count; i++) {
@@ -88,15 +97,43 @@ export async function registerBatch(db: DbOrTx, input: BatchIntake, actor: LabAc
           identity: await allocateSerial(tx, { kind: "drive_unit", code, year }),
           partType: input.partType,
           state: "awaiting_measurement",
-          attrs: { maker: input.maker, partNumber: input.partNumber, batch: batchCode, ...(makerSerial ? { makerSerial } : {}) },
+          attrs: { maker: input.maker, partNumber: input.partNumber, batch: batchCodeText, ...(makerSerial ? { makerSerial } : {}) },
         },
-        recorder(actor),
+        by,
       );
       await tx.insert(batchUnits).values({ itemId: unit.id, batchId: id, makerSerial });
+      // The unit sits in its batch from the moment it is received, so a trace of the batch reaches it.
+      await fit(tx, { parent: unit, child: batchItem, position: BATCH_POSITION }, by);
       units.push(unit);
     }
-    return { id, code: batchCode, units };
+    return { id, code: batchCodeText, units, itemId: batchItem.id };
   });
+}
+
+/**
+ * The register items of a new batch and of the maker's lot it came from (made once, shared by every
+ * batch of that lot), the lot fitted into the batch. Call inside the batch's transaction.
+ */
+async function batchSourceItems(
+  tx: DbOrTx,
+  b: { code: string; partType: PartType; partNumber: string; maker: string; lot: string; receivedOn: string },
+  by: Recorder,
+): Promise<{ batchItem: Item; lotItem: Item }> {
+  const lotIdentity = makerLotIdentity(b.maker, b.lot);
+  let lotItem = await itemByIdentity(tx, lotIdentity);
+  if (lotItem && lotItem.kind !== "maker_lot") {
+    throw new AppError(409, `Nothing was registered: ${lotIdentity} is already the name of a ${KIND_WORD[lotItem.kind]} in the register. Check the maker and the lot.`, {
+      lot: ["Already used by something else in the register."],
+    });
+  }
+  lotItem ??= await createItem(tx, { kind: "maker_lot", identity: lotIdentity, state: "received", partType: b.partType, attrs: { maker: b.maker, lot: b.lot } }, by);
+  const batchItem = await createItem(
+    tx,
+    { kind: "unit_batch", identity: b.code, state: "received", partType: b.partType, attrs: { maker: b.maker, partNumber: b.partNumber, lot: b.lot, receivedOn: b.receivedOn } },
+    by,
+  );
+  await fit(tx, { parent: batchItem, child: lotItem, position: MAKER_LOT_POSITION }, by);
+  return { batchItem, lotItem };
 }
 
 export async function batchByCode(db: DbOrTx, code: string) {

@@ -70,6 +70,20 @@ async function withCurrentStates(db: DbOrTx, hits: SearchHit[]): Promise<SearchH
   return hits.map((h) => (h.type === "item" && state.has(h.id) ? { ...h, state: state.get(h.id)! } : h));
 }
 
+/**
+ * Drive units whose maker's serial is `query`, and makers' lots whose lot code (or whole name) is
+ * `query`, ignoring case: scans are upper-cased, makers print either. Both read indexed columns.
+ */
+async function makerMatches(db: DbOrTx, query: string) {
+  return db.all<{ id: string; identity: string; kind: string; state: string }>(sql`
+    SELECT i.id, i.identity, i.kind, i.state FROM batch_units bu JOIN items i ON i.id = bu.item_id
+    WHERE bu.maker_serial = ${query} COLLATE NOCASE
+    UNION
+    SELECT i.id, i.identity, i.kind, i.state FROM items i
+    WHERE i.kind = 'maker_lot' AND (json_extract(i.attrs, '$.lot') = ${query} COLLATE NOCASE OR i.identity = ${query} COLLATE NOCASE)
+    ORDER BY 2 LIMIT 50`);
+}
+
 /** One box for scans and typing: exact serial, then "did you mean" for a check-character slip, then fuzzy. */
 export async function search(db: DbOrTx, raw: string, limit = 10): Promise<SearchAnswer> {
   const query = normaliseScan(raw);
@@ -86,6 +100,13 @@ export async function search(db: DbOrTx, raw: string, limit = 10): Promise<Searc
     return answer;
   }
 
+  // A maker's serial (from the unit's own label) or a maker's lot code, as typed or scanned.
+  const byMaker = await makerMatches(db, query);
+  if (byMaker.length === 1) {
+    answer.exact = itemHit(byMaker[0]!);
+    return answer;
+  }
+
   // A check character that does not fit (or an O typed for a 0): the serials one slip away.
   if (!readings.some((r) => r.valid)) {
     const near = [...new Set([...readings.flatMap((r) => nearMisses(r.canonical)), ...nearMisses(query)])];
@@ -99,8 +120,10 @@ export async function search(db: DbOrTx, raw: string, limit = 10): Promise<Searc
   const fuzzy = fuse
     .search(query, { limit: limit + answer.didYouMean.length })
     .map((r) => r.item.hit)
-    .filter((h) => !answer.didYouMean.some((d) => d.id === h.id))
-    .slice(0, limit);
+    .filter((h) => !answer.didYouMean.some((d) => d.id === h.id) && !byMaker.some((m) => m.id === h.id));
+  // Several units share a maker's serial only across makers' batches: all of them lead the list.
+  fuzzy.unshift(...byMaker.map(itemHit));
+  fuzzy.splice(Math.max(limit, byMaker.length));
   answer.fuzzy = await withCurrentStates(db, fuzzy);
   return answer;
 }

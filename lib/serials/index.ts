@@ -20,3 +20,4 @@ export {
   type SerialParts,
 } from "./format";
 export { nearMisses } from "./suggest";
+export { batchCode, makerLotIdentity } from "./lots";

@@ -1,7 +1,7 @@
 import "server-only";
 import type { Actor } from "@/lib/vocabulary/actor";
 import type { Side } from "@/lib/vocabulary/sides";
-import { PAIR_CABINET_POSITION as CABINET_POSITION, facePosition } from "@/lib/vocabulary/positions";
+import { PAIR_CABINET_POSITION as CABINET_POSITION, facePosition, FLITCH_POSITION } from "@/lib/vocabulary/positions";
 import type { DefectKind } from "@/lib/vocabulary/defects";
 import { and, asc, eq, inArray, isNull, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
@@ -55,6 +55,8 @@ export async function receiveFlitch(db: DbOrTx, input: FlitchIntake, actor: Acto
     for (let seq = 1; seq <= input.leafCount; seq++) {
       const leaf = await createItem(tx, { kind: "leaf", identity: leafIdentity(identity, seq), state: "available", finishId: finish.id, attrs: { seq } }, by(actor));
       await tx.insert(veneerLeaves).values({ itemId: leaf.id, flitchId: flitch.id, seq });
+      // The flitch sits in each of its leaves, so its forward trace reaches the cabinets they face.
+      await fit(tx, { parent: leaf, child: flitch, position: FLITCH_POSITION }, by(actor));
     }
     return flitch;
   });

@@ -1,9 +1,16 @@
 /** Every kind of thing the register follows. Serialised kinds carry a MOD 37-2 checked serial. */
-export const ITEM_KINDS = ["flitch", "leaf", "cabinet", "drive_unit", "crossover", "component_lot", "speaker", "pair", "carton", "shipment"] as const;
+export const ITEM_KINDS = [
+  "flitch", "leaf", "cabinet", "drive_unit", "crossover", "component_lot", "unit_batch", "maker_lot", "speaker", "pair", "carton", "shipment",
+] as const;
 export type ItemKind = (typeof ITEM_KINDS)[number];
 
-/** Kinds that name a quantity rather than one physical part: they may sit in many parents at once. */
-export const SHARED_KINDS: readonly ItemKind[] = ["component_lot"];
+/**
+ * Kinds that name a source rather than one physical part: they sit in many parents at once. A lot
+ * sits in each crossover made from it, a drive-unit batch in each of its units, a maker's lot in
+ * each batch that came from it, and a flitch in each of its leaves, so the forward trace of any of
+ * them reaches every speaker and pair that holds a part of it.
+ */
+export const SHARED_KINDS: readonly ItemKind[] = ["component_lot", "unit_batch", "maker_lot", "flitch"];
 
 /** A kind as a heading or table cell: "Drive unit". */
 export const KIND_LABEL: Record<ItemKind, string> = {
@@ -13,6 +20,8 @@ export const KIND_LABEL: Record<ItemKind, string> = {
   drive_unit: "Drive unit",
   crossover: "Crossover",
   component_lot: "Component lot",
+  unit_batch: "Drive-unit batch",
+  maker_lot: "Maker's lot",
   speaker: "Speaker",
   pair: "Pair",
   carton: "Carton",
@@ -27,6 +36,8 @@ export const KIND_WORD: Record<ItemKind, string> = {
   drive_unit: "drive unit",
   crossover: "crossover board",
   component_lot: "component lot",
+  unit_batch: "drive-unit batch",
+  maker_lot: "maker's lot",
   speaker: "speaker",
   pair: "pair",
   carton: "carton",

@@ -10,6 +10,11 @@ export const PAIR_SPEAKER_POSITION = { L: "L", R: "R" } as const satisfies Recor
 export const SPEAKER_CABINET_POSITION = "CAB";
 export const CROSSOVER_POSITION = "XO";
 
+/** Where a source sits in what was made from it: a unit's batch, a batch's maker lot, a leaf's flitch. */
+export const BATCH_POSITION = "BATCH";
+export const MAKER_LOT_POSITION = "LOT";
+export const FLITCH_POSITION = "FLITCH";
+
 /** The face position of a cabinet's i-th leaf (0-based): F1, F2… */
 export const facePosition = (i: number) => `F${i + 1}`;
 
@@ -25,6 +30,9 @@ const POSITION_LETTER: Record<string, string> = { T: "tweeter", M: "midrange", B
 export function positionName(code: string): string {
   if (code === CROSSOVER_POSITION) return "crossover (XO)";
   if (code === SPEAKER_CABINET_POSITION) return "cabinet (CAB)";
+  if (code === BATCH_POSITION) return "batch";
+  if (code === MAKER_LOT_POSITION) return "maker's lot";
+  if (code === FLITCH_POSITION) return "flitch";
   const m = /^([TMB])(?:-?(\d+))?$/.exec(code);
   if (!m) return code;
   return `${POSITION_LETTER[m[1]!]}${m[2] ? ` ${m[2]}` : ""} (${code})`;
