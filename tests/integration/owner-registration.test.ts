@@ -16,7 +16,8 @@ import { changeCaseState } from "@/lib/service/desk";
 import { makeServiceCase, daysAgo } from "../fixtures/service-case";
 import { request } from "../setup/next-request";
 
-const { registerOwnerAction, REGISTRATION_SENT } = await import("@/app/verify/[code]/actions");
+const { registerOwnerAction } = await import("@/app/verify/[code]/actions");
+const { REGISTRATION_SENT } = await import("@/app/verify/[code]/schemas");
 const { confirmRegistrationAction } = await import("@/app/verify/registration/[token]/actions");
 const { withdrawConsentAction } = await import("@/app/verify/consent/[token]/actions");
 

@@ -15,3 +15,6 @@ export const ownerRegistrationSchema = z.object({
   // A checkbox sends "on" when ticked and nothing when not.
   consent: z.literal("on").optional(),
 });
+
+/** The one answer, whether or not the e-mail is known, the pair has owners or a limit was reached. */
+export const REGISTRATION_SENT = "If the address is right, a message is on its way. Open the link in it to confirm the registration; until then nothing is recorded.";
