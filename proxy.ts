@@ -24,8 +24,11 @@ function tooManyChecks(retryAfterSeconds: number): NextResponse {
 }
 
 // The certificate check is public; its limit is counted here, where the answer's status can be set.
+// Only a certificate code's page counts (/verify/<code>): the owners' link pages below it
+// (/verify/registration/…, /verify/consent/…) carry 256-bit one-time tokens, nothing to guess at speed.
+const CERTIFICATE_CHECK = /^\/verify\/[^/]+\/?$/;
 async function verifyRefusal(req: NextRequest): Promise<NextResponse | null> {
-  if (!req.nextUrl.pathname.startsWith("/verify/") || req.method !== "GET") return null;
+  if (!CERTIFICATE_CHECK.test(req.nextUrl.pathname) || req.method !== "GET") return null;
   const [{ getDb }, { hitVerifyLimit }] = await Promise.all([import("./db"), import("./lib/dispatch/rate-limit")]);
   const address = clientAddressOf({ peer: req.headers.get(PEER_HEADER), forwardedFor: req.headers.get("x-forwarded-for"), hops: trustedProxyHops() });
   const hit = await hitVerifyLimit(getDb(), address);

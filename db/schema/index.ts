@@ -14,3 +14,4 @@ export * from "./certificate-revisions";
 export * from "./payments";
 export * from "./service-owners";
 export * from "./service-parts";
+export * from "./owner-registrations";

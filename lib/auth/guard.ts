@@ -308,6 +308,16 @@ export function refuseCrossOrigin(req: Request): Response | null {
 }
 
 /**
+ * The same rule for a server action, read from its request headers: proxy.ts already refuses an
+ * action from another origin, and Next checks too, but a public action that writes says so itself.
+ */
+export async function actionComesFromHere(): Promise<boolean> {
+  const h = await headers();
+  const host = h.get("x-forwarded-host") ?? h.get("host") ?? "localhost";
+  return comesFromHere(new Request(`http://${host}/`, { method: "POST", headers: new Headers(h) }));
+}
+
+/**
  * The client's address for limits: the connection's own (stamped by instrumentation.ts, never the
  * client's word), or with TWINLEAF_TRUSTED_PROXY_HOPS set, the X-Forwarded-For entry that many
  * proxies back.

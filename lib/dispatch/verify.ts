@@ -86,3 +86,20 @@ export async function verifyCertificate(db: DbOrTx, code: string): Promise<Verif
     repairs: revisions.map((r) => r.repairLine),
   };
 }
+
+/**
+ * The pair a certificate code (the original's or a revision's) belongs to, for an owner's
+ * registration from the public check: never shown on the page. Null for an unknown code.
+ */
+export async function pairOfCertificate(db: DbOrTx, code: string): Promise<{ id: string; identity: string; shipped: boolean } | null> {
+  const c = normaliseCode(code);
+  if (!c) return null;
+  const [byRevision] = await db.select({ certificateId: certificateRevisions.certificateId }).from(certificateRevisions).where(eq(certificateRevisions.code, c)).limit(1);
+  const [row] = await db
+    .select({ id: items.id, identity: items.identity, state: items.state })
+    .from(certificates)
+    .innerJoin(items, eq(items.id, certificates.pairId))
+    .where(byRevision ? eq(certificates.id, byRevision.certificateId) : eq(certificates.code, c))
+    .limit(1);
+  return row ? { id: row.id, identity: row.identity, shipped: row.state === "shipped" } : null;
+}

@@ -136,7 +136,8 @@ const SENTENCES: Record<EventType, Sentence> = {
   }),
   "link.removed": needs(["parent"], (d) => `took it out of ${placeWords(str(d, "parent"), str(d, "position"))}${str(d, "replacedBy") ? `, for ${str(d, "replacedBy")}` : ""}`),
   "label.printed": (d) => (d.reprint ? "reprinted its label" : "printed its label"),
-  "ownership.registered": () => "registered the owner",
+  "ownership.registered": (d) => (str(d, "via") === "owner registration" ? "registered as the owner, confirmed by e-mail" : "registered the owner"),
+  "ownership.requested": () => "asked to register as an owner of the pair (waiting for the e-mail confirmation)",
   "event.corrected": (d) => (str(d, "field") ? `corrected an earlier record: the ${str(d, "field")} now reads "${str(d, "to")}"` : "corrected an earlier record"),
   "flitch.received": (d) => `received the flitch${str(d, "species") ? ` of ${str(d, "species").toLowerCase()}` : ""}${num(d, "leafCount") !== null ? `, ${plural(num(d, "leafCount")!, "leaf", "leaves")}` : ""}`,
   "leaf.measured": (d) => {

@@ -139,6 +139,39 @@ export interface CaseMessageInput {
   quote?: OwnerQuote | null;
   /** Where it is going back to, in words ("to you", "to Willow Hi-Fi"). */
   sentTo?: string | null;
+  /** A one-time link that withdraws the owner's consent to further mail (lib/owners/registrations.ts). */
+  withdrawLink?: string | null;
+}
+
+const WITHDRAW_WORDS = "If you would rather not hear from us about recalls and service, you can withdraw your consent here:";
+
+/** The closing lines every message to an owner carries: how to stop further mail. */
+function withdrawLines(link: string | null | undefined): { text: string[]; html: string[] } {
+  if (!link) return { text: [], html: [] };
+  const href = webLink(link);
+  return {
+    text: [WITHDRAW_WORDS, href, ""],
+    html: [`<span style="font-size:14px;color:#5b574f">${escapeHtml(WITHDRAW_WORDS)}<br><a href="${escapeHtml(href)}" style="color:#2f4a3a;word-break:break-all">${escapeHtml(href)}</a></span>`],
+  };
+}
+
+/**
+ * The confirmation an owner gets after registering their pair on the certificate check: nothing
+ * counts until they open the link. It also carries the link to withdraw consent.
+ */
+export function registrationMail(input: { name: string; pair: string; model: string; consent: boolean; link: string; withdrawLink: string | null; expiresHours: number }): MailContent {
+  const link = webLink(input.link);
+  const expiry = plural(input.expiresHours, "hour");
+  const subject = `Confirm the registration of your ${input.model}`;
+  const intro = `Thank you for registering your ${input.model}, pair ${input.pair}. To confirm that this is your e-mail address and finish the registration, open this link and press the button:`;
+  const consentLine = input.consent
+    ? "You asked us to send you recall notices and service mail about this pair."
+    : "You did not ask for recall notices or service mail; we will only write about the registration itself.";
+  const after = `The link can be used once and expires in ${expiry}. If you did not register a pair, ignore this message: nothing is recorded until the link is used.`;
+  const withdraw = withdrawLines(input.withdrawLink);
+  const text = [`Hello ${input.name},`, "", intro, link, "", consentLine, "", after, "", ...withdraw.text, "Twinleaf", ""].join("\n");
+  const html = htmlBody([escapeHtml(`Hello ${input.name},`), escapeHtml(intro)], link, "Confirm my registration", [escapeHtml(consentLine), escapeHtml(after), ...withdraw.html]);
+  return { subject, text, html };
 }
 
 function plainFrame(paragraphs: string[]): string {
@@ -190,7 +223,8 @@ export function caseMessageMail(input: CaseMessageInput): MailContent {
       paras = [`We have closed service case ${input.caseCode} for your ${input.model}. Thank you for your patience.`];
       break;
   }
-  const text = [hello, "", ...paras.flatMap((p) => [p, ""]), "Twinleaf", ""].join("\n");
-  const html = plainFrame([e(hello), ...paras.map((p) => e(p).replace(/\n/g, "<br>"))]);
+  const withdraw = withdrawLines(input.withdrawLink);
+  const text = [hello, "", ...paras.flatMap((p) => [p, ""]), ...withdraw.text, "Twinleaf", ""].join("\n");
+  const html = plainFrame([e(hello), ...paras.map((p) => e(p).replace(/\n/g, "<br>")), ...withdraw.html]);
   return { subject, text, html };
 }

@@ -43,40 +43,55 @@ export function checkOwner(input: OwnerDetails, fieldPrefix = ""): OwnerDetails 
  * Only a pair that has shipped has an owner; the same owner is not registered twice for one pair.
  */
 export async function registerOwnership(db: DbOrTx, input: { pairId: string; owner: OwnerDetails }, actor: Actor): Promise<{ ownerId: string; newOwner: boolean }> {
-  const owner = checkOwner(input.owner);
-
-  return db.transaction(async (tx) => {
-    const [pair] = await tx.select().from(items).where(and(eq(items.id, input.pairId), eq(items.kind, "pair"))).limit(1);
-    if (!pair) throw new AppError(404, "That pair is not in the register.");
-    if (pair.state !== "shipped") throw new AppError(409, `${pair.identity} has not shipped yet: a pair has an owner once it has left the workshop.`);
-    const at = now();
-    const [known] = owner.email ? await tx.select({ id: owners.id }).from(owners).where(sql`lower(${owners.email}) = ${owner.email}`).limit(1) : [];
-    let ownerId = known?.id;
-    if (ownerId) {
-      if (await holdsPair(tx, ownerId, pair.id)) throw new AppError(409, `${owner.name} is already registered as an owner of ${pair.identity}.`);
-    } else {
-      ownerId = newId();
-      await tx.insert(owners).values({ id: ownerId, ...owner, createdAt: at });
-    }
-    await appendOwnership(tx, { pair, ownerId, newOwner: !known, at }, actor);
-    return { ownerId, newOwner: !known };
-  });
+  return db.transaction((tx) => registerOwnershipIn(tx, input, actor));
 }
 
-async function holdsPair(tx: DbOrTx, ownerId: string, pairId: string): Promise<boolean> {
+/**
+ * registerOwnership inside the caller's transaction. `via` marks how it was registered in the
+ * event (any mark but DESK_REGISTRATION starts the warranty); an owner's own confirmed
+ * registration passes `actor` null (no account made it) and its registration's id in `data`.
+ */
+export async function registerOwnershipIn(
+  tx: DbOrTx,
+  input: { pairId: string; owner: OwnerDetails; via?: string; data?: Record<string, unknown> },
+  actor: Actor | null,
+): Promise<{ ownerId: string; newOwner: boolean }> {
+  const owner = checkOwner(input.owner);
+  const [pair] = await tx.select().from(items).where(and(eq(items.id, input.pairId), eq(items.kind, "pair"))).limit(1);
+  if (!pair) throw new AppError(404, "That pair is not in the register.");
+  if (pair.state !== "shipped") throw new AppError(409, `${pair.identity} has not shipped yet: a pair has an owner once it has left the workshop.`);
+  const at = now();
+  const [known] = owner.email ? await tx.select({ id: owners.id }).from(owners).where(sql`lower(${owners.email}) = ${owner.email}`).limit(1) : [];
+  let ownerId = known?.id;
+  if (ownerId) {
+    if (await holdsPair(tx, ownerId, pair.id)) throw new AppError(409, `${owner.name} is already registered as an owner of ${pair.identity}.`);
+  } else {
+    ownerId = newId();
+    await tx.insert(owners).values({ id: ownerId, ...owner, createdAt: at });
+  }
+  await appendOwnership(tx, { pair, ownerId, newOwner: !known, at, via: input.via, data: input.data }, actor);
+  return { ownerId, newOwner: !known };
+}
+
+/** Whether this owner is registered for this pair already. */
+export async function holdsPair(tx: DbOrTx, ownerId: string, pairId: string): Promise<boolean> {
   const [already] = await tx.select({ id: ownerships.id }).from(ownerships).where(and(eq(ownerships.ownerId, ownerId), eq(ownerships.itemId, pairId))).limit(1);
   return Boolean(already);
 }
 
-async function appendOwnership(tx: DbOrTx, input: { pair: { id: string; identity: string }; ownerId: string; newOwner: boolean; at: Date; via?: string }, actor: Actor) {
+async function appendOwnership(
+  tx: DbOrTx,
+  input: { pair: { id: string; identity: string }; ownerId: string; newOwner: boolean; at: Date; via?: string; data?: Record<string, unknown> },
+  actor: Actor | null,
+) {
   const eventId = await appendEvent(tx, {
-    actorId: actor.id,
+    actorId: actor?.id ?? null,
     station: "service",
     type: "ownership.registered",
     subjectKind: "item",
     subjectId: input.pair.id,
     // The owner's particulars stay in their record; the log names them by id.
-    data: { identity: input.pair.identity, ownerId: input.ownerId, newOwner: input.newOwner, ...(input.via ? { via: input.via } : {}) },
+    data: { identity: input.pair.identity, ownerId: input.ownerId, newOwner: input.newOwner, ...(input.via ? { via: input.via } : {}), ...(input.data ?? {}) },
     at: input.at,
   });
   await tx.insert(ownerships).values({ ownerId: input.ownerId, itemId: input.pair.id, since: input.at, eventId });
@@ -84,6 +99,9 @@ async function appendOwnership(tx: DbOrTx, input: { pair: { id: string; identity
 
 /** How an ownership the desk recorded at intake is marked: it does not start a warranty. */
 export const DESK_REGISTRATION = "service intake";
+
+/** How an owner's own registration, confirmed by e-mail, is marked: it starts the warranty like any but the desk's. */
+export const OWNER_REGISTRATION = "owner registration";
 
 /**
  * Inside the caller's transaction: registers the owner the service desk names for a pair that came
@@ -152,10 +170,10 @@ export async function findOwners(db: DbOrTx, text: string, limit = 20): Promise<
  * Appends an owner's word on being contacted, with its "owner.consent_recorded" event, in the
  * caller's transaction. The newest row counts; nothing earlier is changed.
  */
-export async function recordConsent(tx: DbOrTx, input: { ownerId: string; consent: boolean; data?: Record<string, unknown> }, actor: Actor): Promise<number> {
+export async function recordConsent(tx: DbOrTx, input: { ownerId: string; consent: boolean; data?: Record<string, unknown> }, actor: Actor | null): Promise<number> {
   const at = now();
   const eventId = await appendEvent(tx, {
-    actorId: actor.id,
+    actorId: actor?.id ?? null,
     station: "service",
     type: "owner.consent_recorded",
     subjectKind: "owner",

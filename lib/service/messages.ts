@@ -7,6 +7,7 @@ import { formatCalendarDay } from "@/lib/format";
 import { queueMail } from "@/lib/mail/outbox";
 import { caseMessageMail, type CaseMessageKind, type OwnerQuote } from "@/lib/mail/templates";
 import { ownerById, type OwnerWithConsent } from "@/lib/owners";
+import { issueConsentLink, mailBaseUrl, ownerLinkPaths } from "@/lib/owners/registrations";
 import { positionName } from "@/lib/vocabulary/positions";
 
 export type { CaseMessageKind, OwnerQuote };
@@ -63,6 +64,8 @@ export async function queueOwnerMessage(
     input.kind === "diagnosis"
       ? (await tx.select().from(caseFindings).where(eq(caseFindings.caseId, input.case.id))).map((f) => `${f.side === "L" ? "left" : "right"} speaker, ${positionName(f.position)}: ${f.finding}`)
       : undefined;
+  // Every message to an owner carries its own one-time link to withdraw consent.
+  const withdraw = await issueConsentLink(tx, { ownerId: owner!.id });
   const mail = caseMessageMail({
     kind: input.kind,
     ownerName: owner!.name,
@@ -74,7 +77,8 @@ export async function queueOwnerMessage(
     inWarranty: input.inWarranty,
     quote: input.quote ?? null,
     sentTo: input.sentTo ?? null,
+    withdrawLink: `${mailBaseUrl()}${ownerLinkPaths.consent(withdraw)}`,
   });
-  await queueMail(tx, { to: owner!.email!, subject: mail.subject, text: mail.text, html: mail.html, eventId: input.eventId });
+  await queueMail(tx, { to: owner!.email!, subject: mail.subject, text: mail.text, html: mail.html, eventId: input.eventId, secrets: [withdraw] });
   return outcome;
 }

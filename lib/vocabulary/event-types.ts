@@ -69,6 +69,7 @@ export const EVENT_TYPES = [
   "payment.received",
   "payment.refunded",
   "owner.consent_recorded",
+  "ownership.requested",
 ] as const;
 export type EventType = (typeof EVENT_TYPES)[number];
 
@@ -142,4 +143,5 @@ export const EVENT_PHRASES: Record<EventType, string> = {
   "payment.received": "recorded a payment",
   "payment.refunded": "refunded a payment",
   "owner.consent_recorded": "recorded an owner's consent to be contacted",
+  "ownership.requested": "received an owner's registration, to be confirmed by e-mail",
 };

@@ -2,7 +2,9 @@ import { notFound } from "next/navigation";
 import { getDb } from "@/db";
 import { pageParam } from "@/lib/auth/guard";
 import { verifyCertificate } from "@/lib/dispatch";
+import { pairOfCertificate } from "@/lib/dispatch/verify";
 import { formatDay } from "@/lib/format";
+import { OwnerRegistrationForm } from "./registration-form";
 
 /**
  * The public certificate check, reached from the QR code on a pair's certificate. Signed out;
@@ -28,6 +30,8 @@ export default async function Page({ params }: { params: Promise<{ code: string 
     ...(found.current.number > 1 ? ([["Current revision", `Revision ${found.current.number}, issued ${formatDay(found.current.issuedOn)}`, false]] as [string, string, boolean][]) : []),
   ];
   const older = found.revision.number < found.current.number;
+  // A pair has owners once it has left the workshop; the form says nothing about who they are.
+  const shipped = (await pairOfCertificate(getDb(), text))?.shipped ?? false;
   return (
     <article className="flex flex-col gap-5" data-testid="verify-genuine">
       <div className="rounded-xl border-l-4 border-leaf bg-leaf-soft px-5 py-4">
@@ -70,6 +74,15 @@ export default async function Page({ params }: { params: Promise<{ code: string 
           </div>
         ))}
       </dl>
+      {shipped ? (
+        <section className="rounded-xl border border-line bg-surface px-5 py-4" data-testid="verify-register">
+          <h2 className="text-lg font-bold">Register your pair</h2>
+          <p className="mt-1 mb-4 text-ink-soft">
+            Own these speakers? Register them so the workshop can reach you with recall notices and service mail. We send you a link to confirm; nothing is recorded until you open it.
+          </p>
+          <OwnerRegistrationForm code={text} />
+        </section>
+      ) : null}
     </article>
   );
 }

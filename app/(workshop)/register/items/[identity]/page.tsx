@@ -29,6 +29,9 @@ import { LabOrigin } from "./lab-origin";
 import { parseLeafIdentity } from "@/lib/serials";
 import { casesTouching } from "@/lib/service/queries";
 import { CASE_STATE_WORDS, OPEN_CASE_STATES } from "@/lib/vocabulary/case-states";
+import { OwnerRegistrations } from "@/components/register/owner-registrations";
+import { now } from "@/lib/clock";
+import { registrationsOfPair } from "@/lib/owners/registrations";
 
 /** A leaf names its flitch and number; a flitch opens in the veneer room for those who work there. */
 function VeneerOrigin({ identity, kind, inVeneerRoom }: { identity: string; kind: "flitch" | "leaf"; inVeneerRoom: boolean }) {
@@ -96,6 +99,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
     shipmentFacts(db, item.kind === "shipment" ? [item.id] : shipments.length === 1 ? [shipments[0]!.id] : []),
   ]);
   const cases = item.kind === "speaker" || item.kind === "pair" ? await casesTouching(db, item.id) : [];
+  const registrations = item.kind === "pair" ? await registrationsOfPair(db, item.id) : [];
   const ownShipment = item.kind === "shipment" ? (facts[0] ?? null) : null;
   const shipment = item.kind === "shipment" ? null : (facts[0] ?? null);
 
@@ -223,6 +227,12 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
       {item.kind === "pair" && finish?.kind === "veneer" && model ? (
         <Panel title="Veneer">
           <PairVeneer pair={item} leavesPerFace={model.leavesPerFace} canRepair={user.permissions.has("veneer.work")} />
+        </Panel>
+      ) : null}
+
+      {item.kind === "pair" && (item.state === "shipped" || registrations.length) ? (
+        <Panel title="Owners' registrations">
+          <OwnerRegistrations rows={registrations} show="owner" now={now()} />
         </Panel>
       ) : null}
 

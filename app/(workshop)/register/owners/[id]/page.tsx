@@ -9,6 +9,10 @@ import { formatDate } from "@/lib/format";
 import { ownerWithItems } from "@/lib/genealogy/queries";
 import { SerialLink } from "@/components/register/serial-link";
 import { kindLabel, stateLabel } from "@/lib/vocabulary/item-kinds";
+import { OwnerRegistrations } from "@/components/register/owner-registrations";
+import { now } from "@/lib/clock";
+import { ownerById } from "@/lib/owners";
+import { registrationsOfOwner } from "@/lib/owners/registrations";
 
 export const metadata: Metadata = { title: "Owner" };
 
@@ -17,6 +21,8 @@ export default async function OwnerPage({ params }: { params: Promise<{ id: stri
   const found = await ownerWithItems(getDb(), pageParam((await params).id));
   if (!found) notFound();
   const { owner, held } = found;
+  const [registrations, withConsent] = await Promise.all([registrationsOfOwner(getDb(), owner.id), ownerById(getDb(), owner.id)]);
+  const consent = withConsent?.consent;
   return (
     <div className="flex flex-col gap-6" data-testid="owner-page">
       <BackLink href="/register">Register</BackLink>
@@ -41,6 +47,16 @@ export default async function OwnerPage({ params }: { params: Promise<{ id: stri
             },
           }))}
         />
+      </Panel>
+      <Panel title="Consent and registrations">
+        <p className="mb-3" data-testid="owner-consent">
+          {consent
+            ? consent.given
+              ? `Consents to recall notices and service mail (since ${formatDate(consent.at, now())}).`
+              : `Does not wish to be contacted (since ${formatDate(consent.at, now())}).`
+            : "No word on being contacted is recorded."}
+        </p>
+        <OwnerRegistrations rows={registrations} show="pair" now={now()} />
       </Panel>
     </div>
   );
