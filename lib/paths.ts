@@ -42,6 +42,10 @@ export const paths = {
   serviceQuote: (code: string) => `/service/cases/${seg(code)}/quote`,
   serviceReturn: (code: string) => `/service/cases/${seg(code)}/return`,
   quality: "/quality",
+  containments: "/quality/containments",
+  containment: (code: string) => `/quality/containments/${seg(code)}`,
+  containmentCsv: (code: string, dealer?: string) => `/api/v1/containments/${seg(code)}/affected.csv${dealer ? `?dealer=${seg(dealer)}` : ""}`,
+  containmentEpcis: (code: string, dealer?: string) => `/api/v1/containments/${seg(code)}/epcis${dealer ? `?dealer=${seg(dealer)}` : ""}`,
 
   admin: "/admin",
   adminAudit: "/admin/audit",

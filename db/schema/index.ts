@@ -15,3 +15,4 @@ export * from "./payments";
 export * from "./service-owners";
 export * from "./service-parts";
 export * from "./owner-registrations";
+export * from "./containments";

@@ -41,6 +41,9 @@ export const APPEND_ONLY_TABLES = {
   refunds: "refunds",
   owner_consents: "owners' consents to be contacted",
   case_reservations: "parts reserved for service cases",
+  containments: "containments",
+  containment_items: "serials affected by containments",
+  containment_notices: "containment notices",
 } as const satisfies Record<string, string>;
 
 export type AppendOnlyTable = keyof typeof APPEND_ONLY_TABLES;

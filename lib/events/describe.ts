@@ -192,6 +192,14 @@ const SENTENCES: Record<EventType, Sentence> = {
     const phrase = dispositionPhrase({ disposition: disposition as Disposition, reworkToSeq: num(d, "reworkToSeq"), scrapped: str(d, "scrapped") ? { side: null, identity: str(d, "scrapped") } : null });
     return `decided nonconformance ${str(d, "code")}: ${phrase}`;
   }),
+  "containment.raised": needs(["code", "target"], (d) => `raised containment ${str(d, "code")} on ${str(d, "target")}${num(d, "affected") !== null ? `: ${plural(num(d, "affected")!, "serial")} affected` : ""}`),
+  "containment.inspected": needs(["code", "serial"], (d) => {
+    const result = str(d, "result") === "failed" ? "failed" : "passed";
+    return `inspected ${str(d, "serial")} for containment ${str(d, "code")}: it ${result}${str(d, "case") ? `, and service case ${str(d, "case")} was opened` : ""}`;
+  }),
+  "containment.released": needs(["code", "serial"], (d) => `released ${str(d, "serial")} from containment ${str(d, "code")}${str(d, "to") === "replaced" ? ": it was replaced" : ": cleared"}`),
+  "containment.notified": needs(["code"], (d) => `sent ${str(d, "dealer") ? `dealer ${str(d, "dealer")}` : "an owner"} the notice of containment ${str(d, "code")}${num(d, "serials") !== null ? ` (${plural(num(d, "serials")!, "serial")})` : ""}`),
+  "containment.closed": needs(["code"], (d) => `closed containment ${str(d, "code")}`),
   "spec.created": needs(["model"], (d) => `saved version ${num(d, "version") ?? ""} of the ${str(d, "model")} route${num(d, "steps") !== null ? ` (${plural(num(d, "steps")!, "step")})` : ""}`),
   "crossover.built": (d) => {
     const reasons = list(d, "reasons").map(String);

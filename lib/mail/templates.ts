@@ -228,3 +228,54 @@ export function caseMessageMail(input: CaseMessageInput): MailContent {
   const html = plainFrame([e(hello), ...paras.map((p) => e(p).replace(/\n/g, "<br>")), ...withdraw.html]);
   return { subject, text, html };
 }
+
+/**
+ * A containment's notice to a dealer: one message listing every affected serial that went to them,
+ * what is suspect, and what to do. Plain text and HTML carry the same words.
+ */
+export function containmentDealerMail(input: {
+  dealerName: string;
+  code: string;
+  target: string;
+  reason: string;
+  severity: string;
+  serials: { serial: string; what: string }[];
+}): MailContent {
+  const subject = `Containment ${input.code}: ${plural(input.serials.length, "serial")} you received may be affected`;
+  const intro = `We have raised containment ${input.code} (${input.severity.toLowerCase()}) on ${input.target}: ${input.reason}`;
+  const ask =
+    "Please do not sell or hand over the serials below until we have been in touch. Set any you hold aside, tell us which have gone to customers, and reply to arrange their inspection.";
+  const lines = input.serials.map((s) => `${s.serial} (${s.what})`);
+  const text = [`Hello ${input.dealerName},`, "", intro, "", ask, "", "Affected serials:", ...lines.map((l) => `- ${l}`), "", "Twinleaf", ""].join("\n");
+  const list = `<ul style="margin:0;padding-left:20px">${lines.map((l) => `<li>${escapeHtml(l)}</li>`).join("")}</ul>`;
+  const html = plainFrame([escapeHtml(`Hello ${input.dealerName},`), escapeHtml(intro), escapeHtml(ask), `Affected serials:${list}`]);
+  return { subject, text, html };
+}
+
+/**
+ * A containment's notice to an owner who registered a pair and agreed to recall notices: in plain
+ * words, what may be wrong and what to do. It carries the link to withdraw consent.
+ */
+export function containmentOwnerMail(input: {
+  ownerName: string;
+  code: string;
+  pairs: { pair: string; model: string }[];
+  /** Quality's words for owners; without them the message says only that a part may be faulty. */
+  reason: string | null;
+  critical: boolean;
+  dealers: string[];
+  withdrawLink: string | null;
+}): MailContent {
+  const pairs = input.pairs.map((p) => `${p.model}, pair ${p.pair}`);
+  const subject = `Safety and quality notice for your ${input.pairs.length === 1 ? input.pairs[0]!.model : "speakers"} (${input.code})`;
+  const intro = `We have found that a part used in ${pairs.length === 1 ? "your speakers" : "some of your speakers"} may be faulty${input.reason ? `: ${input.reason}` : "."}`;
+  const which = `This concerns: ${pairs.join("; ")}.`;
+  const now = input.critical
+    ? "Please stop using the speakers and switch off and unplug the amplifier that drives them until they have been checked."
+    : "You can go on using your speakers, but please have them checked soon.";
+  const how = `Contact ${input.dealers.length ? input.dealers.join(" or ") : "the dealer you bought them from"}, or reply to this message, quoting ${input.code}, to arrange the check.`;
+  const withdraw = withdrawLines(input.withdrawLink);
+  const text = [`Hello ${input.ownerName},`, "", intro, "", which, "", now, "", how, "", ...withdraw.text, "Twinleaf", ""].join("\n");
+  const html = plainFrame([escapeHtml(`Hello ${input.ownerName},`), escapeHtml(intro), escapeHtml(which), escapeHtml(now), escapeHtml(how), ...withdraw.html]);
+  return { subject, text, html };
+}
