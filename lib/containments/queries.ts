@@ -192,3 +192,22 @@ export async function containmentDetail(db: DbOrTx, code: string): Promise<Conta
     SELECT (SELECT name FROM users WHERE id = ${c.raisedBy}) AS raised, (SELECT name FROM users WHERE id = ${c.approvedBy}) AS approved`);
   return { ...c, raisedByName: names?.raised ?? "", approvedByName: names?.approved ?? null, progress: await progressOf(db, c.id) };
 }
+
+export interface ContainmentTouch {
+  code: string;
+  closed: boolean;
+  serial: string;
+  state: AffectedState;
+  group: AffectedGroup;
+}
+
+/** The containments that listed this item or a serial of its pair, newest first: for its register page. */
+export async function containmentsTouching(db: DbOrTx, itemId: string): Promise<ContainmentTouch[]> {
+  const rows = await db.all<{ code: string; closed_at: number | null; identity: string; state: AffectedState; grp: AffectedGroup }>(sql`
+    SELECT c.code, c.closed_at, ci.identity, ci.state, ci."group" AS grp
+    FROM containment_items ci JOIN containments c ON c.id = ci.containment_id
+    WHERE ci.item_id = ${itemId} OR ci.pair_id = ${itemId}
+    ORDER BY c.raised_at DESC, ci.kind <> 'pair', ci.identity
+    LIMIT 20`);
+  return rows.map((r) => ({ code: r.code, closed: r.closed_at !== null, serial: r.identity, state: r.state, group: r.grp }));
+}

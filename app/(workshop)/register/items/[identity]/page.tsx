@@ -28,6 +28,8 @@ import { PairVeneer } from "./pair-veneer";
 import { LabOrigin } from "./lab-origin";
 import { parseLeafIdentity } from "@/lib/serials";
 import { casesTouching } from "@/lib/service/queries";
+import { containmentsTouching, holdsOn } from "@/lib/containments";
+import { AFFECTED_STATE_WORDS } from "@/lib/vocabulary/containments";
 import { CASE_STATE_WORDS, OPEN_CASE_STATES } from "@/lib/vocabulary/case-states";
 import { OwnerRegistrations } from "@/components/register/owner-registrations";
 import { now } from "@/lib/clock";
@@ -100,6 +102,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
   ]);
   const cases = item.kind === "speaker" || item.kind === "pair" ? await casesTouching(db, item.id) : [];
   const registrations = item.kind === "pair" ? await registrationsOfPair(db, item.id) : [];
+  const [holds, touches] = await Promise.all([holdsOn(db, [item.id]), containmentsTouching(db, item.id)]);
   const ownShipment = item.kind === "shipment" ? (facts[0] ?? null) : null;
   const shipment = item.kind === "shipment" ? null : (facts[0] ?? null);
 
@@ -135,6 +138,38 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
               {` (${CASE_STATE_WORDS[c.state].toLowerCase()}), ${c.itemId === item.id ? "came back" : item.kind === "pair" ? "one speaker came back" : c.partnerId === item.id ? "its partner came back" : "the whole pair came back"} on ${formatCalendarDay(c.receivedOn, new Date(0))}`}
             </span>
           ))}
+        </Notice>
+      ) : null}
+      {holds.length || touches.length ? (
+        <Notice tone={holds.length ? "danger" : "info"} testId="item-containments">
+          {holds.length ? (
+            <p className="font-bold">
+              Held by containment{" "}
+              {[...new Set(holds.map((h) => h.code))].map((code, i) => (
+                <span key={code}>
+                  {i ? ", " : ""}
+                  <Link className="serial underline" href={paths.containment(code)}>
+                    {code}
+                  </Link>
+                </span>
+              ))}
+              : {holds[0]!.reason} No station, assembly, packing or shipping takes it until quality releases it.
+            </p>
+          ) : null}
+          {touches.length ? (
+            <p>
+              <span className="font-bold">Containments: </span>
+              {touches.map((t, i) => (
+                <span key={`${t.code}-${t.serial}`}>
+                  {i ? "; " : ""}
+                  <Link className="serial underline" href={paths.containment(t.code)}>
+                    {t.code}
+                  </Link>
+                  {` (${t.closed ? "closed" : "open"}), ${t.serial === item.identity ? "this" : `${t.serial}`} ${AFFECTED_STATE_WORDS[t.state].toLowerCase()}`}
+                </span>
+              ))}
+            </p>
+          ) : null}
         </Notice>
       ) : null}
       {item.kind === "drive_unit" || item.kind === "crossover" ? <LabOrigin item={item} inLab={user.permissions.has("lab.work")} /> : null}
