@@ -3,6 +3,7 @@ import "server-only";
 import { eq } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { items, models, type Item } from "@/db/schema";
+import { holdMessage, holdsOn } from "@/lib/containments/holds";
 import { KIND_WORD, stateLabel } from "@/lib/vocabulary/item-kinds";
 import { partWord } from "@/lib/vocabulary/part-types";
 import { positionName } from "@/lib/vocabulary/positions";
@@ -67,6 +68,9 @@ export async function checkScanIn(db: DbOrTx, ctx: PairContext, input: Omit<Scan
     const why = await failureReason(db, item.id);
     return refuse(`${item.identity} failed on the bench: ${why ?? "no reason was recorded"}. It cannot be fitted.`);
   }
+  // A quarantined part (or one inside something an open containment holds) waits for quality.
+  const [hold] = await holdsOn(db, [item.id]);
+  if (hold) return refuse(holdMessage(hold, item.identity, "be fitted"));
   const holder = await holderOf(db, item.id);
   if (holder) return refuse(`${item.identity} is already fitted, as the ${positionName(holder.position)} of ${holder.parent}.`);
   if (item.state === "scrapped") return refuse(`${item.identity} is scrapped.`);

@@ -5,6 +5,7 @@ import type { DbOrTx } from "@/db";
 import { finishes, items, links, modelPositions, models, type Finish, type Item, type Model } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
 import { now as clockNow } from "@/lib/clock";
+import { holdMessage, holdsOn, type Hold } from "@/lib/containments/holds";
 import { pairRoute, type PairRoute } from "@/lib/route/pair-route";
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { PAIR_CABINET_POSITION as CAB_POSITION, PAIR_SPEAKER_POSITION } from "@/lib/vocabulary/positions";
@@ -27,6 +28,8 @@ interface PairContext {
   /** The next step of the route in words, while it is not finished. */
   next: string | null;
   openNcs: { code: string; finding: string }[];
+  /** Open containments holding the pair, a cabinet of it or a part in it. */
+  holds: Hold[];
   /** Why nothing can be fitted into this pair now, or null when it is ready. */
   blocked: string | null;
 }
@@ -74,8 +77,10 @@ export async function pairContext(db: DbOrTx, pair: Item, at: Date = clockNow())
     }
   }
 
+  const holds = await holdsOn(db, [pair.id]);
   let blocked: string | null = null;
   if (speakers.length) blocked = `${pair.identity} is built already: its speakers are ${speakers.map((s) => s.item.identity).join(" and ")}.`;
+  else if (holds[0]) blocked = holdMessage(holds[0], pair.identity, "be built into speakers");
   else if (pair.state === "unpartnered") blocked = `${pair.identity} is unpartnered: it lost a cabinet, and quality signs off a new partner before it is assembled.`;
   else if (pair.state !== "in_production") blocked = `${pair.identity} is ${stateLabel(pair.state)}: only a pair in production is built into speakers.`;
   else if (routeProblem) blocked = routeProblem;
@@ -84,5 +89,5 @@ export async function pairContext(db: DbOrTx, pair: Item, at: Date = clockNow())
   else if (cabinets.some((c) => c.item.state === "scrapped")) blocked = `${pair.identity} holds a scrapped cabinet.`;
   else if (!routeFinished) blocked = `The cabinets have not finished their route: next step is ${next ?? "not known"}.`;
 
-  return { pair, model: model!, finish: finish ?? null, slots, route, cabinets, speakers, lacquer, routeFinished, next, openNcs, blocked };
+  return { pair, model: model!, finish: finish ?? null, slots, route, cabinets, speakers, lacquer, routeFinished, next, openNcs, holds, blocked };
 }

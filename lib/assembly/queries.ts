@@ -4,6 +4,7 @@ import { and, asc, eq, isNull } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { finishes, items, links, modelPositions, type Finish, type Item, type Model } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
+import type { Hold } from "@/lib/containments/holds";
 import { now as clockNow } from "@/lib/clock";
 import { itemByIdentity } from "@/lib/genealogy/graph";
 import { openSets } from "@/lib/lab/units";
@@ -28,6 +29,8 @@ export interface AssemblyView {
   routeFinished: boolean;
   next: string | null;
   openNcs: { code: string; finding: string }[];
+  /** Open containments holding the pair, a cabinet of it or a part in it. */
+  holds: Hold[];
   /** Why the pair cannot be built now (on hold, route not finished, built already…), or null. */
   blocked: string | null;
   /** Once assembled: each speaker with what sits in it. */
@@ -62,6 +65,7 @@ export async function assemblyView(db: DbOrTx, pairIdentity: string): Promise<As
     routeFinished: ctx.routeFinished,
     next: ctx.next,
     openNcs: ctx.openNcs,
+    holds: ctx.holds,
     blocked: ctx.blocked,
     speakers,
   };
@@ -102,6 +106,8 @@ export interface WaitingPair {
   lacquer: boolean;
   cabinets: string[];
   openNcs: string[];
+  /** Codes of the open containments holding it: it waits for quality, not for assembly. */
+  heldBy: string[];
   /** When the route finished (its last record), or when the lacquer pair was made. */
   readySince: Date;
 }
@@ -120,6 +126,7 @@ export async function pairsAwaitingAssembly(db: DbOrTx, at: Date = clockNow()): 
       lacquer: ctx.lacquer,
       cabinets: ctx.cabinets.map((c) => c.item.identity),
       openNcs: ctx.openNcs.map((n) => n.code),
+      heldBy: [...new Set(ctx.holds.map((h) => h.code))],
       readySince: ctx.route?.records.at(-1)?.recordedAt ?? pair.createdAt,
     });
   }

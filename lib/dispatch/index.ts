@@ -11,6 +11,7 @@ import { cartonLocations, certificates, dealers, finishes, items, links, models,
 import { AppError } from "@/lib/auth/errors";
 import { issueCertificate } from "@/lib/certificates";
 import { now as clockNow } from "@/lib/clock";
+import { holdMessage, holdsOn } from "@/lib/containments/holds";
 import { appendEvent } from "@/lib/events/queries";
 import { queueMail } from "@/lib/mail/outbox";
 import { changeState, createItem, fit, itemByIdentity, type Recorder } from "@/lib/genealogy/graph";
@@ -98,13 +99,19 @@ const listing = (names: string[]) => (names.length <= 1 ? names.join("") : `${na
 
 /** Why a pair cannot be packed, in words for the packer; null when it can. */
 async function packRefusal(db: DbOrTx, pair: Item): Promise<string | null> {
-  if ((PACKABLE_STATES as readonly string[]).includes(pair.state)) return null;
+  if ((PACKABLE_STATES as readonly string[]).includes(pair.state)) return heldRefusal(db, pair, "be packed");
   if (pair.state === "packed") {
     const carton = await cartonOf(db, pair.id);
     return `${pair.identity} is already packed${carton ? `, in carton ${carton.identity}` : ""}.`;
   }
   if (pair.state === "shipped") return `${pair.identity} has already shipped.`;
   return `${pair.identity} is ${stateLabel(pair.state)}: only a pair that has passed its final test can be packed.`;
+}
+
+/** The words of an open containment's hold on the item (or on anything it holds), or null when none holds it. */
+async function heldRefusal(db: DbOrTx, item: Item, what: string): Promise<string | null> {
+  const [hold] = await holdsOn(db, [item.id]);
+  return hold ? holdMessage(hold, item.identity, what) : null;
 }
 
 export interface PackResult {
@@ -325,14 +332,18 @@ export async function shipCartons(db: Db, input: ShipInput, actor: Actor, option
     if (!(await pairIn(db, carton.id))) return `${carton.identity} holds no pair.`;
     return null;
   };
+  // A carton whose pair an open containment holds stays at dispatch: a conflict, not bad input.
+  let held = false;
   for (const carton of found) {
     const why = await refusal(db, carton);
-    if (why) add("cartons", why);
+    const hold = why ? null : await heldRefusal(db, carton, "be shipped");
+    if (why ?? hold) add("cartons", (why ?? hold)!);
+    if (hold) held = true;
   }
 
   if (Object.keys(errors).length) {
     const first = Object.values(errors).flat();
-    throw new AppError(400, first.length === 1 ? `Nothing was shipped: ${first[0]}` : "Nothing was shipped: some fields need attention.", errors);
+    throw new AppError(held ? 409 : 400, first.length === 1 ? `Nothing was shipped: ${first[0]}` : "Nothing was shipped: some fields need attention.", errors);
   }
 
   const by = recorder(actor);
@@ -340,7 +351,7 @@ export async function shipCartons(db: Db, input: ShipInput, actor: Actor, option
     const lines: ShipLine[] = [];
     for (const c of found) {
       const carton = (await itemByIdentity(tx, c.identity))!;
-      const why = await refusal(tx, carton);
+      const why = (await refusal(tx, carton)) ?? (await heldRefusal(tx, carton, "be shipped"));
       if (why) throw new AppError(409, `Nothing was shipped: ${why}`, { cartons: [why] });
       const pair = (await pairIn(tx, carton.id))!;
       const [names] = await tx

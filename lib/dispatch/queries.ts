@@ -1,6 +1,7 @@
 import "server-only";
 import { sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
+import { holdsOn } from "@/lib/containments/holds";
 import { normaliseScan, parseSerial } from "@/lib/serials/format";
 import { isoDay } from "./dates";
 
@@ -14,12 +15,21 @@ export interface ReadyPair {
   finish: string | null;
   /** When it passed its final test (the newest move into its present state). */
   testedAt: Date | null;
+  /** The open containment holding it (it is not offered for packing), or null. */
+  heldBy: string | null;
+}
+
+/** The first open containment holding each of `ids`, by id: lists mark these instead of offering them. */
+async function heldByOf(db: DbOrTx, ids: string[]): Promise<Map<string, string>> {
+  const out = new Map<string, string>();
+  for (const h of await holdsOn(db, ids)) if (!out.has(h.itemId)) out.set(h.itemId, h.code);
+  return out;
 }
 
 /** Pairs that passed their final test and wait to be packed, longest waiting first. */
 export async function readyToPack(db: DbOrTx): Promise<ReadyPair[]> {
-  const rows = await db.all<{ identity: string; state: string; model: string | null; model_code: string | null; finish: string | null; tested_at: number | null }>(sql`
-    SELECT p.identity, p.state, m.name AS model, m.code AS model_code, f.name AS finish,
+  const rows = await db.all<{ id: string; identity: string; state: string; model: string | null; model_code: string | null; finish: string | null; tested_at: number | null }>(sql`
+    SELECT p.id, p.identity, p.state, m.name AS model, m.code AS model_code, f.name AS finish,
            (SELECT max(e.at) FROM events e
              WHERE e.subject_kind = 'item' AND e.subject_id = p.id AND e.type = 'item.state_changed'
                AND json_extract(e.data, '$.to') = p.state) AS tested_at
@@ -28,7 +38,8 @@ export async function readyToPack(db: DbOrTx): Promise<ReadyPair[]> {
     LEFT JOIN finishes f ON f.id = p.finish_id
     WHERE p.kind = 'pair' AND p.state IN ('ready_to_pack', 'tested')
     ORDER BY tested_at, p.identity`);
-  return rows.map((r) => ({ identity: r.identity, state: r.state, model: r.model ?? "", modelCode: r.model_code ?? "", finish: r.finish, testedAt: dateOf(r.tested_at) }));
+  const held = await heldByOf(db, rows.map((r) => r.id));
+  return rows.map((r) => ({ identity: r.identity, state: r.state, model: r.model ?? "", modelCode: r.model_code ?? "", finish: r.finish, testedAt: dateOf(r.tested_at), heldBy: held.get(r.id) ?? null }));
 }
 
 export interface WaitingCarton {
@@ -40,6 +51,8 @@ export interface WaitingCarton {
   finish: string | null;
   location: string | null;
   packedOn: string;
+  /** The open containment holding its pair (it cannot ship), or null. */
+  heldBy: string | null;
 }
 
 /** Packed cartons not yet in a shipment, with where they are stored, oldest first. */
@@ -56,6 +69,7 @@ export async function waitingToShip(db: DbOrTx): Promise<WaitingCarton[]> {
     WHERE c.kind = 'carton' AND c.state = 'packed'
       AND NOT EXISTS (SELECT 1 FROM links sl WHERE sl.child_id = c.id AND sl.ended_at IS NULL AND sl.parent_kind = 'shipment')
     ORDER BY c.created_at, c.identity`);
+  const held = await heldByOf(db, rows.map((r) => r.id));
   return rows.map((r) => ({
     id: r.id,
     carton: r.carton,
@@ -65,6 +79,7 @@ export async function waitingToShip(db: DbOrTx): Promise<WaitingCarton[]> {
     finish: r.finish,
     location: r.location,
     packedOn: r.packed_on ?? isoDay(new Date(Number(r.created_at))),
+    heldBy: held.get(r.id) ?? null,
   }));
 }
 

@@ -1,4 +1,5 @@
 import "server-only";
+import { refuseQuarantinedIn, withoutQuarantined, type Quarantined } from "./quarantine";
 import { and, asc, desc, eq, inArray, isNull, like, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { caseReservations, crossoverParts, events, items, matchedSets, modelTolerances, models, responses, setMembers, type Item, type Model } from "@/db/schema";
@@ -392,6 +393,8 @@ export interface CrossoverMatchView {
   /** `id` is the board's serial, so the plan and its reasons name boards as people know them. */
   units: { id: string; itemId: string; identity: string; levels: number[]; points: number[][] }[];
   notReady: { identity: string; reason: string }[];
+  /** Boards that would be free but an open containment quarantines: left out of the plan. */
+  quarantined: Quarantined[];
   plan: ReturnType<typeof planPairs>;
   limitDb: number;
 }
@@ -410,8 +413,13 @@ function checkLimit(model: Model, limitDb: number) {
   }
 }
 
-/** A model's boards free to pair: passed their check and in stock, in no open matched set and held by no service case. */
-export function freeBoards(db: DbOrTx, modelId: string) {
+/** A model's boards free to pair: passed their check and in stock, in no open matched set, held by no service case and by no open containment. */
+export async function freeBoards(db: DbOrTx, modelId: string): Promise<{ id: string; identity: string }[]> {
+  return (await withoutQuarantined(db, await boardsInStock(db, modelId))).free;
+}
+
+/** A model's boards in stock, in no open matched set and held by no service case (quarantined or not). */
+function boardsInStock(db: DbOrTx, modelId: string) {
   return db
     .select({ id: items.id, identity: items.identity })
     .from(items)
@@ -466,10 +474,10 @@ export async function matchCrossovers(db: DbOrTx, input: { modelId: string; limi
   const model = await modelById(db, input.modelId);
   checkLimit(model, input.limitDb);
   const bands = thirdOctaveBands(model.responseMinHz, model.responseMaxHz);
-  const boards = await freeBoards(db, model.id);
+  const { free: boards, quarantined } = await withoutQuarantined(db, await boardsInStock(db, model.id));
   const { units, notReady } = await boardUnitsOf(db, boards, bands);
   const plan = planPairs(units, { limitDb: input.limitDb, bandLabels: bands.map((b) => bandLabel(b.nominal)) });
-  return { model, bands, units, notReady, plan, limitDb: input.limitDb };
+  return { model, bands, units, notReady, quarantined, plan, limitDb: input.limitDb };
 }
 
 /** Thrown when boards of a plan were reserved by someone else first (status 409). */
@@ -515,6 +523,7 @@ export async function acceptCrossoverPlan(db: DbOrTx, input: { modelId: string; 
     return await db.transaction(async (tx) => {
       const view = await matchCrossovers(tx, { modelId: model.id, limitDb: input.limitDb });
       const byId = new Map(view.units.map((u) => [u.id, u]));
+      await refuseQuarantinedIn(tx, view.quarantined, ids);
       const missing = ids.filter((id) => !byId.has(id));
       if (missing.length) {
         const taken = await held(tx);

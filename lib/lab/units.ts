@@ -1,4 +1,5 @@
 import "server-only";
+import { refuseQuarantinedIn, withoutQuarantined, type Quarantined } from "./quarantine";
 import type { LabActor } from "@/lib/vocabulary/actor";
 import { and, asc, desc, eq, inArray, isNull, like, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
@@ -174,7 +175,7 @@ export async function batchUnitsView(db: DbOrTx, batchId: string, opts: { withPo
 
 /**
  * Drive units of a part type free to match, from every batch: measured (or back in stock), held
- * by no open matched set and by no open service-case reservation. The service desk ranks
+ * by no open matched set, by no open service-case reservation and by no open containment. The service desk ranks
  * replacements from these with the lab's own loading (`unitRowsOf`, `matchUnitsOf`).
  */
 export async function freeUnitRows(db: DbOrTx, partType: PartType, opts: { withPoints?: boolean } = {}): Promise<UnitRow[]> {
@@ -192,7 +193,8 @@ export async function freeUnitRows(db: DbOrTx, partType: PartType, opts: { withP
       ),
     )
     .orderBy(asc(items.identity));
-  return unitRowsOf(db, rows, opts);
+  // Quarantined by an open containment: not free until quality releases it.
+  return unitRowsOf(db, (await withoutQuarantined(db, rows)).free, opts);
 }
 
 /** Units (any state) with their newest response and Thiele–Small set, and the set or service case that holds them now. */
@@ -500,6 +502,8 @@ export interface MatchView {
   /** `id` is the unit's serial, so the plan and its reasons name units as people know them. */
   units: { id: string; itemId: string; identity: string; levels: number[]; points: number[][]; fs?: number; qts?: number }[];
   notReady: { identity: string; reason: string }[];
+  /** Units that would be free but an open containment quarantines: left out of the plan. */
+  quarantined: Quarantined[];
   plan: ReturnType<typeof planPairs>;
   limitDb: number;
 }
@@ -546,16 +550,19 @@ export async function matchBatch(db: DbOrTx, batch: { id: string; partType: Part
     if (r.state !== "measured" && r.state !== "in_stock") continue;
     ready.push(r);
   }
-  const read = matchUnitsOf(ready, bands);
+  const { free, quarantined } = await withoutQuarantined(db, ready);
+  const read = matchUnitsOf(free, bands);
   const units = read.units;
   notReady.push(...read.notReady);
   const plan = planPairs(units, { ...opts, bandLabels: bands.map((b) => bandLabel(b.nominal)) });
-  return { bands, units, notReady, plan, limitDb: opts.limitDb };
+  return { bands, units, notReady, quarantined, plan, limitDb: opts.limitDb };
 }
 
 export interface MatchReadiness {
   /** Measured units free to pair. */
   free: number;
+  /** Measured units left out because an open containment quarantines them. */
+  quarantined: number;
   /** Whether matching can pair anything, under the loosest limit of a model that takes the part type. */
   canMatch: boolean;
   /** Why not, in the lab's words, when it cannot and there is something to say. */
@@ -572,14 +579,15 @@ export async function matchReadiness(db: DbOrTx, batch: { id: string; partType: 
   const loosest = limits.sort((a, b) => b.limit - a.limit)[0];
   if (!loosest) {
     const free = (await batchUnitsView(db, batch.id)).filter((u) => !u.setCode && !u.caseCode && (u.state === "measured" || u.state === "in_stock") && u.responseId !== null).length;
-    return { free, canMatch: false, why: free >= 2 ? `No model in production has a mismatch limit for ${partWord(batch.partType)}s, so there is nothing to match them against.` : null };
+    return { free, quarantined: 0, canMatch: false, why: free >= 2 ? `No model in production has a mismatch limit for ${partWord(batch.partType)}s, so there is nothing to match them against.` : null };
   }
   const view = await matchBatch(db, batch, { limitDb: loosest.limit });
   const free = view.units.length;
-  if (view.plan.pairs.length) return { free, canMatch: true, why: null };
+  const quarantined = view.quarantined.length;
+  if (view.plan.pairs.length) return { free, quarantined, canMatch: true, why: null };
   const why = free >= 2 ? whyNoPairs(view.plan, { free, limitDb: loosest.limit, noun: "units", bandLabels: view.bands.map((b) => bandLabel(b.nominal)) }) : null;
   const several = new Set(limits.map((l) => l.limit)).size > 1;
-  return { free, canMatch: false, why: why && several ? `${why} That is the loosest limit of any model, the ${loosest.code}'s.` : why };
+  return { free, quarantined, canMatch: false, why: why && several ? `${why} That is the loosest limit of any model, the ${loosest.code}'s.` : why };
 }
 
 /** Thrown when units of a plan were reserved by someone else first. */
@@ -612,6 +620,7 @@ export async function acceptPlan(
     return await db.transaction(async (tx) => {
       const view = await matchBatch(tx, { id: batch.id, partType: batch.partType }, { limitDb: limit.limit, fsWeight: input.fsWeight, qtsWeight: input.qtsWeight });
       const byId = new Map(view.units.map((u) => [u.id, u]));
+      await refuseQuarantinedIn(tx, view.quarantined, ids);
 
       const taken = ids.filter((id) => !byId.has(id));
       if (taken.length) throw new UnitsTakenError(taken);

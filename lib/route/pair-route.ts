@@ -7,6 +7,7 @@ import { finishes, items, links, models, nonconformances, processSpecs, routeRec
 import { AppError } from "@/lib/auth/errors";
 import { newId } from "@/lib/auth/tokens";
 import { now as clockNow } from "@/lib/clock";
+import { refuseIfHeld } from "@/lib/containments/holds";
 import { appendEvent } from "@/lib/events/queries";
 import { changeState, itemByIdentity } from "@/lib/genealogy/graph";
 import { parseSerial } from "@/lib/serials/format";
@@ -133,6 +134,8 @@ export async function recordStep(
     const at = clockNow();
     const [pair] = await tx.select().from(items).where(eq(items.id, input.pairId)).limit(1);
     if (!pair) throw new AppError(404, "That pair is not in the register.");
+    // An open containment holding the pair, a cabinet of it or a part in it stops the route (and its start).
+    await refuseIfHeld(tx, [{ id: pair.id, identity: pair.identity }], "have a route step recorded");
     const route = await pairRoute(tx, pair, at);
     const startedAt = input.startedAt ?? at;
     const missing = input.sides.filter((s) => !route.cabinets.some((c) => c.side === s));

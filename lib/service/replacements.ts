@@ -11,6 +11,7 @@ import { caseFindings, caseReservations, events, items, links, modelPositions, m
 import { bandLabel, formatDb, formatLimitDb, thirdOctaveBands } from "@/lib/acoustics";
 import { AppError, isConstraintError } from "@/lib/auth/errors";
 import { now } from "@/lib/clock";
+import { refuseIfHeld } from "@/lib/containments/holds";
 import { appendEvent } from "@/lib/events/queries";
 import { changeState } from "@/lib/genealogy/graph";
 import { slotsOf, type Slot } from "@/lib/assembly/slots";
@@ -120,8 +121,8 @@ export interface ReplacementView extends ReplacementPlan {
 /**
  * The ranking for a failed position: the survivor is the part now at that position in the
  * partner speaker (the other side); the stock is the lab's free units of the survivor's part
- * type (lib/lab/units `freeUnitRows`: measured, in no open set, held by no case) or the model's
- * free boards, on the same bands (one-third octaves over the part type's passband, or over the
+ * type (lib/lab/units `freeUnitRows`: measured, in no open set, held by no case, quarantined by no
+ * open containment) or the model's free boards, on the same bands (one-third octaves over the part type's passband, or over the
  * model's response range for boards), with the same Fs/Qts weights and the model's limit.
  */
 export async function replacementView(db: DbOrTx, input: { code: string; side: string; position: string; fsWeight?: number; qtsWeight?: number }): Promise<ReplacementView> {
@@ -316,6 +317,9 @@ export async function reserveReplacement(
       if (held) throw new AppError(409, `${held} is reserved for the ${view.placeWords} already: release it first to choose another.`, { serial: [`Release ${held} first.`] });
       const text = input.serial.trim();
       if (!text) throw new AppError(400, "Type or scan the serial of the part to reserve.", { serial: ["Type or scan a serial."] });
+      // Quarantined stock is not among the candidates; say why, naming the containment.
+      const asked = await findUnit(tx, text, undefined, { boards: true });
+      if (asked) await refuseIfHeld(tx, [{ id: asked.id, identity: asked.identity }], "be reserved for a repair", "serial");
       const { item, why } = await whyNot(tx, view, text);
       if (why || !item) throw new AppError(400, `Nothing was reserved: ${why}`, { serial: [why!] });
       const cand = view.candidates.find((x) => x.id === item.identity)!;
@@ -350,6 +354,7 @@ export async function reserveReplacementSet(
       for (const [s, text] of [["L", input.left], ["R", input.right]] as const) {
         const key = s === "L" ? "left" : "right";
         const item = text.trim() ? await findUnit(tx, text.trim(), undefined, { boards: true }) : null;
+        if (item) await refuseIfHeld(tx, [{ id: item.id, identity: item.identity }], "be reserved for a repair", key);
         const unit = item ? view.stock.get(item.identity) : undefined;
         if (!unit) {
           const { why } = item ? await whyNot(tx, view, text) : { why: `There is no drive unit or crossover board ${text.trim() || "(empty)"} in the register.` };

@@ -4,6 +4,8 @@ import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, inject, test } from "vitest";
 import { openDb } from "@/db";
 import { finishes, models, users } from "@/db/schema";
+import { moveAffected, raiseContainment } from "@/lib/containments";
+import { paths } from "@/lib/paths";
 import { confirmRuns, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
 import { demoEmail, launchBrowser, newPage, signIn, url, visit } from "./browser-helpers";
 
@@ -23,10 +25,10 @@ beforeAll(async () => {
   const [veneer] = await db.select().from(users).where(eq(users.email, demoEmail("veneer")));
   const species = (await db.select().from(finishes)).find((f) => f.kind === "veneer")!;
   const model = (await db.select().from(models)).find((m) => m.leavesPerFace === 2)!;
-  const flitch = await receiveFlitch(db, { finishId: species.id, logReference: "LOG-ROUTE", supplier: "Route test", receivedOn: new Date().toISOString().slice(0, 10), leafThicknessMm: 0.6, leafCount: 12 }, { id: veneer!.id });
+  const flitch = await receiveFlitch(db, { finishId: species.id, logReference: "LOG-ROUTE", supplier: "Route test", receivedOn: new Date().toISOString().slice(0, 10), leafThicknessMm: 0.6, leafCount: 16 }, { id: veneer!.id });
   const view = (await flitchView(db, flitch.identity))!;
   for (const l of view.leaves) await measureLeaf(db, l.id, { lengthMm: 900, widthMm: 300, usable: true }, { id: veneer!.id });
-  const runs = [0, 4, 8].map((s) => ({ left: [s + 1, s + 3], right: [s + 2, s + 4], reserve: [] }));
+  const runs = [0, 4, 8, 12].map((s) => ({ left: [s + 1, s + 3], right: [s + 2, s + 4], reserve: [] }));
   for (const m of await confirmRuns(db, { flitchId: flitch.id, modelId: model.id, reservePerPair: 0, runs }, { id: veneer!.id })) {
     made.push({ pair: m.pair.identity, left: m.left.identity, right: m.right.identity });
   }
@@ -168,5 +170,31 @@ describe("nonconformances, dispositioned by quality", () => {
     await quality.getByTestId("repartner-form").waitFor();
     await visit(quality, url(`/register/items/${right}`));
     await expect(quality.getByTestId("item-page").textContent()).resolves.toMatch(/scrapped/);
+  });
+});
+
+describe("a containment's hold at the station", () => {
+  test("the held pair's page names the containment and offers no step; once quality clears it, the form is back", async () => {
+    const { pair, left } = made[3]!;
+    const { client, db } = openDb(inject("databaseUrl"));
+    try {
+      const [q] = await db.select().from(users).where(eq(users.email, demoEmail("quality")));
+      // Raised on the left cabinet: the pair that holds it is on hold.
+      const raised = await raiseContainment(db, { target: left, reason: "Glue from a suspect drum: inspect the joints.", severity: "major" }, { id: q!.id });
+      await visit(cabinet, url(paths.cabinetPair(pair)));
+      const hold = cabinet.getByTestId("containment-hold");
+      await hold.waitFor();
+      await expect(hold.textContent()).resolves.toMatch(new RegExp(`on hold until quality releases it.*Containment ${raised.code}.*Glue from a suspect drum`));
+      await expect(hold.getByRole("link", { name: raised.code }).getAttribute("href")).resolves.toBe(paths.containment(raised.code));
+      await cabinet.getByTestId("step-held").waitFor();
+      expect(await cabinet.getByTestId("step-form").count()).toBe(0);
+
+      await moveAffected(db, { code: raised.code, serials: raised.affected.map((a) => a.identity), to: "cleared" }, { id: q!.id });
+      await visit(cabinet, url(paths.cabinetPair(pair)));
+      await cabinet.getByTestId("step-form").waitFor();
+      expect(await cabinet.getByTestId("containment-hold").count()).toBe(0);
+    } finally {
+      client.close();
+    }
   });
 });

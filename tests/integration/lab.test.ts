@@ -220,10 +220,10 @@ describe("matching and reserving", () => {
     await importResponseFiles(db(), units.map((u, i) => ({ name: `${u.identity}.txt`, text: bumped(u.identity, i === 1 ? 1.43 : 0) })), { batchId: b.id, source: "upload" }, actor);
     const r = await matchReadiness(db(), { id: b.id, partType: "tweeter" });
     // Every demo model allows tweeters 0.5 dB apart (the seed's model tolerances).
-    expect(r).toEqual({ free: 2, canMatch: false, why: `No two of the 2 measured units are within the 0.5 dB limit: the closest two, ${units[0]!.identity} and ${units[1]!.identity}, differ by 1.43 dB at 2 kHz.` });
+    expect(r).toEqual({ free: 2, quarantined: 0, canMatch: false, why: `No two of the 2 measured units are within the 0.5 dB limit: the closest two, ${units[0]!.identity} and ${units[1]!.identity}, differ by 1.43 dB at 2 kHz.` });
 
     const close = await measuredBatch([90, 90.05]);
-    expect(await matchReadiness(db(), { id: close.batch.id, partType: "tweeter" })).toEqual({ free: 2, canMatch: true, why: null });
+    expect(await matchReadiness(db(), { id: close.batch.id, partType: "tweeter" })).toEqual({ free: 2, quarantined: 0, canMatch: true, why: null });
   });
 
   test("a batch's columns add up to its units: waiting, measured and free, reserved, fitted, failed and other", async () => {

@@ -6,6 +6,7 @@ import { Notice } from "@/components/ui/notice";
 import { Button } from "@/components/ui/button";
 import { initialFormState } from "@/lib/forms";
 import { PrintForm } from "@/components/register/print-form";
+import { HeldMark } from "@/components/register/containment-hold";
 import { buttonClasses } from "@/components/ui/button";
 import { printPaths } from "@/lib/paths";
 import { shipCartonsAction } from "./actions";
@@ -17,6 +18,8 @@ export interface ShipCarton {
   finish: string | null;
   location: string | null;
   packedOn: string;
+  /** The open containment holding its pair: shown instead of a box to tick. */
+  heldBy?: string | null;
 }
 
 
@@ -71,7 +74,7 @@ export function ShipForm({ cartons, dealers, today }: { cartons: ShipCarton[]; d
             {cartons.map((c) => (
               <li key={c.carton} className="flex flex-wrap items-center gap-3 rounded-lg border border-line bg-surface px-3 py-2 has-checked:border-leaf has-checked:bg-leaf-soft" data-testid="waiting-carton">
                 <label className="flex min-h-12 flex-1 cursor-pointer items-center gap-3">
-                  <input type="checkbox" name="cartons" value={c.carton} checked={picked.includes(c.carton)} onChange={(e) => toggle(c.carton, e.currentTarget.checked)} className="size-6 accent-leaf" />
+                  {c.heldBy ? null : <input type="checkbox" name="cartons" value={c.carton} checked={picked.includes(c.carton)} onChange={(e) => toggle(c.carton, e.currentTarget.checked)} className="size-6 accent-leaf" />}
                   <span className="flex flex-col">
                     <span className="serial font-bold">{c.carton}</span>
                     <span className="text-sm text-ink-soft">
@@ -95,6 +98,7 @@ export function ShipForm({ cartons, dealers, today }: { cartons: ShipCarton[]; d
                   )}
                   <span className="text-ink-soft"> · packed {c.packedOn}</span>
                 </span>
+                {c.heldBy ? <HeldMark code={c.heldBy} /> : null}
                 {/* Printing is a POST of its own form, outside the shipment's (forms do not nest). */}
                 <button type="submit" form={`${id}-label-${c.carton}`} className={buttonClasses("quiet", "sm")} data-testid="print-carton-label">
                   Print carton label

@@ -1,5 +1,6 @@
 import type { Metadata } from "next";
 import { AreaOverview } from "@/components/shell/area-overview";
+import { HeldMark } from "@/components/register/containment-hold";
 import { SerialLink } from "@/components/register/serial-link";
 import { ModelTable } from "@/components/workshop/reference-tables";
 import { Badge } from "@/components/ui/badge";
@@ -49,6 +50,9 @@ export default async function Page() {
                   <span className="flex flex-wrap items-center gap-2">
                     <SerialLink identity={p.identity} href={pairPage(p.identity)} />
                     {p.openNcs.length ? <Badge tone="danger">on hold: {p.openNcs.join(", ")}</Badge> : null}
+                    {p.heldBy.map((code) => (
+                      <HeldMark key={code} code={code} />
+                    ))}
                   </span>
                 ),
               },

@@ -4,6 +4,7 @@ import Link from "next/link";
 import { notFound } from "next/navigation";
 import { SafetyCautions } from "@/components/shell/safety-cautions";
 import { SerialLink } from "@/components/register/serial-link";
+import { ContainmentHold } from "@/components/register/containment-hold";
 import { Badge } from "@/components/ui/badge";
 import { BackLink } from "@/components/ui/back-link";
 import { Notice } from "@/components/ui/notice";
@@ -36,7 +37,7 @@ export default async function AssemblyPairPage({ params }: { params: Promise<{ p
   const built = view.speakers.length > 0;
   const badge = built
     ? { tone: "leaf" as const, text: stateLabel(pair.state) }
-    : view.openNcs.length
+    : view.openNcs.length || view.holds.length
       ? { tone: "danger" as const, text: "on hold" }
       : view.blocked
         ? { tone: "caution" as const, text: view.routeFinished ? stateLabel(pair.state) : "on the cabinet route" }
@@ -107,6 +108,8 @@ export default async function AssemblyPairPage({ params }: { params: Promise<{ p
             </div>
           </div>
         </Panel>
+      ) : view.holds.length ? (
+        <ContainmentHold holds={view.holds} identity={pair.identity} />
       ) : view.blocked ? (
         <Notice tone={view.openNcs.length ? "danger" : "caution"} testId="assembly-blocked">
           {view.blocked}{" "}

@@ -70,6 +70,7 @@ export default async function Page() {
               {ready.map(({ batch: b, readiness: r }) => (
                 <li key={b.id}>
                   {batchLink(b.code)}: {b.free} measured {partWord(b.partType)}s free{" "}
+                  {r.quarantined ? <span className="text-danger" data-testid="lab-held-count">({r.quarantined} of them held by a containment and left out of matching){" "}</span> : null}
                   {r.canMatch ? (
                     <Link className="font-bold text-leaf-dark underline" href={`/lab/match?batch=${encodeURIComponent(b.code)}`}>
                       match them

@@ -1,5 +1,6 @@
 import type { Metadata } from "next";
 import { MatchPlan } from "@/components/lab/match-plan";
+import { LeftOutNote } from "@/components/register/containment-hold";
 import { ResponseUpload } from "@/components/lab/response-upload";
 import { SerialLink } from "@/components/register/serial-link";
 import { SafetyCautions } from "@/components/shell/safety-cautions";
@@ -171,6 +172,7 @@ export default async function CrossoversPage({ searchParams }: { searchParams: P
 
         {view && model ? (
           <div className="mt-6">
+            <LeftOutNote quarantined={view.quarantined} one="board" many="boards" className="mb-4" />
             <MatchPlan
               plan={view.plan}
               units={view.units}

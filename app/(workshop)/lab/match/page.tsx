@@ -4,6 +4,7 @@ import { buttonClasses } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import { Panel, PageHeader } from "@/components/ui/panel";
 import { MatchPlan } from "@/components/lab/match-plan";
+import { LeftOutNote } from "@/components/register/containment-hold";
 import { getDb } from "@/db";
 import { requirePage } from "@/lib/auth/guard";
 import { modelsTakingPartType } from "@/lib/lab/queries";
@@ -86,6 +87,7 @@ export default async function MatchPage({ searchParams }: { searchParams: Promis
             <p className="mb-4 text-sm text-ink-soft" data-testid="plan-basis">
               {`${batch.code}'s ${partWord(batch.partType)}s, compared in one-third-octave bands over ${formatHzRange(pass.minHz, pass.maxHz)} (where a ${partWord(batch.partType)} plays in a usual design), against the ${model.code}'s limit of ${formatLimitDb(model.limit)}.`}
             </p>
+            <LeftOutNote quarantined={view.quarantined} one="unit" many="units" className="mb-4" />
             <MatchPlan
               plan={view.plan}
               units={view.units}

@@ -13,6 +13,7 @@ import { knownLocations, readyToPack, shippedOn, waitingToShip } from "@/lib/dis
 import { isoDay } from "@/lib/dispatch/dates";
 import { formatCalendarDay, formatDate } from "@/lib/format";
 import { SerialLink } from "@/components/register/serial-link";
+import { HeldMark } from "@/components/register/containment-hold";
 import { listDealers } from "@/lib/workshop/queries";
 import { MoveForm } from "../move-form";
 import { ShipForm } from "../ship-form";
@@ -57,9 +58,13 @@ export default async function Page() {
                   <TD>{p.finish ?? "—"}</TD>
                   <TD>{p.testedAt ? formatDate(p.testedAt) : "—"}</TD>
                   <TD className="text-right">
-                    <Link href={packHref(p.identity)} className="inline-flex min-h-12 items-center rounded-lg border border-leaf-dark bg-leaf px-4 font-bold text-white hover:bg-leaf-dark" aria-label={`Pack ${p.identity}`}>
-                      Pack
-                    </Link>
+                    {p.heldBy ? (
+                      <HeldMark code={p.heldBy} />
+                    ) : (
+                      <Link href={packHref(p.identity)} className="inline-flex min-h-12 items-center rounded-lg border border-leaf-dark bg-leaf px-4 font-bold text-white hover:bg-leaf-dark" aria-label={`Pack ${p.identity}`}>
+                        Pack
+                      </Link>
+                    )}
                   </TD>
                 </TR>
               ))}
@@ -72,7 +77,7 @@ export default async function Page() {
 
       <Panel title={`Packed, waiting to ship (${waiting.length})`}>
         <ShipForm
-          cartons={waiting.map((c) => ({ carton: c.carton, pair: c.pair, model: [c.modelCode, c.model].filter(Boolean).join(" "), finish: c.finish, location: c.location, packedOn: formatCalendarDay(c.packedOn) }))}
+          cartons={waiting.map((c) => ({ carton: c.carton, pair: c.pair, model: [c.modelCode, c.model].filter(Boolean).join(" "), finish: c.finish, location: c.location, packedOn: formatCalendarDay(c.packedOn), heldBy: c.heldBy }))}
           dealers={dealers.filter((d) => d.active).map((d) => ({ id: d.id, name: d.name, city: d.city }))}
           today={today}
         />

@@ -3,6 +3,7 @@ import type { Metadata } from "next";
 import { notFound } from "next/navigation";
 import { SafetyCautions } from "@/components/shell/safety-cautions";
 import { SerialLink } from "@/components/register/serial-link";
+import { ContainmentHold } from "@/components/register/containment-hold";
 import { Badge } from "@/components/ui/badge";
 import { BackLink } from "@/components/ui/back-link";
 import { DataTable } from "@/components/ui/data-table";
@@ -13,6 +14,7 @@ import { pageParam, requirePage } from "@/lib/auth/guard";
 import { now } from "@/lib/clock";
 import { formatAllowedFrom, formatWhen, timesNote } from "@/lib/format";
 import { itemByIdentity } from "@/lib/genealogy/graph";
+import { holdsOn } from "@/lib/containments";
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { STATION_CAUTIONS } from "@/lib/route/cautions";
 import { nextStepNow, windowText } from "@/lib/route/rules";
@@ -40,6 +42,8 @@ export default async function PairRoutePage({ params, searchParams }: { params: 
   const lone = pair.kind === "cabinet";
   const at = now();
   const route = await pairRoute(db, pair, at);
+  // An open containment holding the pair (or a cabinet of it): shown, and no step is offered.
+  const holds = await holdsOn(db, [pair.id]);
   const steps = route.spec.steps;
   const pos = route.position;
   const nextSeq = Math.min(...pos.cabinets.map((c) => c.next?.seq ?? Infinity));
@@ -64,8 +68,9 @@ export default async function PairRoutePage({ params, searchParams }: { params: 
       <PageHeader
         title={<span className="serial" data-testid="route-pair">{pair.identity}</span>}
         lead={`${route.model.code} ${route.model.name}${route.finishName ? ` · ${route.finishName}` : ""} · route version ${route.spec.version}${route.started ? "" : " (fixed when the first step is recorded)"}`}
-        actions={<Badge tone={pos.openNcs.length ? "danger" : pos.finished ? "leaf" : "info"}>{pos.openNcs.length ? "on hold" : pos.finished ? "route finished" : stateLabel(pair.state)}</Badge>}
+        actions={<Badge tone={pos.openNcs.length || holds.length ? "danger" : pos.finished ? "leaf" : "info"}>{pos.openNcs.length || holds.length ? "on hold" : pos.finished ? "route finished" : stateLabel(pair.state)}</Badge>}
       />
+      <ContainmentHold holds={holds} identity={pair.identity} />
       {recorded ? (
         <Notice tone={recorded.nc ? "caution" : "leaf"} testId="step-done">
           {recorded.text}
@@ -120,7 +125,11 @@ export default async function PairRoutePage({ params, searchParams }: { params: 
               {allowed.blocked.reason}
             </Notice>
           ) : null}
-          {canWork && allowed.ready.length ? (
+          {holds.length ? (
+            <p className="text-ink-soft" data-testid="step-held">
+              No step is recorded while the containment holds {lone ? "the cabinet" : "the pair"}.
+            </p>
+          ) : canWork && allowed.ready.length ? (
             <StepForm
               // A new form after each record: a refusal shown before it does not outlive it.
               key={`${next.seq}:${route.records.length}`}

@@ -58,6 +58,11 @@ export default async function BatchPage({ params, searchParams }: { params: Prom
           .map((c) => `${counts[c]} ${UNIT_CLASS_WORDS[c].sentence}`)
           .join(" · ")}
       </p>
+      {readiness?.quarantined ? (
+        <Notice tone="caution" testId="left-out-held">
+          {readiness.quarantined} measured {readiness.quarantined === 1 ? "unit is" : "units are"} held by an open containment and left out of matching until quality releases {readiness.quarantined === 1 ? "it" : "them"}.
+        </Notice>
+      ) : null}
       {readiness && !readiness.canMatch && readiness.why ? (
         <Notice tone="caution" testId="match-not-offered">
           {readiness.why} Matching is offered once two units can pair.

@@ -3,6 +3,7 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
 import { PrintForm } from "@/components/register/print-form";
+import { ContainmentHold } from "@/components/register/containment-hold";
 import { SafetyCautions } from "@/components/shell/safety-cautions";
 import { BackLink } from "@/components/ui/back-link";
 import { buttonClasses } from "@/components/ui/button";
@@ -10,6 +11,7 @@ import { Notice } from "@/components/ui/notice";
 import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
 import { areaByKey } from "@/lib/areas";
+import { holdsOn } from "@/lib/containments";
 import { pageParam, requirePage } from "@/lib/auth/guard";
 import { knownLocations, packingList, pairForPacking, PACKABLE_STATES } from "@/lib/dispatch";
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
@@ -27,7 +29,7 @@ export default async function Page({ params, searchParams }: { params: Promise<{
   const pair = await pairForPacking(db, serial);
   if (!pair) notFound();
   const packable = (PACKABLE_STATES as readonly string[]).includes(pair.state);
-  const [items, locations] = await Promise.all([pair.modelId ? packingList(db, pair.modelId) : Promise.resolve([]), knownLocations(db)]);
+  const [items, locations, holds] = await Promise.all([pair.modelId ? packingList(db, pair.modelId) : Promise.resolve([]), knownLocations(db), holdsOn(db, [pair.id])]);
   // A pair tested before final tests were recorded gets its certificate when it is packed.
   const certificateReady = pair.hasCertificate || pair.finalTestPassed;
 
@@ -39,6 +41,7 @@ export default async function Page({ params, searchParams }: { params: Promise<{
         lead={[`${pair.modelCode} ${pair.model}`.trim(), pair.finish, stateLabel(pair.state)].filter(Boolean).join(" · ")}
       />
       <SafetyCautions cautions={areaByKey("packing").cautions} />
+      <ContainmentHold holds={holds} identity={pair.identity} />
 
       <Panel title="The pair">
         <dl className="grid gap-x-6 gap-y-2 sm:grid-cols-[auto_1fr]">
@@ -84,7 +87,7 @@ export default async function Page({ params, searchParams }: { params: Promise<{
               : "Print the certificate now and put it in before the carton is closed: it names the packer and the date."}
           </p>
         </Panel>
-      ) : packable ? (
+      ) : packable && !holds.length ? (
         <Panel title="Pack it">
           <div className="mb-5 flex flex-wrap items-center gap-3">
             {certificateReady ? (
@@ -100,7 +103,7 @@ export default async function Page({ params, searchParams }: { params: Promise<{
           </div>
           <PackForm pair={pair.identity} items={items} locations={locations} />
         </Panel>
-      ) : (
+      ) : holds.length ? null : (
         <Notice tone="caution" testId="not-packable">
           {pair.state === "shipped" ? `${pair.identity} has already shipped.` : `${pair.identity} is ${stateLabel(pair.state)}: only a pair that has passed its final test can be packed.`}
         </Notice>
