@@ -20,7 +20,8 @@ export interface AffectedLine {
   whereabouts: string | null;
   state: AffectedState;
   done: boolean;
-  last: string;
+  /** When it last moved, who moved it and their note; null until it first moves. */
+  last: string | null;
   caseCode: string | null;
   caseHref: string | null;
 }
@@ -79,7 +80,6 @@ export function AffectedGroupTable({
               </TH>
             ) : null}
             <TH>Serial</TH>
-            <TH>Kind</TH>
             <TH>Pair</TH>
             <TH>Now</TH>
             {shipped ? <TH>Dealer and owner</TH> : null}
@@ -100,13 +100,13 @@ export function AffectedGroupTable({
                 <Link href={itemHref(l.serial)} className="serial whitespace-nowrap font-bold text-leaf-dark underline">
                   {l.serial}
                 </Link>
+                <span className="block text-sm text-ink-soft">{l.kind}</span>
               </TD>
-              <TD>{l.kind}</TD>
               <TD>{l.pair && l.pair !== l.serial ? <Link href={itemHref(l.pair)} className="serial whitespace-nowrap text-leaf-dark underline">{l.pair}</Link> : "—"}</TD>
               <TD>{l.now}</TD>
               {shipped ? <TD className="min-w-40">{l.whereabouts ?? "—"}</TD> : null}
               <TD className="whitespace-nowrap" data-testid="affected-state">{AFFECTED_STATE_WORDS[l.state]}</TD>
-              <TD className="min-w-40 text-sm">{l.last}</TD>
+              <TD className="min-w-36 text-sm">{l.last ?? "—"}</TD>
               <TD>{l.caseCode && l.caseHref ? <Link href={l.caseHref} className="serial text-leaf-dark underline">{l.caseCode}</Link> : "—"}</TD>
             </TR>
           ))}

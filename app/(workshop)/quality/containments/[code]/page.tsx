@@ -24,6 +24,8 @@ import { closeContainmentAction, moveAffectedAction, sendNoticesAction } from ".
 
 export const metadata: Metadata = { title: "Containment" };
 
+const sentenceCase = (s: string) => s.charAt(0).toUpperCase() + s.slice(1);
+
 /** Rows per group on one page: enough to work through, never thousands of tick boxes at once. */
 const PAGE = 200;
 const MOST = 2000;
@@ -136,11 +138,12 @@ export default async function ContainmentPage({ params, searchParams }: { params
           serial: r.serial,
           kind: kindLabel(r.kind),
           pair: r.pair,
-          now: stateLabel(r.itemState),
+          now: sentenceCase(stateLabel(r.itemState)),
           whereabouts: r.dealer || r.owner ? [r.dealer ? `${r.dealer.name}, ${r.dealer.city}` : null, r.owner ? `owner ${r.owner}` : null].filter(Boolean).join("; ") : null,
           state: r.state,
           done: !open || isDispositioned({ state: r.state, caseId: r.caseCode }),
-          last: `${formatWhen(r.at, at)}${r.by ? `, ${r.by}` : ""}${r.note ? `: “${r.note}”` : ""}`,
+          // Until it first moves, its event is the raise, whose reason is the containment's own.
+          last: r.state === "open" ? null : `${formatWhen(r.at, at)}${r.by ? `, ${r.by}` : ""}${r.note ? `: “${r.note}”` : ""}`,
           caseCode: r.caseCode,
           caseHref: r.caseCode ? paths.serviceCase(r.caseCode) : null,
         }));
