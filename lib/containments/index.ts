@@ -4,4 +4,4 @@ export { raiseContainment, resolveTarget, affectedOf, TARGET_KINDS, QUALITY_STAT
 export { holdsOn, heldIds, refuseIfHeld, holdMessage, type Hold } from "./holds";
 export { moveAffected, closeContainment, containmentOrRefuse, type MoveInput, type MoveResult } from "./work";
 export { sendNotices, ownersToTell, type NoticesSent } from "./notices";
-export { listContainments, affectedSerials, progressOf, noticesOf, containmentDetail, containmentsTouching, type ContainmentTouch, type AffectedSerial, type ContainmentSummary, type ContainmentProgress, type NoticeRow, type ContainmentDetail } from "./queries";
+export { listContainments, affectedSerials, progressOf, noticesOf, containmentDetail, containmentsTouching, dealersOf, type ContainmentTouch, type AffectedSerial, type ContainmentSummary, type ContainmentProgress, type NoticeRow, type ContainmentDetail } from "./queries";

@@ -111,6 +111,8 @@ export interface ContainmentProgress {
   dispositioned: number;
   byGroup: Record<AffectedGroup, number>;
   byState: Record<AffectedState, number>;
+  /** Dispositioned serials per group. */
+  dispositionedByGroup: Record<AffectedGroup, number>;
   /** Per group and state, for the progress chart. */
   cells: { group: AffectedGroup; state: AffectedState; n: number }[];
 }
@@ -121,6 +123,7 @@ export async function progressOf(db: DbOrTx, containmentId: string): Promise<Con
     WHERE containment_id = ${containmentId} GROUP BY "group", state, case_id IS NOT NULL`);
   const byGroup = Object.fromEntries(AFFECTED_GROUPS.map((g) => [g, 0])) as Record<AffectedGroup, number>;
   const byState = Object.fromEntries(AFFECTED_STATES.map((s) => [s, 0])) as Record<AffectedState, number>;
+  const dispositionedByGroup = Object.fromEntries(AFFECTED_GROUPS.map((g) => [g, 0])) as Record<AffectedGroup, number>;
   const cells = new Map<string, { group: AffectedGroup; state: AffectedState; n: number }>();
   let total = 0;
   let dispositioned = 0;
@@ -129,13 +132,16 @@ export async function progressOf(db: DbOrTx, containmentId: string): Promise<Con
     total += n;
     byGroup[r.grp] += n;
     byState[r.state] += n;
-    if (isDispositioned({ state: r.state, caseId: r.with_case ? "case" : null })) dispositioned += n;
+    if (isDispositioned({ state: r.state, caseId: r.with_case ? "case" : null })) {
+      dispositioned += n;
+      dispositionedByGroup[r.grp] += n;
+    }
     const key = `${r.grp}/${r.state}`;
     const cell = cells.get(key) ?? { group: r.grp, state: r.state, n: 0 };
     cell.n += n;
     cells.set(key, cell);
   }
-  return { total, dispositioned, byGroup, byState, cells: [...cells.values()] };
+  return { total, dispositioned, byGroup, byState, dispositionedByGroup, cells: [...cells.values()] };
 }
 
 export interface NoticeRow {
@@ -210,4 +216,12 @@ export async function containmentsTouching(db: DbOrTx, itemId: string): Promise<
     ORDER BY c.raised_at DESC, ci.kind <> 'pair', ci.identity
     LIMIT 20`);
   return rows.map((r) => ({ code: r.code, closed: r.closed_at !== null, serial: r.identity, state: r.state, group: r.grp }));
+}
+
+/** The dealers a containment's shipped serials went to, with how many each, for the per-dealer exports. */
+export async function dealersOf(db: DbOrTx, containmentId: string): Promise<{ code: string; name: string; city: string; serials: number }[]> {
+  const rows = await db.all<{ code: string; name: string; city: string | null; n: number }>(sql`
+    SELECT d.code, d.name, d.city, count(*) AS n FROM containment_items ci JOIN dealers d ON d.id = ci.dealer_id
+    WHERE ci.containment_id = ${containmentId} GROUP BY d.id ORDER BY d.name`);
+  return rows.map((r) => ({ code: r.code, name: r.name, city: r.city ?? "", serials: Number(r.n) }));
 }

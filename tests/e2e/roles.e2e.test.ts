@@ -13,6 +13,7 @@ import { openDb } from "@/db";
 import { AREAS } from "@/lib/areas";
 import { createMachineToken, revokeMachineToken } from "@/lib/auth/machine-tokens";
 import { ROLES, type Role } from "@/lib/auth/roles";
+import { affectedSerials, closeContainment, moveAffected, raiseContainment } from "@/lib/containments";
 import { requestPasswordReset } from "@/lib/users/queries";
 import { fillPath, paramsOf } from "../fixtures/access/discover";
 import { snapshot } from "../fixtures/access/snapshot";
@@ -82,6 +83,13 @@ beforeAll(async () => {
   samples.set("owner", { value: (await one<{ id: string }>(sql`SELECT id FROM owners ORDER BY id LIMIT 1`, "owner")).id });
   samples.set("token", { value: "roles-walk-no-such-token" });
   samples.set("case", { value: (await one<{ code: string }>(sql`SELECT code FROM service_cases ORDER BY code LIMIT 1`, "service case")).code });
+  // A containment on the shipped sample pair, worked through and closed at once, so it holds nothing
+  // while the other walks run.
+  const quality = { id: (await one<{ id: string }>(sql`SELECT id FROM users WHERE email = ${demoEmail("quality")}`, "quality user")).id };
+  const raised = await raiseContainment(db, { target: pair.identity, reason: "Roles walk: a containment to open the page with.", severity: "minor" }, quality);
+  await moveAffected(db, { code: raised.code, serials: (await affectedSerials(db, raised.id)).map((a) => a.serial), to: "cleared", note: "" }, quality);
+  await closeContainment(db, { code: raised.code, reason: "Roles walk: nothing was wrong." }, quality);
+  samples.set("containment", { value: raised.code });
 
   before = await snapshot(db, NOT_COMPARED);
 });

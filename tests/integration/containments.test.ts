@@ -18,6 +18,7 @@ let quality = { id: "" };
 beforeAll(async () => {
   await seedDemo(db(), { months: 6 });
   quality = { id: await userId("quality@demo.twinleaf.test") };
+  // Seeding six months takes longer than vitest's 10 s default on a busy machine, as elsewhere.
 }, 120_000);
 
 const count = async (table: string) => Number((await db().all<{ n: number }>(sql.raw(`SELECT count(*) AS n FROM ${table}`)))[0]!.n);

@@ -13,6 +13,14 @@ import { formatWhen, timesNote } from "@/lib/format";
 import { dispositionedNonconformances, dispositionSummary, ncsToDisposition } from "@/lib/route/nonconformances";
 import { DISPOSITION_WORDS, dispositionPhrase, ncWhere } from "@/lib/route/words";
 import { DispositionForm } from "../disposition-form";
+import Link from "next/link";
+import { ProgressBar } from "@/components/quality/containment-progress";
+import { Badge } from "@/components/ui/badge";
+import { buttonClasses } from "@/components/ui/button";
+import { listContainments } from "@/lib/containments";
+import { SEVERITY_LABEL } from "@/lib/vocabulary/containments";
+
+const SEVERITY_TONE = { minor: "info", major: "caution", critical: "danger" } as const;
 
 export const metadata: Metadata = { title: "Quality" };
 
@@ -20,7 +28,8 @@ export default async function Page({ searchParams }: { searchParams: Promise<Rec
   await requirePage("quality.work");
   const db = getDb();
   const at = now();
-  const [forms, closed] = await Promise.all([ncsToDisposition(db), dispositionedNonconformances(db)]);
+  const [forms, closed, containments] = await Promise.all([ncsToDisposition(db), dispositionedNonconformances(db), listContainments(db, { limit: 50 })]);
+  const openContainments = containments.filter((c) => !c.closedAt);
   // What the disposition form just recorded, read back from the register (the code alone comes from the address).
   const { dispositioned } = await searchParams;
   const recorded = typeof dispositioned === "string" ? await dispositionSummary(db, dispositioned) : null;
@@ -31,6 +40,36 @@ export default async function Page({ searchParams }: { searchParams: Promise<Rec
           {recorded}
         </Notice>
       ) : null}
+      <Panel
+        title="Containments"
+        actions={
+          <div className="flex flex-wrap gap-3">
+            <Link className={buttonClasses("secondary")} href={paths.containments}>
+              All containments
+            </Link>
+            <Link className={buttonClasses("primary")} href={`${paths.containments}#raise`} data-testid="raise-containment-link">
+              Raise a containment
+            </Link>
+          </div>
+        }
+      >
+        {openContainments.length ? (
+          <ul className="flex flex-col gap-2" data-testid="open-containments">
+            {openContainments.map((c) => (
+              <li key={c.code} className="flex flex-wrap items-center gap-x-4 gap-y-1 rounded-lg border border-line px-3 py-2">
+                <Link className="serial font-bold text-leaf-dark underline" href={paths.containment(c.code)}>
+                  {c.code}
+                </Link>
+                <Badge tone={SEVERITY_TONE[c.severity]}>{SEVERITY_LABEL[c.severity]}</Badge>
+                <span className="min-w-0 flex-1 basis-48">{c.target}</span>
+                <ProgressBar done={c.dispositioned} total={c.affected} />
+              </li>
+            ))}
+          </ul>
+        ) : (
+          <p className="text-ink-soft">No containment is open.</p>
+        )}
+      </Panel>
       <Panel title="Open nonconformances">
         {forms.length ? (
           <div className="flex flex-col gap-6" data-testid="open-ncs">
