@@ -39,20 +39,24 @@ const kindList = (kinds: readonly string[]) => sql.join(kinds.map((k) => sql`${k
 /**
  * The serials a containment of these candidate items lists, with their group and dealer. A
  * candidate is listed when it is a pair or a speaker, or a part that no speaker or pair holds (a
- * drive unit in stock, a leaf not yet laid); scrapped things are left out. Reads the holdings
- * index in one statement, so thousands of serials are one read.
+ * drive unit in stock, a leaf not yet laid); scrapped things are left out. `candidates` gives
+ * (id, kind) rows. Reads the holdings index in one statement, so thousands of serials are one read.
  */
 async function rowsOf(db: DbOrTx, candidates: ReturnType<typeof sql>): Promise<AffectedRow[]> {
   const rows = await db.all<{ id: string; kind: string; identity: string; state: string; pair_id: string | null; pair_state: string | null; dealer_id: string | null }>(sql`
-    WITH cand(id) AS (${candidates}),
+    WITH cand(id, kind) AS (${candidates}),
+    -- Kinds and holders are judged from the holdings index first, so only the serials listed are
+    -- read from items (a lot's cartons, shipments and crossovers inside speakers never are).
     listed AS (
       SELECT i.id, i.kind, i.identity, i.state,
              CASE WHEN i.kind = 'pair' THEN i.id
                   ELSE (SELECT h.holder_id FROM holdings h WHERE h.item_id = i.id AND h.holder_kind = 'pair' LIMIT 1) END AS pair_id
-      FROM (SELECT DISTINCT id FROM cand) c JOIN items i ON i.id = c.id
-      WHERE i.kind IN (${kindList(LISTED_KINDS)}) AND i.state <> 'scrapped'
-        AND (i.kind IN (${kindList(WHOLE_KINDS)})
-             OR NOT EXISTS (SELECT 1 FROM holdings h WHERE h.item_id = i.id AND h.holder_kind IN (${kindList(WHOLE_KINDS)})))
+      FROM (SELECT DISTINCT id, kind FROM cand
+            WHERE kind IN (${kindList(LISTED_KINDS)})
+              AND (kind IN (${kindList(WHOLE_KINDS)})
+                   OR NOT EXISTS (SELECT 1 FROM holdings h WHERE h.item_id = cand.id AND h.holder_kind IN (${kindList(WHOLE_KINDS)})))) c
+      JOIN items i ON i.id = c.id
+      WHERE i.state <> 'scrapped'
     )
     SELECT l.id, l.kind, l.identity, l.state, l.pair_id, p.state AS pair_state,
            (SELECT coalesce(sd.dealer_id, s.dealer_id) FROM holdings hs JOIN items s ON s.id = hs.holder_id
@@ -80,10 +84,10 @@ async function rowsOf(db: DbOrTx, candidates: ReturnType<typeof sql>): Promise<A
 export function affectedByItem(db: DbOrTx, itemId: string): Promise<AffectedRow[]> {
   return rowsOf(
     db,
-    sql`SELECT ${itemId}
-        UNION ALL SELECT holder_id FROM holdings WHERE item_id = ${itemId}
-        UNION ALL SELECT h.item_id FROM holdings h JOIN items t ON t.id = h.holder_id
-          WHERE h.holder_id = ${itemId} AND t.kind = 'pair' AND h.item_id IN (SELECT id FROM items WHERE kind = 'speaker')`,
+    sql`SELECT id, kind FROM items WHERE id = ${itemId}
+        UNION ALL SELECT holder_id, holder_kind FROM holdings WHERE item_id = ${itemId}
+        UNION ALL SELECT s.id, s.kind FROM items t JOIN holdings h ON h.holder_id = t.id JOIN items s ON s.id = h.item_id
+          WHERE t.id = ${itemId} AND t.kind = 'pair' AND s.kind = 'speaker'`,
   );
 }
 
@@ -93,8 +97,8 @@ export function affectedByPairs(db: DbOrTx, pairIds: string[]): Promise<Affected
   const json = JSON.stringify([...new Set(pairIds)]);
   return rowsOf(
     db,
-    sql`SELECT value FROM json_each(${json})
-        UNION ALL SELECT h.item_id FROM holdings h JOIN json_each(${json}) j ON h.holder_id = j.value
-          WHERE h.holder_kind = 'pair' AND h.item_id IN (SELECT id FROM items WHERE kind = 'speaker')`,
+    sql`SELECT i.id, i.kind FROM json_each(${json}) j JOIN items i ON i.id = j.value
+        UNION ALL SELECT s.id, s.kind FROM json_each(${json}) j JOIN holdings h ON h.holder_id = j.value JOIN items s ON s.id = h.item_id
+          WHERE h.holder_kind = 'pair' AND s.kind = 'speaker'`,
   );
 }

@@ -5,3 +5,4 @@ export { holdsOn, heldIds, refuseIfHeld, holdMessage, type Hold } from "./holds"
 export { moveAffected, closeContainment, containmentOrRefuse, type MoveInput, type MoveResult } from "./work";
 export { sendNotices, ownersToTell, type NoticesSent } from "./notices";
 export { listContainments, affectedSerials, progressOf, noticesOf, containmentDetail, containmentsTouching, dealersOf, type ContainmentTouch, type AffectedSerial, type ContainmentSummary, type ContainmentProgress, type NoticeRow, type ContainmentDetail } from "./queries";
+export { affectedCsv, affectedEpcis, dealerOrRefuse, AFFECTED_CSV_FIELDS, type ExportDealer } from "./exports";

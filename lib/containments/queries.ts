@@ -72,24 +72,35 @@ export async function affectedSerials(
     identity: string; kind: string; item_state: string; pair: string | null; grp: AffectedGroup; state: AffectedState;
     d_code: string | null; d_name: string | null; d_city: string | null; owner: string | null; case_code: string | null; at: number; by: string | null; note: string | null;
   }>(sql`
+    WITH page AS (
+      SELECT ci.id,
+             CASE ci."group" WHEN 'in_build' THEN 0 WHEN 'in_stock' THEN 1 WHEN 'packed' THEN 2 ELSE 3 END AS g,
+             coalesce(p.identity, ci.identity) AS k1, ci.kind <> 'pair' AS k2, ci.identity AS k3
+      FROM containment_items ci
+      LEFT JOIN items p ON p.id = ci.pair_id
+      ${opts.dealerCode ? sql`LEFT JOIN dealers d ON d.id = ci.dealer_id` : sql``}
+      WHERE ci.containment_id = ${containmentId}
+        ${opts.group ? sql`AND ci."group" = ${opts.group}` : sql``}
+        ${opts.state ? sql`AND ci.state = ${opts.state}` : sql``}
+        ${opts.dealerCode ? sql`AND d.code = ${opts.dealerCode}` : sql``}
+      ORDER BY g, k1, k2, k3
+      LIMIT ${opts.limit ?? -1} OFFSET ${opts.offset ?? 0}
+    )
+    -- The page is chosen on the sort keys alone; only its rows are joined to the rest (SQLite
+    -- computes every output column before it sorts, and an owner look-up per row of thousands is slow).
     SELECT ci.identity, ci.kind, i.state AS item_state, p.identity AS pair, ci."group" AS grp, ci.state,
            d.code AS d_code, d.name AS d_name, d.city AS d_city,
            (SELECT o.name FROM ownerships os JOIN owners o ON o.id = os.owner_id WHERE os.item_id = ci.pair_id ORDER BY os.since DESC, os.id DESC LIMIT 1) AS owner,
            sc.code AS case_code, e.at, u.name AS by, e.reason AS note
-    FROM containment_items ci
+    FROM page
+    JOIN containment_items ci ON ci.id = page.id
     JOIN items i ON i.id = ci.item_id
     LEFT JOIN items p ON p.id = ci.pair_id
     LEFT JOIN dealers d ON d.id = ci.dealer_id
     LEFT JOIN service_cases sc ON sc.id = ci.case_id
     JOIN events e ON e.id = ci.event_id
     LEFT JOIN users u ON u.id = e.actor_id
-    WHERE ci.containment_id = ${containmentId}
-      ${opts.group ? sql`AND ci."group" = ${opts.group}` : sql``}
-      ${opts.state ? sql`AND ci.state = ${opts.state}` : sql``}
-      ${opts.dealerCode ? sql`AND d.code = ${opts.dealerCode}` : sql``}
-    ORDER BY CASE ci."group" WHEN 'in_build' THEN 0 WHEN 'in_stock' THEN 1 WHEN 'packed' THEN 2 ELSE 3 END,
-             coalesce(p.identity, ci.identity), ci.kind <> 'pair', ci.identity
-    LIMIT ${opts.limit ?? -1} OFFSET ${opts.offset ?? 0}`);
+    ORDER BY page.g, page.k1, page.k2, page.k3`);
   return rows.map((r) => ({
     serial: r.identity,
     kind: r.kind,

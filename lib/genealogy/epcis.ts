@@ -422,31 +422,53 @@ export function epcisDocument(eventList: EpcisEvent[], opts: EpcisOptions & { no
 export async function epcisDocumentForItem(db: DbOrTx, itemId: string, opts: EpcisOptions & { now?: Date }): Promise<EpcisDocument> {
   const nodes = await traceBackward(db, itemId, { mode: "ever" });
   if (nodes.length === 0) throw new AppError(404, "No item with that id.");
-  const ids = [...new Set(nodes.map((n) => n.id))];
+  return epcisDocumentForItems(db, nodes.map((n) => n.id), opts);
+}
 
-  const rows = await db
-    .select({
-      id: events.id,
-      at: events.at,
-      station: events.station,
-      type: events.type,
-      subjectId: events.subjectId,
-      data: events.data,
-      reason: events.reason,
-      correctsId: events.correctsId,
-    })
-    .from(events)
-    .where(and(eq(events.subjectKind, "item"), inArray(events.subjectId, ids)))
-    .orderBy(asc(events.at), asc(events.id));
+/** Many ids a statement, under SQLite's limit on bound values. */
+const ID_CHUNK = 500;
 
-  // Link events may name a holder outside the trace (the carton or shipment holding the root).
+/**
+ * Every event about these items (their own events only, nothing inside them), as one EPCIS 2.0
+ * document, oldest first: the export of a containment's affected serials.
+ */
+export async function epcisDocumentForItems(db: DbOrTx, itemIds: readonly string[], opts: EpcisOptions & { now?: Date }): Promise<EpcisDocument> {
+  const ids = [...new Set(itemIds)];
+  const rows: EpcisSourceEvent[] = [];
+  for (let i = 0; i < ids.length; i += ID_CHUNK) {
+    rows.push(
+      ...(await db
+        .select({
+          id: events.id,
+          at: events.at,
+          station: events.station,
+          type: events.type,
+          subjectId: events.subjectId,
+          data: events.data,
+          reason: events.reason,
+          correctsId: events.correctsId,
+        })
+        .from(events)
+        .where(and(eq(events.subjectKind, "item"), inArray(events.subjectId, ids.slice(i, i + ID_CHUNK))))),
+    );
+  }
+  // Oldest first across the chunks, as one query's ORDER BY at, id would give.
+  rows.sort((a, b) => a.at.getTime() - b.at.getTime() || a.id - b.id);
+
+  // Link events may name a holder outside the set (the carton or shipment holding a pair).
   const wanted = new Set(ids);
   for (const r of rows) if (typeof r.data?.parentId === "string") wanted.add(r.data.parentId);
-  const named = await db
-    .select({ id: items.id, kind: items.kind, identity: items.identity, pairGtin: models.pairGtin })
-    .from(items)
-    .leftJoin(models, eq(models.id, items.modelId))
-    .where(inArray(items.id, [...wanted]));
+  const all = [...wanted];
+  const named: EpcisItem[] = [];
+  for (let i = 0; i < all.length; i += ID_CHUNK) {
+    named.push(
+      ...(await db
+        .select({ id: items.id, kind: items.kind, identity: items.identity, pairGtin: models.pairGtin })
+        .from(items)
+        .leftJoin(models, eq(models.id, items.modelId))
+        .where(inArray(items.id, all.slice(i, i + ID_CHUNK)))),
+    );
+  }
 
   const itemsById = new Map(named.map((i) => [i.id, i]));
   return epcisDocument(toEpcisEvents(rows, itemsById, opts, await readingContext(db, rows)), opts);

@@ -17,6 +17,7 @@ import { createMachineToken } from "@/lib/auth/machine-tokens";
 import { ROLES } from "@/lib/auth/roles";
 import { startSession } from "@/lib/auth/sessions";
 import { issueCertificate, recordCertificatePrint } from "@/lib/certificates";
+import { raiseContainment } from "@/lib/containments";
 import { CARTON_LABEL_LAYOUT } from "@/lib/dispatch";
 import { openCase } from "@/lib/service/intake";
 import { recordLabelPrints } from "@/lib/labels/queries";
@@ -73,7 +74,9 @@ beforeAll(async () => {
   // A batch's code for the lab's route, and a service case's for the desk's (a case is opened here: the demo has none yet).
   const [returned] = await db().all<{ v: string }>(sql`SELECT identity AS v FROM items WHERE kind = 'pair' AND state = 'shipped' ORDER BY identity DESC LIMIT 1`);
   const opened = await openCase(db(), { serial: returned!.v, symptom: "Hum", returnedBy: "dealer" }, { id: people.get("service")! });
-  values.code = [...(await first(sql`SELECT code AS v FROM unit_batches LIMIT 1`)), opened.case.code];
+  // And a containment's, for its reads and exports (raised on a shipped pair, so it holds nothing here).
+  const contained = await raiseContainment(db(), { target: shipped[0]!, reason: "Walk: suspect glue", severity: "minor" }, { id: people.get("quality")! });
+  values.code = [...(await first(sql`SELECT code AS v FROM unit_batches LIMIT 1`)), opened.case.code, contained.code];
   benchToken = (await createMachineToken(db(), { name: "Walk bench", scope: "lab", actorId: people.get("admin")! })).token;
   // Serials and prints must be real: the routes that once wrote are reached only with them.
   for (const name of ["identity", "printId", "code"]) expect(values[name]!.length, `a real value for [${name}]`).toBeGreaterThan(0);
