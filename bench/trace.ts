@@ -23,7 +23,7 @@ import { migrateDatabase } from "@/db/migrate";
 import { eventHash, GENESIS_HASH } from "@/lib/audit/chain";
 import { SEED_DEALERS, SEED_FINISHES, SEED_MODELS } from "@/db/seed/data";
 import { traceBackward, traceForward } from "@/lib/genealogy/trace";
-import { affectedSerials, containmentDetail, noticesOf, raiseContainment } from "@/lib/containments";
+import { CONTAINMENT_PAGE_ROWS, containmentPageData, raiseContainment } from "@/lib/containments";
 
 // ---------------------------------------------------------------------------------------------
 // Shape of the synthetic register
@@ -374,8 +374,6 @@ const TARGET_RAISE_MS = 2000;
 const TARGET_CONTAINMENT_PAGE_P95 = 300;
 const MIN_CONTAINED_SERIALS = 5000;
 const RAISES = 3;
-/** The rows the containment page shows first (its first page of affected serials). */
-const CONTAINMENT_PAGE_ROWS = 50;
 // The library's forward trace runs in a child process that is killed after this long: a plan
 // that scans the whole register per trace must not hold the benchmark for ten minutes.
 const FORWARD_BUDGET_MS = 40_000;
@@ -546,12 +544,12 @@ async function containmentCase(db: Db, lotIdentity: string): Promise<Contained> 
   if (Number(written?.n) !== last.affected.length) throw new Error(`bench: ${last.affected.length} serials affected but ${written?.n} rows written`);
   const kinds: Record<string, number> = {};
   for (const a of last.affected) kinds[a.kind] = (kinds[a.kind] ?? 0) + 1;
-  const page = await sample("containment page data (detail, first serials, notices)", 5, 40, async () => {
-    const detail = await containmentDetail(db, last.code);
-    const [rows, notices] = await Promise.all([affectedSerials(db, detail.id, { limit: CONTAINMENT_PAGE_ROWS }), noticesOf(db, detail.id)]);
-    return { detail, rows, notices };
+  const page = await sample("containment page data (what the page reads)", 5, 40, async () => {
+    // Exactly what the page reads (app/(workshop)/quality/containments/[code]/page.tsx calls it).
+    const data = await containmentPageData(db, last.code);
+    return { detail: data.c, rows: Object.values(data.groups).flat(), notices: data.notices };
   });
-  if (page.last.rows.length !== CONTAINMENT_PAGE_ROWS || page.last.detail.progress.total !== last.affected.length) throw new Error("bench: the containment page data is not what was raised");
+  if (page.last.rows.length < CONTAINMENT_PAGE_ROWS || page.last.detail.progress.total !== last.affected.length) throw new Error("bench: the containment page data is not what was raised");
   console.log(`  containment on ${lotIdentity}: ${RAISES} raises`);
   return { serials: last.affected.length, byKind: Object.entries(kinds).map(([k, v]) => `${k} ${count(v)}`).join(", "), raiseMs, pageMs: page.ms };
 }
@@ -656,7 +654,7 @@ async function main() {
       ["naive backward trace (a query a parent), p95", ms(result.naive_backward_p95_ms), `${(result.naive_backward_p95_ms / result.backward_p95_ms).toFixed(1)}× the recursive query`],
       [`containment on ${built.bigLotIdentity}: serials listed`, count(contained.serials), `≥ ${count(MIN_CONTAINED_SERIALS)}; ${contained.byKind}`],
       ["containment raised (list written), slowest", ms(result.containment_raise_max_ms), `≤ ${TARGET_RAISE_MS} ms: ${verdict(raiseOk)} (${RAISES} raises: ${contained.raiseMs.map((v) => v.toFixed(0)).join(", ")} ms)`],
-      ["containment page data, p50", ms(percentile(contained.pageMs, 0.5)), `${contained.pageMs.length} samples: detail + first ${CONTAINMENT_PAGE_ROWS} serials + notices`],
+      ["containment page data, p50", ms(percentile(contained.pageMs, 0.5)), `${contained.pageMs.length} samples: the page's reads, up to ${CONTAINMENT_PAGE_ROWS} serials a group`],
       ["containment page data, p95", ms(result.containment_page_p95_ms), `≤ ${TARGET_CONTAINMENT_PAGE_P95} ms: ${verdict(pageOk)}`],
     ]);
 

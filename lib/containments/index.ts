@@ -6,3 +6,4 @@ export { moveAffected, closeContainment, containmentOrRefuse, type MoveInput, ty
 export { sendNotices, ownersToTell, type NoticesSent } from "./notices";
 export { listContainments, affectedSerials, progressOf, noticesOf, containmentDetail, containmentsTouching, dealersOf, type ContainmentTouch, type AffectedSerial, type ContainmentSummary, type ContainmentProgress, type NoticeRow, type ContainmentDetail } from "./queries";
 export { affectedCsv, affectedEpcis, dealerOrRefuse, AFFECTED_CSV_FIELDS, type ExportDealer } from "./exports";
+export { containmentPageData, CONTAINMENT_PAGE_ROWS, type ContainmentPageData } from "./page-data";

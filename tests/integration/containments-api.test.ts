@@ -148,6 +148,12 @@ describe("reading a containment", () => {
     const dealers = new Set(raised.affected.flatMap((a) => (a.dealer ? [a.dealer.code] : [])));
     expect(body.notices.filter((n: { to: string }) => n.to === "dealer").map((n: { dealerCode: string }) => n.dealerCode).sort()).toEqual([...dealers].sort());
     expect(body.affected).toHaveLength(raised.affected.length);
+    // The same words as the answer to raising it: "state" is the item's own, "disposition" the containment's step.
+    const byPost = new Map(raised.affected.map((a) => [a.serial, a]));
+    for (const a of body.affected as { serial: string; state: string; disposition: string; group: string }[]) {
+      expect(a).toMatchObject({ state: byPost.get(a.serial)!.state, group: byPost.get(a.serial)!.group });
+      expect(["open", "notified"]).toContain(a.disposition);
+    }
     expect(await counts()).toEqual(before);
   });
 

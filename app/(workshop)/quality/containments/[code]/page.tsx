@@ -15,7 +15,7 @@ import { getDb } from "@/db";
 import { AppError } from "@/lib/auth/errors";
 import { pageParam, requirePage } from "@/lib/auth/guard";
 import { now } from "@/lib/clock";
-import { affectedSerials, containmentDetail, dealersOf, noticesOf, type ContainmentDetail } from "@/lib/containments";
+import { CONTAINMENT_PAGE_ROWS, containmentPageData, type ContainmentPageData } from "@/lib/containments";
 import { formatWhen, timesNote } from "@/lib/format";
 import { paths } from "@/lib/paths";
 import { AFFECTED_GROUPS, GROUP_EFFECT, GROUP_LABEL, isDispositioned, SEVERITY_LABEL, SEVERITY_WORDS, type AffectedGroup } from "@/lib/vocabulary/containments";
@@ -27,7 +27,7 @@ export const metadata: Metadata = { title: "Containment" };
 const sentenceCase = (s: string) => s.charAt(0).toUpperCase() + s.slice(1);
 
 /** Rows per group on one page: enough to work through, never thousands of tick boxes at once. */
-const PAGE = 200;
+const PAGE = CONTAINMENT_PAGE_ROWS;
 const MOST = 2000;
 
 const SEVERITY_TONE = { minor: "info", major: "caution", critical: "danger" } as const;
@@ -41,9 +41,9 @@ const CRITICAL_CAUTIONS = [
   "Floor-standing cabinets are heavy: lift them with two people or a lifting aid.",
 ];
 
-async function detailOr404(code: string): Promise<ContainmentDetail> {
+async function dataOr404(code: string, shown: Record<AffectedGroup, number>): Promise<ContainmentPageData> {
   try {
-    return await containmentDetail(getDb(), code);
+    return await containmentPageData(getDb(), code, shown);
   } catch (e) {
     if (e instanceof AppError && e.status === 404) notFound();
     throw e;
@@ -59,16 +59,11 @@ function shownOf(sp: Record<string, string | string[] | undefined>, group: Affec
 export default async function ContainmentPage({ params, searchParams }: { params: Promise<{ code: string }>; searchParams: Promise<Record<string, string | string[] | undefined>> }) {
   const user = await requirePage("register.read");
   const canWork = user.permissions.has("quality.work");
-  const db = getDb();
-  const c = await detailOr404(pageParam((await params).code));
   const sp = await searchParams;
   const at = now();
   const shown = Object.fromEntries(AFFECTED_GROUPS.map((g) => [g, shownOf(sp, g)])) as Record<AffectedGroup, number>;
-  const [groups, notices, dealers] = await Promise.all([
-    Promise.all(AFFECTED_GROUPS.map((g) => (c.progress.byGroup[g] ? affectedSerials(db, c.id, { group: g, limit: shown[g] }) : Promise.resolve([])))),
-    noticesOf(db, c.id),
-    dealersOf(db, c.id),
-  ]);
+  const { c, groups: byGroup, notices, dealers } = await dataOr404(pageParam((await params).code), shown);
+  const groups = AFFECTED_GROUPS.map((g) => byGroup[g]);
   const { total, dispositioned } = c.progress;
   const open = !c.closedAt;
   const allDone = total > 0 && dispositioned === total;

@@ -39,8 +39,10 @@ export const GET = guardedRoute("register.read", {}, async ({ params }) => {
       kind: r.kind,
       pair: r.pair,
       group: r.group,
-      state: r.state,
-      itemState: r.itemState,
+      // As in the answer to raising one: "state" is the item's own state; "disposition" where
+      // the containment has got to with it.
+      state: r.itemState,
+      disposition: r.state,
       dealer: r.dealer ? { code: r.dealer.code, name: r.dealer.name } : null,
       owner: r.owner,
       caseCode: r.caseCode,
