@@ -116,3 +116,31 @@ describe("working a containment through", () => {
     expect(await count("outbox")).toBeGreaterThan(mails);
   });
 });
+
+describe("a failed inspection", () => {
+  test("of a shipped speaker opens a service case for it, and counts as dispositioned; without a note it is refused and nothing is written", async () => {
+    const [pair] = await db().all<{ id: string; identity: string }>(sql`
+      SELECT id, identity FROM items WHERE kind = 'pair' AND state = 'shipped'
+        AND id NOT IN (SELECT pair_id FROM service_cases WHERE state NOT IN ('closed', 'cancelled'))
+      ORDER BY identity DESC LIMIT 1`);
+    const raised = await raiseContainment(db(), { target: pair!.identity, reason: "Suspect crossover solder joints", severity: "major" }, quality);
+    const speaker = raised.affected.find((a) => a.kind === "speaker")!;
+    const before = [await count("service_cases"), await count("events")];
+    const bare = await moveAffected(db(), { code: raised.code, serials: [speaker.identity], to: "failed" }, quality).catch((x: unknown) => x);
+    expect((bare as AppError).status).toBe(400);
+    expect(Object.keys((bare as AppError).fieldErrors ?? {})).toContain("note");
+    expect([await count("service_cases"), await count("events")]).toEqual(before);
+
+    const { moved } = await moveAffected(db(), { code: raised.code, serials: [speaker.identity], to: "failed", note: "Dry joint on the tweeter's series capacitor" }, quality);
+    expect(moved[0]!.caseCode).toMatch(/^RT\d{4}-\d{4}$/);
+    const [opened] = await db().all<{ pair_id: string; state: string; symptom: string }>(sql`SELECT pair_id, state, symptom FROM service_cases WHERE code = ${moved[0]!.caseCode}`);
+    expect(opened).toMatchObject({ pair_id: pair!.id, state: "received" });
+    expect(opened!.symptom).toContain(raised.code);
+    const detail = await containmentDetail(db(), raised.code);
+    expect(detail.progress.dispositioned).toBe(1);
+    // The pair's own row joins the same open case rather than opening a second.
+    const again = await moveAffected(db(), { code: raised.code, serials: [pair!.identity], to: "failed", note: "Pair held with its speaker" }, quality);
+    expect(again.moved[0]!.caseCode).toBe(moved[0]!.caseCode);
+  });
+});
+
