@@ -8,7 +8,7 @@ import { EVENT_PHRASES, isEventType } from "@/lib/vocabulary/event-types";
 import { dispositionPhrase, ncWhere, type Disposition } from "@/lib/route/words";
 import { KIND_WORD, isItemKind, stateLabel } from "@/lib/vocabulary/item-kinds";
 import { partWord } from "@/lib/vocabulary/part-types";
-import { CROSSOVER_POSITION, SPEAKER_CABINET_POSITION, positionName, sideOfCabinetPosition } from "@/lib/vocabulary/positions";
+import { BATCH_POSITION, CROSSOVER_POSITION, FLITCH_POSITION, MAKER_LOT_POSITION, SPEAKER_CABINET_POSITION, positionName, sideOfCabinetPosition } from "@/lib/vocabulary/positions";
 import { isSide, sideWord } from "@/lib/vocabulary/sides";
 
 type Data = Record<string, unknown>;
@@ -44,6 +44,8 @@ export function positionWords(holderKind: string | null, position: string): stri
   if (position === CROSSOVER_POSITION) return "crossover";
   if (/^[TMB]-?\d*$/.test(position)) return positionName(position);
   if (/^F\d+$/.test(position)) return `face leaf ${position.slice(1)}`;
+  // A source a part came from: "batch", "maker's lot", "flitch".
+  if (position === BATCH_POSITION || position === MAKER_LOT_POSITION || position === FLITCH_POSITION) return positionName(position);
   return position ? `position ${position}` : "";
 }
 

@@ -156,19 +156,25 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
               : {holds[0]!.reason} No station, assembly, packing or shipping takes it until quality releases it.
             </p>
           ) : null}
-          {touches.length ? (
-            <p>
-              <span className="font-bold">Containments: </span>
-              {touches.map((t, i) => (
-                <span key={`${t.code}-${t.serial}`}>
-                  {i ? "; " : ""}
-                  <Link className="serial underline" href={paths.containment(t.code)}>
-                    {t.code}
-                  </Link>
-                  {` (${t.closed ? "closed" : "open"}), ${t.serial === item.identity ? "this" : `${t.serial}`} ${AFFECTED_STATE_WORDS[t.state].toLowerCase()}`}
-                </span>
-              ))}
-            </p>
+          {[...new Set(touches.map((t) => t.code))].map((code) => {
+            const rows = touches.filter((t) => t.code === code);
+            return (
+              <p key={code}>
+                <span className="font-bold">Containment </span>
+                <Link className="serial underline" href={paths.containment(code)}>
+                  {code}
+                </Link>
+                {` (${rows[0]!.closed ? "closed" : "open"}): `}
+                {rows.map((t, i) => (
+                  <span key={t.serial}>
+                    {i ? "; " : ""}
+                    {t.serial === item.identity ? `this ${kindLabel(item.kind).toLowerCase()}` : <span className="serial whitespace-nowrap">{t.serial}</span>}
+                    {` ${AFFECTED_STATE_WORDS[t.state].toLowerCase()}`}
+                  </span>
+                ))}
+              </p>
+            );
+          })}
           ) : null}
         </Notice>
       ) : null}
