@@ -175,7 +175,6 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
               </p>
             );
           })}
-          ) : null}
         </Notice>
       ) : null}
       {item.kind === "drive_unit" || item.kind === "crossover" ? <LabOrigin item={item} inLab={user.permissions.has("lab.work")} /> : null}
