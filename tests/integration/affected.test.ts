@@ -1,12 +1,10 @@
 import { sql } from "drizzle-orm";
 import { describe, expect, test } from "vitest";
 import { getDb } from "@/db";
-import type { Item, ItemKind } from "@/db/schema";
+import type { ItemKind } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
 import { affectedBy } from "@/lib/genealogy/affected";
-import { createItem, fit, removeFrom } from "@/lib/genealogy/graph";
-import { SHARED_KINDS } from "@/lib/vocabulary/item-kinds";
-import { randomInt, seededRandom } from "../fixtures/random";
+import { randomRegister as randomRegisterOf } from "../fixtures/random-register";
 
 const db = () => getDb();
 
@@ -20,56 +18,8 @@ const LAYERS: ItemKind[][] = [
   ["carton"],
 ];
 
-/**
- * A random register: items in layers, each fitted into one to three random parents of a later layer
- * (one only for physical parts), then some links ended and some parts refitted elsewhere.
- */
-async function randomRegister(seed: number): Promise<Item[]> {
-  const r = seededRandom(seed);
-  const made: { item: Item; layer: number }[] = [];
-  let t = Date.UTC(2025, 0, 1);
-  const at = () => new Date((t += 60_000));
-  await db().transaction(async (tx) => {
-    for (let layer = LAYERS.length - 1; layer >= 0; layer--) {
-      for (let i = 0; i < randomInt(r, 2, 6); i++) {
-        const kinds = LAYERS[layer]!;
-        const kind = kinds[randomInt(r, 0, kinds.length - 1)]!;
-        const item = await createItem(tx, { kind, identity: `R${seed}-${layer}-${i}`, state: "in_stock" }, { actorId: null, station: "seed", at: at() });
-        made.push({ item, layer });
-      }
-    }
-    const above = (layer: number) => made.filter((m) => m.layer > layer);
-    const openParents = new Map<string, Item[]>();
-    for (const { item, layer } of made) {
-      const candidates = above(layer);
-      if (candidates.length === 0 || r() < 0.15) continue;
-      const shared = SHARED_KINDS.includes(item.kind);
-      const wanted = shared ? randomInt(r, 1, 3) : 1;
-      const parents: Item[] = [];
-      for (let k = 0; k < wanted; k++) {
-        const p = candidates[randomInt(r, 0, candidates.length - 1)]!.item;
-        if (parents.some((x) => x.id === p.id)) continue;
-        // A physical part takes a position of its own; a source shares one per parent.
-        await fit(tx, { parent: p, child: item, position: shared ? `S${k}` : `P-${item.identity}` }, { actorId: null, station: "seed", at: at() });
-        parents.push(p);
-      }
-      openParents.set(item.id, parents);
-    }
-    // History: some parts taken out, and some of those fitted somewhere else.
-    for (const { item, layer } of made) {
-      const parents = openParents.get(item.id) ?? [];
-      if (parents.length === 0 || r() > 0.3) continue;
-      const parent = parents[0]!;
-      await removeFrom(tx, { parent, child: item }, { actorId: null, station: "seed", at: at(), reason: "test removal" });
-      const candidates = above(layer).filter((m) => !parents.some((p) => p.id === m.item.id));
-      if (candidates.length && r() < 0.5) {
-        const p = candidates[randomInt(r, 0, candidates.length - 1)]!.item;
-        await fit(tx, { parent: p, child: item, position: `Q-${item.identity}` }, { actorId: null, station: "seed", at: at() });
-      }
-    }
-  });
-  return made.map((m) => m.item);
-}
+/** A random register of these layers (tests/fixtures/random-register.ts). */
+const randomRegister = (seed: number) => randomRegisterOf(db(), seed, { layers: LAYERS, identity: (layer, i) => `R${seed}-${layer}-${i}` });
 
 /** The oracle: a plain walk up the open links, written without the holdings index or SQL recursion. */
 async function walkUp(targetId: string): Promise<string[]> {
