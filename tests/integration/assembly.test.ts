@@ -26,6 +26,7 @@ import { formatSerial } from "@/lib/serials/format";
 import { confirmRuns, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
 import { makeLacquerCabinets } from "@/lib/cabinets/lacquer";
 import { goodReadings } from "../fixtures/route";
+import { boardResponse, unitResponse } from "../fixtures/responses";
 
 const db = () => getDb();
 const ids = { veneer: "", cabinet: "", lab: "", assembly: "", quality: "" };
@@ -86,23 +87,6 @@ async function walkToTheEnd(pairs: Item[]) {
   }
   setClock(new Date(t));
   return new Date(t);
-}
-
-/** A made-up flat response from 20 Hz to 20 kHz, 1/12 octave apart, covering every part type's passband. */
-function unitResponse(serial: string, level: number): string {
-  const lines = [`* ${serial}`, "Freq(Hz) SPL(dB) Phase(deg)"];
-  for (let k = 0; k <= 120; k++) lines.push(`${(20 * 2 ** (k / 12)).toFixed(2)}\t${level.toFixed(3)}\t${(-k).toFixed(1)}`);
-  return lines.join("\n");
-}
-
-/** A smooth invented board response from 100 Hz to 20 kHz (as in crossovers.test.ts). */
-function boardResponse(): string {
-  const lines = ["* invented response for a test", "Freq(Hz) SPL(dB) Phase(deg)"];
-  for (let hz = 100; hz <= 20000; hz *= 2 ** (1 / 24)) {
-    const o = Math.log10(hz / 1000);
-    lines.push(`${hz.toFixed(2)} ${(86 + 1.5 * Math.sin(2.2 * o) - 0.8 * o * o).toFixed(3)} ${(-40 * o).toFixed(1)}`);
-  }
-  return lines.join("\n");
 }
 
 const goodParts = (): BoardPartInput[] => [
