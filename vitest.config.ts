@@ -1,3 +1,4 @@
+import { availableParallelism } from "node:os";
 import { fileURLToPath } from "node:url";
 import { defineConfig } from "vitest/config";
 
@@ -10,6 +11,9 @@ const alias = {
 export default defineConfig({
   resolve: { alias },
   test: {
+    // Every core: vitest's default leaves one free, which on a 2-core machine runs the files one
+    // at a time (each integration file has its own database, so they run side by side safely).
+    maxWorkers: availableParallelism(),
     // The JSON report is what .ci/run counts for its closing line.
     reporters: ["default", "json"],
     outputFile: { json: ".tmp/test-results/unit-integration.json" },

@@ -1,7 +1,7 @@
 // The static checks of `npm test`: the type check and the linter. Each counts as one test in the
 // closing line `.ci/run` prints (a report in .tmp/test-results, like vitest's), and either failing
 // stops the run with its output shown.
-import { spawnSync } from "node:child_process";
+import { spawn } from "node:child_process";
 import { mkdirSync, writeFileSync } from "node:fs";
 
 const checks = [
@@ -9,13 +9,26 @@ const checks = [
   { name: "lint (eslint, no warnings)", cmd: "npm", args: ["run", "--silent", "lint"] },
 ];
 
-const results = checks.map((c) => {
-  const started = Date.now();
-  const run = spawnSync(c.cmd, c.args, { stdio: "inherit" });
-  const ok = run.status === 0;
-  console.log(`${ok ? "✓" : "✗"} ${c.name} (${((Date.now() - started) / 1000).toFixed(1)} s)`);
-  return { ...c, ok };
-});
+// Both at once: each is mostly one core's work, and the machine may have two. Each one's output is
+// kept and shown after it, so the two never interleave.
+const results = await Promise.all(
+  checks.map(
+    (c) =>
+      new Promise((resolve) => {
+        const started = Date.now();
+        const run = spawn(c.cmd, c.args, { stdio: ["ignore", "pipe", "pipe"] });
+        let output = "";
+        run.stdout.on("data", (d) => (output += d));
+        run.stderr.on("data", (d) => (output += d));
+        run.on("close", (code) => {
+          const ok = code === 0;
+          if (output.trim()) process.stdout.write(output.endsWith("\n") ? output : `${output}\n`);
+          console.log(`${ok ? "✓" : "✗"} ${c.name} (${((Date.now() - started) / 1000).toFixed(1)} s)`);
+          resolve({ ...c, ok });
+        });
+      }),
+  ),
+);
 
 mkdirSync(".tmp/test-results", { recursive: true });
 writeFileSync(
