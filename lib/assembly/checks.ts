@@ -3,7 +3,7 @@ import "server-only";
 import { eq } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { items, models, type Item } from "@/db/schema";
-import { holdMessage, holdsOn } from "@/lib/containments/holds";
+import { holdRefusal } from "@/lib/containments/holds";
 import { KIND_WORD, stateLabel } from "@/lib/vocabulary/item-kinds";
 import { partWord } from "@/lib/vocabulary/part-types";
 import { positionName } from "@/lib/vocabulary/positions";
@@ -69,8 +69,8 @@ export async function checkScanIn(db: DbOrTx, ctx: PairContext, input: Omit<Scan
     return refuse(`${item.identity} failed on the bench: ${why ?? "no reason was recorded"}. It cannot be fitted.`);
   }
   // A quarantined part (or one inside something an open containment holds) waits for quality.
-  const [hold] = await holdsOn(db, [item.id]);
-  if (hold) return refuse(holdMessage(hold, item.identity, "be fitted"));
+  const held = await holdRefusal(db, item, "be fitted");
+  if (held) return refuse(held);
   const holder = await holderOf(db, item.id);
   if (holder) return refuse(`${item.identity} is already fitted, as the ${positionName(holder.position)} of ${holder.parent}.`);
   if (item.state === "scrapped") return refuse(`${item.identity} is scrapped.`);

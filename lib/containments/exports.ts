@@ -7,7 +7,7 @@ import { AppError } from "@/lib/auth/errors";
 import { epcisDocumentForItems, type EpcisDocument, type EpcisOptions } from "@/lib/genealogy/epcis";
 import { AFFECTED_STATE_WORDS, GROUP_LABEL } from "@/lib/vocabulary/containments";
 import { kindLabel, stateLabel } from "@/lib/vocabulary/item-kinds";
-import { affectedSerials, type AffectedSerial } from "./queries";
+import { affectedSerials } from "./queries";
 import { containmentOrRefuse } from "./work";
 
 export interface ExportDealer {
@@ -25,11 +25,10 @@ export async function dealerOrRefuse(db: DbOrTx, codeText: string): Promise<Expo
 }
 
 /** The containment and, when a dealer code is given, that dealer (each refused with a 404 in words). */
-async function scopeOf(db: DbOrTx, code: string, dealerCode: string | undefined): Promise<{ c: Containment; dealer: ExportDealer | null; rows: AffectedSerial[] }> {
+async function scopeOf(db: DbOrTx, code: string, dealerCode: string | undefined): Promise<{ c: Containment; dealer: ExportDealer | null }> {
   const c = await containmentOrRefuse(db, code);
   const dealer = dealerCode === undefined ? null : await dealerOrRefuse(db, dealerCode);
-  const rows = await affectedSerials(db, c.id, dealer ? { dealerCode: dealer.code } : {});
-  return { c, dealer, rows };
+  return { c, dealer };
 }
 
 /** The CSV's columns, in order: a header a spreadsheet shows as it is. */
@@ -57,7 +56,8 @@ const safeName = (text: string) => text.replace(/[^\x20-\x7e]|["\\/]/g, "_");
  * escaped by papaparse's `escapeFormulae`.
  */
 export async function affectedCsv(db: DbOrTx, code: string, dealerCode?: string): Promise<{ filename: string; csv: string; rows: number }> {
-  const { c, dealer, rows } = await scopeOf(db, code, dealerCode);
+  const { c, dealer } = await scopeOf(db, code, dealerCode);
+  const rows = await affectedSerials(db, c.id, dealer ? { dealerCode: dealer.code } : {});
   const data = rows.map((r) => [
     r.serial,
     kindLabel(r.kind),

@@ -39,15 +39,23 @@ export async function holdsOn(db: DbOrTx, itemIds: readonly string[]): Promise<H
   return rows.map((r) => ({ itemId: r.asked, heldIdentity: r.identity, group: r.grp, code: r.code, reason: r.reason }));
 }
 
-/** The ones of `itemIds` an open containment holds or quarantines: lists that offer parts skip them. */
-export async function heldIds(db: DbOrTx, itemIds: readonly string[]): Promise<Set<string>> {
-  return new Set((await holdsOn(db, itemIds)).map((h) => h.itemId));
+/** The first open containment holding each of `itemIds`, by item id: lists mark or skip these. */
+export async function firstHolds(db: DbOrTx, itemIds: readonly string[]): Promise<Map<string, Hold>> {
+  const out = new Map<string, Hold>();
+  for (const h of await holdsOn(db, itemIds)) if (!out.has(h.itemId)) out.set(h.itemId, h);
+  return out;
 }
 
 /** The words of a refusal: "LS1-… is held by containment CN2612-0001 (reason): …". */
 export function holdMessage(hold: Hold, identity: string, what: string): string {
   const through = hold.heldIdentity === identity ? "" : ` (through ${hold.heldIdentity})`;
   return `${identity} is held by containment ${hold.code}${through}: ${hold.reason} It cannot ${what} until quality clears it or closes the containment.`;
+}
+
+/** The words refusing `what` for an item an open containment holds, or null when none holds it. */
+export async function holdRefusal(db: DbOrTx, item: { id: string; identity: string }, what: string): Promise<string | null> {
+  const [hold] = await holdsOn(db, [item.id]);
+  return hold ? holdMessage(hold, item.identity, what) : null;
 }
 
 /**

@@ -12,10 +12,13 @@ import {
   AFFECTED_ACTION_WORDS,
   AFFECTED_ACTIONS,
   AFFECTED_STATE_WORDS,
+  AFFECTED_STATES,
   canMoveAffected,
+  GROUP_LABEL,
   isDispositioned,
   RELEASED_STATES,
   type AffectedAction,
+  type AffectedGroup,
 } from "@/lib/vocabulary/containments";
 import { normaliseContainmentCode } from "./code";
 import { QUALITY_STATION } from "./raise";
@@ -38,8 +41,10 @@ function openOrRefuse(c: Containment): void {
 
 export interface MoveInput {
   code: string;
-  /** The affected serials to act on, by identity. */
-  serials: readonly string[];
+  /** The affected serials to act on, by identity… */
+  serials?: readonly string[];
+  /** …or every serial of this group that can take the step, shown on the page or not. */
+  wholeGroup?: AffectedGroup;
   to: unknown;
   /** What was found or done; required for a failed inspection and for a replacement. */
   note?: unknown;
@@ -65,17 +70,23 @@ export async function moveAffected(db: DbOrTx, input: MoveInput, actor: Actor): 
   if ((to === "failed" || to === "replaced") && !note) {
     refuse(400, "note", to === "failed" ? "Say what the inspection found." : "Say what replaced it (the new part or serial).");
   }
-  const wanted = [...new Set(input.serials.map((s) => String(s).trim().toUpperCase()).filter(Boolean))];
-  if (wanted.length === 0) refuse(400, "serials", "Choose at least one affected serial.");
+  const wanted = [...new Set((input.serials ?? []).map((s) => String(s).trim().toUpperCase()).filter(Boolean))];
+  if (!input.wholeGroup && wanted.length === 0) refuse(400, "serials", "Choose at least one affected serial.");
   if (wanted.length > 10_000) refuse(400, "serials", "Act on at most 10,000 serials at once.");
 
   const run = async (tx: DbOrTx): Promise<MoveResult> => {
     const rows: ContainmentItem[] = [];
-    for (let i = 0; i < wanted.length; i += 500) {
+    if (input.wholeGroup) {
+      const group = input.wholeGroup;
+      const from = AFFECTED_STATES.filter((s) => canMoveAffected(s, to));
+      rows.push(...(await tx.select().from(containmentItems).where(and(eq(containmentItems.containmentId, c.id), eq(containmentItems.group, group), inArray(containmentItems.state, from)))));
+      if (rows.length === 0) refuse(409, "to", `No serial ${GROUP_LABEL[group].toLowerCase()} can become “${AFFECTED_STATE_WORDS[to]}” now. Nothing was changed.`);
+    }
+    for (let i = 0; !input.wholeGroup && i < wanted.length; i += 500) {
       rows.push(...(await tx.select().from(containmentItems).where(and(eq(containmentItems.containmentId, c.id), inArray(sql`upper(${containmentItems.identity})`, wanted.slice(i, i + 500))))));
     }
     const found = new Set(rows.map((r) => r.identity.toUpperCase()));
-    const missing = wanted.filter((w) => !found.has(w));
+    const missing = input.wholeGroup ? [] : wanted.filter((w) => !found.has(w));
     if (missing.length) refuse(404, "serials", `${missing.slice(0, 5).join(", ")}${missing.length > 5 ? ` and ${missing.length - 5} more` : ""} ${missing.length === 1 ? "is" : "are"} not affected by containment ${c.code}.`);
     const stuck = rows.filter((r) => !canMoveAffected(r.state, to));
     if (stuck.length) {

@@ -11,7 +11,7 @@ import { cartonLocations, certificates, dealers, finishes, items, links, models,
 import { AppError } from "@/lib/auth/errors";
 import { issueCertificate } from "@/lib/certificates";
 import { now as clockNow } from "@/lib/clock";
-import { holdMessage, holdsOn } from "@/lib/containments/holds";
+import { holdRefusal } from "@/lib/containments/holds";
 import { appendEvent } from "@/lib/events/queries";
 import { queueMail } from "@/lib/mail/outbox";
 import { changeState, createItem, fit, itemByIdentity, type Recorder } from "@/lib/genealogy/graph";
@@ -99,19 +99,13 @@ const listing = (names: string[]) => (names.length <= 1 ? names.join("") : `${na
 
 /** Why a pair cannot be packed, in words for the packer; null when it can. */
 async function packRefusal(db: DbOrTx, pair: Item): Promise<string | null> {
-  if ((PACKABLE_STATES as readonly string[]).includes(pair.state)) return heldRefusal(db, pair, "be packed");
+  if ((PACKABLE_STATES as readonly string[]).includes(pair.state)) return holdRefusal(db, pair, "be packed");
   if (pair.state === "packed") {
     const carton = await cartonOf(db, pair.id);
     return `${pair.identity} is already packed${carton ? `, in carton ${carton.identity}` : ""}.`;
   }
   if (pair.state === "shipped") return `${pair.identity} has already shipped.`;
   return `${pair.identity} is ${stateLabel(pair.state)}: only a pair that has passed its final test can be packed.`;
-}
-
-/** The words of an open containment's hold on the item (or on anything it holds), or null when none holds it. */
-async function heldRefusal(db: DbOrTx, item: Item, what: string): Promise<string | null> {
-  const [hold] = await holdsOn(db, [item.id]);
-  return hold ? holdMessage(hold, item.identity, what) : null;
 }
 
 export interface PackResult {
@@ -336,9 +330,12 @@ export async function shipCartons(db: Db, input: ShipInput, actor: Actor, option
   let held = false;
   for (const carton of found) {
     const why = await refusal(db, carton);
-    const hold = why ? null : await heldRefusal(db, carton, "be shipped");
-    if (why ?? hold) add("cartons", (why ?? hold)!);
-    if (hold) held = true;
+    const hold = why ? null : await holdRefusal(db, carton, "be shipped");
+    if (why) add("cartons", why);
+    if (hold) {
+      add("cartons", hold);
+      held = true;
+    }
   }
 
   if (Object.keys(errors).length) {
@@ -351,7 +348,7 @@ export async function shipCartons(db: Db, input: ShipInput, actor: Actor, option
     const lines: ShipLine[] = [];
     for (const c of found) {
       const carton = (await itemByIdentity(tx, c.identity))!;
-      const why = (await refusal(tx, carton)) ?? (await heldRefusal(tx, carton, "be shipped"));
+      const why = (await refusal(tx, carton)) ?? (await holdRefusal(tx, carton, "be shipped"));
       if (why) throw new AppError(409, `Nothing was shipped: ${why}`, { cartons: [why] });
       const pair = (await pairIn(tx, carton.id))!;
       const [names] = await tx

@@ -1,7 +1,7 @@
 import "server-only";
 import { sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
-import { holdsOn } from "@/lib/containments/holds";
+import { firstHolds } from "@/lib/containments/holds";
 import { normaliseScan, parseSerial } from "@/lib/serials/format";
 import { isoDay } from "./dates";
 
@@ -19,13 +19,6 @@ export interface ReadyPair {
   heldBy: string | null;
 }
 
-/** The first open containment holding each of `ids`, by id: lists mark these instead of offering them. */
-async function heldByOf(db: DbOrTx, ids: string[]): Promise<Map<string, string>> {
-  const out = new Map<string, string>();
-  for (const h of await holdsOn(db, ids)) if (!out.has(h.itemId)) out.set(h.itemId, h.code);
-  return out;
-}
-
 /** Pairs that passed their final test and wait to be packed, longest waiting first. */
 export async function readyToPack(db: DbOrTx): Promise<ReadyPair[]> {
   const rows = await db.all<{ id: string; identity: string; state: string; model: string | null; model_code: string | null; finish: string | null; tested_at: number | null }>(sql`
@@ -38,8 +31,8 @@ export async function readyToPack(db: DbOrTx): Promise<ReadyPair[]> {
     LEFT JOIN finishes f ON f.id = p.finish_id
     WHERE p.kind = 'pair' AND p.state IN ('ready_to_pack', 'tested')
     ORDER BY tested_at, p.identity`);
-  const held = await heldByOf(db, rows.map((r) => r.id));
-  return rows.map((r) => ({ identity: r.identity, state: r.state, model: r.model ?? "", modelCode: r.model_code ?? "", finish: r.finish, testedAt: dateOf(r.tested_at), heldBy: held.get(r.id) ?? null }));
+  const held = await firstHolds(db, rows.map((r) => r.id));
+  return rows.map((r) => ({ identity: r.identity, state: r.state, model: r.model ?? "", modelCode: r.model_code ?? "", finish: r.finish, testedAt: dateOf(r.tested_at), heldBy: held.get(r.id)?.code ?? null }));
 }
 
 export interface WaitingCarton {
@@ -69,7 +62,7 @@ export async function waitingToShip(db: DbOrTx): Promise<WaitingCarton[]> {
     WHERE c.kind = 'carton' AND c.state = 'packed'
       AND NOT EXISTS (SELECT 1 FROM links sl WHERE sl.child_id = c.id AND sl.ended_at IS NULL AND sl.parent_kind = 'shipment')
     ORDER BY c.created_at, c.identity`);
-  const held = await heldByOf(db, rows.map((r) => r.id));
+  const held = await firstHolds(db, rows.map((r) => r.id));
   return rows.map((r) => ({
     id: r.id,
     carton: r.carton,
@@ -79,7 +72,7 @@ export async function waitingToShip(db: DbOrTx): Promise<WaitingCarton[]> {
     finish: r.finish,
     location: r.location,
     packedOn: r.packed_on ?? isoDay(new Date(Number(r.created_at))),
-    heldBy: held.get(r.id) ?? null,
+    heldBy: held.get(r.id)?.code ?? null,
   }));
 }
 

@@ -1,7 +1,7 @@
 /** Stock an open containment quarantines: matching and the service desk's replacements leave it out. */
 import "server-only";
 import type { DbOrTx } from "@/db";
-import { holdsOn, refuseIfHeld } from "@/lib/containments/holds";
+import { firstHolds, refuseIfHeld } from "@/lib/containments/holds";
 
 export interface Quarantined {
   itemId: string;
@@ -12,14 +12,12 @@ export interface Quarantined {
 
 /** Splits parts into those free to offer and those an open containment holds, in one read. */
 export async function withoutQuarantined<T extends { id: string; identity: string }>(db: DbOrTx, rows: readonly T[]): Promise<{ free: T[]; quarantined: Quarantined[] }> {
-  const holds = await holdsOn(db, rows.map((r) => r.id));
-  const codeOf = new Map<string, string>();
-  for (const h of holds) if (!codeOf.has(h.itemId)) codeOf.set(h.itemId, h.code);
+  const holds = await firstHolds(db, rows.map((r) => r.id));
   const free: T[] = [];
   const quarantined: Quarantined[] = [];
   for (const r of rows) {
-    const code = codeOf.get(r.id);
-    if (code) quarantined.push({ itemId: r.id, identity: r.identity, code });
+    const hold = holds.get(r.id);
+    if (hold) quarantined.push({ itemId: r.id, identity: r.identity, code: hold.code });
     else free.push(r);
   }
   return { free, quarantined };

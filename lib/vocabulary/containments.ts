@@ -6,12 +6,17 @@
 export const CONTAINMENT_SEVERITIES = ["minor", "major", "critical"] as const;
 export type ContainmentSeverity = (typeof CONTAINMENT_SEVERITIES)[number];
 
-export const SEVERITY_WORDS: Record<ContainmentSeverity, string> = {
-  minor: "Minor: no risk to people, the sound may suffer",
-  major: "Major: the speaker may fail in use",
-  critical: "Critical: a risk to people or property",
-};
 export const SEVERITY_LABEL: Record<ContainmentSeverity, string> = { minor: "Minor", major: "Major", critical: "Critical" };
+/** What each severity means, beside its label. */
+export const SEVERITY_MEANING: Record<ContainmentSeverity, string> = {
+  minor: "no risk to people, the sound may suffer",
+  major: "the speaker may fail in use",
+  critical: "a risk to people or property",
+};
+/** Label and meaning together, as the raise form offers them: "Major: the speaker may fail in use". */
+export const SEVERITY_WORDS = Object.fromEntries(CONTAINMENT_SEVERITIES.map((s) => [s, `${SEVERITY_LABEL[s]}: ${SEVERITY_MEANING[s]}`])) as Record<ContainmentSeverity, string>;
+/** The badge tone of each severity on the quality pages. */
+export const SEVERITY_TONE = { minor: "info", major: "caution", critical: "danger" } as const satisfies Record<ContainmentSeverity, string>;
 
 export const AFFECTED_GROUPS = ["in_build", "in_stock", "packed", "shipped"] as const;
 export type AffectedGroup = (typeof AFFECTED_GROUPS)[number];

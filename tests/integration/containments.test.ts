@@ -104,7 +104,11 @@ describe("working a containment through", () => {
     await moveAffected(db(), { code: raised.code, serials, to: "passed" }, quality);
     const back = await moveAffected(db(), { code: raised.code, serials, to: "notified" }, quality).catch((x: unknown) => x);
     expect((back as AppError).status).toBe(400);
-    await moveAffected(db(), { code: raised.code, serials, to: "cleared" }, quality);
+    // Every serial of a group that can take the step, without naming them; none left, it is refused.
+    const cleared = await moveAffected(db(), { code: raised.code, wholeGroup: "shipped", to: "cleared" }, quality);
+    expect(cleared.moved.map((m) => m.identity).sort()).toEqual([...serials].sort());
+    const none = await moveAffected(db(), { code: raised.code, wholeGroup: "shipped", to: "cleared" }, quality).catch((x: unknown) => x);
+    expect((none as AppError).status).toBe(409);
     const closed = await closeContainment(db(), { code: raised.code, reason: "All three inspected and sound" }, quality);
     expect(closed.closedAt).not.toBeNull();
     expect(closed.approvedBy).toBe(quality.id);

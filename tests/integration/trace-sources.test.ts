@@ -10,7 +10,7 @@ import { finishes, items, models, users, type Item } from "@/db/schema";
 import { seedDemo } from "@/db/seed/seed";
 import { AppError } from "@/lib/auth/errors";
 import { setClock } from "@/lib/clock";
-import { affectedBy } from "@/lib/genealogy/affected";
+import { affectedByItem } from "@/lib/containments/affected";
 import { createItem, fit, itemByIdentity } from "@/lib/genealogy/graph";
 import { traceBackward, traceForward } from "@/lib/genealogy/trace";
 import { registerBatch } from "@/lib/lab/units";
@@ -68,7 +68,7 @@ describe("drive-unit batches and makers' lots are register items", () => {
     for (const root of [batchItem, lotItem]) {
       const holders = await traceForward(db(), root.id);
       expect(holders.map((h) => h.identity)).toEqual(expect.arrayContaining([speaker.identity, pair.identity, ...batch.units.map((u) => u.identity)]));
-      expect((await affectedBy(db(), root.id)).map((a) => a.identity)).toEqual([pair.identity, speaker.identity]);
+      expect((await affectedByItem(db(), root.id)).filter((a) => a.kind === "pair" || a.kind === "speaker").map((a) => a.identity)).toEqual([pair.identity, speaker.identity]);
     }
     // Backward from the speaker: the unit, then its batch, then the maker's lot.
     const down = await traceBackward(db(), speaker.id);
@@ -105,7 +105,7 @@ describe("a flitch reaches its leaves, their cabinets, and the cabinets' pair", 
     const [made] = await confirmRuns(db(), { flitchId: flitch.id, modelId: model.id, reservePerPair: 0, runs: [{ left: [1, 3], right: [2, 4], reserve: [] }] }, veneer);
     const holders = (await traceForward(db(), flitch.id)).map((h) => h.identity);
     expect(holders).toEqual(expect.arrayContaining([...view.leaves.map((l) => l.identity), made!.left.identity, made!.right.identity, made!.pair.identity]));
-    expect((await affectedBy(db(), flitch.id)).map((a) => a.identity)).toEqual([made!.pair.identity]);
+    expect((await affectedByItem(db(), flitch.id)).filter((a) => a.kind === "pair" || a.kind === "speaker").map((a) => a.identity)).toEqual([made!.pair.identity]);
     // Run through route and the press step: the readings selection finds this pair.
     const route = await pairRoute(db(), made!.pair);
     const press = route.spec.steps.find((s) => s.station === "press")!;

@@ -18,9 +18,8 @@ import { ProgressBar } from "@/components/quality/containment-progress";
 import { Badge } from "@/components/ui/badge";
 import { buttonClasses } from "@/components/ui/button";
 import { listContainments } from "@/lib/containments";
-import { SEVERITY_LABEL } from "@/lib/vocabulary/containments";
+import { SEVERITY_LABEL, SEVERITY_TONE } from "@/lib/vocabulary/containments";
 
-const SEVERITY_TONE = { minor: "info", major: "caution", critical: "danger" } as const;
 
 export const metadata: Metadata = { title: "Quality" };
 

@@ -12,14 +12,13 @@ import { now } from "@/lib/clock";
 import { listContainments } from "@/lib/containments";
 import { formatDate, formatWhen, timesNote } from "@/lib/format";
 import { paths } from "@/lib/paths";
-import { CONTAINMENT_SEVERITIES, SEVERITY_LABEL } from "@/lib/vocabulary/containments";
+import { CONTAINMENT_SEVERITIES, SEVERITY_LABEL, SEVERITY_TONE } from "@/lib/vocabulary/containments";
 import { ROUTE_STATIONS, STATION_NAME } from "@/lib/vocabulary/stations";
 import { workshopDay } from "@/lib/workshop-time";
 import { previewContainmentAction, raiseContainmentAction } from "./actions";
 
 export const metadata: Metadata = { title: "Containments" };
 
-const SEVERITY_TONE = { minor: "info", major: "caution", critical: "danger" } as const;
 
 /** Every containment, open ones first; quality raises new ones here. Others read the list. */
 export default async function ContainmentsPage() {

@@ -1,10 +1,9 @@
 "use server";
 import { getDb } from "@/db";
-import { AppError } from "@/lib/auth/errors";
 import { guardedAction } from "@/lib/auth/guard";
-import { affectedSerials, closeContainment, containmentOrRefuse, moveAffected, sendNotices } from "@/lib/containments";
+import { closeContainment, moveAffected, sendNotices } from "@/lib/containments";
 import { paths } from "@/lib/paths";
-import { AFFECTED_STATE_WORDS, canMoveAffected, GROUP_LABEL } from "@/lib/vocabulary/containments";
+import { AFFECTED_STATE_WORDS } from "@/lib/vocabulary/containments";
 import { closeFormSchema, moveFormSchema, noticesFormSchema } from "./schemas";
 
 const pageOf = (code: string) => [paths.quality, paths.containments, paths.containment(code)];
@@ -14,17 +13,11 @@ const pageOf = (code: string) => [paths.quality, paths.containments, paths.conta
  * cleared or replaced. lib/containments checks every serial first and writes nothing when one cannot move.
  */
 export const moveAffectedAction = guardedAction("quality.work", moveFormSchema, async (input, user) => {
-  const db = getDb();
-  let serials = input.serials;
-  if (input.wholeGroup === "yes") {
-    const c = await containmentOrRefuse(db, input.code);
-    serials = (await affectedSerials(db, c.id, { group: input.group })).filter((s) => canMoveAffected(s.state, input.to)).map((s) => s.serial);
-    if (serials.length === 0) {
-      const message = `No serial ${GROUP_LABEL[input.group].toLowerCase()} can become “${AFFECTED_STATE_WORDS[input.to]}” now. Nothing was changed.`;
-      throw new AppError(409, message, { to: [message] });
-    }
-  }
-  const { moved } = await moveAffected(db, { code: input.code, serials, to: input.to, note: input.note }, user);
+  const { moved } = await moveAffected(
+    getDb(),
+    { code: input.code, ...(input.wholeGroup === "yes" ? { wholeGroup: input.group } : { serials: input.serials }), to: input.to, note: input.note },
+    user,
+  );
   const cases = [...new Set(moved.flatMap((m) => (m.caseCode ? [m.caseCode] : [])))];
   return {
     ok: true,

@@ -18,7 +18,7 @@ import { now } from "@/lib/clock";
 import { CONTAINMENT_PAGE_ROWS, containmentPageData, type ContainmentPageData } from "@/lib/containments";
 import { formatWhen, timesNote } from "@/lib/format";
 import { paths } from "@/lib/paths";
-import { AFFECTED_GROUPS, GROUP_EFFECT, GROUP_LABEL, isDispositioned, SEVERITY_LABEL, SEVERITY_WORDS, type AffectedGroup } from "@/lib/vocabulary/containments";
+import { AFFECTED_GROUPS, GROUP_EFFECT, GROUP_LABEL, isDispositioned, SEVERITY_LABEL, SEVERITY_MEANING, SEVERITY_TONE, type AffectedGroup } from "@/lib/vocabulary/containments";
 import { kindLabel, stateLabel } from "@/lib/vocabulary/item-kinds";
 import { closeContainmentAction, moveAffectedAction, sendNoticesAction } from "./actions";
 
@@ -30,7 +30,6 @@ const sentenceCase = (s: string) => s.charAt(0).toUpperCase() + s.slice(1);
 const PAGE = CONTAINMENT_PAGE_ROWS;
 const MOST = 2000;
 
-const SEVERITY_TONE = { minor: "info", major: "caution", critical: "danger" } as const;
 const DELIVERY_WORDS = { sent: "Delivered to the mail server", pending: "Waiting to be sent", failed: "Could not be delivered" } as const;
 
 // Common practice with a part that may hurt someone; the site's own rules and qualified people come first.
@@ -96,7 +95,7 @@ export default async function ContainmentPage({ params, searchParams }: { params
             <dd>{c.targetLabel}</dd>
             <dt className="font-bold">Severity</dt>
             <dd>
-              <Badge tone={SEVERITY_TONE[c.severity]}>{SEVERITY_LABEL[c.severity]}</Badge> <span className="text-sm text-ink-soft">{SEVERITY_WORDS[c.severity].split(": ")[1]}</span>
+              <Badge tone={SEVERITY_TONE[c.severity]}>{SEVERITY_LABEL[c.severity]}</Badge> <span className="text-sm text-ink-soft">{SEVERITY_MEANING[c.severity]}</span>
             </dd>
             <dt className="font-bold">Why</dt>
             <dd className="whitespace-pre-line">{c.reason}</dd>
