@@ -1,6 +1,6 @@
 "use client";
 import { startTransition, useState, type FormEvent } from "react";
-import { SelectField, TextAreaField, TextField } from "@/components/ui/field";
+import { ChoiceField, SelectField, TextAreaField, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { Button } from "@/components/ui/button";
 import { useActionStateThen } from "@/components/ui/kept-form";
@@ -8,23 +8,6 @@ import { initialFormState, type FormState } from "@/lib/forms";
 import { AFFECTED_GROUPS, CONTAINMENT_SEVERITIES, GROUP_LABEL, SEVERITY_WORDS, type ContainmentSeverity } from "@/lib/vocabulary/containments";
 
 type Action = (state: FormState, formData: FormData) => Promise<FormState>;
-
-function RadioGroup({ legend, name, value, onChange, options, errors }: { legend: string; name: string; value: string; onChange: (v: string) => void; options: { value: string; label: string }[]; errors?: string[] }) {
-  return (
-    <fieldset className="flex flex-col gap-2">
-      <legend className="mb-1 font-bold">{legend}</legend>
-      <div className="grid gap-2 sm:grid-cols-3">
-        {options.map((o) => (
-          <label key={o.value} className="flex min-h-12 cursor-pointer items-center gap-3 rounded-lg border border-line bg-surface px-3 py-2 has-checked:border-leaf has-checked:bg-leaf-soft">
-            <input type="radio" name={name} value={o.value} checked={value === o.value} onChange={() => onChange(o.value)} className="size-5 shrink-0 accent-leaf" />
-            <span>{o.label}</span>
-          </label>
-        ))}
-      </div>
-      {errors?.length ? <p className="text-sm font-bold text-danger">{errors.join(" ")}</p> : null}
-    </fieldset>
-  );
-}
 
 /**
  * Quality's raise form: a lot, batch, flitch or serial, or a station of the route and two days;
@@ -63,7 +46,7 @@ export function RaiseForm({ preview, raise, stations, today }: { preview: Action
           {state.message} Nothing was written.
         </Notice>
       ) : null}
-      <RadioGroup
+      <ChoiceField
         legend="What is suspect"
         name="by"
         value={by}
@@ -92,7 +75,7 @@ export function RaiseForm({ preview, raise, stations, today }: { preview: Action
         </div>
       )}
       <TextAreaField label="Why it is suspect" name="reason" rows={3} value={reason} onChange={(e) => setReason(e.currentTarget.value)} errors={errors("reason")} maxLength={2000} hint="What the supplier reported, or what was found." />
-      <RadioGroup legend="Severity" name="severity" value={severity} onChange={(v) => setSeverity(v as ContainmentSeverity)} options={CONTAINMENT_SEVERITIES.map((s) => ({ value: s, label: SEVERITY_WORDS[s] }))} errors={errors("severity")} />
+      <ChoiceField legend="Severity" name="severity" value={severity} onChange={(v) => setSeverity(v as ContainmentSeverity)} options={CONTAINMENT_SEVERITIES.map((s) => ({ value: s, label: SEVERITY_WORDS[s] }))} errors={errors("severity")} />
       {counts ? (
         <Notice tone="info" testId="raise-preview" title={`${counts.target} reaches ${counts.total} serial${counts.total === "1" ? "" : "s"} today`}>
           <ul className="flex flex-wrap gap-x-6 gap-y-1">

@@ -142,3 +142,29 @@ export function CheckboxGroup({
     </fieldset>
   );
 }
+
+/**
+ * A question answered by one of a few choices, each a large tappable card with its radio button;
+ * the error is tied to the group with aria-describedby.
+ */
+export function ChoiceField({ legend, name, value, onChange, options, errors }: { legend: string; name: string; value: string; onChange: (v: string) => void; options: { value: string; label: string }[]; errors?: string[] }) {
+  const id = useId();
+  return (
+    <fieldset className="flex flex-col gap-2" aria-describedby={errors?.length ? `${id}-error` : undefined}>
+      <legend className="mb-1 font-bold">{legend}</legend>
+      <div className="grid gap-2 sm:grid-cols-3">
+        {options.map((o) => (
+          <label key={o.value} className="flex min-h-12 cursor-pointer items-center gap-3 rounded-lg border border-line bg-surface px-3 py-2 has-checked:border-leaf has-checked:bg-leaf-soft">
+            <input type="radio" name={name} value={o.value} checked={value === o.value} onChange={() => onChange(o.value)} className="size-5 shrink-0 accent-leaf" />
+            <span>{o.label}</span>
+          </label>
+        ))}
+      </div>
+      {errors?.length ? (
+        <p id={`${id}-error`} className="text-sm font-bold text-danger">
+          {errors.join(" ")}
+        </p>
+      ) : null}
+    </fieldset>
+  );
+}
