@@ -13,3 +13,13 @@ export function SerialLink({ identity, bold = true, className, href }: { identit
     </Link>
   );
 }
+
+/** Text that names serials ("Pair P-PW2-26-00033-Y"): it wraps between words, never inside a serial. */
+export function TextWithSerials({ text }: { text: string }) {
+  return text.split(" ").map((word, i) => (
+    <span key={i}>
+      {i ? " " : ""}
+      {/\d-|-\d/.test(word) ? <span className="whitespace-nowrap">{word}</span> : word}
+    </span>
+  ));
+}

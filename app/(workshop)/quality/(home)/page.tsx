@@ -15,6 +15,7 @@ import { DISPOSITION_WORDS, dispositionPhrase, ncWhere } from "@/lib/route/words
 import { DispositionForm } from "../disposition-form";
 import Link from "next/link";
 import { ProgressBar } from "@/components/quality/containment-progress";
+import { TextWithSerials } from "@/components/register/serial-link";
 import { Badge } from "@/components/ui/badge";
 import { buttonClasses } from "@/components/ui/button";
 import { listContainments } from "@/lib/containments";
@@ -60,7 +61,9 @@ export default async function Page({ searchParams }: { searchParams: Promise<Rec
                   {c.code}
                 </Link>
                 <Badge tone={SEVERITY_TONE[c.severity]}>{SEVERITY_LABEL[c.severity]}</Badge>
-                <span className="min-w-0 flex-1 basis-48">{c.target}</span>
+                <span className="min-w-0 flex-1 basis-48">
+                  <TextWithSerials text={c.target} />
+                </span>
                 <ProgressBar done={c.dispositioned} total={c.affected} />
               </li>
             ))}

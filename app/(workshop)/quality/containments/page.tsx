@@ -2,6 +2,7 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { ProgressBar } from "@/components/quality/containment-progress";
 import { RaiseForm } from "@/components/quality/raise-form";
+import { TextWithSerials } from "@/components/register/serial-link";
 import { Badge } from "@/components/ui/badge";
 import { BackLink } from "@/components/ui/back-link";
 import { DataTable } from "@/components/ui/data-table";
@@ -47,7 +48,7 @@ export default async function ContainmentsPage() {
             id: c.code,
             cells: {
               code: { value: c.code, display: <Link className="serial font-bold text-leaf-dark underline" href={paths.containment(c.code)}>{c.code}</Link> },
-              target: { value: c.target },
+              target: { value: c.target, display: <TextWithSerials text={c.target} /> },
               severity: { value: CONTAINMENT_SEVERITIES.indexOf(c.severity), display: <Badge tone={SEVERITY_TONE[c.severity]}>{SEVERITY_LABEL[c.severity]}</Badge> },
               raised: { value: c.raisedAt.getTime(), display: `${formatWhen(c.raisedAt, at)} by ${c.raisedBy}` },
               progress: { value: c.affected ? c.dispositioned / c.affected : 0, display: <ProgressBar done={c.dispositioned} total={c.affected} /> },

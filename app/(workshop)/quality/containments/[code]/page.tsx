@@ -4,6 +4,7 @@ import { notFound } from "next/navigation";
 import { AffectedGroupTable, type AffectedLine } from "@/components/quality/affected-group";
 import { ContainmentTextForm } from "@/components/quality/containment-forms";
 import { ProgressBar, ProgressChart } from "@/components/quality/containment-progress";
+import { TextWithSerials } from "@/components/register/serial-link";
 import { SafetyCautions } from "@/components/shell/safety-cautions";
 import { Badge } from "@/components/ui/badge";
 import { BackLink } from "@/components/ui/back-link";
@@ -84,7 +85,7 @@ export default async function ContainmentPage({ params, searchParams }: { params
             </Badge>
           </span>
         }
-        lead={c.targetLabel}
+        lead={<TextWithSerials text={c.targetLabel} />}
       />
       {c.severity === "critical" && open ? <SafetyCautions cautions={CRITICAL_CAUTIONS} /> : null}
 
@@ -92,7 +93,9 @@ export default async function ContainmentPage({ params, searchParams }: { params
         <Panel title="What is suspect">
           <dl className="grid gap-x-4 gap-y-1 sm:grid-cols-[max-content_1fr] sm:gap-y-2" data-testid="containment-facts">
             <dt className="font-bold">Target</dt>
-            <dd>{c.targetLabel}</dd>
+            <dd>
+              <TextWithSerials text={c.targetLabel} />
+            </dd>
             <dt className="font-bold">Severity</dt>
             <dd>
               <Badge tone={SEVERITY_TONE[c.severity]}>{SEVERITY_LABEL[c.severity]}</Badge> <span className="text-sm text-ink-soft">{SEVERITY_MEANING[c.severity]}</span>
