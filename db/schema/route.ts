@@ -5,6 +5,7 @@ import { events } from "./events";
 import { items } from "./genealogy";
 import { models } from "./workshop";
 import type { StepSpec } from "@/lib/route/types";
+import { ROUTE_KINDS } from "../../lib/vocabulary/route-kinds";
 
 /** A model's route, versioned: editing makes a new version; a pair keeps the version it started under. */
 export const processSpecs = sqliteTable(
@@ -14,6 +15,8 @@ export const processSpecs = sqliteTable(
     modelId: text("model_id")
       .notNull()
       .references(() => models.id),
+    /** What travels this route: the model's cabinets or its trim parts; each kind is versioned on its own. */
+    routeKind: text("route_kind", { enum: ROUTE_KINDS }).notNull().default("cabinet"),
     version: integer("version").notNull(),
     steps: text("steps", { mode: "json" }).$type<StepSpec[]>().notNull(),
     note: text("note").notNull().default(""),
@@ -23,7 +26,7 @@ export const processSpecs = sqliteTable(
       .default(sql`(unixepoch('subsec') * 1000)`),
     eventId: integer("event_id").references(() => events.id),
   },
-  (t) => [uniqueIndex("process_specs_model_version").on(t.modelId, t.version), check("process_specs_version", sql`${t.version} >= 1`)],
+  (t) => [uniqueIndex("process_specs_model_kind_version").on(t.modelId, t.routeKind, t.version), check("process_specs_version", sql`${t.version} >= 1`)],
 );
 
 /** The spec version a pair follows, fixed when its first step is recorded. */

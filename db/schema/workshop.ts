@@ -49,6 +49,29 @@ export const modelPositions = sqliteTable(
   (t) => [primaryKey({ columns: [t.modelId, t.position] }), check("model_positions_count", sql`${t.count} >= 1`)],
 );
 
+/**
+ * Trim-part positions of a model: position code (e.g. "TOP", "PLINTH"), what people call the part
+ * there ("Top housing") and how many a speaker takes. Trim parts are serialised items
+ * (kind trim_part, partType = the position code) that travel the model's trim route before
+ * assembly fits them here.
+ */
+export const modelTrimPositions = sqliteTable(
+  "model_trim_positions",
+  {
+    modelId: text("model_id")
+      .notNull()
+      .references(() => models.id, { onDelete: "cascade" }),
+    position: text("position").notNull(),
+    label: text("label").notNull(),
+    count: integer("count").notNull().default(1),
+  },
+  (t) => [
+    primaryKey({ columns: [t.modelId, t.position] }),
+    check("model_trim_positions_count", sql`${t.count} >= 1`),
+    check("model_trim_positions_code", sql`${t.position} GLOB '[A-Z][A-Z0-9-]*' AND length(${t.position}) BETWEEN 2 AND 12`),
+  ],
+);
+
 /** Drive-unit mismatch limit per part type: the largest band difference allowed between left and right. */
 export const modelTolerances = sqliteTable(
   "model_tolerances",
@@ -77,7 +100,11 @@ export const dealers = sqliteTable("dealers", {
   id: text("id").primaryKey(),
   code: text("code").notNull().unique(),
   name: text("name").notNull(),
+  /** Street lines of the delivery address, one per line. */
+  address: text("address").notNull().default(""),
+  postcode: text("postcode").notNull().default(""),
   city: text("city").notNull(),
+  /** ISO 3166-1 alpha-2 code ("GB", "FR"). */
   country: text("country").notNull(),
   email: text("email").notNull(),
   active: integer("active", { mode: "boolean" }).notNull().default(true),
@@ -86,3 +113,4 @@ export const dealers = sqliteTable("dealers", {
 export type Model = typeof models.$inferSelect;
 export type Finish = typeof finishes.$inferSelect;
 export type Dealer = typeof dealers.$inferSelect;
+export type ModelTrimPosition = typeof modelTrimPositions.$inferSelect;

@@ -121,10 +121,10 @@ export const SEED_FINISHES: SeedFinish[] = [
 
 // Invented shops in invented towns.
 export const SEED_DEALERS: SeedDealer[] = [
-  { code: "MLR", name: "Merrow Lane Listening Rooms", city: "Merrowby", country: "GB", email: "orders@merrowlane.test" },
-  { code: "SNV", name: "Atelier Sonvelle", city: "Vaudrey-sur-Lenne", country: "FR", email: "commandes@sonvelle.test" },
-  { code: "KHS", name: "Klangkontor Haselstedt", city: "Haselstedt", country: "DE", email: "bestellung@klangkontor-haselstedt.test" },
-  { code: "BLS", name: "Brattvik Lydstue", city: "Brattvik", country: "NO", email: "ordre@brattvik-lydstue.test" },
+  { code: "MLR", name: "Merrow Lane Listening Rooms", address: "Unit 4, Tanyard Court\n18 Merrow Lane", postcode: "MR7 2QT", city: "Merrowby", country: "GB", email: "orders@merrowlane.test" },
+  { code: "SNV", name: "Atelier Sonvelle", address: "12 rue des Tisserands", postcode: "41290", city: "Vaudrey-sur-Lenne", country: "FR", email: "commandes@sonvelle.test" },
+  { code: "KHS", name: "Klangkontor Haselstedt", address: "Mühlengasse 7", postcode: "37415", city: "Haselstedt", country: "DE", email: "bestellung@klangkontor-haselstedt.test" },
+  { code: "BLS", name: "Brattvik Lydstue", address: "Sjøgata 21", postcode: "6893", city: "Brattvik", country: "NO", email: "ordre@brattvik-lydstue.test" },
 ];
 
 const DEMO_PEOPLE: Record<Role, string> = {

@@ -178,7 +178,7 @@ export async function ncsToDisposition(db: DbOrTx): Promise<NcToDisposition[]> {
     ? await db
         .select({ modelId: processSpecs.modelId, steps: processSpecs.steps })
         .from(processSpecs)
-        .where(and(inArray(processSpecs.modelId, modelIds), sql`${processSpecs.version} = (SELECT max(p2.version) FROM process_specs p2 WHERE p2.model_id = ${processSpecs.modelId})`))
+        .where(and(inArray(processSpecs.modelId, modelIds), eq(processSpecs.routeKind, "cabinet"), sql`${processSpecs.version} = (SELECT max(p2.version) FROM process_specs p2 WHERE p2.model_id = ${processSpecs.modelId} AND p2.route_kind = 'cabinet')`))
     : [];
   const held = await db
     .select({ pairId: links.parentId, position: links.position, identity: items.identity })

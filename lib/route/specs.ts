@@ -1,6 +1,6 @@
 /** A model's route versions: the newest, the history, the default for new models, and saving an edit as a new version. */
 import "server-only";
-import { asc, count, desc, eq } from "drizzle-orm";
+import { and, asc, count, desc, eq } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { models, processSpecs, routeStarts, users, type ProcessSpec } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
@@ -8,19 +8,29 @@ import { now } from "@/lib/clock";
 import { newId } from "@/lib/auth/tokens";
 import { appendEvent } from "@/lib/events/queries";
 import type { Actor } from "@/lib/vocabulary/actor";
+import type { RouteKind } from "@/lib/vocabulary/route-kinds";
 import type { Station } from "@/lib/vocabulary/stations";
 import { defaultRoute } from "./default-spec";
 import { sameSteps } from "./spec-rules";
 import type { StepSpec } from "./types";
 
-/** The newest version of a model's route. */
-export async function currentSpec(db: DbOrTx, modelId: string): Promise<ProcessSpec | null> {
-  const [row] = await db.select().from(processSpecs).where(eq(processSpecs.modelId, modelId)).orderBy(desc(processSpecs.version)).limit(1);
+/** The newest version of a model's route of one kind (its cabinets' route unless told). */
+export async function currentSpec(db: DbOrTx, modelId: string, routeKind: RouteKind = "cabinet"): Promise<ProcessSpec | null> {
+  const [row] = await db
+    .select()
+    .from(processSpecs)
+    .where(and(eq(processSpecs.modelId, modelId), eq(processSpecs.routeKind, routeKind)))
+    .orderBy(desc(processSpecs.version))
+    .limit(1);
   return row ?? null;
 }
 
-export async function specVersions(db: DbOrTx, modelId: string) {
-  return db.select().from(processSpecs).where(eq(processSpecs.modelId, modelId)).orderBy(desc(processSpecs.version));
+export async function specVersions(db: DbOrTx, modelId: string, routeKind: RouteKind = "cabinet") {
+  return db
+    .select()
+    .from(processSpecs)
+    .where(and(eq(processSpecs.modelId, modelId), eq(processSpecs.routeKind, routeKind)))
+    .orderBy(desc(processSpecs.version));
 }
 
 /** Gives every model without a route the default one as version 1 (the demo seed and new models). */
@@ -82,7 +92,7 @@ export interface RouteVersion {
 /** Every active model with its route versions, newest first: what the routes page lists. */
 export async function routesOverview(db: DbOrTx): Promise<{ model: { id: string; code: string; name: string }; versions: RouteVersion[] }[]> {
   const active = await db.select({ id: models.id, code: models.code, name: models.name }).from(models).where(eq(models.active, true)).orderBy(asc(models.code));
-  const specs = await db.select({ spec: processSpecs, by: users.name }).from(processSpecs).leftJoin(users, eq(users.id, processSpecs.createdBy)).orderBy(asc(processSpecs.modelId), desc(processSpecs.version));
+  const specs = await db.select({ spec: processSpecs, by: users.name }).from(processSpecs).leftJoin(users, eq(users.id, processSpecs.createdBy)).where(eq(processSpecs.routeKind, "cabinet")).orderBy(asc(processSpecs.modelId), desc(processSpecs.version));
   const starts = await db.select({ specId: routeStarts.specId, n: count() }).from(routeStarts).groupBy(routeStarts.specId);
   const pairsOn = new Map(starts.map((s) => [s.specId, Number(s.n)]));
   return active.map((model) => ({

@@ -16,6 +16,7 @@ export const SERIAL_KIND_LETTERS = {
   carton: "K",
   shipment: "H",
   flitch: "F",
+  trim_part: "T",
 } as const satisfies Partial<Record<ItemKind, string>>;
 export type SerialKind = keyof typeof SERIAL_KIND_LETTERS;
 
