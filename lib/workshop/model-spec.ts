@@ -208,3 +208,28 @@ export function changedFields(before: ModelSpec, after: ModelSpec): string[] {
   const b = canonical(after);
   return (Object.keys(words) as (keyof ModelSpec)[]).filter((k) => JSON.stringify(a[k]) !== JSON.stringify(b[k])).map((k) => words[k]);
 }
+
+/** A blank model for the new-model form. */
+export const BLANK_MODEL_SPEC: ModelSpec = {
+  code: "",
+  name: "",
+  leavesPerFace: 2,
+  minLeafLengthMm: 0,
+  minLeafWidthMm: 0,
+  pairResponseLimitDb: 1,
+  responseMinHz: 100,
+  responseMaxHz: 10000,
+  pairGtin: "",
+  warrantyMonths: 24,
+  positions: [
+    { position: "T", partType: "tweeter", count: 1 },
+    { position: "B", partType: "bass", count: 1 },
+  ],
+  crossovers: [{ position: "XO", count: 1 }],
+  trimPositions: [],
+  tolerances: [
+    { partType: "tweeter", mismatchLimitDb: 0.5 },
+    { partType: "bass", mismatchLimitDb: 0.75 },
+  ],
+  packingList: ["Grilles (2)", "Owner's manual"],
+};
