@@ -1,7 +1,7 @@
 "use client";
 import { useActionState, useState } from "react";
 import { Button } from "@/components/ui/button";
-import { controlClasses, SelectField, TextAreaField, TextField } from "@/components/ui/field";
+import { controlClasses, TextAreaField, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
 import { initialFormState } from "@/lib/forms";
