@@ -17,8 +17,6 @@ export function colourRefProblem(raw: string): string | null {
   return /^[A-Z]{2,6}[ -]?[0-9A-Z][0-9A-Z .-]{0,20}$/.test(v) ? null : "Give an sRGB hex (#3E4A52) or a colour-card reference in capitals and digits (RAL 7016).";
 }
 
-/** An sRGB swatch colour, or null when the reference is not a hex. */
-export const swatchOf = (ref: string): string | null => (/^#[0-9A-Fa-f]{6}$/.test(ref.trim()) ? ref.trim().toUpperCase() : null);
 
 export const finishSchema = z
   .object({

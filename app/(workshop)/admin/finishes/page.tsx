@@ -11,7 +11,7 @@ import { paths } from "@/lib/paths";
 import { cutWords } from "@/lib/vocabulary/veneer-cuts";
 import { referenceUse } from "@/lib/workshop/finishes-dealers";
 import { listFinishes } from "@/lib/workshop/queries";
-import { swatchOf } from "@/lib/workshop/reference-schemas";
+import { swatchOf } from "@/lib/workshop/finish-words";
 import { FinishForm, RetireFinishForm, type FinishValues } from "./finish-forms";
 
 export const metadata: Metadata = { title: "Finishes" };
