@@ -49,6 +49,12 @@ export const paths = {
 
   admin: "/admin",
   adminAudit: "/admin/audit",
+  adminModels: "/admin/models",
+  adminNewModel: "/admin/models/new",
+  adminModel: (code: string) => `/admin/models/${seg(code)}`,
+  adminFinishes: "/admin/finishes",
+  adminDealers: "/admin/dealers",
+  adminOwners: "/admin/owners",
   adminMail: "/admin/mail",
   adminRoutes: "/admin/routes",
   adminTokens: "/admin/tokens",

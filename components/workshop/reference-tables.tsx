@@ -5,6 +5,7 @@ import type { Dealer, Finish } from "@/db/schema";
 import type { ModelSummary } from "@/lib/workshop/queries";
 import { isPartType, PART_TYPE_LABEL } from "@/lib/vocabulary/part-types";
 import { positionName } from "@/lib/vocabulary/positions";
+import { finishDetail, swatchOf } from "@/lib/workshop/finish-words";
 
 
 /** Models, with the columns a station needs: veneer (leaf needs), tolerances (matching), or all. */
@@ -87,7 +88,7 @@ export function FinishTable({ finishes }: { finishes: Finish[] }) {
         { key: "code", label: "Code" },
         { key: "name", label: "Finish" },
         { key: "kind", label: "Kind" },
-        { key: "detail", label: "Detail" },
+        { key: "detail", label: "Botanical name and cut, or colour" },
       ]}
       rows={finishes.map((f) => ({
         id: f.id,
@@ -95,7 +96,21 @@ export function FinishTable({ finishes }: { finishes: Finish[] }) {
           code: { value: f.code, display: <span className="serial">{f.code}</span> },
           name: { value: f.name },
           kind: { value: f.kind, display: <Badge tone={f.kind === "veneer" ? "walnut" : "info"}>{f.kind === "veneer" ? "veneer: paired at the flitch" : "lacquer: paired at assembly"}</Badge> },
-          detail: { value: f.detail, display: f.kind === "veneer" ? <i>{f.detail}</i> : f.detail },
+          detail: {
+            value: finishDetail(f),
+            display:
+              f.kind === "veneer" ? (
+                <span>
+                  <i>{f.botanicalName}</i>
+                  {finishDetail({ ...f, botanicalName: "" }) ? `, ${finishDetail({ ...f, botanicalName: "" })}` : ""}
+                </span>
+              ) : (
+                <span className="inline-flex items-center gap-2">
+                  {swatchOf(f.colourRef) ? <span aria-hidden className="inline-block size-4 rounded border border-line-strong" style={{ backgroundColor: swatchOf(f.colourRef)! }} /> : null}
+                  {finishDetail(f)}
+                </span>
+              ),
+          },
         },
       }))}
     />
@@ -111,6 +126,7 @@ export function DealerTable({ dealers }: { dealers: Dealer[] }) {
       columns={[
         { key: "code", label: "Code" },
         { key: "name", label: "Dealer" },
+        { key: "address", label: "Address", sortable: false },
         { key: "city", label: "Town" },
         { key: "country", label: "Country" },
         { key: "email", label: "E-mail" },
@@ -120,6 +136,7 @@ export function DealerTable({ dealers }: { dealers: Dealer[] }) {
         cells: {
           code: { value: d.code, display: <span className="serial">{d.code}</span> },
           name: { value: d.name, display: <Link className="font-bold text-leaf-dark underline underline-offset-4" href={`/register/dealers/${d.code}`}>{d.name}</Link> },
+          address: { value: null, display: <span className="whitespace-pre-line text-sm">{[d.address, d.postcode].filter(Boolean).join("\n")}</span> },
           city: { value: d.city },
           country: { value: d.country },
           email: { value: d.email },

@@ -1,5 +1,5 @@
 import { sql } from "drizzle-orm";
-import { check, index, integer, primaryKey, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
+import { check, index, integer, primaryKey, sqliteTable, text, uniqueIndex, type AnySQLiteColumn } from "drizzle-orm/sqlite-core";
 import { events } from "./events";
 import { dealers, finishes, models } from "./workshop";
 
@@ -128,6 +128,11 @@ export const owners = sqliteTable("owners", {
   createdAt: integer("created_at", { mode: "timestamp_ms" })
     .notNull()
     .default(sql`(unixepoch('subsec') * 1000)`),
+  /**
+   * A duplicate merged into another record (lib/workshop/owners.ts): it stays as history, pointing
+   * at the record that carries its ownerships and consent on.
+   */
+  mergedIntoId: text("merged_into_id").references((): AnySQLiteColumn => owners.id),
 });
 
 /** An owner registered as holding an item (usually a pair) from a date; appended, never edited. */

@@ -16,3 +16,4 @@ export * from "./service-owners";
 export * from "./service-parts";
 export * from "./owner-registrations";
 export * from "./containments";
+export * from "./model-versions";

@@ -85,14 +85,23 @@ export const modelTolerances = sqliteTable(
   (t) => [primaryKey({ columns: [t.modelId, t.partType] }), check("model_tolerances_positive", sql`${t.mismatchLimitDb} > 0`)],
 );
 
-/** A veneer species (pair born at the flitch) or a lacquer colour (cabinets paired at assembly). */
+/**
+ * A veneer species (pair born at the flitch) or a lacquer colour (cabinets paired at assembly).
+ * `name` is the trade name of a species or the colour's name.
+ */
 export const finishes = sqliteTable("finishes", {
   id: text("id").primaryKey(),
   code: text("code").notNull().unique(),
   name: text("name").notNull(),
   kind: text("kind", { enum: ["veneer", "lacquer"] }).notNull(),
-  /** Botanical or trade name for veneer, colour reference for lacquer. */
+  /** Free words kept from before the columns below (e.g. a lacquer's sheen); shown after them. */
   detail: text("detail").notNull().default(""),
+  /** A species' botanical name ("Juglans nigra"); empty for a lacquer. */
+  botanicalName: text("botanical_name").notNull().default(""),
+  /** How a species' leaves are cut (lib/vocabulary/veneer-cuts.ts); empty for a lacquer. */
+  cut: text("cut").notNull().default(""),
+  /** A lacquer's colour reference: an sRGB hex ("#3E4A52") or a colour-card reference; empty for a species. */
+  colourRef: text("colour_ref").notNull().default(""),
   active: integer("active", { mode: "boolean" }).notNull().default(true),
 });
 
@@ -110,7 +119,28 @@ export const dealers = sqliteTable("dealers", {
   active: integer("active", { mode: "boolean" }).notNull().default(true),
 });
 
+/**
+ * Crossover positions of a model: every model has "XO"; a model may name more ("XO-B" for a
+ * separate bass board). Assembly fits the board at XO.
+ */
+export const modelCrossoverPositions = sqliteTable(
+  "model_crossover_positions",
+  {
+    modelId: text("model_id")
+      .notNull()
+      .references(() => models.id, { onDelete: "cascade" }),
+    position: text("position").notNull(),
+    count: integer("count").notNull().default(1),
+  },
+  (t) => [
+    primaryKey({ columns: [t.modelId, t.position] }),
+    check("model_crossover_positions_count", sql`${t.count} >= 1`),
+    check("model_crossover_positions_code", sql`${t.position} GLOB 'XO*' AND length(${t.position}) BETWEEN 2 AND 12`),
+  ],
+);
+
 export type Model = typeof models.$inferSelect;
+
 export type Finish = typeof finishes.$inferSelect;
 export type Dealer = typeof dealers.$inferSelect;
 export type ModelTrimPosition = typeof modelTrimPositions.$inferSelect;

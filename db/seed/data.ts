@@ -110,13 +110,13 @@ export const SEED_MODELS: SeedModel[] = [
 ];
 
 export const SEED_FINISHES: SeedFinish[] = [
-  { code: "WAL", name: "Black walnut", kind: "veneer", detail: "Juglans nigra, crown cut" },
-  { code: "OAK", name: "European oak", kind: "veneer", detail: "Quercus robur, quarter cut" },
-  { code: "CHY", name: "American cherry", kind: "veneer", detail: "Prunus serotina, crown cut" },
-  { code: "SYC", name: "Ripple sycamore", kind: "veneer", detail: "Acer pseudoplatanus, figured" },
-  // Invented colour names; the detail gives sheen and an sRGB reference for the sample board.
-  { code: "LSL", name: "Estuary Slate", kind: "lacquer", detail: "satin, sRGB #3E4A52" },
-  { code: "LCH", name: "Chalk Meadow", kind: "lacquer", detail: "high gloss, sRGB #ECE8DD" },
+  { code: "WAL", name: "Black walnut", kind: "veneer", botanicalName: "Juglans nigra", cut: "crown", detail: "" },
+  { code: "OAK", name: "European oak", kind: "veneer", botanicalName: "Quercus robur", cut: "quarter", detail: "" },
+  { code: "CHY", name: "American cherry", kind: "veneer", botanicalName: "Prunus serotina", cut: "crown", detail: "" },
+  { code: "SYC", name: "Ripple sycamore", kind: "veneer", botanicalName: "Acer pseudoplatanus", cut: "", detail: "figured" },
+  // Invented colour names; an sRGB reference for the sample board, and the sheen in words.
+  { code: "LSL", name: "Estuary Slate", kind: "lacquer", colourRef: "#3E4A52", detail: "satin" },
+  { code: "LCH", name: "Chalk Meadow", kind: "lacquer", colourRef: "#ECE8DD", detail: "high gloss" },
 ];
 
 // Invented shops in invented towns.

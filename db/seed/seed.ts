@@ -1,7 +1,7 @@
 import { randomUUID } from "node:crypto";
 import { eq, inArray, sql } from "drizzle-orm";
 import type { Db } from "@/db";
-import { dealers, finishes, modelPositions, modelTolerances, models, userRoles, users } from "@/db/schema";
+import { dealers, finishes, modelCrossoverPositions, modelPositions, modelTolerances, models, userRoles, users } from "@/db/schema";
 import { hashPassword } from "@/lib/auth/password";
 import type { Role } from "@/lib/auth/roles";
 import { appendEvent } from "@/lib/events/queries";
@@ -10,6 +10,7 @@ import { referenceDate, seedHistory } from "./history";
 import { atTime, now as clockNow } from "@/lib/clock";
 import { ensureDefaultSpecs } from "@/lib/route/specs";
 import { ensurePackingLists } from "@/lib/dispatch/packing-list";
+import { ensureModelVersions } from "@/lib/workshop/models";
 import { packingItems } from "@/db/schema/dispatch";
 import { gs1CheckDigit, isValidGtin } from "@/lib/serials";
 
@@ -107,6 +108,9 @@ export async function seedDemo(db: Db, options: { history?: boolean; months?: nu
         await tx.insert(packingItems).values({ modelId: tower.id, position: Number(last?.n ?? 0) + 1, label: "Floor spikes and cups (8 each)" }).onConflictDoNothing();
       }
     }
+    // Each model's one crossover board, and its spec as version 1, which the history's pairs are made under.
+    for (const m of await tx.select({ id: models.id }).from(models)) await tx.insert(modelCrossoverPositions).values({ modelId: m.id, position: "XO", count: 1 }).onConflictDoNothing();
+    await ensureModelVersions(tx);
 
     for (const finish of SEED_FINISHES) {
       const [row] = await tx

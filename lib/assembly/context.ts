@@ -2,7 +2,7 @@
 import "server-only";
 import { and, eq, inArray, isNull } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
-import { finishes, items, links, modelPositions, models, type Finish, type Item, type Model } from "@/db/schema";
+import { finishes, items, links, models, type Finish, type Item, type Model } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
 import { now as clockNow } from "@/lib/clock";
 import { holdMessage, holdsOn, type Hold } from "@/lib/containments/holds";
@@ -11,6 +11,8 @@ import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { PAIR_CABINET_POSITION as CAB_POSITION, PAIR_SPEAKER_POSITION } from "@/lib/vocabulary/positions";
 import { SIDES, sideWord, type Side } from "@/lib/vocabulary/sides";
 import { slotsOf, type Slot } from "./slots";
+import { modelSpecOf } from "@/lib/workshop/model-spec-of";
+import type { PartType } from "@/lib/vocabulary/part-types";
 
 export // ---- the pair at the station --------------------------------------------------------------------
 
@@ -19,6 +21,8 @@ interface PairContext {
   model: Model;
   finish: Finish | null;
   slots: Slot[];
+  /** The drive-unit positions of the model version the pair was started under. */
+  positions: { position: string; partType: PartType; count: number }[];
   route: PairRoute | null;
   cabinets: { side: Side; item: Item }[];
   speakers: { side: Side; item: Item }[];
@@ -38,7 +42,8 @@ export async function pairContext(db: DbOrTx, pair: Item, at: Date = clockNow())
   if (pair.kind !== "pair" || !pair.modelId) throw new AppError(400, `${pair.identity} is not a pair of a model.`);
   const [model] = await db.select().from(models).where(eq(models.id, pair.modelId)).limit(1);
   const [finish] = pair.finishId ? await db.select().from(finishes).where(eq(finishes.id, pair.finishId)).limit(1) : [];
-  const positions = await db.select().from(modelPositions).where(eq(modelPositions.modelId, pair.modelId));
+  // The drive-unit positions of the model version the pair was started under, not a later edit's.
+  const positions = (await modelSpecOf(db, pair))?.positions ?? [];
   const slots = slotsOf(positions);
   let route: PairRoute | null = null;
   let routeProblem: string | null = null;
@@ -89,5 +94,5 @@ export async function pairContext(db: DbOrTx, pair: Item, at: Date = clockNow())
   else if (cabinets.some((c) => c.item.state === "scrapped")) blocked = `${pair.identity} holds a scrapped cabinet.`;
   else if (!routeFinished) blocked = `The cabinets have not finished their route: next step is ${next ?? "not known"}.`;
 
-  return { pair, model: model!, finish: finish ?? null, slots, route, cabinets, speakers, lacquer, routeFinished, next, openNcs, holds, blocked };
+  return { pair, model: model!, finish: finish ?? null, slots, positions, route, cabinets, speakers, lacquer, routeFinished, next, openNcs, holds, blocked };
 }

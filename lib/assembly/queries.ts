@@ -2,7 +2,7 @@
 import "server-only";
 import { and, asc, eq, isNull } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
-import { finishes, items, links, modelPositions, type Finish, type Item, type Model } from "@/db/schema";
+import { finishes, items, links, type Finish, type Item, type Model } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
 import type { Hold } from "@/lib/containments/holds";
 import { now as clockNow } from "@/lib/clock";
@@ -43,7 +43,7 @@ export async function assemblyView(db: DbOrTx, pairIdentity: string): Promise<As
   const pair = (readings[0] ? await itemByIdentity(db, readings[0].canonical) : null) ?? (await itemByIdentity(db, normaliseScan(pairIdentity)));
   if (!pair || pair.kind !== "pair" || !pair.modelId) return null;
   const ctx = await pairContext(db, pair);
-  const positions = await db.select({ position: modelPositions.position, partType: modelPositions.partType, count: modelPositions.count }).from(modelPositions).where(eq(modelPositions.modelId, ctx.model.id));
+  const positions = ctx.positions;
   const speakers: AssemblyView["speakers"] = [];
   for (const s of ctx.speakers) {
     const rows = await db

@@ -44,6 +44,8 @@ export const APPEND_ONLY_TABLES = {
   containments: "containments",
   containment_items: "serials affected by containments",
   containment_notices: "containment notices",
+  model_versions: "model versions",
+  item_model_versions: "the model version each item was made under",
 } as const satisfies Record<string, string>;
 
 export type AppendOnlyTable = keyof typeof APPEND_ONLY_TABLES;

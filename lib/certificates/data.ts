@@ -1,4 +1,5 @@
 import "server-only";
+import { finishDetail } from "@/lib/workshop/finish-words";
 import { SIDES, type Side } from "@/lib/vocabulary/sides";
 import { and, desc, eq, inArray, isNotNull, isNull } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db";
@@ -456,7 +457,7 @@ export async function certificateData(db: DbOrTx, pairId: string, opts: { baseUr
   let veneer: VeneerOrigin | null = null;
   if (finish?.kind === "veneer") {
     const faces = await veneerFaces(db, pair.id, cabinets);
-    if (faces) veneer = { species: finish.name, detail: finish.detail, flitches: faces.flitches, faces: faces.faces };
+    if (faces) veneer = { species: finish.name, detail: finishDetail(finish), flitches: faces.flitches, faces: faces.faces };
   }
 
   const test = await newestFinalTest(db, pair.id);
@@ -504,7 +505,7 @@ export async function certificateData(db: DbOrTx, pairId: string, opts: { baseUr
     copy: opts.copy,
     pair: { id: pair.id, identity: pair.identity, state: pair.state },
     model: { code: model.code, name: model.name },
-    finish: finish ? { code: finish.code, name: finish.name, kind: finish.kind, detail: finish.detail } : null,
+    finish: finish ? { code: finish.code, name: finish.name, kind: finish.kind, detail: finishDetail(finish) } : null,
     builtAt,
     speakers: { L: { identity: speakers.L.identity, cabinet: cabinets.L?.identity ?? null }, R: { identity: speakers.R.identity, cabinet: cabinets.R?.identity ?? null } },
     veneer,

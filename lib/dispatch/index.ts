@@ -20,7 +20,8 @@ import { allocateSerial } from "@/lib/serials/allocator";
 import { normaliseScan, parseSerial } from "@/lib/serials/format";
 import { isValidGtin } from "@/lib/serials/gs1";
 import { isCalendarDay, isoDay, noonUtc } from "./dates";
-import { packingList, sameLabel } from "./packing-list";
+import { sameLabel } from "./packing-list";
+import { modelSpecOf, packingListOf } from "@/lib/workshop/model-spec-of";
 
 export { cartonLabelPdf, cartonLabelData, renderCartonLabel, CARTON_LABEL_LAYOUT, type CartonLabelData } from "./carton-label";
 export { verifyCertificate, type VerifiedCertificate } from "./verify";
@@ -127,10 +128,11 @@ export async function packPair(db: Db, input: { pairIdentity: string; checked: s
   const refusal = await packRefusal(db, pair);
   if (refusal) throw new AppError(409, refusal);
   if (!pair.modelId) throw new AppError(409, `${pair.identity} has no model, so it has no packing list or GTIN.`);
-  const [model] = await db.select().from(models).where(eq(models.id, pair.modelId)).limit(1);
+  // The packing list and GTIN of the model version the pair was started under.
+  const model = await modelSpecOf(db, pair);
   if (!model) throw new AppError(409, `${pair.identity} has no model, so it has no packing list or GTIN.`);
 
-  const list = await packingList(db, model.id);
+  const list = packingListOf(model);
   const checked = input.checked.map((c) => c.trim()).filter(Boolean);
   const stray = checked.filter((c) => !list.some((l) => sameLabel(l, c)));
   if (stray.length) {

@@ -125,6 +125,17 @@ const SENTENCES: Record<EventType, Sentence> = {
   "model.created": () => "registered the model",
   "finish.created": () => "registered the finish",
   "dealer.created": () => "registered the dealer",
+  "model.changed": (d) => `saved version ${num(d, "version") ?? "?"} of the model${list(d, "changed").length ? `, changing the ${list(d, "changed").join(", ")}` : ""}`,
+  "model.retired": () => "retired the model from new work",
+  "model.restored": () => "brought the model back into use",
+  "finish.changed": (d) => `changed the finish${list(d, "changed").length ? `: the ${list(d, "changed").join(", ")}` : ""}`,
+  "finish.retired": () => "retired the finish",
+  "finish.restored": () => "brought the finish back into use",
+  "dealer.changed": (d) => `changed the dealer's details${list(d, "changed").length ? `: the ${list(d, "changed").join(", ")}` : ""}`,
+  "dealer.retired": () => "marked the dealer inactive",
+  "dealer.restored": () => "marked the dealer active again",
+  "owner.corrected": (d) => `corrected the owner's record${list(d, "changed").length ? `: the ${list(d, "changed").join(", ")}` : ""}`,
+  "owner.merged": () => "merged a duplicate record of the owner into this one",
   "item.created": (d) => {
     const kind = str(d, "kind");
     return `registered the ${isItemKind(kind) ? KIND_WORD[kind] : "item"}`;

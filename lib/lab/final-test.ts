@@ -11,6 +11,7 @@ import { appendEvent } from "@/lib/events/queries";
 import { changeState, itemByIdentity } from "@/lib/genealogy/graph";
 import { speakersOf } from "@/lib/genealogy/pair-speakers";
 import { parseSerial } from "@/lib/serials/format";
+import { modelSpecOf } from "@/lib/workshop/model-spec-of";
 import type { Station } from "@/lib/vocabulary/stations";
 
 /** Pairs built and waiting for their final test. */
@@ -91,14 +92,16 @@ export async function recordFinalTest(db: DbOrTx, input: { pair: string; left: {
   const pair = await itemByIdentity(db, parsedSerial?.valid ? parsedSerial.canonical : input.pair.trim().toUpperCase());
   if (!pair || pair.kind !== "pair") throw new AppError(404, `${input.pair} is not a pair in the register.`);
   if (pair.state !== AWAITING_TEST) throw new AppError(409, `${pair.identity} is ${pair.state.replace(/_/g, " ")}: only a built pair waiting for its test is tested here.`);
-  const [model] = await db.select().from(models).where(eq(models.id, pair.modelId!)).limit(1);
+  // The range and limit of the model version the pair was started under, not a later edit's.
+  const model = await modelSpecOf(db, pair);
+  if (!model) throw new AppError(409, `${pair.identity} has no model to test against.`);
   const files = { left: input.left, right: input.right };
-  const read = readPairTest(model!, files);
+  const read = readPairTest(model, files);
   const { comparison } = read;
-  const limitDb = model!.pairResponseLimitDb;
+  const limitDb = model.pairResponseLimitDb;
   return db.transaction(async (tx) => {
     const at = clockNow();
-    await recordPairTest(tx, { pair, model: model!, files, read, station: "lab", at }, actor);
+    await recordPairTest(tx, { pair, model, files, read, station: "lab", at }, actor);
     let nc: string | null = null;
     if (comparison.pass) {
       await changeState(tx, pair, READY_TO_PACK, { actorId: actor.id, station: "lab" });

@@ -25,7 +25,9 @@ export function barcodeText(details: ItemWithNames, symbology: Symbology, baseUr
   if (symbology !== "gs1-128") return item.identity;
   if (item.kind !== "carton" || !model) throw new AppError(400, "GS1-128 labels are for cartons of a model with a GTIN.");
   try {
-    return cartonElementString({ gtin: model.pairGtin, serial: item.identity, productionDate: item.createdAt }).bwipText;
+    // The GTIN written on the carton when it was packed (the pair's model version), else the model's.
+    const packed = (item.attrs as { gtin?: unknown } | null)?.gtin;
+    return cartonElementString({ gtin: typeof packed === "string" ? packed : model.pairGtin, serial: item.identity, productionDate: item.createdAt }).bwipText;
   } catch (e) {
     throw new AppError(400, (e as Error).message);
   }

@@ -1,6 +1,6 @@
 /** Owners of pairs and their ownerships: who holds a shipped pair, from when. */
 import "server-only";
-import { and, asc, desc, eq, inArray, sql } from "drizzle-orm";
+import { and, asc, desc, eq, inArray, isNull, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { items, ownerConsents, owners, ownerships, type Owner } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
@@ -61,7 +61,7 @@ export async function registerOwnershipIn(
   if (!pair) throw new AppError(404, "That pair is not in the register.");
   if (pair.state !== "shipped") throw new AppError(409, `${pair.identity} has not shipped yet: a pair has an owner once it has left the workshop.`);
   const at = now();
-  const [known] = owner.email ? await tx.select({ id: owners.id }).from(owners).where(sql`lower(${owners.email}) = ${owner.email}`).limit(1) : [];
+  const [known] = owner.email ? await tx.select({ id: owners.id }).from(owners).where(and(sql`lower(${owners.email}) = ${owner.email}`, isNull(owners.mergedIntoId))).limit(1) : [];
   let ownerId = known?.id;
   if (ownerId) {
     if (await holdsPair(tx, ownerId, pair.id)) throw new AppError(409, `${owner.name} is already registered as an owner of ${pair.identity}.`);
@@ -144,7 +144,8 @@ export async function ownersOfPair(db: DbOrTx, pairId: string): Promise<(OwnerWi
     .select({ owner: owners, since: ownerships.since })
     .from(ownerships)
     .innerJoin(owners, eq(owners.id, ownerships.ownerId))
-    .where(eq(ownerships.itemId, pairId))
+    // A record merged into another is history: its survivor holds the pair now.
+    .where(and(eq(ownerships.itemId, pairId), isNull(owners.mergedIntoId)))
     .orderBy(asc(ownerships.since));
   const consents = await consentsOf(db, rows.map((r) => r.owner.id));
   return rows.map((r) => ({ ...r.owner, since: r.since, consent: consents.get(r.owner.id) ?? null }));
@@ -159,7 +160,7 @@ export async function findOwners(db: DbOrTx, text: string, limit = 20): Promise<
   const rows = await db
     .select()
     .from(owners)
-    .where(sql`lower(${owners.name}) LIKE ${pattern} ESCAPE '\\' OR lower(coalesce(${owners.email}, '')) LIKE ${pattern} ESCAPE '\\'`)
+    .where(and(isNull(owners.mergedIntoId), sql`(lower(${owners.name}) LIKE ${pattern} ESCAPE '\\' OR lower(coalesce(${owners.email}, '')) LIKE ${pattern} ESCAPE '\\')`))
     .orderBy(desc(owners.createdAt))
     .limit(limit);
   const consents = await consentsOf(db, rows.map((r) => r.id));
@@ -192,7 +193,7 @@ export async function recordConsent(tx: DbOrTx, input: { ownerId: string; consen
  */
 export async function ownerOnRecord(tx: DbOrTx, details: OwnerDetails): Promise<{ ownerId: string; newOwner: boolean }> {
   const owner = checkOwner(details, "owner.");
-  const [known] = owner.email ? await tx.select({ id: owners.id }).from(owners).where(sql`lower(${owners.email}) = ${owner.email}`).limit(1) : [];
+  const [known] = owner.email ? await tx.select({ id: owners.id }).from(owners).where(and(sql`lower(${owners.email}) = ${owner.email}`, isNull(owners.mergedIntoId))).limit(1) : [];
   if (known) return { ownerId: known.id, newOwner: false };
   const ownerId = newId();
   await tx.insert(owners).values({ id: ownerId, ...owner, createdAt: now() });

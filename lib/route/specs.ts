@@ -3,7 +3,7 @@ import "server-only";
 import { and, asc, count, desc, eq } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { models, processSpecs, routeStarts, users, type ProcessSpec } from "@/db/schema";
-import { AppError } from "@/lib/auth/errors";
+import { AppError, isConstraintError } from "@/lib/auth/errors";
 import { now } from "@/lib/clock";
 import { newId } from "@/lib/auth/tokens";
 import { appendEvent } from "@/lib/events/queries";
@@ -58,18 +58,26 @@ export async function createSpecVersion(db: DbOrTx, input: { modelId: string; st
   input.steps.forEach((s, i) => {
     if (s.seq !== i + 1) throw new AppError(400, `Step ${i + 1} is numbered ${s.seq}: number the steps 1, 2, 3… in order.`);
   });
-  return db.transaction(async (tx) => {
-    const [model] = await tx.select({ code: models.code }).from(models).where(eq(models.id, input.modelId)).limit(1);
-    if (!model) throw new AppError(404, "That model is not in the register. Go back to the routes and choose it again.");
+  const staleRefusal = async (tx: DbOrTx, code: string) => {
     const latest = await currentSpec(tx, input.modelId);
-    if (input.baseVersion !== undefined && (latest?.version ?? 0) !== input.baseVersion) {
-      if (!latest) throw new AppError(409, `The route of ${model.code} has changed since you opened this form, so yours was not saved. Open the editor again.`);
-      const [by] = latest.createdBy ? await tx.select({ name: users.name }).from(users).where(eq(users.id, latest.createdBy)).limit(1) : [];
-      throw new AppError(
-        409,
-        `Version ${latest.version} of ${model.code} was saved${by ? ` by ${by.name}` : ""} after you opened this form, so yours was not saved. Open the editor again to start from version ${latest.version}.`,
-      );
-    }
+    if (!latest) return new AppError(409, `The route of ${code} has changed since you opened this form, so yours was not saved. Open the editor again.`);
+    const [by] = latest.createdBy ? await tx.select({ name: users.name }).from(users).where(eq(users.id, latest.createdBy)).limit(1) : [];
+    return new AppError(
+      409,
+      `Version ${latest.version} of ${code} was saved${by ? ` by ${by.name}` : ""} after you opened this form, so yours was not saved. Open the editor again to start from version ${latest.version}.`,
+    );
+  };
+  let code = "";
+  // The check and the write are one BEGIN IMMEDIATE transaction (libSQL's "write" mode), taken in
+  // turn within this process (withWriteLock); should another process still write the same version
+  // first, the unique (model, kind, version) index refuses this one and it gets the same answer.
+  return db.transaction(async (tx) => {
+    const [model] = await tx.select({ code: models.code, active: models.active }).from(models).where(eq(models.id, input.modelId)).limit(1);
+    if (!model) throw new AppError(404, "That model is not in the register. Go back to the routes and choose it again.");
+    code = model.code;
+    if (!model.active) throw new AppError(409, `${model.code} is retired, so its route takes no new versions. Bring the model back under Administration → Models first.`);
+    const latest = await currentSpec(tx, input.modelId);
+    if (input.baseVersion !== undefined && (latest?.version ?? 0) !== input.baseVersion) throw await staleRefusal(tx, model.code);
     if (latest && sameSteps(latest.steps, input.steps)) {
       throw new AppError(400, `Nothing to save: the steps are the same as version ${latest.version}. Change a step, or leave the route as it is.`);
     }
@@ -78,6 +86,9 @@ export async function createSpecVersion(db: DbOrTx, input: { modelId: string; st
     const eventId = await appendEvent(tx, { actorId: actor.id, station: "admin", type: "spec.created", subjectKind: "model", subjectId: input.modelId, data: { model: model.code, code: model.code, version, steps: input.steps.length, note: input.note } });
     const [row] = await tx.insert(processSpecs).values({ id, modelId: input.modelId, version, steps: input.steps, note: input.note, createdBy: actor.id, eventId, createdAt: now() }).returning();
     return { ...row!, modelCode: model.code };
+  }).catch(async (e: unknown) => {
+    if (isConstraintError(e, "UNIQUE")) throw await staleRefusal(db, code);
+    throw e;
   });
 }
 

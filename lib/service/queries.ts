@@ -12,6 +12,7 @@ import { workshopDay } from "@/lib/workshop-time";
 import { OPEN_CASE_STATES, type CaseState } from "@/lib/vocabulary/case-states";
 import { normaliseCaseCode } from "./code";
 import { workOutWarranty, type Warranty } from "./warranty";
+import { modelSpecOf } from "@/lib/workshop/model-spec-of";
 
 export interface PairShipment {
   shipmentId: string;
@@ -69,7 +70,10 @@ export async function caseByCode(db: DbOrTx, code: string): Promise<ServiceCase 
  * named at the desk does not move the start).
  */
 export async function warrantyFacts(db: DbOrTx, c: Pick<ServiceCase, "pairId" | "receivedOn" | "openedAt">): Promise<Warranty | null> {
-  const [pair] = await db.select({ months: models.warrantyMonths }).from(items).innerJoin(models, eq(models.id, items.modelId)).where(eq(items.id, c.pairId)).limit(1);
+  // The warranty of the model version the pair was built under: a later edit does not change a sold pair's.
+  const [row] = await db.select({ id: items.id, modelId: items.modelId }).from(items).where(eq(items.id, c.pairId)).limit(1);
+  const spec = row ? await modelSpecOf(db, row) : null;
+  const pair = spec ? { months: spec.warrantyMonths } : null;
   const shipment = await shipmentOfPair(db, c.pairId);
   if (!pair || !shipment) return null;
   // An owner the desk named at a service intake is on record, but did not register the pair.
@@ -217,9 +221,10 @@ export async function caseParticulars(db: DbOrTx, c: ServiceCase): Promise<CaseP
   const side = item.kind === "speaker" ? (speakers.L?.id === item.id ? "L" : speakers.R?.id === item.id ? "R" : null) : null;
   let model: CaseParticulars["model"] = null;
   if (pair.modelId) {
-    const [m] = await db.select().from(models).where(eq(models.id, pair.modelId)).limit(1);
-    const positions = await db.all<{ position: string; part_type: string }>(sql`SELECT position, part_type FROM model_positions WHERE model_id = ${pair.modelId} ORDER BY position DESC`);
-    if (m) model = { id: m.id, code: m.code, name: m.name, warrantyMonths: m.warrantyMonths, positions: positions.map((p) => ({ position: p.position, partType: p.part_type })) };
+    // The positions and warranty of the model version the pair was built under.
+    const m = await modelSpecOf(db, pair);
+    const positions = [...(m?.positions ?? [])].sort((a, b) => b.position.localeCompare(a.position));
+    if (m) model = { id: m.id, code: m.code, name: m.name, warrantyMonths: m.warrantyMonths, positions: positions.map((p) => ({ position: p.position, partType: p.partType })) };
   }
   const [dealer] = c.dealerId ? await db.select({ code: dealers.code, name: dealers.name, city: dealers.city }).from(dealers).where(eq(dealers.id, c.dealerId)) : [];
   return {

@@ -1,7 +1,7 @@
 import "server-only";
 import { desc, eq, inArray } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db";
-import { certificateRevisions, finalTests, items, models, responses, serviceCases, type CertificateRevision } from "@/db/schema";
+import { certificateRevisions, finalTests, items, responses, serviceCases, type CertificateRevision } from "@/db/schema";
 import type { ResponseComparison } from "@/lib/acoustics";
 import { AppError } from "@/lib/auth/errors";
 import { now as clockNow } from "@/lib/clock";
@@ -11,6 +11,7 @@ import { appendEvent } from "@/lib/events/queries";
 import { CASE_STATE_WORDS } from "@/lib/vocabulary/case-states";
 import { caseByCode } from "./queries";
 import { moveCase, SERVICE_STATION } from "./states";
+import { modelSpecOf } from "@/lib/workshop/model-spec-of";
 
 export interface RetestResult {
   comparison: ResponseComparison;
@@ -27,7 +28,7 @@ export async function retestView(db: DbOrTx, code: string) {
   const found = await caseByCode(db, code);
   if (!found) return null;
   const [pair] = await db.select().from(items).where(eq(items.id, found.pairId)).limit(1);
-  const [model] = pair?.modelId ? await db.select().from(models).where(eq(models.id, pair.modelId)).limit(1) : [];
+  const model = pair ? await modelSpecOf(db, pair) : null;
   const [test] = await db.select().from(finalTests).where(eq(finalTests.pairId, found.pairId)).orderBy(desc(finalTests.id)).limit(1);
   const rs = test ? await db.select().from(responses).where(inArray(responses.id, [test.leftResponseId, test.rightResponseId])) : [];
   // Only a test made for this case counts as its re-test (an older one is the lab's, from the build).
@@ -63,7 +64,8 @@ export async function retestCase(db: Db, input: { code: string; left: { name: st
   if (!found) throw new AppError(404, `There is no service case ${input.code.trim().toUpperCase()}.`);
   if (found.state !== "repaired") throw new AppError(409, `Case ${found.code} is “${CASE_STATE_WORDS[found.state]}”: only a repaired pair is tested again here.`);
   const [pair] = await db.select().from(items).where(eq(items.id, found.pairId)).limit(1);
-  const [model] = pair?.modelId ? await db.select().from(models).where(eq(models.id, pair.modelId)).limit(1) : [];
+  // Tested again under the model version the pair was built under.
+  const model = pair ? await modelSpecOf(db, pair) : null;
   if (!pair || !model) throw new AppError(409, `Case ${found.code} has no pair with a model to test against.`);
   const files = { left: input.left, right: input.right };
   const read = readPairTest(model, files);

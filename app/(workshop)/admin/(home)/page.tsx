@@ -15,7 +15,10 @@ const SECTIONS = [
   { href: "/admin/routes", title: "Cabinet routes", text: "Each model's steps through the shop, their readings and waits; edit one as a new version, and see which pairs follow which." },
   { href: "/admin/mail", title: "Mail", text: "Every message Twinleaf queued, whether it was delivered, and the demo's caught mail." },
   { href: paths.adminAudit, title: "Audit trail", text: "Check that no recorded event has been changed, removed or moved outside Twinleaf, and that the database's protective rules are in place." },
-  { href: "/register", title: "Models, finishes and dealers", text: "The workshop's reference data." },
+  { href: paths.adminModels, title: "Models", text: "Each speaker design: positions, limits, GTIN, warranty and packing list. A change is a new version; pairs in progress keep theirs." },
+  { href: paths.adminFinishes, title: "Finishes", text: "Veneer species and lacquer colours; add, edit or retire one." },
+  { href: paths.adminDealers, title: "Dealers", text: "The shops pairs go to: delivery address, country and e-mail; add, edit or mark one inactive." },
+  { href: paths.adminOwners, title: "Owners", text: "Correct an owner's record or merge two records of one person, each with its reason." },
 ];
 
 export default async function AdminPage() {

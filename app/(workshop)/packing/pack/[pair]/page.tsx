@@ -13,7 +13,8 @@ import { getDb } from "@/db";
 import { areaByKey } from "@/lib/areas";
 import { holdsOn } from "@/lib/containments";
 import { pageParam, requirePage } from "@/lib/auth/guard";
-import { knownLocations, packingList, pairForPacking, PACKABLE_STATES } from "@/lib/dispatch";
+import { knownLocations, pairForPacking, PACKABLE_STATES } from "@/lib/dispatch";
+import { packingListOfItem } from "@/lib/workshop/model-spec-of";
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { PackForm } from "./pack-form";
 
@@ -29,7 +30,7 @@ export default async function Page({ params, searchParams }: { params: Promise<{
   const pair = await pairForPacking(db, serial);
   if (!pair) notFound();
   const packable = (PACKABLE_STATES as readonly string[]).includes(pair.state);
-  const [items, locations, holds] = await Promise.all([pair.modelId ? packingList(db, pair.modelId) : Promise.resolve([]), knownLocations(db), holdsOn(db, [pair.id])]);
+  const [items, locations, holds] = await Promise.all([packingListOfItem(db, pair), knownLocations(db), holdsOn(db, [pair.id])]);
   // A pair tested before final tests were recorded gets its certificate when it is packed.
   const certificateReady = pair.hasCertificate || pair.finalTestPassed;
 

@@ -1,0 +1,1 @@
+ALTER TABLE `owners` ADD `merged_into_id` text REFERENCES owners(id);
