@@ -2,7 +2,7 @@
 import "server-only";
 import { and, eq, inArray, isNull } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
-import { finishes, items, links, modelPositions, models, type Finish, type Item, type Model } from "@/db/schema";
+import { finishes, items, links, modelPositions, models, modelTrimPositions, type Finish, type Item, type Model } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
 import { now as clockNow } from "@/lib/clock";
 import { holdMessage, holdsOn, type Hold } from "@/lib/containments/holds";
@@ -39,7 +39,8 @@ export async function pairContext(db: DbOrTx, pair: Item, at: Date = clockNow())
   const [model] = await db.select().from(models).where(eq(models.id, pair.modelId)).limit(1);
   const [finish] = pair.finishId ? await db.select().from(finishes).where(eq(finishes.id, pair.finishId)).limit(1) : [];
   const positions = await db.select().from(modelPositions).where(eq(modelPositions.modelId, pair.modelId));
-  const slots = slotsOf(positions);
+  const trim = await db.select().from(modelTrimPositions).where(eq(modelTrimPositions.modelId, pair.modelId));
+  const slots = slotsOf(positions, trim);
   let route: PairRoute | null = null;
   let routeProblem: string | null = null;
   try {
