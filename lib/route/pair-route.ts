@@ -18,7 +18,8 @@ import { changeState } from "@/lib/genealogy/graph";
 import type { Actor } from "@/lib/vocabulary/actor";
 import { ROUTE_KIND_LABEL } from "@/lib/vocabulary/route-kinds";
 import { HOLDER_WORD, membersPhrase } from "./group-words";
-import { checkReadings, checkStep, outOfWindowConfirmation, outOfWindowQuestion, position, type OutOfWindow } from "./rules";
+import { checkReadings, checkStep, outOfWindowConfirmation, outOfWindowQuestion, type OutOfWindow } from "./rules";
+import { routeState } from "./route-state";
 import { groupWords, isLoneLacquerCabinet, routedGroup, routedItemOf, type RoutedGroup } from "./routed-group";
 import type { PairPosition, RouteEntry, Side, StepSpec } from "./types";
 import { currentSpec } from "./specs";
@@ -47,25 +48,6 @@ export type PairRoute = ItemRoute;
 /** Finds the routed item a scanned serial belongs to (see routedItemOf); the older name. */
 export const pairOf = routedItemOf;
 
-/** History entries for the members now at each side, from the records and nonconformances. */
-function historyFor(records: (typeof routeRecords.$inferSelect)[], ncs: Nonconformance[], cabinets: { side: Side; item: Item }[]): RouteEntry[] {
-  const sideOf = new Map(cabinets.map((c) => [c.item.id, c.side]));
-  const sides = (list: { id: string }[]) => list.map((c) => sideOf.get(c.id)).filter((s): s is Side => Boolean(s));
-  const entries: (RouteEntry & { order: number })[] = [];
-  for (const r of records) {
-    const s = sides(r.cabinets);
-    if (s.length) entries.push({ kind: "step", id: r.id, seq: r.seq, cabinets: s, startedAt: r.startedAt, recordedAt: r.recordedAt, readings: r.readings, outOfWindow: r.outOfWindow, order: r.recordedAt.getTime() });
-  }
-  for (const n of ncs) {
-    entries.push({ kind: "nc_opened", id: n.openedEventId, ncId: n.code, cabinets: sides(n.cabinets), at: n.openedAt, order: n.openedAt.getTime() + 0.5 });
-    if (n.dispositionedAt) {
-      if (n.disposition === "rework") entries.push({ kind: "rework", id: n.dispositionEventId!, cabinets: sides(n.cabinets), toSeq: n.reworkToSeq!, at: n.dispositionedAt, order: n.dispositionedAt.getTime() });
-      entries.push({ kind: "nc_closed", id: n.dispositionEventId!, ncId: n.code, at: n.dispositionedAt, order: n.dispositionedAt.getTime() + 0.5 });
-    }
-  }
-  return entries.sort((a, b) => a.order - b.order || a.id - b.id).map(({ order: _o, ...e }) => e as RouteEntry);
-}
-
 /** Where a routed item is on its route (the route version it started under, or the newest of its kind). */
 export async function routeOf(db: DbOrTx, routed: Item, at: Date = clockNow()): Promise<ItemRoute> {
   const group = await routedGroup(db, routed);
@@ -79,8 +61,7 @@ export async function routeOf(db: DbOrTx, routed: Item, at: Date = clockNow()): 
   const records = await db.select().from(routeRecords).where(eq(routeRecords.pairId, routed.id)).orderBy(asc(routeRecords.id));
   const ncs = await db.select().from(nonconformances).where(eq(nonconformances.pairId, routed.id)).orderBy(asc(nonconformances.openedAt));
   const cabinets = group.members;
-  const history = historyFor(records, ncs, cabinets);
-  const pos = position(spec.steps, history, cabinets.map((c) => c.side), at);
+  const { history, position: pos } = routeState(spec.steps, records, ncs, cabinets, at);
   return { pair: routed, group, model: model!, finishName: finish?.name ?? null, spec, started: Boolean(start), cabinets, history, records, ncs, position: pos };
 }
 
