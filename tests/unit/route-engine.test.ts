@@ -30,7 +30,7 @@ function story(id: string, n: number): { records: RecordRow[]; ncs: NcRow[] } {
   return { records, ncs };
 }
 
-const groups: [RoutedKind, string][] = [
+const groups: ["lone_cabinet" | "trim_part", string][] = [
   ["lone_cabinet", "C-PW2-26-00001-X"],
   ["trim_part", "T-TB3-26-00001-X"],
 ];
