@@ -338,7 +338,24 @@ function Parts({ rows, replacements }: { rows: PositionRow[]; replacements: Repl
 function Trim({ rows }: { rows: TrimRow[] }) {
   const cols = [92, (CONTENT_W - 92) / 2, (CONTENT_W - 92) / 2];
   const cell = (w: number, last = false) => ({ width: w, paddingVertical: 2.6, paddingRight: last ? 0 : 6 });
-  const part = (p: TrimRow["left"]) => (p ? `${p.identity}${p.lot ? `, lot ${p.lot}` : ""}` : "—");
+  // Spaces stay out of the mono face (fontkit trips on Plex Mono's space): serials in mono, words in the text face.
+  const part = (p: TrimRow["left"], w: number, last = false) => (
+    <Text style={cell(w, last)}>
+      {p ? (
+        <>
+          <Mono>{p.identity}</Mono>
+          {p.lot ? (
+            <>
+              {", lot "}
+              <Mono>{p.lot}</Mono>
+            </>
+          ) : null}
+        </>
+      ) : (
+        "—"
+      )}
+    </Text>
+  );
   return (
     <View wrap={false}>
       <Heading>Trim parts</Heading>
@@ -352,8 +369,8 @@ function Trim({ rows }: { rows: TrimRow[] }) {
       {rows.map((r, k) => (
         <View key={r.position} style={{ flexDirection: "row", borderBottomWidth: 0.4, borderBottomColor: LINE, backgroundColor: k % 2 ? "#ffffff" : "#fbf9f4" }}>
           <Text style={cell(cols[0]!)}>{r.label}</Text>
-          <Mono style={cell(cols[1]!)}>{part(r.left)}</Mono>
-          <Mono style={cell(cols[2]!, true)}>{part(r.right)}</Mono>
+          {part(r.left, cols[1]!)}
+          {part(r.right, cols[2]!, true)}
         </View>
       ))}
     </View>
