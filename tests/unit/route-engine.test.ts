@@ -5,7 +5,7 @@
  * after step 2); they stand for no workshop's route.
  */
 import { describe, expect, test } from "vitest";
-import { groupWords, type RoutedKind } from "@/lib/route/group-words";
+import { groupWords } from "@/lib/route/group-words";
 import { routeState, type NcRow, type RecordRow } from "@/lib/route/route-state";
 import { checkStep, nextStepNow } from "@/lib/route/rules";
 import type { StepSpec } from "@/lib/route/types";
