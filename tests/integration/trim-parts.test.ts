@@ -13,11 +13,12 @@ import { buildSpeakers, checkScan } from "@/lib/assembly";
 import { AppError } from "@/lib/auth/errors";
 import { setClock } from "@/lib/clock";
 import { raiseContainment } from "@/lib/containments";
+import { createItem, fit } from "@/lib/genealogy/graph";
 import { traceForward } from "@/lib/genealogy/trace";
 import { dispositionNc, ncsToDisposition } from "@/lib/route/nonconformances";
 import { recordStep, routeOf, routedItemOf } from "@/lib/route/pair-route";
 import { readingsAtStation } from "@/lib/route/readings";
-import { currentSpec } from "@/lib/route/specs";
+import { createSpecVersion, currentSpec, routesOverview } from "@/lib/route/specs";
 import { search } from "@/lib/search/search";
 import { receiveTrimParts } from "@/lib/trim/receive";
 import { confirmRuns, flitchView, measureLeaf, receiveFlitch } from "@/lib/veneer/flitches";
@@ -239,5 +240,47 @@ describe("assembly fits trim parts", () => {
     expect(err.fieldErrors!["R.TOP"]).toEqual(["Scan the right top housing."]);
     expect(err.fieldErrors!["L.PLN"]).toEqual(["Scan the left plinth."]);
     expect(err.fieldErrors!["L.TOP"]).toBeUndefined();
+  });
+});
+
+describe("the trim route in the route editor", () => {
+  test("the trim route is versioned on its own: a new trim version leaves the cabinet route as it is, and a part already started keeps its version", async () => {
+    setClock(null);
+    const admin = (await db().select().from(users).where(eq(users.email, "admin@demo.twinleaf.test")))[0]!.id;
+    const started = (await receive({ lotCode: "IM-VER-1", count: 1 })).parts[0]!;
+    await trimStep(started, 1, new Date());
+    setClock(null);
+    const before = await currentSpec(db(), tb3.id, "trim");
+    const cabinet = await currentSpec(db(), tb3.id, "cabinet");
+    const steps = before!.steps.map((s) => (s.key === "trim-film" ? { ...s, readings: [{ ...s.readings[0]!, min: 70 }] } : s));
+    const saved = await createSpecVersion(db(), { modelId: tb3.id, routeKind: "trim", steps, note: "Thicker film for the new paint.", baseVersion: before!.version }, { id: admin });
+    expect(saved).toMatchObject({ routeKind: "trim", version: before!.version + 1 });
+    expect((await currentSpec(db(), tb3.id, "cabinet"))!.id).toBe(cabinet!.id);
+    // A second save from the same base is refused: the version it started from is no longer the newest.
+    expect(await failureText(() => createSpecVersion(db(), { modelId: tb3.id, routeKind: "trim", steps, note: "Same again from an old form.", baseVersion: before!.version }, { id: admin }))).toMatch(/trim-part route of TB3|was saved/);
+    expect((await routeOf(db(), started)).spec.version).toBe(before!.version);
+    const fresh = (await receive({ lotCode: "IM-VER-2", count: 1 })).parts[0]!;
+    expect((await routeOf(db(), fresh)).spec.version).toBe(saved.version);
+    const overview = (await routesOverview(db())).find((o) => o.model.code === "TB3")!;
+    expect(overview.hasTrim).toBe(true);
+    expect(overview.trimVersions.map((v) => v.spec.version)).toEqual([saved.version, before!.version]);
+    expect(overview.versions.map((v) => v.spec.version)).toEqual([cabinet!.version]);
+    expect((await routesOverview(db())).find((o) => o.model.code === "PW2")!.hasTrim).toBe(false);
+  });
+});
+
+describe("a supplier's lot traced forward", () => {
+  test("a containment of the lot reaches the speaker and the pair holding one of its parts", async () => {
+    setClock(null);
+    const { parts, lot } = await receive({ lotCode: "IM-FWD-1", count: 1 });
+    // A speaker and its pair made by hand in the graph, holding the part at its trim position.
+    const by = { actorId: ids.assembly, station: "assembly" as const };
+    const speaker = await createItem(db(), { kind: "speaker", identity: "S-TB3-26-99001-Z", state: "built", modelId: tb3.id }, by);
+    const pairItem = await createItem(db(), { kind: "pair", identity: "P-TB3-26-99001-Z", state: "awaiting_test", modelId: tb3.id }, by);
+    await fit(db(), { parent: speaker, child: parts[0]!, position: "TOP" }, by);
+    await fit(db(), { parent: pairItem, child: speaker, position: "L" }, by);
+    const raised = await raiseContainment(db(), { target: lot.identity, reason: "Paint lifting on parts of this lot.", severity: "major" }, { id: ids.quality });
+    // The pair is listed; the part inside it is not listed on its own (it is in build, inside the pair).
+    expect(raised.affected.map((a) => a.identity)).toEqual([pairItem.identity, speaker.identity]);
   });
 });
