@@ -20,6 +20,8 @@ export const paths = {
   cabinet: "/cabinet",
   cabinetPair: (identity: string, station?: string) => `/cabinet/pairs/${seg(identity)}${station ? `?station=${seg(station)}` : ""}`,
   lacquer: "/cabinet/lacquer",
+  /** Goods-in of metal trim parts; their route opens at cabinetPair like any routed item. */
+  trimParts: "/cabinet/trim",
 
   lab: "/lab",
   labBatch: (code: string) => `/lab/batches/${seg(code)}`,

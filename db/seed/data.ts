@@ -13,6 +13,8 @@ export interface SeedModel extends Omit<typeof models.$inferInsert, "id" | "acti
   positions: { position: string; partType: PartType; count: number }[];
   /** Largest band difference allowed between the left and right unit of one part type, in dB. */
   tolerances: { partType: PartType; mismatchLimitDb: number }[];
+  /** Metal trim parts a speaker takes, bought in and finished on the trim route (invented). */
+  trim?: { position: string; label: string; count: number }[];
 }
 
 export type SeedFinish = Omit<typeof finishes.$inferInsert, "id" | "active">;
@@ -105,6 +107,11 @@ export const SEED_MODELS: SeedModel[] = [
       { partType: "tweeter", mismatchLimitDb: 0.5 },
       { partType: "midrange", mismatchLimitDb: 0.5 },
       { partType: "bass", mismatchLimitDb: 0.75 },
+    ],
+    // The tower stands on a painted metal plinth and carries a machined top housing (invented).
+    trim: [
+      { position: "TOP", label: "Top housing", count: 1 },
+      { position: "PLN", label: "Plinth", count: 1 },
     ],
   },
 ];

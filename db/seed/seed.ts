@@ -1,7 +1,7 @@
 import { randomUUID } from "node:crypto";
 import { eq, inArray, sql } from "drizzle-orm";
 import type { Db } from "@/db";
-import { dealers, finishes, modelCrossoverPositions, modelPositions, modelTolerances, models, userRoles, users } from "@/db/schema";
+import { dealers, finishes, modelCrossoverPositions, modelPositions, modelTolerances, models, modelTrimPositions, userRoles, users } from "@/db/schema";
 import { hashPassword } from "@/lib/auth/password";
 import type { Role } from "@/lib/auth/roles";
 import { appendEvent } from "@/lib/events/queries";
@@ -81,7 +81,7 @@ export async function seedDemo(db: Db, options: { history?: boolean; months?: nu
       );
     }
 
-    for (const { positions, tolerances, ...model } of SEED_MODELS) {
+    for (const { positions, tolerances, trim = [], ...model } of SEED_MODELS) {
       const [row] = await tx
         .insert(models)
         .values({ id: randomUUID(), ...model })
@@ -90,12 +90,13 @@ export async function seedDemo(db: Db, options: { history?: boolean; months?: nu
       if (!row) continue;
       await tx.insert(modelPositions).values(positions.map((p) => ({ modelId: row.id, ...p })));
       await tx.insert(modelTolerances).values(tolerances.map((t) => ({ modelId: row.id, ...t })));
+      if (trim.length) await tx.insert(modelTrimPositions).values(trim.map((t) => ({ modelId: row.id, ...t })));
       created.models++;
       created.modelPositions += positions.length;
       created.modelTolerances += tolerances.length;
       await appendEvent(tx, {
         ...SEED_EVENT, type: "model.created", subjectKind: "model", subjectId: row.id,
-        data: { ...model, positions, tolerances },
+        data: { ...model, positions, tolerances, trim },
       });
     }
     // Every model gets the workshop's usual cabinet route as its first version, and a packing list;

@@ -10,6 +10,7 @@ import { positionName } from "@/lib/vocabulary/positions";
 import { sideWord, type Side } from "@/lib/vocabulary/sides";
 import { pairContext, type PairContext } from "./context";
 import { failureReason, findScanned, hasUnitResponse, holderOf, openMembership } from "./lookups";
+import { checkTrimPart } from "./trim";
 
 export interface ChosenPart {
   side: Side;
@@ -45,6 +46,8 @@ export async function checkScanIn(db: DbOrTx, ctx: PairContext, input: Omit<Scan
   if ("reason" in found) return refuse(found.reason);
   const item = found.item;
   const here = `this field is for the ${positionName(slot.slot)}`;
+
+  if (slot.kind === "trim") return checkTrimPart(db, ctx, { side, slot, item, chosen: input.chosen });
 
   if (slot.kind === "crossover") {
     if (item.kind !== "crossover") return refuse(`${item.identity} is a ${item.kind === "drive_unit" ? partWord(item.partType) : KIND_WORD[item.kind] ?? item.kind}; ${here}: scan a crossover board.`);

@@ -42,9 +42,10 @@ export async function pairContext(db: DbOrTx, pair: Item, at: Date = clockNow())
   if (pair.kind !== "pair" || !pair.modelId) throw new AppError(400, `${pair.identity} is not a pair of a model.`);
   const [model] = await db.select().from(models).where(eq(models.id, pair.modelId)).limit(1);
   const [finish] = pair.finishId ? await db.select().from(finishes).where(eq(finishes.id, pair.finishId)).limit(1) : [];
-  // The drive-unit positions of the model version the pair was started under, not a later edit's.
-  const positions = (await modelSpecOf(db, pair))?.positions ?? [];
-  const slots = slotsOf(positions);
+  // The drive-unit and trim positions of the model version the pair was started under, not a later edit's.
+  const spec = await modelSpecOf(db, pair);
+  const positions = spec?.positions ?? [];
+  const slots = slotsOf(positions, spec?.trimPositions ?? []);
   let route: PairRoute | null = null;
   let routeProblem: string | null = null;
   try {

@@ -1,7 +1,7 @@
 import "server-only";
 import { finishDetail } from "@/lib/workshop/finish-words";
 import { SIDES, type Side } from "@/lib/vocabulary/sides";
-import { and, desc, eq, inArray, isNotNull, isNull } from "drizzle-orm";
+import { and, asc, desc, eq, inArray, isNotNull, isNull } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db";
 import {
   certificatePrints,
@@ -17,6 +17,7 @@ import {
   matchedSets,
   modelPositions,
   models,
+  modelTrimPositions,
   responses,
   setMembers,
   users,
@@ -29,6 +30,7 @@ import { newId } from "@/lib/auth/tokens";
 import { now as clockNow } from "@/lib/clock";
 import { shippedAt } from "@/lib/genealogy/trace";
 import { parseSerial } from "@/lib/serials/format";
+import { SUPPLIER_LOT_POSITION } from "@/lib/vocabulary/positions";
 import { certificateCode, verifyUrl } from "./code";
 import { formatDb, formatHz } from "./figures";
 
@@ -57,6 +59,16 @@ export interface PositionRow {
   right: string | null;
   /** Null where the two do not belong to one matched set (history pairs, a repair): printed "—". */
   match: MatchFigure | null;
+}
+
+/** One trim position of the model (a count of n gives n rows, "TOP-1"…) with both speakers' parts. */
+export interface TrimRow {
+  /** The link position in the speaker: "TOP", "PLN-2". */
+  position: string;
+  /** The model's name for it: "Top housing". */
+  label: string;
+  left: { identity: string; lot: string | null } | null;
+  right: { identity: string; lot: string | null } | null;
 }
 
 export interface VeneerLeafOnFace {
@@ -154,6 +166,8 @@ export interface CertificateData {
   /** Null for lacquered pairs. */
   veneer: VeneerOrigin | null;
   positions: PositionRow[];
+  /** The speakers' metal trim parts with their supplier's lots; empty for a model without trim. */
+  trim: TrimRow[];
   finalTest: FinalTestFigure | null;
   /** Only the steps done by the time of printing: a pair not yet packed has no packing line. */
   signatures: Signature[];
@@ -249,6 +263,29 @@ interface Child {
   identity: string;
   partType: string | null;
   attrs: Record<string, unknown>;
+}
+
+/**
+ * The trim rows: the model's trim positions (by code; a count of n gives "TOP-1"…), then any other
+ * trim part a speaker holds, each side with its supplier's lot (the lot sits in the part at SLOT).
+ */
+async function trimRows(db: DbOrTx, modelId: string, parts: Child[], partsOf: (side: Side) => Child[]): Promise<TrimRow[]> {
+  const positions = await db.select().from(modelTrimPositions).where(eq(modelTrimPositions.modelId, modelId)).orderBy(asc(modelTrimPositions.position));
+  const expected = new Map<string, string>();
+  for (const p of positions) {
+    if (p.count <= 1) expected.set(p.position, p.label);
+    else for (let i = 1; i <= p.count; i++) expected.set(`${p.position}-${i}`, `${p.label} ${i}`);
+  }
+  const fitted = parts.filter((c) => c.kind === "trim_part");
+  for (const c of fitted) if (!expected.has(c.position)) expected.set(c.position, positions.find((p) => p.position === c.partType)?.label ?? "Trim part");
+  if (!expected.size) return [];
+  const lots = await openChildren(db, fitted.map((c) => c.id));
+  const lotOf = (id: string) => lots.find((l) => l.parentId === id && l.position === SUPPLIER_LOT_POSITION)?.identity ?? null;
+  const at = (side: Side, position: string) => {
+    const c = partsOf(side).find((x) => x.kind === "trim_part" && x.position === position);
+    return c ? { identity: c.identity, lot: lotOf(c.id) } : null;
+  };
+  return [...expected].map(([position, label]) => ({ position, label, left: at("L", position), right: at("R", position) }));
 }
 
 async function openChildren(db: DbOrTx, parentIds: string[]): Promise<Child[]> {
@@ -454,6 +491,8 @@ export async function certificateData(db: DbOrTx, pairId: string, opts: { baseUr
     })
     .sort((a, b) => (PART_ORDER[a.part] ?? 2.5) - (PART_ORDER[b.part] ?? 2.5) || a.position.localeCompare(b.position));
 
+  const trim = await trimRows(db, model.id, parts, partsOf);
+
   let veneer: VeneerOrigin | null = null;
   if (finish?.kind === "veneer") {
     const faces = await veneerFaces(db, pair.id, cabinets);
@@ -510,6 +549,7 @@ export async function certificateData(db: DbOrTx, pairId: string, opts: { baseUr
     speakers: { L: { identity: speakers.L.identity, cabinet: cabinets.L?.identity ?? null }, R: { identity: speakers.R.identity, cabinet: cabinets.R?.identity ?? null } },
     veneer,
     positions,
+    trim,
     finalTest,
     signatures,
     packed,

@@ -3,7 +3,7 @@ import type { ReactNode } from "react";
 import { renderBarcode } from "@/lib/labels/barcodes";
 import { CERT_MONO_FONT as MONO_FONT, CERT_TEXT_FONT as TEXT_FONT, registerCertificateFonts } from "./fonts";
 import type { Side } from "@/lib/vocabulary/sides";
-import type { CertificateData, FinalTestFigure, PositionRow, Replacement, VeneerOrigin } from "./data";
+import type { CertificateData, FinalTestFigure, PositionRow, Replacement, TrimRow, VeneerOrigin } from "./data";
 import { bandLabel, formatDb, formatHz } from "./figures";
 import { formatLongDate, formatMonthYear } from "@/lib/format";
 
@@ -53,6 +53,7 @@ export async function renderCertificate(data: CertificateData): Promise<Buffer> 
         <Serials data={data} />
         {data.veneer ? <Veneer veneer={data.veneer} finishCode={data.finish?.code ?? ""} /> : <Lacquer data={data} />}
         <Parts rows={data.positions} replacements={data.replacements} />
+        {data.trim.length ? <Trim rows={data.trim} /> : null}
         <Responses test={data.finalTest} speakers={data.speakers} repairedAt={lastRepair(data)} height={chartHeight(data)} />
         <Footer data={data} qr={qr} />
       </Page>
@@ -333,6 +334,49 @@ function Parts({ rows, replacements }: { rows: PositionRow[]; replacements: Repl
   );
 }
 
+/** The speakers' metal trim parts: each position with both serials and their supplier's lots. */
+function Trim({ rows }: { rows: TrimRow[] }) {
+  const cols = [92, (CONTENT_W - 92) / 2, (CONTENT_W - 92) / 2];
+  const cell = (w: number, last = false) => ({ width: w, paddingVertical: 2.6, paddingRight: last ? 0 : 6 });
+  // Spaces stay out of the mono face (fontkit trips on Plex Mono's space): serials in mono, words in the text face.
+  const part = (p: TrimRow["left"], w: number, last = false) => (
+    <Text style={cell(w, last)}>
+      {p ? (
+        <>
+          <Mono>{p.identity}</Mono>
+          {p.lot ? (
+            <>
+              {", lot "}
+              <Mono>{p.lot}</Mono>
+            </>
+          ) : null}
+        </>
+      ) : (
+        "—"
+      )}
+    </Text>
+  );
+  return (
+    <View wrap={false}>
+      <Heading>Trim parts</Heading>
+      <View style={{ flexDirection: "row", borderBottomWidth: 0.6, borderBottomColor: LINE_STRONG }}>
+        {["Position", "Left speaker (supplier's lot)", "Right speaker (supplier's lot)"].map((h, i) => (
+          <Text key={h} style={{ ...cell(cols[i]!, i === 2), fontSize: 7.5, color: SOFT }}>
+            {h}
+          </Text>
+        ))}
+      </View>
+      {rows.map((r, k) => (
+        <View key={r.position} style={{ flexDirection: "row", borderBottomWidth: 0.4, borderBottomColor: LINE, backgroundColor: k % 2 ? "#ffffff" : "#fbf9f4" }}>
+          <Text style={cell(cols[0]!)}>{r.label}</Text>
+          {part(r.left, cols[1]!)}
+          {part(r.right, cols[2]!, true)}
+        </View>
+      ))}
+    </View>
+  );
+}
+
 // ---- the final responses ------------------------------------------------------------------------
 
 const F_MIN = 20;
@@ -365,7 +409,9 @@ function levelAt(points: [number, number][], hz: number): number | null {
  */
 function chartHeight(data: CertificateData): number {
   const n = data.replacements.length;
-  return n ? Math.max(100, 165 - (10 * (n + 1) + 10 + 12)) : 165;
+  // The trim table takes its heading and a line per row from the chart, so the page stays one page.
+  const trim = data.trim.length ? 22 + 12 * (data.trim.length + 1) : 0;
+  return Math.max(90, (n ? Math.max(100, 165 - (10 * (n + 1) + 10 + 12)) : 165) - trim);
 }
 
 function Responses({ test, speakers, repairedAt, height }: { test: FinalTestFigure | null; speakers: CertificateData["speakers"]; repairedAt: Date | null; height: number }) {

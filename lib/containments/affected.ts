@@ -4,7 +4,7 @@ import type { DbOrTx } from "@/db";
 import type { AffectedGroup } from "@/lib/vocabulary/containments";
 
 /** The kinds a containment lists: what is built, sold and serviced, and parts in stock. */
-export const LISTED_KINDS = ["pair", "speaker", "cabinet", "drive_unit", "crossover", "leaf"] as const;
+export const LISTED_KINDS = ["pair", "speaker", "cabinet", "drive_unit", "crossover", "trim_part", "leaf"] as const;
 /** Parts listed on their own only while no speaker or pair holds them. */
 const WHOLE_KINDS = ["pair", "speaker"];
 
@@ -31,6 +31,8 @@ export function groupOf(row: { pairId: string | null; kind: string; state: strin
     return "in_build";
   }
   if (row.kind === "cabinet" && row.state === "in_progress") return "in_build";
+  // A trim part on its own route (sanded, painted, polished) is in the shop's work, not on a shelf.
+  if (row.kind === "trim_part" && row.state === "in_route") return "in_build";
   return "in_stock";
 }
 

@@ -21,7 +21,7 @@ import { containmentCode, containmentPrefix } from "./code";
 export const QUALITY_STATION = "quality" as const;
 
 /** What a containment may name: a source shared by many parts, or one serialised thing. */
-export const TARGET_KINDS: readonly ItemKind[] = ["component_lot", "unit_batch", "maker_lot", "flitch", "drive_unit", "crossover", "cabinet", "leaf", "speaker", "pair"];
+export const TARGET_KINDS: readonly ItemKind[] = ["component_lot", "unit_batch", "maker_lot", "flitch", "supplier_lot", "drive_unit", "crossover", "cabinet", "trim_part", "leaf", "speaker", "pair"];
 
 /** A target as typed on the form or sent as JSON: an identity, or a station and a window. */
 export type TargetInput = string | { station?: unknown; from?: unknown; to?: unknown };
@@ -79,7 +79,7 @@ export async function resolveTarget(db: DbOrTx, target: unknown): Promise<Resolv
   const hit = answer.exact as Extract<NonNullable<typeof answer.exact>, { type: "item" }>;
   const kind = hit.kind as ItemKind;
   if (!isItemKind(hit.kind) || !TARGET_KINDS.includes(kind)) {
-    refuse(400, "target", `${hit.identity} is a ${isItemKind(hit.kind) ? KIND_WORD[hit.kind as ItemKind] : hit.kind}: name a lot, a batch, a flitch, or one unit, board, cabinet, speaker or pair.`);
+    refuse(400, "target", `${hit.identity} is a ${isItemKind(hit.kind) ? KIND_WORD[hit.kind as ItemKind] : hit.kind}: name a lot, a batch, a flitch, or one unit, board, cabinet, trim part, speaker or pair.`);
   }
   return { type: "item", itemId: hit.id, kind, identity: hit.identity, label: `${KIND_LABEL[kind]} ${hit.identity}` };
 }

@@ -174,6 +174,7 @@ const SENTENCES: Record<EventType, Sentence> = {
     const word = partWord(str(d, "partType"));
     return `received batch ${str(d, "code")}${count !== null ? `: ${plural(count, word)}` : ""}${str(d, "partNumber") ? `, part ${str(d, "partNumber")}` : ""}`;
   }),
+  "trim.received": needs(["lot"], (d) => `received ${plural(num(d, "count") ?? 0, "trim part")}${str(d, "model") ? ` for the ${str(d, "model")}` : ""} in lot ${str(d, "lot")}${str(d, "supplier") ? ` from ${str(d, "supplier")}` : ""}`),
   "unit.response_measured": (d) => {
     const from = num(d, "fromHz");
     const to = num(d, "toHz");

@@ -37,6 +37,8 @@ export function labelSpecFor(details: ItemWithNames, symbology: Symbology, baseU
   const { item, model, finish, dealer } = details;
   const side = typeof item.attrs.side === "string" ? SIDE[item.attrs.side] : undefined;
   const title = [KIND_LABEL[item.kind] ?? item.kind, side, item.partType].filter(Boolean).join(" · ");
-  const lines = [model ? `${model.code} ${model.name}` : null, finish?.name, dealer ? `for ${dealer.name}` : null].filter((l): l is string => Boolean(l));
+  // A trim part's label names its supplier's lot, so the lot can be read off the part on the bench.
+  const lot = item.kind === "trim_part" && typeof item.attrs.lot === "string" ? `supplier's lot ${item.attrs.lot}` : null;
+  const lines = [model ? `${model.code} ${model.name}` : null, finish?.name, lot, dealer ? `for ${dealer.name}` : null].filter((l): l is string => Boolean(l));
   return { title, serial: item.identity, lines, barcode: { symbology, text: barcodeText(details, symbology, baseUrl) } };
 }

@@ -17,5 +17,13 @@ export const STATION_CAUTIONS: Record<RouteStation, string[]> = {
   flatting: ["Flatting back raises fine lacquer dust: run the extraction and wear a mask.", LIFT],
   cure: ["Curing racks carry heavy cabinets: load from the bottom up and keep the racks stable.", LIFT],
   polish: ["Polishing wheels can grab: keep loose clothing and hair clear, and hold the work firmly.", "Polishing dust and compound: run the extraction; wear eye protection.", LIFT],
+  "metal-sanding": [
+    "Sanding metal raises fine metal dust and sparks: run the extraction, keep the bench clear of solvent rags, and wear the eye protection and mask your site specifies.",
+    "Machined edges are sharp: wear cut-resistant gloves when handling housings and plinths.",
+  ],
+  paint: [
+    "Solvent paint vapour: paint only where the ventilation runs, and wear the respirator and gloves your site specifies.",
+    "Paint and its vapour burn: no flames, sparks or smoking near the bench; keep rags in the closed bin.",
+  ],
   finish: ["Polishing compounds and solvents: use gloves and keep the area ventilated.", LIFT],
 };

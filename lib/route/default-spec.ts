@@ -67,3 +67,38 @@ function coat(n: number, holdAfter?: StepSpec["holdAfter"]): Omit<StepSpec, "seq
     note: n === 8 ? "The last of 8 coats: curing starts when it is recorded (common practice)." : "Each coat is stoved in the oven (common practice).",
   };
 }
+
+/**
+ * The demo workshop's route for a bought-in metal trim part (a top housing, a plinth, a bezel).
+ * Common practice, as the workshop states it (no published source): sand the machined part, hand
+ * check the surface, hand paint it in three coats, let the last coat cure 24 hours, read the dry
+ * film thickness (the demo workshop's window: 60–120 µm over the three coats), polish by hand, and
+ * inspect it before it goes to assembly. Kept to numbers and checks on purpose: the coat readings
+ * of the cabinet route (lacquer lot, oven temperature) are not asked of a hand-painted part.
+ */
+export function defaultTrimRoute(): StepSpec[] {
+  const steps: Omit<StepSpec, "seq">[] = [
+    { key: "trim-sanding", name: "Sanding, machine and hand", station: "metal-sanding", readings: [], note: "Machine sanding of the machined faces, then by hand at the edges (common practice)." },
+    { key: "trim-check-sanding", name: "Hand check after sanding", station: "inspection", readings: [{ key: "pass", label: "Inspector's check: no tool marks, edges even", unit: null, kind: "check" }] },
+    ...[1, 2, 3].map(
+      (n): Omit<StepSpec, "seq"> => ({
+        key: `trim-paint-${n}`,
+        name: `Hand painting, coat ${n}`,
+        station: "paint",
+        readings: [{ key: "coat", label: "Coat number", unit: null, kind: "number", equals: n }],
+        ...(n === 3 ? { holdAfter: { minutes: 24 * HOUR, from: "end" as const, label: "curing, 24 h after the last coat" } } : {}),
+        note: n === 3 ? "The last of 3 coats: curing starts when it is recorded (common practice)." : "Painted by hand (common practice).",
+      }),
+    ),
+    {
+      key: "trim-film",
+      name: "Dry film reading",
+      station: "inspection",
+      readings: [{ key: "filmUm", label: "Dry film thickness", unit: "µm", kind: "number", min: 60, max: 120 }],
+      note: "Read with a film gauge after curing (common practice; the window 60–120 µm is the demo workshop's).",
+    },
+    { key: "trim-polish", name: "Hand polishing", station: "finish", readings: [] },
+    { key: "trim-inspection", name: "Final inspection", station: "inspection", readings: [{ key: "pass", label: "Inspector's check: finish even, no runs or burn-through", unit: null, kind: "check" }] },
+  ];
+  return steps.map((s, i) => ({ ...s, seq: i + 1 }));
+}

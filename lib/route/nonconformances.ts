@@ -11,7 +11,7 @@ import { parseSerial } from "@/lib/serials/format";
 import type { Actor } from "@/lib/vocabulary/actor";
 import { PAIR_CABINET_POSITION as CAB_POSITION, sideOfCabinetPosition } from "@/lib/vocabulary/positions";
 import type { Side } from "./types";
-import { pairRoute } from "./pair-route";
+import { routeOf } from "./pair-route";
 import { DISPOSITION_WORDS, dispositionSentence } from "./words";
 
 /** Quality's decision on a nonconformance, once: rework to a named step, use as is, or scrap one cabinet. */
@@ -26,7 +26,7 @@ export async function dispositionNc(
     if (!nc) throw new AppError(404, "That nonconformance is not in the register.");
     if (nc.disposition) throw new AppError(409, `${nc.code} was already dispositioned (${DISPOSITION_WORDS[nc.disposition]}).`);
     const [pair] = await tx.select().from(items).where(eq(items.id, nc.pairId)).limit(1);
-    const route = await pairRoute(tx, pair!, at);
+    const route = await routeOf(tx, pair!, at);
     let reworkToSeq: number | null = null;
     let scrapCabinet: Item | null = null;
     // Seq 0 is the final pair test: rework means adjust and test again; use as is accepts the deviation.
@@ -41,7 +41,7 @@ export async function dispositionNc(
     }
     if (input.disposition === "scrap") {
       const c = route.cabinets.find((x) => x.side === input.scrapSide);
-      if (!c) throw new AppError(400, "Choose the cabinet to scrap.", { scrapSide: ["Choose left or right."] });
+      if (!c) throw new AppError(400, route.group.kind === "trim_part" ? "Choose the trim part to scrap." : "Choose the cabinet to scrap.", { scrapSide: [route.group.kind === "pair" ? "Choose left or right." : "Choose it to scrap it."] });
       scrapCabinet = c.item;
     }
     const eventId = await appendEvent(tx, {
@@ -60,8 +60,8 @@ export async function dispositionNc(
     if (finalTest) {
       await changeState(tx, pair!, input.disposition === "use_as_is" ? "ready_to_pack" : "awaiting_test", { actorId: actor.id, station: "quality", reason: input.reason }, { nc: nc.code });
     }
-    if (scrapCabinet && pair!.kind === "cabinet") {
-      // A lone lacquer cabinet: nothing to break apart.
+    if (scrapCabinet && route.group.kind !== "pair") {
+      // A lone lacquer cabinet or a trim part: nothing to break apart.
       await changeState(tx, scrapCabinet, "scrapped", { actorId: actor.id, station: "quality", reason: input.reason }, { nc: nc.code });
     } else if (scrapCabinet) {
       const by: Recorder = { actorId: actor.id, station: "quality", reason: input.reason };
@@ -91,7 +91,7 @@ export async function dispositionSummary(db: DbOrTx, code: string, opts: { pairI
   let reworkToName: string | null = null;
   if (nc.reworkToSeq) {
     try {
-      reworkToName = (await pairRoute(db, holder)).spec.steps.find((s) => s.seq === nc.reworkToSeq)?.name ?? null;
+      reworkToName = (await routeOf(db, holder)).spec.steps.find((s) => s.seq === nc.reworkToSeq)?.name ?? null;
     } catch {
       // A pair whose route cannot be read now (no spec): the step's number alone.
     }
@@ -103,8 +103,8 @@ export async function dispositionSummary(db: DbOrTx, code: string, opts: { pairI
     seq: nc.seq,
     reworkToSeq: nc.reworkToSeq,
     reworkToName,
-    scrapped: scrapped ? { identity: scrapped.identity, side: holder.kind === "cabinet" ? null : (nc.cabinets.find((c) => c.id === nc.scrapCabinetId)?.side ?? null) } : null,
-    holder: holder.kind === "cabinet" ? "cabinet" : "pair",
+    scrapped: scrapped ? { identity: scrapped.identity, side: holder.kind !== "pair" ? null : (nc.cabinets.find((c) => c.id === nc.scrapCabinetId)?.side ?? null) } : null,
+    holder: holder.kind === "pair" ? "pair" : holder.kind === "trim_part" ? "trim part" : "cabinet",
     stillOpen: stillOpen.map((o) => o.code),
   });
 }
@@ -117,7 +117,7 @@ export async function repartner(db: DbOrTx, input: { pairId: string; cabinet: st
   return db.transaction(async (tx) => {
     const [pair] = await tx.select().from(items).where(eq(items.id, input.pairId)).limit(1);
     if (!pair || pair.kind !== "pair") throw new AppError(404, "That pair is not in the register.");
-    const route = await pairRoute(tx, pair);
+    const route = await routeOf(tx, pair);
     const empty = (["L", "R"] as Side[]).find((s) => !route.cabinets.some((c) => c.side === s));
     if (!empty) throw new AppError(409, `${pair.identity} has both its cabinets.`);
     const parsed = parseSerial(input.cabinet);
@@ -188,7 +188,7 @@ export async function ncsToDisposition(db: DbOrTx): Promise<NcToDisposition[]> {
   return open.map(({ nc, pair }) => {
     const steps = started.find((s) => s.pairId === pair.id)?.steps ?? newest.find((n) => n.modelId === pair.modelId)?.steps ?? [];
     const sides =
-      pair.kind === "cabinet"
+      pair.kind !== "pair"
         ? [{ side: "L" as Side, identity: pair.identity }]
         : held
             .filter((h) => h.pairId === pair.id)

@@ -1,107 +1,72 @@
-/** A pair (or a lone lacquer cabinet) on its route: where it is, and recording a step with its readings. */
+/**
+ * The one route engine for every routed item (a cabinet pair, a lone lacquer cabinet, a metal trim
+ * part): where it is on its route, and recording a step with its readings. What the records hang
+ * on and who its members are is resolved once, in lib/route/routed-group.ts; nothing here is
+ * written per kind.
+ */
 import "server-only";
 import { nextNcCode } from "./nc-codes";
-import { and, asc, eq, inArray, isNull } from "drizzle-orm";
+import { asc, eq } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
-import { finishes, items, links, models, nonconformances, processSpecs, routeRecords, routeStarts, type Item, type Nonconformance, type ProcessSpec } from "@/db/schema";
+import { finishes, items, models, nonconformances, processSpecs, routeRecords, routeStarts, type Item, type Nonconformance, type ProcessSpec } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
 import { newId } from "@/lib/auth/tokens";
 import { now as clockNow } from "@/lib/clock";
 import { refuseIfHeld } from "@/lib/containments/holds";
 import { appendEvent } from "@/lib/events/queries";
-import { changeState, itemByIdentity } from "@/lib/genealogy/graph";
-import { parseSerial } from "@/lib/serials/format";
+import { changeState } from "@/lib/genealogy/graph";
 import type { Actor } from "@/lib/vocabulary/actor";
-import { cabinetsPhrase, checkReadings, checkStep, outOfWindowConfirmation, outOfWindowQuestion, position, type OutOfWindow } from "./rules";
+import { ROUTE_KIND_LABEL } from "@/lib/vocabulary/route-kinds";
+import { HOLDER_WORD, membersPhrase } from "./group-words";
+import { checkReadings, checkStep, outOfWindowConfirmation, outOfWindowQuestion, type OutOfWindow } from "./rules";
+import { routeState } from "./route-state";
+import { groupWords, isLoneLacquerCabinet, routedGroup, routedItemOf, type RoutedGroup } from "./routed-group";
 import type { PairPosition, RouteEntry, Side, StepSpec } from "./types";
 import { currentSpec } from "./specs";
 
-export interface PairRoute {
+export { isLoneLacquerCabinet, routedItemOf };
+
+export interface ItemRoute {
+  /** The routed item the records hang on: a pair, a lone lacquer cabinet or a trim part. */
   pair: Item;
+  group: RoutedGroup;
   model: typeof models.$inferSelect;
   finishName: string | null;
   spec: ProcessSpec;
   /** Whether the spec is pinned (the first step is recorded) or would be the current version. */
   started: boolean;
+  /** The group's members by side: a pair's cabinets, or the one lone item as "L". */
   cabinets: { side: Side; item: Item }[];
   history: RouteEntry[];
   records: (typeof routeRecords.$inferSelect)[];
   ncs: Nonconformance[];
   position: PairPosition;
 }
+/** The older name, kept for the callers in other areas. */
+export type PairRoute = ItemRoute;
 
-/** Finds the pair a scanned serial belongs to: the pair itself, or one of its cabinets. */
-export async function pairOf(db: DbOrTx, text: string): Promise<Item | null> {
-  const parsed = parseSerial(text);
-  const identity = parsed?.valid ? parsed.canonical : text.trim().toUpperCase();
-  const item = await itemByIdentity(db, identity);
-  if (!item) return null;
-  if (item.kind === "pair") return item;
-  if (item.kind === "cabinet") {
-    const [holder] = await db
-      .select({ pair: items })
-      .from(links)
-      .innerJoin(items, eq(items.id, links.parentId))
-      .where(and(eq(links.childId, item.id), isNull(links.endedAt), eq(items.kind, "pair")))
-      .limit(1);
-    if (holder) return holder.pair;
-    return (await isLoneLacquerCabinet(db, item)) ? item : null;
-  }
-  return null;
+/** Finds the routed item a scanned serial belongs to (see routedItemOf); the older name. */
+export const pairOf = routedItemOf;
+
+/** Where a routed item is on its route (the route version it started under, or the newest of its kind). */
+export async function routeOf(db: DbOrTx, routed: Item, at: Date = clockNow()): Promise<ItemRoute> {
+  const group = await routedGroup(db, routed);
+  if (!group) throw new AppError(400, `${routed.identity} is not a pair, a lacquer cabinet waiting for one, nor a trim part of a model.`);
+  const modelId = routed.modelId!;
+  const [model] = await db.select().from(models).where(eq(models.id, modelId)).limit(1);
+  const [finish] = routed.finishId ? await db.select({ name: finishes.name }).from(finishes).where(eq(finishes.id, routed.finishId)).limit(1) : [];
+  const [start] = await db.select().from(routeStarts).where(eq(routeStarts.pairId, routed.id)).limit(1);
+  const spec = start ? (await db.select().from(processSpecs).where(eq(processSpecs.id, start.specId)).limit(1))[0]! : await currentSpec(db, modelId, group.routeKind);
+  if (!spec) throw new AppError(409, `Model ${model!.code} has no ${ROUTE_KIND_LABEL[group.routeKind].toLowerCase()} yet: an administrator sets one under Administration → Routes.`);
+  const records = await db.select().from(routeRecords).where(eq(routeRecords.pairId, routed.id)).orderBy(asc(routeRecords.id));
+  const ncs = await db.select().from(nonconformances).where(eq(nonconformances.pairId, routed.id)).orderBy(asc(nonconformances.openedAt));
+  const cabinets = group.members;
+  const { history, position: pos } = routeState(spec.steps, records, ncs, cabinets, at);
+  return { pair: routed, group, model: model!, finishName: finish?.name ?? null, spec, started: Boolean(start), cabinets, history, records, ncs, position: pos };
 }
 
-/**
- * A lacquer cabinet is made in a batch without a pair and travels the route on its own until
- * assembly pairs it: its route records are kept under its own id, as its own one-cabinet "group".
- */
-export async function isLoneLacquerCabinet(db: DbOrTx, item: Item): Promise<boolean> {
-  if (item.kind !== "cabinet" || !item.finishId) return false;
-  const [finish] = await db.select({ kind: finishes.kind }).from(finishes).where(eq(finishes.id, item.finishId)).limit(1);
-  if (finish?.kind !== "lacquer") return false;
-  const [held] = await db.select({ id: links.id }).from(links).where(and(eq(links.childId, item.id), isNull(links.endedAt))).limit(1);
-  return !held;
-}
-
-/** History entries for the cabinets now at each side, from the records and nonconformances. */
-function historyFor(records: (typeof routeRecords.$inferSelect)[], ncs: Nonconformance[], cabinets: { side: Side; item: Item }[]): RouteEntry[] {
-  const sideOf = new Map(cabinets.map((c) => [c.item.id, c.side]));
-  const sides = (list: { id: string }[]) => list.map((c) => sideOf.get(c.id)).filter((s): s is Side => Boolean(s));
-  const entries: (RouteEntry & { order: number })[] = [];
-  for (const r of records) {
-    const s = sides(r.cabinets);
-    if (s.length) entries.push({ kind: "step", id: r.id, seq: r.seq, cabinets: s, startedAt: r.startedAt, recordedAt: r.recordedAt, readings: r.readings, outOfWindow: r.outOfWindow, order: r.recordedAt.getTime() });
-  }
-  for (const n of ncs) {
-    entries.push({ kind: "nc_opened", id: n.openedEventId, ncId: n.code, cabinets: sides(n.cabinets), at: n.openedAt, order: n.openedAt.getTime() + 0.5 });
-    if (n.dispositionedAt) {
-      if (n.disposition === "rework") entries.push({ kind: "rework", id: n.dispositionEventId!, cabinets: sides(n.cabinets), toSeq: n.reworkToSeq!, at: n.dispositionedAt, order: n.dispositionedAt.getTime() });
-      entries.push({ kind: "nc_closed", id: n.dispositionEventId!, ncId: n.code, at: n.dispositionedAt, order: n.dispositionedAt.getTime() + 0.5 });
-    }
-  }
-  return entries.sort((a, b) => a.order - b.order || a.id - b.id).map(({ order: _o, ...e }) => e as RouteEntry);
-}
-
-export async function pairRoute(db: DbOrTx, pair: Item, at: Date = clockNow()): Promise<PairRoute> {
-  const lone = pair.kind === "cabinet" && (await isLoneLacquerCabinet(db, pair));
-  if ((pair.kind !== "pair" && !lone) || !pair.modelId) throw new AppError(400, `${pair.identity} is not a pair of a model, nor a lacquer cabinet waiting for one.`);
-  const [model] = await db.select().from(models).where(eq(models.id, pair.modelId)).limit(1);
-  const [finish] = pair.finishId ? await db.select({ name: finishes.name }).from(finishes).where(eq(finishes.id, pair.finishId)).limit(1) : [];
-  const [start] = await db.select().from(routeStarts).where(eq(routeStarts.pairId, pair.id)).limit(1);
-  const spec = start ? (await db.select().from(processSpecs).where(eq(processSpecs.id, start.specId)).limit(1))[0]! : await currentSpec(db, pair.modelId);
-  if (!spec) throw new AppError(409, `Model ${model!.code} has no route yet: an administrator sets one under Administration → Routes.`);
-  const held = await db
-    .select({ item: items, position: links.position })
-    .from(links)
-    .innerJoin(items, eq(items.id, links.childId))
-    .where(and(eq(links.parentId, pair.id), isNull(links.endedAt), inArray(links.position, ["CAB-L", "CAB-R"])));
-  const cabinets = lone ? [{ side: "L" as Side, item: pair }] : held.map((h) => ({ side: (h.position === "CAB-L" ? "L" : "R") as Side, item: h.item })).sort((a, b) => a.side.localeCompare(b.side));
-  const records = await db.select().from(routeRecords).where(eq(routeRecords.pairId, pair.id)).orderBy(asc(routeRecords.id));
-  const ncs = await db.select().from(nonconformances).where(eq(nonconformances.pairId, pair.id)).orderBy(asc(nonconformances.openedAt));
-  const history = historyFor(records, ncs, cabinets);
-  const pos = position(spec.steps, history, cabinets.map((c) => c.side), at);
-  return { pair, model: model!, finishName: finish?.name ?? null, spec, started: Boolean(start), cabinets, history, records, ncs, position: pos };
-}
-
+/** The older name of routeOf, kept for the callers in other areas. */
+export const pairRoute = routeOf;
 
 /**
  * Readings out of their window that the person recording has not confirmed: nothing is written.
@@ -119,7 +84,8 @@ export class OutOfWindowUnconfirmed extends AppError {
 }
 
 /**
- * Records a step for one or both cabinets of a pair. Refuses a step out of order or one started
+ * Records a step for a routed item: one or both cabinets of a pair, a lone cabinet or a trim part
+ * (`pairId` is the routed item's id, whatever its kind). Refuses a step out of order or one started
  * before a hold releases (with the time it becomes allowed), and a reading that is not a number.
  * A reading out of its window is recorded only when `confirmOutOfWindow` names it and its value
  * (`outOfWindowConfirmation`; otherwise OutOfWindowUnconfirmed asks, and nothing is written); it
@@ -133,15 +99,16 @@ export async function recordStep(
   return db.transaction(async (tx) => {
     const at = clockNow();
     const [pair] = await tx.select().from(items).where(eq(items.id, input.pairId)).limit(1);
-    if (!pair) throw new AppError(404, "That pair is not in the register.");
+    if (!pair) throw new AppError(404, "That pair or part is not in the register.");
     // An open containment holding the pair, a cabinet of it or a part in it stops the route (and its start).
     await refuseIfHeld(tx, [{ id: pair.id, identity: pair.identity }], "have a route step recorded");
-    const route = await pairRoute(tx, pair, at);
+    const route = await routeOf(tx, pair, at);
+    const kind = route.group.kind;
     const startedAt = input.startedAt ?? at;
     const missing = input.sides.filter((s) => !route.cabinets.some((c) => c.side === s));
-    if (missing.length) throw new AppError(409, `The pair has no ${missing.map((s) => (s === "L" ? "left" : "right")).join(" or ")} cabinet now.`);
+    if (missing.length) throw new AppError(409, kind === "pair" ? `The pair has no ${missing.map((s) => (s === "L" ? "left" : "right")).join(" or ")} cabinet now.` : `Record the step for ${HOLDER_WORD[kind]} itself.`);
     const check = checkStep(route.spec.steps, route.history, { seq: input.seq, cabinets: input.sides, startedAt }, at);
-    if (!check.ok) throw new AppError(409, check.reason);
+    if (!check.ok) throw new AppError(409, groupWords(kind, check.reason));
     const step = route.spec.steps.find((s) => s.seq === input.seq)!;
     // Where: the station the route names for this step, never what the request says.
     const station = step.station;
@@ -186,8 +153,8 @@ export async function recordStep(
       });
       await tx.insert(nonconformances).values({ id, code: nc, pairId: pair.id, recordId: record!.id, cabinets: cabinets.map((c) => ({ id: c.item.id, side: c.side })), seq: step.seq, finding, openedAt: at, openedEventId: eventId });
     }
-    // The last step done by both: the cabinets have finished their route.
-    const after = await pairRoute(tx, pair, at);
+    // The last step done by every member: the cabinets (or the part) have finished their route.
+    const after = await routeOf(tx, pair, at);
     for (const c of after.position.cabinets) {
       const cab = route.cabinets.find((x) => x.side === c.side)!.item;
       const state = c.next === null ? "finished" : "in_route";
@@ -213,10 +180,11 @@ export function recordedNotice(route: PairRoute, recordId: number): { text: stri
   if (!record) return null;
   const step = route.spec.steps.find((s) => s.seq === record.seq);
   const sides = record.cabinets.map((c) => c.side);
-  const who = route.pair.kind === "cabinet" ? "" : `, for ${cabinetsPhrase(sides)}`;
+  const kind = route.group.kind;
+  const who = kind === "pair" ? `, for ${membersPhrase(kind, sides)}` : "";
   const nc = route.ncs.find((n) => n.recordId === record.id) ?? null;
   const text = `Recorded step ${record.seq}${step ? `, ${step.name}` : ""}${who}.`;
   return nc
-    ? { text: `${text} A reading was out of its window: nonconformance ${nc.code} holds ${route.pair.kind === "cabinet" ? "the cabinet" : "the pair"} until quality dispositions it.`, nc: nc.code }
+    ? { text: `${text} A reading was out of its window: nonconformance ${nc.code} holds ${HOLDER_WORD[kind]} until quality dispositions it.`, nc: nc.code }
     : { text, nc: null };
 }

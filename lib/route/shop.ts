@@ -23,12 +23,14 @@ export interface ShopPair {
   unpartnered: boolean;
   /** A lacquer cabinet on the route by itself (no pair yet). */
   lone: boolean;
+  /** A metal trim part on its model's trim route. */
+  trim: boolean;
 }
 
 /** A pair whose next step has been allowed this long without being done is overdue (the demo workshop's rule). */
 export const OVERDUE_AFTER_MS = 48 * 3600_000;
 
-/** Every pair still on the cabinet route, where it is now. */
+/** Every pair still on the cabinet route (and every lone lacquer cabinet and trim part on its route), where it is now. */
 export async function shopPairs(db: DbOrTx, at: Date = clockNow()): Promise<ShopPair[]> {
   const pairs = await db.select().from(items).where(and(eq(items.kind, "pair"), inArray(items.state, ["in_production", "unpartnered"]))).orderBy(asc(items.createdAt));
   // Lacquer cabinets in no pair, still on the route.
@@ -39,6 +41,9 @@ export async function shopPairs(db: DbOrTx, at: Date = clockNow()): Promise<Shop
     .where(and(eq(items.kind, "cabinet"), eq(finishes.kind, "lacquer"), inArray(items.state, ["in_progress", "in_route"]), sql`NOT EXISTS (SELECT 1 FROM links l WHERE l.child_id = ${items.id} AND l.ended_at IS NULL)`))
     .orderBy(asc(items.createdAt));
   pairs.push(...lone.map((l) => l.item));
+  // Trim parts received or on their route: the same engine, the same board.
+  const trim = await db.select().from(items).where(and(eq(items.kind, "trim_part"), inArray(items.state, ["received", "in_route"]))).orderBy(asc(items.createdAt));
+  pairs.push(...trim);
   const out: ShopPair[] = [];
   for (const pair of pairs) {
     // Lacquer pairs are paired at assembly from cabinets that already finished: no route for them here.
@@ -73,6 +78,7 @@ export async function shopPairs(db: DbOrTx, at: Date = clockNow()): Promise<Shop
       readySince,
       unpartnered: pair.kind === "pair" && route.cabinets.length < 2,
       lone: pair.kind === "cabinet",
+      trim: pair.kind === "trim_part",
     });
   }
   return out;

@@ -49,8 +49,8 @@ export function dispositionPhrase(f: DispositionFacts): string {
 
 export interface AfterDisposition extends DispositionFacts {
   code: string;
-  /** What the nonconformance held: a pair, or a lacquer cabinet on the route by itself. */
-  holder: "pair" | "cabinet";
+  /** What the nonconformance held: a pair, a lacquer cabinet on the route by itself, or a trim part. */
+  holder: "pair" | "cabinet" | "trim part";
   /** Nonconformances of the same pair still open afterwards. */
   stillOpen: string[];
 }
@@ -61,7 +61,7 @@ export interface AfterDisposition extends DispositionFacts {
  */
 export function dispositionSentence(f: AfterDisposition): string {
   const head = `${f.code}: ${dispositionPhrase(f)}.`;
-  const it = f.holder === "pair" ? "The pair" : "The cabinet";
+  const it = f.holder === "pair" ? "The pair" : f.holder === "cabinet" ? "The cabinet" : "The trim part";
   if (f.disposition === "scrap") {
     return f.holder === "pair" ? `${head} The pair is unpartnered until quality signs off a new partner.` : `${head} It leaves the route.`;
   }

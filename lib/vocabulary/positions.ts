@@ -14,6 +14,8 @@ export const CROSSOVER_POSITION = "XO";
 export const BATCH_POSITION = "BATCH";
 export const MAKER_LOT_POSITION = "LOT";
 export const FLITCH_POSITION = "FLITCH";
+/** Where a supplier's lot sits in each trim part that came in it. */
+export const SUPPLIER_LOT_POSITION = "SLOT";
 
 /** The face position of a cabinet's i-th leaf (0-based): F1, F2… */
 export const facePosition = (i: number) => `F${i + 1}`;
@@ -33,6 +35,7 @@ export function positionName(code: string): string {
   if (code === BATCH_POSITION) return "batch";
   if (code === MAKER_LOT_POSITION) return "maker's lot";
   if (code === FLITCH_POSITION) return "flitch";
+  if (code === SUPPLIER_LOT_POSITION) return "supplier's lot";
   const m = /^([TMB])(?:-?(\d+))?$/.exec(code);
   if (!m) return code;
   return `${POSITION_LETTER[m[1]!]}${m[2] ? ` ${m[2]}` : ""} (${code})`;

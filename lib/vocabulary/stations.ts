@@ -1,9 +1,9 @@
 /**
- * Where work is recorded. The cabinet route's stations are the shop's machines and benches; the
+ * Where work is recorded. The routes' stations (cabinets and metal trim parts) are the shop's machines and benches; the
  * other stations are the areas of work (and the two places Twinleaf itself records from). Every
  * event names one of them, taken from the server, never from the request.
  */
-export const ROUTE_STATIONS = ["press", "trim", "brace", "sanding", "inspection", "lacquer", "oven", "flatting", "cure", "polish", "finish"] as const;
+export const ROUTE_STATIONS = ["press", "trim", "brace", "sanding", "inspection", "lacquer", "oven", "flatting", "cure", "polish", "finish", "metal-sanding", "paint"] as const;
 export type RouteStation = (typeof ROUTE_STATIONS)[number];
 
 export const AREA_STATIONS = ["veneer", "cabinet", "lab", "lab-bench", "assembly", "packing", "service", "quality", "admin", "sign-in", "seed"] as const;
@@ -23,6 +23,8 @@ export const STATION_NAME: Record<Station, string> = {
   cure: "Curing racks",
   polish: "Polishing",
   finish: "Hand finish",
+  "metal-sanding": "Metal sanding bench",
+  paint: "Paint bench",
   veneer: "Veneer room",
   cabinet: "Cabinet shop",
   lab: "Lab",

@@ -395,3 +395,42 @@ describe("POST /api/v1/pairs/[identity]/certificate, then its recorded print", (
     expect((await print(shipped.identity)).res.status).toBe(403);
   });
 });
+
+describe("the trim parts on the certificate", () => {
+  test("a built pair of a model with trim lists each speaker's trim parts with their supplier's lots, as the register links them, and the PDF prints them", async () => {
+    // The tower is the demo model with trim (a top housing and a plinth, invented: db/seed/data.ts).
+    const built = await pairs(sql`m.code = 'TB3' AND p.state IN ('awaiting_test', 'ready_to_pack', 'packed', 'shipped')`);
+    expect(built.length).toBeGreaterThan(0);
+    const pair = built[0]!;
+    const d = await certificateData(db(), pair.id, { baseUrl: BASE, copy: false });
+    // What the register holds, read directly: each speaker's trim part at its position, and the lot inside it.
+    const rows = await db().all<{ side: string; position: string; identity: string; lot: string }>(sql`
+      SELECT spk.position AS side, tp.position, t.identity, lot.identity AS lot
+      FROM links spk
+      JOIN links tp ON tp.parent_id = spk.child_id AND tp.ended_at IS NULL
+      JOIN items t ON t.id = tp.child_id AND t.kind = 'trim_part'
+      JOIN links ll ON ll.parent_id = t.id AND ll.position = 'SLOT' AND ll.ended_at IS NULL
+      JOIN items lot ON lot.id = ll.child_id
+      WHERE spk.parent_id = ${pair.id} AND spk.ended_at IS NULL AND spk.position IN ('L', 'R')`);
+    expect(rows.length).toBe(4);
+    expect(d.trim.map((r) => r.position)).toEqual(["PLN", "TOP"]);
+    for (const r of rows) {
+      const row = d.trim.find((t) => t.position === r.position)!;
+      expect(r.side === "L" ? row.left : row.right).toEqual({ identity: r.identity, lot: r.lot });
+    }
+    const { text, pages } = await pdfText(await renderCertificate(d));
+    expect(pages).toBe(1);
+    expect(text).toContain("Trim parts");
+    for (const r of rows) {
+      expect(text).toContain(r.identity);
+      expect(text).toContain(`lot ${r.lot}`);
+    }
+  });
+
+  test("a model without trim prints no trim table", async () => {
+    const built = await pairs(sql`m.code = 'PW2' AND p.state = 'shipped'`);
+    const d = await certificateData(db(), built[0]!.id, { baseUrl: BASE, copy: false });
+    expect(d.trim).toEqual([]);
+    expect((await pdfText(await renderCertificate(d))).text).not.toContain("Trim parts");
+  });
+});

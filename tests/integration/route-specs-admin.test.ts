@@ -97,7 +97,7 @@ describe("saving a route as a new version", () => {
 
     const out = await save({ modelId: model.id, baseVersion: "1", note: "  Narrower press window; a hand check after trimming.  ", steps: editedSteps() });
     expect(out.state, JSON.stringify(out.state)).toBeUndefined();
-    expect(out.redirectedTo).toBe(`/admin/routes?saved=${model.code}&version=2`);
+    expect(out.redirectedTo).toBe(`/admin/routes?saved=${model.code}&version=2&kind=cabinet`);
 
     const after = await versionsOf(model.id);
     expect(after.map((v) => v.version)).toEqual([1, 2]);

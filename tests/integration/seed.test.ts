@@ -48,9 +48,11 @@ describe("the demo seed", () => {
       models: SEED_MODELS.length, modelPositions: positions, modelTolerances: tolerances,
       finishes: SEED_FINISHES.length, dealers: SEED_DEALERS.length, users: ROLES.length, userRoles: ROLES.length, pairs: 0,
     });
-    // One event per created record (and per model its first route version), from the seed station and no actor.
+    // One event per created record (and per model its first route version, and a first trim-part
+    // route for a model with trim positions), from the seed station and no actor.
     const seedEvents = await db.select().from(events);
-    expect(seedEvents).toHaveLength(2 * SEED_MODELS.length + SEED_FINISHES.length + SEED_DEALERS.length + ROLES.length);
+    const trimRoutes = SEED_MODELS.filter((m) => m.trim?.length).length;
+    expect(seedEvents).toHaveLength(2 * SEED_MODELS.length + trimRoutes + SEED_FINISHES.length + SEED_DEALERS.length + ROLES.length);
     expect(seedEvents.every((e) => e.station === "seed" && e.actorId === null)).toBe(true);
     expect(seedEvents.filter((e) => e.type === "user.created")).toHaveLength(ROLES.length);
     expect(JSON.stringify(seedEvents)).not.toMatch(/\$argon2/);

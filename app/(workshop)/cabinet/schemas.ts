@@ -2,7 +2,7 @@ import { z } from "zod";
 import { wholeNumber } from "@/lib/input/numbers";
 
 export const scanSchema = z.object({
-  code: z.string().trim().min(3, "Scan or type a cabinet or pair serial.").max(80),
+  code: z.string().trim().min(3, "Scan or type a cabinet, pair or trim-part serial.").max(80),
   station: z.string().trim().max(30).default(""),
 });
 
@@ -10,7 +10,7 @@ export const stepSchema = z.object({
   pair: z.string().min(1),
   pairId: z.string().min(1),
   seq: wholeNumber(z.number({ error: "Choose the step." }).int().min(1, "Choose the step.").max(999)),
-  sides: z.preprocess((v) => (v === undefined || v === "" ? [] : Array.isArray(v) ? v : [v]), z.array(z.enum(["L", "R"]))).refine((s) => s.length > 0, "Tick the cabinets the step was done on."),
+  sides: z.preprocess((v) => (v === undefined || v === "" ? [] : Array.isArray(v) ? v : [v]), z.array(z.enum(["L", "R"]))).refine((s) => s.length > 0, "Tick what the step was done on."),
   /** Minutes ago the step started (e.g. when the clamp went on); 0 = now. */
   startedMinutesAgo: wholeNumber(z.number({ error: "Give minutes as a whole number, such as 15." }).int("Whole minutes.").min(0, "Not in the future.").max(24 * 60, "At most 24 hours ago; record steps the day they are done."), { empty: 0 }),
   /** Sent only by the button that answers "record it and open a nonconformance?": names the readings confirmed. */

@@ -47,7 +47,7 @@ export function DispositionForm({ nc, steps, sides, back }: { nc: { id: string; 
           <SelectField label="Back to step" name="reworkToSeq" defaultValue={String(nc.seq)} options={steps.map((s) => ({ value: String(s.seq), label: `${s.seq}. ${s.name}` }))} errors={state.fieldErrors?.reworkToSeq} />
         ) : null}
         {kind === "scrap" ? (
-          <SelectField label="Cabinet to scrap" name="scrapSide" options={[{ value: "", label: "Choose…" }, ...sides.map((s) => ({ value: s.side, label: `${s.side === "L" ? "Left" : "Right"} ${s.identity}` }))]} errors={state.fieldErrors?.scrapSide} />
+          <SelectField label={sides.length === 1 ? "To scrap" : "Cabinet to scrap"} name="scrapSide" options={[{ value: "", label: "Choose…" }, ...sides.map((s) => ({ value: s.side, label: sides.length === 1 ? s.identity : `${s.side === "L" ? "Left" : "Right"} ${s.identity}` }))]} errors={state.fieldErrors?.scrapSide} />
         ) : null}
       </div>
       <TextField label={kind === "use_as_is" ? "Reason for the deviation (you approve it)" : "Reason"} name="reason" errors={state.fieldErrors?.reason} />

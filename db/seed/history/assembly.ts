@@ -16,6 +16,7 @@ import { finalResponses, responseFile } from "./measurements";
 import { got, setQueue, type Ctx, type PairPlan, type Plan } from "./plan";
 import type { RefFinish, RefModel } from "./reference";
 import { planRoute } from "./route";
+import { trimScans } from "./trim";
 
 function planLacquerCabinets(plan: Plan, rng: Rng, key: string, model: RefModel, finish: RefFinish, press: Date): void {
   plan.add(plus(press, -HOUR), `making the lacquer cabinets of ${key}`, async (ctx) => {
@@ -57,6 +58,7 @@ export function planBuild(plan: Plan, p: PairPlan): void {
     }
     const boards = popSet(ctx, `${p.model.code}:crossover`, p.key);
     scans.push({ side: "L", slot: CROSSOVER_POSITION, code: boards.left }, { side: "R", slot: CROSSOVER_POSITION, code: boards.right });
+    scans.push(...trimScans(ctx, p));
     const { speakers } = await buildSpeakers(ctx.db, { pairId: got(ctx, p.key).id, scans, inspection: { clean: true, inspected: true, note: "" } }, ctx.ref.actors.assembly);
     ctx.items.set(`${p.key}:spk:L`, speakers.L);
     ctx.items.set(`${p.key}:spk:R`, speakers.R);

@@ -1,7 +1,7 @@
 /** What the history is written against: the seeded models, finishes, dealers and the demo users who do the work. */
 import { eq } from "drizzle-orm";
 import type { Db } from "@/db";
-import { dealers, finishes, modelPositions, modelTolerances, models, users } from "@/db/schema";
+import { dealers, finishes, modelPositions, modelTolerances, models, modelTrimPositions, users } from "@/db/schema";
 import type { PartType } from "@/lib/vocabulary/part-types";
 
 export type Role = "veneer" | "cabinet" | "lab" | "assembly" | "packing" | "service" | "quality";
@@ -22,6 +22,8 @@ export interface RefModel {
   positions: { position: string; partType: PartType }[];
   /** Drive-unit mismatch limit per part type, dB. */
   limits: Partial<Record<PartType, number>>;
+  /** One row per trim part a speaker takes, by slot code ("TOP", or "PLN-1"… for a count of n), with the model's trim position. */
+  trim: { slot: string; position: string }[];
 }
 
 export interface RefFinish {
@@ -45,6 +47,7 @@ export async function loadReference(db: Db): Promise<Reference | null> {
   const modelRows = await db.select().from(models).where(eq(models.active, true)).orderBy(models.code);
   const positionRows = await db.select().from(modelPositions).orderBy(modelPositions.position);
   const toleranceRows = await db.select().from(modelTolerances);
+  const trimRows = await db.select().from(modelTrimPositions).orderBy(modelTrimPositions.position);
   const finishRows = await db.select().from(finishes).where(eq(finishes.active, true)).orderBy(finishes.code);
   const dealerRows = await db.select().from(dealers).where(eq(dealers.active, true)).orderBy(dealers.code);
   const userRows = await db.select({ id: users.id, email: users.email }).from(users).where(eq(users.demo, true));
@@ -73,6 +76,10 @@ export async function loadReference(db: Db): Promise<Reference | null> {
         .flatMap((p) => (p.count === 1 ? [{ position: p.position, partType: p.partType }] : Array.from({ length: p.count }, (_, i) => ({ position: `${p.position}-${i + 1}`, partType: p.partType }))))
         .sort((a, b) => PART_RANK[a.partType] - PART_RANK[b.partType] || a.position.localeCompare(b.position, undefined, { numeric: true })),
       limits: Object.fromEntries(toleranceRows.filter((t) => t.modelId === m.id).map((t) => [t.partType, t.mismatchLimitDb])),
+      // As lib/assembly/slots.ts names the slots: the code, or CODE-1…CODE-n for a count of n.
+      trim: trimRows
+        .filter((t) => t.modelId === m.id)
+        .flatMap((t) => (t.count <= 1 ? [{ slot: t.position, position: t.position }] : Array.from({ length: t.count }, (_, i) => ({ slot: `${t.position}-${i + 1}`, position: t.position })))),
     })),
     finishes: finishRows.map((f) => ({ id: f.id, code: f.code, name: f.name, kind: f.kind })),
     dealers: dealerRows.map((d) => ({ id: d.id, code: d.code, country: d.country })),

@@ -12,7 +12,7 @@ export const metadata: Metadata = { title: "Administration" };
 const SECTIONS = [
   { href: "/admin/users", title: "Users and roles", text: "Invite people, change what they may do, deactivate those who have left." },
   { href: "/admin/tokens", title: "Machine tokens", text: "Keys for the lab's test benches to post measurements; make one, or revoke one that is lost or retired." },
-  { href: "/admin/routes", title: "Cabinet routes", text: "Each model's steps through the shop, their readings and waits; edit one as a new version, and see which pairs follow which." },
+  { href: "/admin/routes", title: "Routes", text: "Each model's cabinet and trim-part routes through the shop, their readings and waits; edit one as a new version, and see which pairs and parts follow which." },
   { href: "/admin/mail", title: "Mail", text: "Every message Twinleaf queued, whether it was delivered, and the demo's caught mail." },
   { href: paths.adminAudit, title: "Audit trail", text: "Check that no recorded event has been changed, removed or moved outside Twinleaf, and that the database's protective rules are in place." },
   { href: paths.adminModels, title: "Models", text: "Each speaker design: positions, limits, GTIN, warranty and packing list. A change is a new version; pairs in progress keep theirs." },

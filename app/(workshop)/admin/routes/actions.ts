@@ -10,6 +10,6 @@ import { saveRouteSchema } from "./schemas";
  * they started under; the versions before stay as they were (the table refuses changes).
  */
 export const saveRouteVersionAction = guardedAction("admin.reference", saveRouteSchema, async (input, user) => {
-  const saved = await createSpecVersion(getDb(), { modelId: input.modelId, steps: input.steps, note: input.note, baseVersion: input.baseVersion }, { id: user.id });
-  return { ok: true, revalidate: [paths.adminRoutes], redirectTo: `${paths.adminRoutes}?${new URLSearchParams({ saved: saved.modelCode, version: String(saved.version) }).toString()}` };
+  const saved = await createSpecVersion(getDb(), { modelId: input.modelId, routeKind: input.routeKind, steps: input.steps, note: input.note, baseVersion: input.baseVersion }, { id: user.id });
+  return { ok: true, revalidate: [paths.adminRoutes], redirectTo: `${paths.adminRoutes}?${new URLSearchParams({ saved: saved.modelCode, version: String(saved.version), kind: input.routeKind }).toString()}` };
 });

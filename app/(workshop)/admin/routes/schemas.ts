@@ -5,6 +5,7 @@
  */
 import { z } from "zod";
 import { duplicateKeyIssues, stepsSchema } from "@/lib/route/spec-rules";
+import { ROUTE_KINDS } from "@/lib/vocabulary/route-kinds";
 
 const stepsJson = z
   .string({ error: "The steps are missing. Reload the page and try again." })
@@ -20,6 +21,8 @@ const stepsJson = z
 
 const formSchema = z.object({
   modelId: z.string({ error: "Choose a model." }).trim().min(1, "Choose a model."),
+  /** Which of the model's routes: its cabinets' (the default) or its trim parts'. */
+  routeKind: z.enum(ROUTE_KINDS, { error: "The form does not say which route it edits. Reload the page and try again." }).default("cabinet"),
   /** The version the form was opened on, so an edit made meanwhile is not silently overwritten. */
   baseVersion: z
     .string({ error: "The form does not say which version it edits. Reload the page and try again." })

@@ -16,7 +16,7 @@ const SIDES: Side[] = ["L", "R"];
 export interface SlotOption {
   slot: string;
   label: string;
-  kind: "drive_unit" | "crossover";
+  kind: "drive_unit" | "crossover" | "trim";
 }
 
 type FieldState =
@@ -189,7 +189,7 @@ export function BuildForm({ pair, pairId, slots }: { pair: string; pairId: strin
               return (
                 <div key={key} className="flex flex-col gap-1.5">
                   <label htmlFor={id} className="font-bold">
-                    {capitalised(positionName(s.slot))}
+                    {s.kind === "trim" ? `${capitalised(s.label)} (${s.slot})` : capitalised(positionName(s.slot))}
                   </label>
                   <input
                     id={id}

@@ -37,9 +37,14 @@ export default async function Page() {
       <div className="flex flex-wrap items-end justify-between gap-4">
         <ScanForm />
         <div className="flex flex-col items-end gap-2">
-          <Link href={paths.lacquer} className={buttonClasses("secondary")}>
-            Lacquer cabinets
-          </Link>
+          <div className="flex flex-wrap gap-2">
+            <Link href={paths.lacquer} className={buttonClasses("secondary")}>
+              Lacquer cabinets
+            </Link>
+            <Link href={paths.trimParts} className={buttonClasses("secondary")}>
+              Trim parts
+            </Link>
+          </div>
           <AutoRefresh readAt={formatTimeOfDay(at)} />
         </div>
       </div>
@@ -100,7 +105,7 @@ export default async function Page() {
                     {go.map((p) => (
                       <li key={p.pair}>
                         <SerialLink identity={p.pair} href={route(p.pair)} /> {p.model}: {p.next?.name}
-                        {p.lone ? " (lacquer cabinet, not yet paired)" : p.sides.length < 2 ? ` (${side(p.sides)})` : ""}
+                        {p.trim ? " (trim part)" : p.lone ? " (lacquer cabinet, not yet paired)" : p.sides.length < 2 ? ` (${side(p.sides)})` : ""}
                         {p.unpartnered ? " · unpartnered" : ""}
                       </li>
                     ))}

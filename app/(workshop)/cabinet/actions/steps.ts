@@ -3,7 +3,7 @@ import { getDb } from "@/db";
 import { AppError } from "@/lib/auth/errors";
 import { guardedAction } from "@/lib/auth/guard";
 import { formDataValues } from "@/lib/route/form";
-import { OutOfWindowUnconfirmed, pairOf, recordStep } from "@/lib/route/pair-route";
+import { OutOfWindowUnconfirmed, recordStep, routedItemOf } from "@/lib/route/pair-route";
 import { repartner } from "@/lib/route/nonconformances";
 import { now } from "@/lib/clock";
 import { paths } from "@/lib/paths";
@@ -12,8 +12,8 @@ import { repartnerSchema, scanSchema, stepSchema } from "../schemas";
 const pairPage = paths.cabinetPair;
 
 export const scanAction = guardedAction("cabinet.work", scanSchema, async (input) => {
-  const pair = await pairOf(getDb(), input.code);
-  if (!pair) throw new AppError(404, `${input.code} is not a cabinet or pair on the route.`, { code: ["Check the label and scan again."] });
+  const pair = await routedItemOf(getDb(), input.code);
+  if (!pair) throw new AppError(404, `${input.code} is not a cabinet, pair or trim part on a route.`, { code: ["Check the label and scan again."] });
   return { ok: true, redirectTo: pairPage(pair.identity, input.station || undefined) };
 });
 

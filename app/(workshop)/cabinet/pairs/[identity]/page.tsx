@@ -18,7 +18,10 @@ import { holdsOn } from "@/lib/containments";
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { STATION_CAUTIONS } from "@/lib/route/cautions";
 import { nextStepNow, windowText } from "@/lib/route/rules";
-import { isLoneLacquerCabinet, pairRoute, recordedNotice } from "@/lib/route/pair-route";
+import { recordedNotice, routeOf } from "@/lib/route/pair-route";
+import { routedKindOf } from "@/lib/route/routed-group";
+import { groupWords, HOLDER_WORD } from "@/lib/route/group-words";
+import { ROUTE_KIND_LABEL } from "@/lib/vocabulary/route-kinds";
 import { dispositionSummary } from "@/lib/route/nonconformances";
 import { ncWhere } from "@/lib/route/words";
 import { DispositionForm } from "@/app/(workshop)/quality/disposition-form";
@@ -37,11 +40,14 @@ export default async function PairRoutePage({ params, searchParams }: { params: 
   const db = getDb();
   const identity = pageParam((await params).identity);
   const pair = await itemByIdentity(db, identity);
-  if (!pair || (pair.kind !== "pair" && !(await isLoneLacquerCabinet(db, pair)))) notFound();
-  // A lacquer cabinet made in a batch travels the route alone until assembly pairs it.
-  const lone = pair.kind === "cabinet";
+  const kind = pair ? await routedKindOf(db, pair) : null;
+  if (!pair || !kind) notFound();
+  // A lacquer cabinet made in a batch travels the route alone until assembly pairs it; a trim part
+  // travels its own model's trim route alone: both are a group of one.
+  const lone = kind !== "pair";
+  const trim = kind === "trim_part";
   const at = now();
-  const route = await pairRoute(db, pair, at);
+  const route = await routeOf(db, pair, at);
   // An open containment holding the pair (or a cabinet of it): shown, and no step is offered.
   const holds = await holdsOn(db, [pair.id]);
   const steps = route.spec.steps;
@@ -67,7 +73,7 @@ export default async function PairRoutePage({ params, searchParams }: { params: 
       <BackLink href={paths.cabinet}>Cabinet shop</BackLink>
       <PageHeader
         title={<span className="serial" data-testid="route-pair">{pair.identity}</span>}
-        lead={`${route.model.code} ${route.model.name}${route.finishName ? ` · ${route.finishName}` : ""} · route version ${route.spec.version}${route.started ? "" : " (fixed when the first step is recorded)"}`}
+        lead={`${route.model.code} ${route.model.name}${route.finishName ? ` · ${route.finishName}` : ""}${trim ? ` · trim part (${pair.partType})` : ""} · ${ROUTE_KIND_LABEL[route.group.routeKind].toLowerCase()} version ${route.spec.version}${route.started ? "" : " (fixed when the first step is recorded)"}`}
         actions={<Badge tone={pos.openNcs.length || holds.length ? "danger" : pos.finished ? "leaf" : "info"}>{pos.openNcs.length || holds.length ? "on hold" : pos.finished ? "route finished" : stateLabel(pair.state)}</Badge>}
       />
       <ContainmentHold holds={holds} identity={pair.identity} />
@@ -81,14 +87,16 @@ export default async function PairRoutePage({ params, searchParams }: { params: 
           {disposedText}
         </Notice>
       ) : null}
-      {lone ? <Notice tone="info">A lacquer cabinet made in a batch: it travels the route on its own, and assembly pairs it with another finished cabinet of its model and colour.</Notice> : null}
+      {trim ? (
+        <Notice tone="info">A metal trim part from supplier&apos;s lot {String(pair.attrs.lot ?? "not recorded")}: it travels the trim-part route on its own, and assembly fits it once the route is finished.</Notice>
+      ) : lone ? <Notice tone="info">A lacquer cabinet made in a batch: it travels the route on its own, and assembly pairs it with another finished cabinet of its model and colour.</Notice> : null}
       <div className="grid gap-4 md:grid-cols-2" data-testid="route-cabinets">
         {(lone ? (["L"] as const) : (["L", "R"] as const)).map((side) => {
           const c = cabinetOf(side);
           const p = pos.cabinets.find((x) => x.side === side);
           return (
             <div key={side} className="rounded-lg border border-line bg-surface p-4">
-              <p className="font-bold">{lone ? "This cabinet" : side === "L" ? "Left cabinet" : "Right cabinet"}</p>
+              <p className="font-bold">{trim ? "This trim part" : lone ? "This cabinet" : side === "L" ? "Left cabinet" : "Right cabinet"}</p>
               {c ? (
                 <>
                   <SerialLink identity={c.item.identity} />
@@ -122,12 +130,12 @@ export default async function PairRoutePage({ params, searchParams }: { params: 
           </div>
           {allowed.blocked ? (
             <Notice tone="caution" className="mb-4" testId="step-blocked">
-              {allowed.blocked.reason}
+              {groupWords(kind, allowed.blocked.reason)}
             </Notice>
           ) : null}
           {holds.length ? (
             <p className="text-ink-soft" data-testid="step-held">
-              No step is recorded while the containment holds {lone ? "the cabinet" : "the pair"}.
+              No step is recorded while the containment holds {HOLDER_WORD[kind]}.
             </p>
           ) : canWork && allowed.ready.length ? (
             <StepForm
@@ -144,13 +152,14 @@ export default async function PairRoutePage({ params, searchParams }: { params: 
                   return { side: s, identity: cabinetOf(s)!.item.identity, ready: allowed.ready.includes(s), note };
                 })}
               window={Object.fromEntries(next.readings.map((r) => [r.key, windowText(r)]))}
+              memberLabel={trim ? "Trim part" : "Cabinet"}
             />
           ) : canWork ? null : (
             <p className="text-ink-soft">Steps are recorded by the cabinet shop.</p>
           )}
         </Panel>
       ) : (
-        <Notice tone="leaf">{pairedAtAssembly ? "Paired at assembly from two finished lacquer cabinets." : "Both cabinets have finished the route: the pair is ready for assembly."}</Notice>
+        <Notice tone="leaf">{pairedAtAssembly ? "Paired at assembly from two finished lacquer cabinets." : trim ? "The trim part has finished its route: it is ready to be fitted at assembly." : lone ? "The cabinet has finished the route: assembly pairs it with another finished cabinet." : "Both cabinets have finished the route: the pair is ready for assembly."}</Notice>
       )}
 
       {user.permissions.has("quality.work") && openNcs.length ? (
@@ -195,7 +204,7 @@ export default async function PairRoutePage({ params, searchParams }: { params: 
           columns={[
             { key: "at", label: "Recorded" },
             { key: "step", label: "Step" },
-            { key: "sides", label: "Cabinets" },
+            { key: "sides", label: lone ? "Done on" : "Cabinets" },
             { key: "readings", label: "Readings" },
           ]}
           rows={route.records.map((r) => {
@@ -205,7 +214,7 @@ export default async function PairRoutePage({ params, searchParams }: { params: 
               cells: {
                 at: { value: r.recordedAt.getTime(), display: formatWhen(r.recordedAt, at) },
                 step: { value: r.seq, display: `${r.seq}. ${step?.name ?? ""}` },
-                sides: { value: r.cabinets.map((c) => c.side).join("+") },
+                sides: { value: lone ? HOLDER_WORD[kind] : r.cabinets.map((c) => c.side).join("+") },
                 readings: {
                   value: JSON.stringify(r.readings),
                   display: (

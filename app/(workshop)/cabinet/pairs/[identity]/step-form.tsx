@@ -12,7 +12,22 @@ import { recordStepAction } from "../../actions/steps";
  * Readings out of their window are not recorded at the first press: the server sends back the
  * question, and only the button that answers it records them and opens a nonconformance.
  */
-export function StepForm({ pair, pairId, step, sides, window }: { pair: string; pairId: string; step: StepSpec; sides: { side: "L" | "R"; identity: string; ready: boolean; note?: string }[]; window: Record<string, string> }) {
+export function StepForm({
+  pair,
+  pairId,
+  step,
+  sides,
+  window,
+  memberLabel = "Cabinet",
+}: {
+  pair: string;
+  pairId: string;
+  step: StepSpec;
+  sides: { side: "L" | "R"; identity: string; ready: boolean; note?: string }[];
+  window: Record<string, string>;
+  /** What a group of one is called: "Cabinet" (a lone lacquer cabinet) or "Trim part". */
+  memberLabel?: string;
+}) {
   const [state, action] = useActionState(recordStepAction, initialFormState);
   const v = (k: string) => (typeof state.values?.[k] === "string" ? (state.values[k] as string) : "");
   const keptSides = Array.isArray(state.values?.sides) ? state.values.sides : null;
@@ -28,7 +43,7 @@ export function StepForm({ pair, pairId, step, sides, window }: { pair: string; 
       {confirm ? (
         <Notice tone="caution" title="A reading is out of its window" testId="step-confirm">
           <p>{state.message}</p>
-          <p className="mt-1 text-ink-soft">Correct the reading and record again, or record it as it is: the nonconformance then holds the pair until quality dispositions it.</p>
+          <p className="mt-1 text-ink-soft">Correct the reading and record again, or record it as it is: the nonconformance then holds it until quality dispositions it.</p>
         </Notice>
       ) : null}
       <input type="hidden" name="pair" value={pair} />
@@ -41,7 +56,7 @@ export function StepForm({ pair, pairId, step, sides, window }: { pair: string; 
             <label key={s.side} className="flex min-h-12 cursor-pointer items-center gap-3 rounded-lg border border-line bg-surface px-3 has-checked:border-leaf has-checked:bg-leaf-soft">
               <input type="checkbox" name="sides" value={s.side} defaultChecked={s.ready && (!keptSides || keptSides.includes(s.side))} disabled={!s.ready} className="size-5 accent-leaf" />
               <span>
-                {sides.length === 1 ? "Cabinet" : s.side === "L" ? "Left" : "Right"} <span className="serial text-sm">{s.identity}</span>
+                {sides.length === 1 ? memberLabel : s.side === "L" ? "Left" : "Right"} <span className="serial text-sm">{s.identity}</span>
                 {s.ready ? "" : ` (${s.note ?? "not at this step"})`}
               </span>
             </label>

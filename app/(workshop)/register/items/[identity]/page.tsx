@@ -178,6 +178,15 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
         </Notice>
       ) : null}
       {item.kind === "drive_unit" || item.kind === "crossover" ? <LabOrigin item={item} inLab={user.permissions.has("lab.work")} /> : null}
+      {item.kind === "trim_part" ? (
+        <Notice tone="info" testId="trim-route-link">
+          A metal trim part{typeof item.attrs.supplier === "string" ? ` from ${item.attrs.supplier}` : ""}: its steps are on{" "}
+          <Link href={paths.cabinetPair(item.identity)} className="underline">
+            its trim-part route
+          </Link>
+          .
+        </Notice>
+      ) : null}
       {item.kind === "flitch" || item.kind === "leaf" ? <VeneerOrigin identity={item.identity} kind={item.kind} inVeneerRoom={user.permissions.has("veneer.work")} /> : null}
 
       {/* The cards wrap to fewer columns rather than squeeze: a serial is never cut or broken. */}

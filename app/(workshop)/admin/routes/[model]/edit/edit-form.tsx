@@ -7,6 +7,7 @@ import { Notice } from "@/components/ui/notice";
 import { initialFormState, type FormState } from "@/lib/forms";
 import type { StepSpec } from "@/lib/route/types";
 import { ROUTE_STATIONS, STATION_NAME } from "@/lib/vocabulary/stations";
+import type { RouteKind } from "@/lib/vocabulary/route-kinds";
 import { saveRouteVersionAction } from "../../actions";
 import * as draft from "./draft";
 import type { HoldUnit, Layout, ReadingDraft, StepDraft } from "./draft";
@@ -45,7 +46,7 @@ interface FieldErrors {
 
 type Result = { state: FormState; layout: Layout | null };
 
-export function RouteEditForm({ model, baseVersion, steps: initial }: { model: { id: string; code: string }; baseVersion: number; steps: StepSpec[] }) {
+export function RouteEditForm({ model, routeKind = "cabinet", baseVersion, steps: initial }: { model: { id: string; code: string }; routeKind?: RouteKind; baseVersion: number; steps: StepSpec[] }) {
   const [steps, setSteps] = useState<StepDraft[]>(() => draft.draftOf(initial));
   const [note, setNote] = useState("");
   const [result, action, pending] = useActionState<Result, FormData>(
@@ -53,7 +54,7 @@ export function RouteEditForm({ model, baseVersion, steps: initial }: { model: {
       const layout = JSON.parse(String(formData.get("layout") ?? "null")) as Layout | null;
       // Only what the server reads: the visible fields are already in the steps' JSON.
       const sent = new FormData();
-      for (const k of ["modelId", "baseVersion", "steps", "note"]) {
+      for (const k of ["modelId", "routeKind", "baseVersion", "steps", "note"]) {
         const v = formData.get(k);
         if (typeof v === "string") sent.set(k, v);
       }
@@ -93,6 +94,7 @@ export function RouteEditForm({ model, baseVersion, steps: initial }: { model: {
   return (
     <form onSubmit={submit} className="flex flex-col gap-6" noValidate data-testid="route-edit-form" aria-busy={pending}>
       <input type="hidden" name="modelId" value={model.id} />
+      <input type="hidden" name="routeKind" value={routeKind} />
       <input type="hidden" name="baseVersion" value={String(baseVersion)} />
       <input type="hidden" name="steps" value={JSON.stringify(draft.toSpec(steps))} />
       <input type="hidden" name="layout" value={JSON.stringify(draft.layoutOf(steps))} />
