@@ -11,7 +11,7 @@ import { migrate } from "drizzle-orm/libsql/migrator";
 import { describe, expect, test } from "vitest";
 import { openDb } from "@/db";
 import { migrateDatabase, MIGRATIONS_FOLDER } from "@/db/migrate";
-import { batchUnits, finishes, flitches, unitBatches, veneerLeaves } from "@/db/schema";
+import { batchUnits, flitches, unitBatches, veneerLeaves } from "@/db/schema";
 import { appendEvent } from "@/lib/events/queries";
 import { affectedByItem } from "@/lib/containments/affected";
 import { createItem, fit } from "@/lib/genealogy/graph";
@@ -56,7 +56,8 @@ describe("migrating a register written before batches and flitches were items", 
         await fit(tx, { parent: speaker, child: unit, position: "T" }, by(new Date("2025-04-01T09:00:00Z")));
         await fit(tx, { parent: pair, child: speaker, position: "L" }, by(new Date("2025-04-01T09:00:00Z")));
 
-        await tx.insert(finishes).values({ id: "f1", code: "WN", name: "Invented walnut", kind: "veneer" });
+        // Raw SQL: the schema of today names columns (a finish's botanical name, cut…) the old database lacks.
+        await tx.run(sql`INSERT INTO finishes (id, code, name, kind) VALUES ('f1', 'WN', 'Invented walnut', 'veneer')`);
         const flitch = await createItem(tx, { kind: "flitch", identity: "F-WN-25-00001-X", state: "received" }, by(cut));
         const fEvent = await appendEvent(tx, { actorId: null, station: "veneer", type: "flitch.received", subjectKind: "item", subjectId: flitch.id, data: {}, at: cut });
         await tx.insert(flitches).values({ itemId: flitch.id, finishId: "f1", logReference: "R", supplier: "S", receivedOn: "2025-03-05", leafThicknessMm: 0.6, leafCount: 1, eventId: fEvent });
