@@ -4,7 +4,7 @@ import { users } from "./auth";
 import { events } from "./events";
 import { items } from "./genealogy";
 import { models } from "./workshop";
-import type { StepSpec } from "@/lib/route/types";
+import type { ReadingValue, StepSpec } from "@/lib/route/types";
 import { ROUTE_KINDS } from "../../lib/vocabulary/route-kinds";
 
 /** A model's route, versioned: editing makes a new version; a pair keeps the version it started under. */
@@ -58,7 +58,7 @@ export const routeRecords = sqliteTable(
     cabinets: text("cabinets", { mode: "json" }).$type<{ id: string; side: "L" | "R" }[]>().notNull(),
     startedAt: integer("started_at", { mode: "timestamp_ms" }).notNull(),
     recordedAt: integer("recorded_at", { mode: "timestamp_ms" }).notNull(),
-    readings: text("readings", { mode: "json" }).$type<Record<string, number | boolean>>().notNull(),
+    readings: text("readings", { mode: "json" }).$type<Record<string, ReadingValue>>().notNull(),
     outOfWindow: integer("out_of_window", { mode: "boolean" }).notNull(),
     eventId: integer("event_id")
       .notNull()

@@ -3,6 +3,7 @@ import { sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { AppError } from "@/lib/auth/errors";
 import { isRouteStation, ROUTE_STATIONS, STATION_NAME, type RouteStation } from "@/lib/vocabulary/stations";
+import type { ReadingValue } from "./types";
 import { readWindow } from "./window";
 
 export interface StationReading {
@@ -12,7 +13,7 @@ export interface StationReading {
   step: string;
   startedAt: Date;
   recordedAt: Date;
-  readings: Record<string, number | boolean>;
+  readings: Record<string, ReadingValue>;
   outOfWindow: boolean;
   pair: { id: string; identity: string; state: string };
   cabinets: { id: string; identity: string; side: "L" | "R"; state: string }[];
@@ -57,7 +58,7 @@ export async function readingsAtStation(db: DbOrTx, input: { station: unknown; f
     step: r.step,
     startedAt: new Date(Number(r.started_at)),
     recordedAt: new Date(Number(r.recorded_at)),
-    readings: JSON.parse(r.readings) as Record<string, number | boolean>,
+    readings: JSON.parse(r.readings) as Record<string, ReadingValue>,
     outOfWindow: Boolean(r.out_of_window),
     pair: { id: r.pair_id, identity: r.pair_identity, state: r.pair_state },
     cabinets: (JSON.parse(r.cabinets) as [string, string, "L" | "R", string][])

@@ -17,7 +17,7 @@ import { itemByIdentity } from "@/lib/genealogy/graph";
 import { holdsOn } from "@/lib/containments";
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { STATION_CAUTIONS } from "@/lib/route/cautions";
-import { nextStepNow, windowText } from "@/lib/route/rules";
+import { nextStepNow, readingValueText, windowText } from "@/lib/route/rules";
 import { isLoneLacquerCabinet, pairRoute, recordedNotice } from "@/lib/route/pair-route";
 import { dispositionSummary } from "@/lib/route/nonconformances";
 import { ncWhere } from "@/lib/route/words";
@@ -213,7 +213,7 @@ export default async function PairRoutePage({ params, searchParams }: { params: 
                       {Object.entries(r.readings)
                         .map(([k, v]) => {
                           const spec = step?.readings.find((x) => x.key === k);
-                          return `${spec?.label ?? k}: ${typeof v === "boolean" ? (v ? "passed" : "not passed") : `${v}${spec?.unit ? ` ${spec.unit}` : ""}`}`;
+                          return `${spec?.label ?? k}: ${readingValueText(spec, v)}`;
                         })
                         .join(" · ") || "none"}
                       {r.outOfWindow ? " (out of window)" : ""}
