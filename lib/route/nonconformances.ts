@@ -12,12 +12,17 @@ import type { Actor } from "@/lib/vocabulary/actor";
 import { PAIR_CABINET_POSITION as CAB_POSITION, sideOfCabinetPosition } from "@/lib/vocabulary/positions";
 import type { Side } from "./types";
 import { pairRoute } from "./pair-route";
-import { DISPOSITION_WORDS, dispositionSentence } from "./words";
+import { DISPOSITION_WORDS, dispositionSentence, type Disposition } from "./words";
+import { entryErrorRefusal } from "./corrections";
 
-/** Quality's decision on a nonconformance, once: rework to a named step, use as is, or scrap one cabinet. */
+/**
+ * Quality's decision on a nonconformance, once: rework to a named step, use as is, scrap one
+ * cabinet, or close it as an entry error, which only a nonconformance whose record a correction
+ * has brought back inside every window may take (lib/route/corrections.ts).
+ */
 export async function dispositionNc(
   db: DbOrTx,
-  input: { ncId: string; disposition: "rework" | "use_as_is" | "scrap"; reworkToSeq?: number | null; scrapSide?: Side | null; reason: string },
+  input: { ncId: string; disposition: Disposition; reworkToSeq?: number | null; scrapSide?: Side | null; reason: string },
   actor: Actor,
 ): Promise<{ code: string }> {
   return db.transaction(async (tx) => {
@@ -32,6 +37,10 @@ export async function dispositionNc(
     // Seq 0 is the final pair test: rework means adjust and test again; use as is accepts the deviation.
     const finalTest = nc.seq === 0;
     if (finalTest && input.disposition === "scrap") throw new AppError(400, "A final-test nonconformance is reworked (adjusted and tested again) or used as is.", { disposition: ["Choose rework or use as is."] });
+    if (input.disposition === "entry_error") {
+      const refusal = await entryErrorRefusal(tx, nc);
+      if (refusal) throw new AppError(409, refusal, { disposition: ["Correct the reading first, or choose another disposition."] });
+    }
     if (finalTest && input.disposition === "rework") reworkToSeq = 0;
     else if (input.disposition === "rework") {
       const step = route.spec.steps.find((s) => s.seq === input.reworkToSeq);

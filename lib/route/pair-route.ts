@@ -15,6 +15,7 @@ import type { Actor } from "@/lib/vocabulary/actor";
 import { cabinetsPhrase, checkReadings, checkStep, outOfWindowConfirmation, outOfWindowQuestion, position, type OutOfWindow } from "./rules";
 import type { PairPosition, RouteEntry, Side, StepSpec } from "./types";
 import { currentSpec } from "./specs";
+import { correctedRecords } from "./corrected";
 
 export interface PairRoute {
   pair: Item;
@@ -95,7 +96,8 @@ export async function pairRoute(db: DbOrTx, pair: Item, at: Date = clockNow()): 
     .innerJoin(items, eq(items.id, links.childId))
     .where(and(eq(links.parentId, pair.id), isNull(links.endedAt), inArray(links.position, ["CAB-L", "CAB-R"])));
   const cabinets = lone ? [{ side: "L" as Side, item: pair }] : held.map((h) => ({ side: (h.position === "CAB-L" ? "L" : "R") as Side, item: h.item })).sort((a, b) => a.side.localeCompare(b.side));
-  const records = await db.select().from(routeRecords).where(eq(routeRecords.pairId, pair.id)).orderBy(asc(routeRecords.id));
+  // Each record as its newest correction says (lib/route/corrections.ts): holds and position follow the corrected values and start.
+  const records = await correctedRecords(db, pair.id, await db.select().from(routeRecords).where(eq(routeRecords.pairId, pair.id)).orderBy(asc(routeRecords.id)));
   const ncs = await db.select().from(nonconformances).where(eq(nonconformances.pairId, pair.id)).orderBy(asc(nonconformances.openedAt));
   const history = historyFor(records, ncs, cabinets);
   const pos = position(spec.steps, history, cabinets.map((c) => c.side), at);

@@ -9,7 +9,7 @@ import { describe, expect, test } from "vitest";
 import { defaultRoute } from "@/lib/route/default-spec";
 import { checkReadings, checkStep, gritText, holdsOf, outOfWindowQuestion, parseGrit, position, readingValueText, windowText } from "@/lib/route/rules";
 import { stepsSchema } from "@/lib/route/spec-rules";
-import type { ReadingSpec, RouteEntry, Side, StepSpec } from "@/lib/route/types";
+import type { RouteEntry, Side, StepSpec } from "@/lib/route/types";
 
 const spec = defaultRoute();
 const MIN = 60_000;
@@ -178,7 +178,7 @@ describe("the wait between coats", () => {
 });
 
 describe("the route editor's rules for the new kinds (lib/route/spec-rules.ts)", () => {
-  const step = (r: Partial<ReadingSpec> & Record<string, unknown>) => [{ key: "s", name: "Step", station: "lacquer", readings: [{ key: "r", label: "Reading", unit: null, ...r }] }];
+  const step = (r: Record<string, unknown>) => [{ key: "s", name: "Step", station: "lacquer", readings: [{ key: "r", label: "Reading", unit: null, ...r }] }];
   test.each([
     [{ kind: "text" }, true],
     [{ kind: "text", maxLength: 30 }, true],

@@ -23,3 +23,13 @@ export const repartnerSchema = z.object({
   cabinet: z.string().trim().min(3, "Scan or type the new cabinet's serial.").max(60),
   reason: z.string().trim().min(5, "Give the reason for the new partner.").max(500),
 });
+
+export const correctionSchema = z.object({
+  pair: z.string().min(1),
+  pairId: z.string().min(1),
+  recordId: wholeNumber(z.number({ error: "Choose the recorded step to correct." }).int().min(1, "Choose the recorded step to correct.")),
+  /** Checked (at least a few words) by lib/route/corrections.ts, which says why beside the field. */
+  reason: z.string().max(2000).default(""),
+  /** Sent only by the button that answers "record it and open a nonconformance?". */
+  confirmOutOfWindow: z.string().max(2000).optional(),
+});

@@ -6,6 +6,7 @@
 import { dispositionNc, openNonconformances } from "@/lib/route/nonconformances";
 import { OutOfWindowUnconfirmed, recordStep } from "@/lib/route/pair-route";
 import { defaultRoute } from "@/lib/route/default-spec";
+import { P_GRADES } from "@/lib/route/rules";
 import type { Side } from "@/lib/vocabulary/sides";
 import { DAY, HOUR, MIN, plus, type Rng } from "./basics";
 import { got, type Plan } from "./plan";
@@ -45,17 +46,30 @@ export function routeSchedule(press: Date): ScheduledStep[] {
 }
 
 /** Readings typed at a step, inside their windows (the demo workshop's usual values). */
-function readingsFor(rng: Rng, key: string): Record<string, string | boolean> {
+function readingsFor(rng: Rng, key: string, press: Date): Record<string, string | boolean> {
   const step = defaultRoute().find((s) => s.key === key)!;
   const out: Record<string, string | boolean> = {};
   for (const r of step.readings) {
     if (r.kind === "check") out[r.key] = true;
+    // The lacquer maker's lot: the invented workshop opens a new drum each month, build and top coats apart.
+    else if (r.kind === "text") out[r.key] = lacquerLot(press, key);
+    else if (r.kind === "grit") {
+      const grades = P_GRADES.filter((g) => (r.min === undefined || g >= r.min) && (r.max === undefined || g <= r.max));
+      out[r.key] = `P${grades[rng.int(0, grades.length - 1)]}`;
+    }
     else if (r.equals !== undefined) out[r.key] = String(r.equals);
     else if (r.absMax !== undefined) out[r.key] = (rng.int(-15, 15) / 100).toFixed(2);
     else if (r.min !== undefined && r.max !== undefined) out[r.key] = String(r.min + rng.int(0, r.max - r.min));
     else out[r.key] = String((r.min ?? 0) + rng.int(5, 15));
   }
   return out;
+}
+
+/** "GL-2611-B": an invented lacquer lot, by the month of the press and build (B) or top (T) coats. */
+export function lacquerLot(press: Date, key: string): string {
+  const n = Number(key.replace(/^coat-/, ""));
+  const yymm = `${String(press.getUTCFullYear() % 100).padStart(2, "0")}${String(press.getUTCMonth() + 1).padStart(2, "0")}`;
+  return `GL-${yymm}-${n <= 4 ? "B" : "T"}`;
 }
 
 export interface RouteSubject {
@@ -71,7 +85,7 @@ export interface RouteSubject {
 
 export function planRoute(plan: Plan, rng: Rng, s: RouteSubject): void {
   for (const step of routeSchedule(s.press)) {
-    const readings = readingsFor(rng, step.key);
+    const readings = readingsFor(rng, step.key, s.press);
     if (s.openTrimNc && step.key === "trim") readings.deviationMm = "0.24";
     if (s.polishUsedAsIs && step.key === "machine-polish") readings.cycleMinutes = "84";
     // The two planned nonconformances are recorded as a person does: asked once, and confirmed.
