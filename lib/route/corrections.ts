@@ -215,3 +215,33 @@ export async function entryErrorRefusal(db: DbOrTx, nc: { code: string; recordId
   if (!newest || newest.outOfWindow || newest.correctedAt.getTime() < nc.openedAt.getTime()) return refusal;
   return null;
 }
+
+/**
+ * Of these nonconformances, the ones quality may close as an entry error now, with the correction
+ * that put the reading right in words ("Wet film thickness 1000 µm → 100 µm"): one query.
+ */
+export async function entryErrorsReady(db: DbOrTx, ncs: { id: string; recordId: number | null; openedAt: Date }[]): Promise<Map<string, { words: string; reason: string }>> {
+  const recordIds = [...new Set(ncs.map((n) => n.recordId).filter((r): r is number => r !== null))];
+  const out = new Map<string, { words: string; reason: string }>();
+  if (!recordIds.length) return out;
+  const rows = await db
+    .select({ c: routeCorrections, words: sql<string | null>`json_extract(${events.data}, '$.changedWords')` })
+    .from(routeCorrections)
+    .innerJoin(events, eq(events.id, routeCorrections.eventId))
+    .where(inArray(routeCorrections.recordId, recordIds))
+    .orderBy(asc(routeCorrections.id));
+  const newest = new Map<number, (typeof rows)[number]>();
+  for (const r of rows) newest.set(r.c.recordId, r);
+  for (const n of ncs) {
+    const c = n.recordId !== null ? newest.get(n.recordId) : undefined;
+    if (c && !c.c.outOfWindow && c.c.correctedAt.getTime() >= n.openedAt.getTime()) out.set(n.id, { words: c.words ?? "", reason: c.c.reason });
+  }
+  return out;
+}
+
+/** Who recorded each route record (the actor of its first event), for "correct your own". */
+export async function recordAuthors(db: DbOrTx, eventIds: number[]): Promise<Map<number, string | null>> {
+  if (!eventIds.length) return new Map();
+  const rows = await db.select({ id: events.id, actorId: events.actorId }).from(events).where(inArray(events.id, eventIds));
+  return new Map(rows.map((r) => [r.id, r.actorId]));
+}

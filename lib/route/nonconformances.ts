@@ -13,7 +13,7 @@ import { PAIR_CABINET_POSITION as CAB_POSITION, sideOfCabinetPosition } from "@/
 import type { Side } from "./types";
 import { pairRoute } from "./pair-route";
 import { DISPOSITION_WORDS, dispositionSentence, type Disposition } from "./words";
-import { entryErrorRefusal } from "./corrections";
+import { entryErrorRefusal, entryErrorsReady } from "./corrections";
 
 /**
  * Quality's decision on a nonconformance, once: rework to a named step, use as is, scrap one
@@ -161,12 +161,15 @@ export interface NcToDisposition {
   steps: { seq: number; name: string }[];
   /** The cabinets the pair holds now, by side (a lone lacquer cabinet is its own left side). */
   sides: { side: Side; identity: string }[];
+  /** Set when a correction has brought its record back inside every window: it may close as an entry error. */
+  entryError: { words: string; reason: string } | null;
 }
 
 /**
- * Quality's worklist: every open nonconformance with what its disposition form offers. Four
+ * Quality's worklist: every open nonconformance with what its disposition form offers. Five
  * queries whatever the number of nonconformances: the open ones, the route version each pair
- * started under, the newest version per model for pairs not yet started, and the cabinets held.
+ * started under, the newest version per model for pairs not yet started, the cabinets held, and the corrections
+ * that make some of them entry errors.
  */
 export async function ncsToDisposition(db: DbOrTx): Promise<NcToDisposition[]> {
   const open = await db
@@ -194,6 +197,7 @@ export async function ncsToDisposition(db: DbOrTx): Promise<NcToDisposition[]> {
     .from(links)
     .innerJoin(items, eq(items.id, links.childId))
     .where(and(inArray(links.parentId, pairIds), isNull(links.endedAt), inArray(links.position, [CAB_POSITION.L, CAB_POSITION.R])));
+  const ready = await entryErrorsReady(db, open.map((o) => o.nc));
   return open.map(({ nc, pair }) => {
     const steps = started.find((s) => s.pairId === pair.id)?.steps ?? newest.find((n) => n.modelId === pair.modelId)?.steps ?? [];
     const sides =
@@ -203,7 +207,7 @@ export async function ncsToDisposition(db: DbOrTx): Promise<NcToDisposition[]> {
             .filter((h) => h.pairId === pair.id)
             .map((h) => ({ side: sideOfCabinetPosition(h.position)!, identity: h.identity }))
             .sort((a, b) => a.side.localeCompare(b.side));
-    return { nc, pair: pair.identity, steps: steps.filter((s) => s.seq <= nc.seq).map((s) => ({ seq: s.seq, name: s.name })), sides };
+    return { nc, pair: pair.identity, steps: steps.filter((s) => s.seq <= nc.seq).map((s) => ({ seq: s.seq, name: s.name })), sides, entryError: ready.get(nc.id) ?? null };
   });
 }
 

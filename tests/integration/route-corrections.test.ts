@@ -24,7 +24,6 @@ let cabinetUser = "";
 let otherCabinetUser = "";
 let qualityUser = "";
 let model: typeof models.$inferSelect;
-const seqOf = (key: string) => defaultRoute().find((s) => s.key === key)!.seq;
 
 beforeAll(async () => {
   await seedDemo(db(), { history: false });
