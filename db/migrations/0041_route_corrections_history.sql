@@ -20,3 +20,13 @@ WHEN NOT EXISTS (SELECT 1 FROM `route_records` WHERE `id` = NEW.`record_id` AND 
 BEGIN
   SELECT RAISE(ABORT, 'a correction corrects a route record of the same pair');
 END;
+--> statement-breakpoint
+-- A supplier's lot (a lacquer lot fitted into the cabinets it coated, lib/route/lacquer-lots.ts;
+-- a lot of trim parts) sits in many parents, like a component lot.
+DROP TRIGGER `links_shared_matches_kind`;
+--> statement-breakpoint
+CREATE TRIGGER `links_shared_matches_kind` BEFORE INSERT ON `links`
+WHEN NEW.shared IS NOT ((SELECT kind FROM items WHERE id = NEW.child_id) IN ('component_lot', 'unit_batch', 'maker_lot', 'flitch', 'supplier_lot'))
+BEGIN
+  SELECT RAISE(ABORT, 'links.shared must be true exactly when the child is a lot, a batch or a flitch');
+END;

@@ -24,6 +24,7 @@ import { OutOfWindowUnconfirmed } from "./pair-route";
 import { checkReadings, FUTURE_TOLERANCE_MS, outOfWindowConfirmation, readingValueText } from "./rules";
 import type { ReadingValue, StepSpec } from "./types";
 import { correctedRecords } from "./corrected";
+import { checkLots, refitLots } from "./lacquer-lots";
 
 export { correctedRecords, withCorrections } from "./corrected";
 
@@ -137,6 +138,7 @@ export async function correctRecord(db: DbOrTx, input: CorrectInput, actor: Corr
     const confirmation = outOfWindowConfirmation(out);
     if (out.length && input.confirmOutOfWindow !== confirmation) throw new OutOfWindowUnconfirmed(out, confirmation);
 
+    await checkLots(tx, step, checked.values);
     const [pair] = await tx.select().from(items).where(eq(items.id, record.pairId)).limit(1);
     const openNc = (await tx.select().from(nonconformances).where(and(eq(nonconformances.recordId, record.id), isNull(nonconformances.disposition))).orderBy(asc(nonconformances.openedAt)))[0] ?? null;
 
@@ -172,6 +174,9 @@ export async function correctRecord(db: DbOrTx, input: CorrectInput, actor: Corr
       .insert(routeCorrections)
       .values({ recordId: record.id, pairId: record.pairId, readings: checked.values, changed, startedAt, outOfWindow: out.length > 0, reason, correctedBy: actor.id, correctedAt: at, eventId: firstEvent })
       .returning({ id: routeCorrections.id });
+
+    const cabinetItems = await tx.select().from(items).where(inArray(items.id, cabinetIds));
+    await refitLots(tx, step, cur.readings, checked.values, cabinetItems, { actorId: actor.id, station: step.station, reason });
 
     let opened: string | null = null;
     if (out.length && !openNc) {

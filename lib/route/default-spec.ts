@@ -86,7 +86,7 @@ export function coat(n: number): Omit<StepSpec, "seq"> {
   const last = n === 8;
   const readings: ReadingSpec[] = [
     { key: "coat", label: "Coat number", unit: null, kind: "number", equals: n },
-    { key: "lacquerLot", label: "Lacquer lot", unit: null, kind: "text", maxLength: 40 },
+    { key: "lacquerLot", label: "Lacquer lot", unit: null, kind: "text", maxLength: 40, lot: true },
     ...(stoved ? [{ key: "ovenC", label: "Oven temperature", unit: "°C", kind: "number", min: 45, max: 60 } satisfies ReadingSpec] : []),
     { key: "wetFilmUm", label: "Wet film thickness", unit: "µm", kind: "number", min: 80, max: 120 },
   ];

@@ -16,6 +16,7 @@ import { cabinetsPhrase, checkReadings, checkStep, outOfWindowConfirmation, outO
 import type { PairPosition, RouteEntry, Side, StepSpec } from "./types";
 import { currentSpec } from "./specs";
 import { correctedRecords } from "./corrected";
+import { checkLots, fitLots } from "./lacquer-lots";
 
 export interface PairRoute {
   pair: Item;
@@ -151,6 +152,7 @@ export async function recordStep(
     if (!readings.ok) throw new AppError(400, "Some readings need attention.", readings.fieldErrors);
     const confirmation = outOfWindowConfirmation(readings.outOfWindow);
     if (readings.outOfWindow.length && input.confirmOutOfWindow !== confirmation) throw new OutOfWindowUnconfirmed(readings.outOfWindow, confirmation);
+    await checkLots(tx, step, readings.values);
     if (!route.started) {
       const eventId = await appendEvent(tx, { actorId: actor.id, station, type: "route.started", subjectKind: "item", subjectId: pair.id, data: { identity: pair.identity, specVersion: route.spec.version } });
       await tx.insert(routeStarts).values({ pairId: pair.id, specId: route.spec.id, eventId });
@@ -173,6 +175,8 @@ export async function recordStep(
       .insert(routeRecords)
       .values({ pairId: pair.id, specId: route.spec.id, seq: step.seq, cabinets: cabinets.map((c) => ({ id: c.item.id, side: c.side })), startedAt, recordedAt: at, readings: readings.values, outOfWindow: out.length > 0, eventId: firstEvent })
       .returning({ id: routeRecords.id });
+    // A lot reading (the coat's lacquer lot) goes into the cabinets as a traceable supplier lot.
+    await fitLots(tx, step, readings.values, cabinets.map((c) => c.item), { actorId: actor.id, station });
     let nc: string | null = null;
     if (out.length) {
       nc = await nextNcCode(tx, at);

@@ -46,11 +46,13 @@ const readingSchema = z
       max: optionalNumber,
       absMax: optionalNumber,
       equals: optionalNumber,
+      lot: z.boolean({ error: "Say whether the text names a supplier's lot." }).optional(),
       maxLength: z.number({ error: "Enter the longest text as a whole number, or leave it empty." }).int("Enter the longest text as a whole number.").min(1, "A text takes at least 1 character.").max(200, "A text reading takes at most 200 characters.").optional(),
     },
     { error: (issue) => (issue.code === "unrecognized_keys" ? `A reading has no field ${issue.keys.join(", ")}.` : undefined) },
   )
   .superRefine((r, ctx) => {
+    if (r.kind !== "text" && r.lot) ctx.addIssue({ code: "custom", path: ["lot"], message: "Only a text reading names a lot. Make the reading a text." });
     if (r.kind !== "text" && r.maxLength !== undefined) ctx.addIssue({ code: "custom", path: ["maxLength"], message: "Only a text reading has a longest length. Clear it, or make the reading a text." });
     if (r.kind === "text") {
       for (const k of ["min", "max", "absMax", "equals"] as const) {
@@ -167,6 +169,7 @@ export function duplicateKeyIssues(steps: unknown): { path: (string | number)[];
 function canonicalReading(r: ReadingSpec): ReadingSpec {
   const out: ReadingSpec = { key: r.key, label: r.label, unit: r.unit ?? null, kind: r.kind };
   if (r.kind === "text" && r.maxLength !== undefined) out.maxLength = r.maxLength;
+  if (r.kind === "text" && r.lot) out.lot = true;
   if (r.kind === "grit") {
     if (r.min !== undefined) out.min = r.min;
     if (r.max !== undefined) out.max = r.max;

@@ -21,6 +21,8 @@ export interface ReadingSpec {
   max?: number;
   /** For a text: the most characters it may have (TEXT_READING_MAX when absent). */
   maxLength?: number;
+  /** For a text: it names a supplier's lot (a lacquer lot), which the register traces into the cabinets (lib/route/lacquer-lots.ts). */
+  lot?: boolean;
   /** For deviations: the window is −absMax…+absMax. */
   absMax?: number;
   /** A number that must equal this exactly (e.g. the coat number of a coat step): a mismatch is refused as a slip, not recorded. */

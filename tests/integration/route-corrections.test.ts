@@ -10,6 +10,8 @@ import { events, finishes, items, models, nonconformances, routeCorrections, rou
 import { seedDemo } from "@/db/seed/seed";
 import { setClock } from "@/lib/clock";
 import { epcisDocumentForItem } from "@/lib/genealogy/epcis";
+import { itemByIdentity } from "@/lib/genealogy/graph";
+import { traceForward } from "@/lib/genealogy/trace";
 import { correctRecord, correctionsOf } from "@/lib/route/corrections";
 import { defaultRoute } from "@/lib/route/default-spec";
 import { dispositionNc } from "@/lib/route/nonconformances";
@@ -200,4 +202,32 @@ test("the EPCIS export declares the original step in error and carries the corre
   expect(declared?.errorDeclaration).toMatchObject({ reason: "incorrect_data", correctiveEventIDs: [corrective?.eventID] });
   // The corrective event carries the corrected film reading as sensor data (EPCIS 2.0 sensorElementList).
   expect(JSON.stringify(corrective?.sensorElementList)).toContain('"value":100');
+});
+
+describe("the lacquer lot is traced", () => {
+  test("a coat's lot sits in both cabinets at LACQ-1, so its forward trace reaches the pair; a corrected lot moves", async () => {
+    const { pair, recordId } = await pairWithSlip();
+    const lot = (await itemByIdentity(db(), "LQ-2612-07"))!;
+    expect(lot.kind).toBe("supplier_lot");
+    const reached = await traceForward(db(), lot.id);
+    expect(reached.map((n) => n.identity)).toContain(pair.identity);
+    setClock(at(9));
+    // The lot was mistyped too: the cabinets now hold the corrected lot, and the wrong one no longer reaches the pair.
+    await correctRecord(db(), { pairId: pair.id, recordId, readings: { wetFilmUm: "100", lacquerLot: "lq-2612-08" }, reason: "Wrong drum label read; film typed 1000 for 100." }, cabinetShop(cabinetUser));
+    const right = (await itemByIdentity(db(), "LQ-2612-08"))!;
+    expect((await traceForward(db(), right.id)).map((n) => n.identity)).toContain(pair.identity);
+    expect((await traceForward(db(), lot.id)).map((n) => n.identity)).not.toContain(pair.identity);
+    const record = (await pairRoute(db(), (await db().select().from(items).where(eq(items.id, pair.id)))[0]!)).records.find((r) => r.id === recordId)!;
+    // The reading keeps the lot as it was written.
+    expect(record.readings.lacquerLot).toBe("lq-2612-08");
+  });
+
+  test("a lot typed as a cabinet's serial is refused beside its field, and nothing is written", async () => {
+    const pair = await newPair();
+    for (const [key, h] of [["press", 0], ["trim", 1], ["brace", 2], ["sanding", 6], ["check-sanding", 7]] as const) await step(pair.id, key, at(h));
+    const cabinet = (await db().select().from(items).where(eq(items.kind, "cabinet")).limit(1))[0]!;
+    const before = await counts();
+    expect(await failureText(() => step(pair.id, "coat-1", at(8), { coat: "1", lacquerLot: cabinet.identity, ovenC: "52", wetFilmUm: "100" }))).toMatch(/Some readings need attention/);
+    expect(await counts()).toEqual(before);
+  });
 });

@@ -28,6 +28,8 @@ export interface ReadingDraft {
   equals: string;
   /** A text reading's longest length, as typed. */
   maxLength: string;
+  /** A text reading that names a supplier's lot, traced into the cabinets. */
+  lot: boolean;
 }
 
 export interface StepDraft {
@@ -64,6 +66,7 @@ export function readingDraft(r?: ReadingSpec, uid: string = newUid()): ReadingDr
     absMax: numText(r?.absMax),
     equals: numText(r?.equals),
     maxLength: numText(r?.maxLength),
+    lot: r?.lot === true,
   };
 }
 
@@ -184,6 +187,7 @@ export function toSpec(steps: StepDraft[]): Record<string, unknown>[] {
         if (r.kind === "text") {
           const v = numberOrText(r.maxLength);
           if (v !== undefined) o.maxLength = v;
+          if (r.lot) o.lot = true;
         }
         if (r.kind === "grit") {
           // "P240" or "240": the grade's number; anything else goes as typed, for the server to refuse.
@@ -301,7 +305,7 @@ export function placeErrors(fieldErrors: FormState["fieldErrors"], layout: Layou
 
 /** The fields the form shows beside their own inputs; anything else is listed above the step or reading. */
 export const STEP_FIELDS: ReadonlySet<string> = new Set(["key", "name", "station", "note", "readings", "holdAfter", "holdAfter.minutes", "holdAfter.from", "holdAfter.label"]);
-export const READING_FIELDS: ReadonlySet<string> = new Set(["key", "label", "unit", "kind", "maxLength", ...LIMITS]);
+export const READING_FIELDS: ReadonlySet<string> = new Set(["key", "label", "unit", "kind", "maxLength", "lot", ...LIMITS]);
 
 /** The errors of a step or reading that no input of the form shows. */
 export function otherErrors(rec: Record<string, string[]> | undefined, shown: ReadonlySet<string>): string[] {

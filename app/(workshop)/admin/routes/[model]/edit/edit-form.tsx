@@ -317,6 +317,10 @@ function ReadingFields({ step: s, stepIndex: i, reading: r, index: j, errors, ed
         ) : r.kind === "text" ? (
           <>
             <TextField label="Longest text (characters)" name={`reading-${r.uid}-maxLength`} inputMode="numeric" value={r.maxLength} placeholder="40" hint="Recorded as written; no window." onChange={(e) => set({ maxLength: e.target.value }, "maxLength")} errors={errors.of(r.uid, "maxLength")} />
+            <label className="flex min-h-12 cursor-pointer items-center gap-3 self-end sm:col-span-2">
+              <input type="checkbox" name={`reading-${r.uid}-lot`} checked={r.lot} onChange={(e) => set({ lot: e.target.checked }, "lot")} className="size-5 accent-leaf" />
+              <span>It names a supplier&apos;s lot (such as the lacquer lot): the register traces the lot into the cabinets.</span>
+            </label>
           </>
         ) : (
           <p className="self-end pb-3 text-ink-soft sm:col-span-2 lg:col-span-4">The inspector answers pass or fail; a fail opens a nonconformance.</p>
