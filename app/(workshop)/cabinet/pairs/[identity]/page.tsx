@@ -224,7 +224,7 @@ export default async function PairRoutePage({ params, searchParams }: { params: 
       {correctable.length ? (
         <Panel title="Correct a mistyped reading">
           <p className="mb-3 text-ink-soft">{asQuality ? "Quality may correct any recorded reading." : "You may correct readings you recorded yourself."} The record stays as it was written: the correction is added beside it with your reason, and the windows are checked again.</p>
-          <CorrectionForm key={corrections.length} pair={pair.identity} pairId={pair.id} records={correctable} asQuality={asQuality} />
+          <CorrectionForm key={`${corrections.length}:${route.records.length}`} pair={pair.identity} pairId={pair.id} records={correctable} asQuality={asQuality} />
         </Panel>
       ) : null}
 
