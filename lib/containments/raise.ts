@@ -21,7 +21,7 @@ import { containmentCode, containmentPrefix } from "./code";
 export const QUALITY_STATION = "quality" as const;
 
 /** What a containment may name: a source shared by many parts, or one serialised thing. */
-export const TARGET_KINDS: readonly ItemKind[] = ["component_lot", "unit_batch", "maker_lot", "flitch", "drive_unit", "crossover", "cabinet", "leaf", "speaker", "pair"];
+export const TARGET_KINDS: readonly ItemKind[] = ["component_lot", "unit_batch", "maker_lot", "flitch", "supplier_lot", "drive_unit", "crossover", "cabinet", "leaf", "speaker", "pair"];
 
 /** A target as typed on the form or sent as JSON: an identity, or a station and a window. */
 export type TargetInput = string | { station?: unknown; from?: unknown; to?: unknown };

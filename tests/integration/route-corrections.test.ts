@@ -11,9 +11,11 @@ import { seedDemo } from "@/db/seed/seed";
 import { setClock } from "@/lib/clock";
 import { epcisDocumentForItem } from "@/lib/genealogy/epcis";
 import { itemByIdentity } from "@/lib/genealogy/graph";
+import { raiseContainment } from "@/lib/containments";
 import { traceForward } from "@/lib/genealogy/trace";
 import { correctRecord, correctionsOf } from "@/lib/route/corrections";
 import { defaultRoute } from "@/lib/route/default-spec";
+import { readingsAtStation } from "@/lib/route/readings";
 import { dispositionNc } from "@/lib/route/nonconformances";
 import { OutOfWindowUnconfirmed, pairRoute, recordStep } from "@/lib/route/pair-route";
 import { checkReadings, outOfWindowConfirmation } from "@/lib/route/rules";
@@ -135,6 +137,10 @@ describe("a correction reruns the window check", () => {
       expect(e.reason).toBe("Typed 1000 for 100 on the film gauge.");
     }
 
+    // "Every coat at the lacquer booth that day" reads the corrected film too.
+    const booth = await readingsAtStation(db(), { station: "lacquer", from: "2026-12-08", to: "2026-12-08" });
+    expect(booth.find((b) => b.recordId === recordId)).toMatchObject({ readings: { wetFilmUm: 100, lacquerLot: "LQ-2612-07" }, outOfWindow: false });
+
     // The pair is still held until quality closes the slip's nonconformance.
     expect(route.position.openNcs).toEqual([nc]);
     await dispositionNc(db(), { ncId: open!.id, disposition: "entry_error", reason: "The gauge read 100 µm; 1000 was a typing slip, corrected." }, { id: qualityUser });
@@ -220,6 +226,14 @@ describe("the lacquer lot is traced", () => {
     const record = (await pairRoute(db(), (await db().select().from(items).where(eq(items.id, pair.id)))[0]!)).records.find((r) => r.id === recordId)!;
     // The reading keeps the lot as it was written.
     expect(record.readings.lacquerLot).toBe("lq-2612-08");
+  });
+
+  test("a containment raised on the lacquer lot holds the pair that was coated from it", async () => {
+    const { pair } = await pairWithSlip();
+    const raised = await raiseContainment(db(), { target: "lq-2612-07", reason: "The maker recalled this drum: cloudy film.", severity: "major" }, { id: qualityUser });
+    expect(raised.affected.map((a) => [a.identity, a.group])).toContainEqual([pair.identity, "in_build"]);
+    setClock(at(9));
+    expect(await failureText(() => step(pair.id, "coat-2", at(10)))).toMatch(new RegExp(raised.code));
   });
 
   test("a lot typed as a cabinet's serial is refused beside its field, and nothing is written", async () => {
