@@ -81,6 +81,8 @@ export interface CorrectInput {
   readings: Record<string, string | boolean | undefined>;
   /** When the step really started, where that was mistyped; left out, it keeps its start. */
   startedAt?: Date | null;
+  /** The same as minutes before the record was made (the correction form's field); `startedAt` wins. */
+  startedMinutesBefore?: number | null;
   reason: string;
   confirmOutOfWindow?: string | null;
 }
@@ -125,7 +127,7 @@ export async function correctRecord(db: DbOrTx, input: CorrectInput, actor: Corr
     const checked = checkReadings(step, raw);
     if (!checked.ok) throw new AppError(400, "Some readings need attention.", checked.fieldErrors);
 
-    const startedAt = input.startedAt ?? cur.startedAt;
+    const startedAt = input.startedAt ?? (input.startedMinutesBefore != null ? new Date(record.recordedAt.getTime() - input.startedMinutesBefore * 60_000) : cur.startedAt);
     if (Number.isNaN(startedAt.getTime())) throw new AppError(400, "Enter when the step started.", { startedAt: ["Enter a time."] });
     if (startedAt.getTime() > record.recordedAt.getTime() + FUTURE_TOLERANCE_MS || startedAt.getTime() > at.getTime() + FUTURE_TOLERANCE_MS) {
       throw new AppError(400, "A step starts before it is recorded: enter the time it really started.", { startedAt: ["At or before the time it was recorded."] });

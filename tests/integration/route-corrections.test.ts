@@ -175,8 +175,9 @@ describe("a correction reruns the window check", () => {
     await step(pair.id, "trim", at(1));
     const brace = await step(pair.id, "brace", at(2));
     setClock(at(3));
-    // The clamps really went on an hour earlier: the 4 h hold ends at 13:00, not 14:00.
-    await correctRecord(db(), { pairId: pair.id, recordId: brace.recordId, readings: {}, startedAt: at(1.5), reason: "The clamps went on at 09:30, not 10:00." }, cabinetShop(cabinetUser));
+    // The brace was recorded at 10:00 as started then; the clamps really went on 30 minutes before,
+    // so the 4 h hold counted from the start ends at 13:30, not 14:00.
+    await correctRecord(db(), { pairId: pair.id, recordId: brace.recordId, readings: {}, startedMinutesBefore: 30, reason: "The clamps went on at 09:30, not 10:00." }, cabinetShop(cabinetUser));
     const route = await pairRoute(db(), (await db().select().from(items).where(eq(items.id, pair.id)))[0]!, at(3));
     expect(route.position.cabinets[0]!.holdUntil).toEqual(at(5.5));
   });

@@ -14,12 +14,12 @@ type CorrectionInput = z.infer<typeof correctionSchema>;
 async function correct(input: CorrectionInput, corrector: Corrector) {
   const readings = formDataValues(input as Record<string, unknown>, "reading.");
   try {
-    const r = await correctRecord(getDb(), { pairId: input.pairId, recordId: input.recordId, readings, reason: input.reason, confirmOutOfWindow: input.confirmOutOfWindow ?? null }, corrector);
+    const r = await correctRecord(getDb(), { pairId: input.pairId, recordId: input.recordId, readings, startedMinutesBefore: input.startedMinutesBefore, reason: input.reason, confirmOutOfWindow: input.confirmOutOfWindow ?? null }, corrector);
     const q = new URLSearchParams({ corrected: String(r.correctionId) });
     return { ok: true as const, revalidate: [paths.cabinetPair(input.pair), paths.quality], redirectTo: `${paths.cabinetPair(input.pair)}?${q}` };
   } catch (e) {
     if (!(e instanceof OutOfWindowUnconfirmed)) throw e;
-    const kept = Object.fromEntries(Object.entries(input).filter(([k, v]) => (k.startsWith("reading.") || k === "reason" || k === "recordId") && (typeof v === "string" || typeof v === "number")).map(([k, v]) => [k, String(v)]));
+    const kept = Object.fromEntries(Object.entries(input).filter(([k, v]) => (k.startsWith("reading.") || k === "reason" || k === "recordId" || k === "startedMinutesBefore") && (typeof v === "string" || typeof v === "number")).map(([k, v]) => [k, String(v)]));
     return { ok: false as const, status: e.status, message: e.message, fieldErrors: e.fieldErrors, values: kept, data: { confirmOutOfWindow: e.confirmation } };
   }
 }

@@ -8,6 +8,8 @@ import { correctOwnReadingAction, correctReadingAction } from "../../actions/cor
 
 export interface CorrectableRecord {
   id: number;
+  /** How long before it was recorded the step started, in whole minutes. */
+  startedMinutesBefore: number;
   /** "Step 6, Lacquer coat 1, stoved · recorded 09:12 on 8 Dec". */
   label: string;
   readings: { key: string; label: string; kind: "number" | "check" | "text" | "grit"; unit: string | null; window: string; current: string }[];
@@ -77,6 +79,20 @@ export function CorrectionForm({ pair, pairId, records, asQuality }: { pair: str
             ),
           )}
         </div>
+      ) : null}
+      {record ? (
+        <TextField
+          key={`start-${record.id}`}
+          label="Started, minutes before it was recorded"
+          name="startedMinutesBefore"
+          type="number"
+          min={0}
+          max={1440}
+          placeholder={String(record.startedMinutesBefore)}
+          defaultValue={v("startedMinutesBefore") ?? ""}
+          hint={`Now: ${record.startedMinutesBefore} min. Leave empty to keep it; a hold after the step counts from the corrected start.`}
+          errors={state.fieldErrors?.startedMinutesBefore ?? state.fieldErrors?.startedAt}
+        />
       ) : null}
       <TextField label="Why it is corrected" name="reason" defaultValue={v("reason") ?? ""} hint="E.g. “typed 1000 for 100 µm”. Kept with the correction." errors={state.fieldErrors?.reason ?? state.fieldErrors?.readings} />
       <div className="flex flex-wrap gap-3">

@@ -83,6 +83,7 @@ export default async function PairRoutePage({ params, searchParams }: { params: 
       const step = steps.find((s) => s.seq === r.seq)!;
       return {
         id: r.id,
+        startedMinutesBefore: Math.max(0, Math.round((r.recordedAt.getTime() - r.startedAt.getTime()) / 60_000)),
         label: `Step ${r.seq}, ${step.name} · recorded ${formatWhen(r.recordedAt, at)}${r.cabinets.length === 1 && !lone ? ` (${r.cabinets[0]!.side === "L" ? "left" : "right"})` : ""}`,
         readings: step.readings.map((x) => ({ key: x.key, label: x.label, kind: x.kind, unit: x.unit, window: windowText(x), current: r.readings[x.key] === undefined ? "none" : readingValueText(x, r.readings[x.key]!) })),
       };
