@@ -17,6 +17,7 @@ import { events, items, nonconformances, processSpecs, routeCorrections, routeRe
 import { AppError } from "@/lib/auth/errors";
 import { newId } from "@/lib/auth/tokens";
 import { now as clockNow } from "@/lib/clock";
+import { formatShopTime } from "@/lib/format";
 import { appendEvent } from "@/lib/events/queries";
 import type { Actor } from "@/lib/vocabulary/actor";
 import { nextNcCode } from "./nc-codes";
@@ -202,7 +203,7 @@ export async function correctRecord(db: DbOrTx, input: CorrectInput, actor: Corr
 function changedWords(step: StepSpec, changed: string[], before: Record<string, ReadingValue>, after: Record<string, ReadingValue>, startBefore: Date, startAfter: Date): string {
   return changed
     .map((k) => {
-      if (k === "startedAt") return `start ${startBefore.toISOString().slice(11, 16)} → ${startAfter.toISOString().slice(11, 16)} UTC`;
+      if (k === "startedAt") return `start ${formatShopTime(startBefore, startAfter)} → ${formatShopTime(startAfter, startAfter, { zone: true })}`;
       const spec = step.readings.find((r) => r.key === k);
       const b = before[k];
       return `${spec?.label ?? k} ${b === undefined ? "none" : readingValueText(spec, b)} → ${readingValueText(spec, after[k]!)}`;
