@@ -4,7 +4,7 @@ import { users } from "./auth";
 import { events } from "./events";
 import { items } from "./genealogy";
 import { models } from "./workshop";
-import type { StepSpec } from "@/lib/route/types";
+import type { ReadingValue, StepSpec } from "@/lib/route/types";
 import { ROUTE_KINDS } from "../../lib/vocabulary/route-kinds";
 
 /** A model's route, versioned: editing makes a new version; a pair keeps the version it started under. */
@@ -58,7 +58,7 @@ export const routeRecords = sqliteTable(
     cabinets: text("cabinets", { mode: "json" }).$type<{ id: string; side: "L" | "R" }[]>().notNull(),
     startedAt: integer("started_at", { mode: "timestamp_ms" }).notNull(),
     recordedAt: integer("recorded_at", { mode: "timestamp_ms" }).notNull(),
-    readings: text("readings", { mode: "json" }).$type<Record<string, number | boolean>>().notNull(),
+    readings: text("readings", { mode: "json" }).$type<Record<string, ReadingValue>>().notNull(),
     outOfWindow: integer("out_of_window", { mode: "boolean" }).notNull(),
     eventId: integer("event_id")
       .notNull()
@@ -67,7 +67,46 @@ export const routeRecords = sqliteTable(
   (t) => [index("route_records_pair_idx").on(t.pairId, t.id), check("route_records_started", sql`${t.startedAt} <= ${t.recordedAt} + 60000`)],
 );
 
-export const DISPOSITIONS = ["rework", "use_as_is", "scrap"] as const;
+/**
+ * A mistyped reading put right: the record's readings (and, where given, its start) as they
+ * should have been, with the reason and who corrected it. The record itself is never changed:
+ * the newest correction of a record is what the route reads. Appended, never changed.
+ */
+export const routeCorrections = sqliteTable(
+  "route_corrections",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    recordId: integer("record_id")
+      .notNull()
+      .references(() => routeRecords.id),
+    pairId: text("pair_id")
+      .notNull()
+      .references(() => items.id),
+    /** Every reading of the record after the correction (not only those changed). */
+    readings: text("readings", { mode: "json" }).$type<Record<string, ReadingValue>>().notNull(),
+    /** The keys whose value this correction changed, and "startedAt" when the start moved. */
+    changed: text("changed", { mode: "json" }).$type<string[]>().notNull(),
+    startedAt: integer("started_at", { mode: "timestamp_ms" }).notNull(),
+    outOfWindow: integer("out_of_window", { mode: "boolean" }).notNull(),
+    reason: text("reason").notNull(),
+    correctedBy: text("corrected_by")
+      .notNull()
+      .references(() => users.id),
+    correctedAt: integer("corrected_at", { mode: "timestamp_ms" }).notNull(),
+    eventId: integer("event_id")
+      .notNull()
+      .references(() => events.id),
+  },
+  (t) => [
+    index("route_corrections_record_idx").on(t.recordId, t.id),
+    index("route_corrections_pair_idx").on(t.pairId),
+    check("route_corrections_reason", sql`length(trim(${t.reason})) >= 5`),
+    check("route_corrections_started", sql`${t.startedAt} <= ${t.correctedAt} + 60000`),
+  ],
+);
+
+/** Quality's dispositions; `entry_error` closes a nonconformance that a corrected typing slip opened. */
+export const DISPOSITIONS = ["rework", "use_as_is", "scrap", "entry_error"] as const;
 
 /**
  * A reading outside its window: the pair is on hold until quality dispositions it, once: rework
@@ -113,3 +152,4 @@ export const nonconformances = sqliteTable(
 export type ProcessSpec = typeof processSpecs.$inferSelect;
 export type RouteRecord = typeof routeRecords.$inferSelect;
 export type Nonconformance = typeof nonconformances.$inferSelect;
+export type RouteCorrection = typeof routeCorrections.$inferSelect;

@@ -25,6 +25,7 @@ export const APPEND_ONLY_TABLES = {
   process_specs: "route versions",
   route_starts: "route starts",
   route_records: "route records",
+  route_corrections: "corrections of route readings",
   nonconformances: "nonconformances",
   final_tests: "final pair tests",
   certificates: "certificates",

@@ -13,7 +13,7 @@ import { isSide, sideWord } from "@/lib/vocabulary/sides";
 
 type Data = Record<string, unknown>;
 
-const DISPOSITIONS: readonly string[] = ["rework", "use_as_is", "scrap"] satisfies Disposition[];
+const DISPOSITIONS: readonly string[] = ["rework", "use_as_is", "scrap", "entry_error"] satisfies Disposition[];
 
 const str = (d: Data, k: string): string => (typeof d[k] === "string" ? (d[k] as string) : "");
 const num = (d: Data, k: string): number | null => (typeof d[k] === "number" && Number.isFinite(d[k]) ? (d[k] as number) : null);
@@ -194,6 +194,11 @@ const SENTENCES: Record<EventType, Sentence> = {
     const side = str(d, "side");
     const out = list(d, "outOfWindow").length;
     return `recorded step ${num(d, "seq") ?? ""}, ${str(d, "step").toLowerCase()}${isSide(side) ? `, for the ${sideWord(side)} cabinet` : ""}${out ? ` (${plural(out, "reading")} out of window)` : ""}`;
+  }),
+  "route.step_corrected": needs(["step"], (d) => {
+    const changed = list(d, "changed").filter((k): k is string => typeof k === "string");
+    const what = str(d, "changedWords") || (changed.length ? plural(changed.length, "reading") : "the record");
+    return `corrected step ${num(d, "seq") ?? ""}, ${str(d, "step").toLowerCase()}: ${what}`;
   }),
   "nc.opened": needs(["code"], (d) => {
     const seq = num(d, "seq");

@@ -211,6 +211,8 @@ const isFigure = (v: unknown): v is number | boolean => (typeof v === "number" &
 export function readingsOf(e: Pick<EpcisSourceEvent, "id" | "type" | "data">, ctx: ReadingContext = {}): EpcisReading[] {
   const d = e.data ?? {};
   switch (e.type) {
+    // A correction carries the record's readings as they should have read (lib/route/corrections.ts).
+    case "route.step_corrected":
     case "route.step_recorded": {
       const values = d.readings && typeof d.readings === "object" ? (d.readings as Record<string, unknown>) : {};
       const step = typeof d.pair === "string" ? ctx.routeSteps?.get(d.pair)?.find((s) => s.seq === d.seq) : undefined;
@@ -476,7 +478,7 @@ export async function epcisDocumentForItems(db: DbOrTx, itemIds: readonly string
 
 /** The route versions and crossover part readings the events' readings need for their labels and units. */
 async function readingContext(db: DbOrTx, rows: EpcisSourceEvent[]): Promise<ReadingContext> {
-  const routeHolders = [...new Set(rows.filter((r) => r.type === "route.step_recorded" && typeof r.data?.pair === "string").map((r) => r.data.pair as string))];
+  const routeHolders = [...new Set(rows.filter((r) => (r.type === "route.step_recorded" || r.type === "route.step_corrected") && typeof r.data?.pair === "string").map((r) => r.data.pair as string))];
   const boardEvents = rows.filter((r) => r.type === "crossover.built").map((r) => r.id);
   const [routes, parts] = await Promise.all([
     routeHolders.length

@@ -1,4 +1,4 @@
-import type { StepSpec } from "./types";
+import type { HoldSpec, ReadingSpec, StepSpec } from "./types";
 
 const MIN = 1;
 const HOUR = 60 * MIN;
@@ -10,7 +10,10 @@ const DAY = 24 * HOUR;
  * minutes; trimming to ±0.2 mm; braces clamped 2 h and rested 2 h more before the next step; 4
  * coats each stoved, flatting back, 4 more coats (8 in all); 2 weeks of curing after the last
  * coat before polishing; a machine polishing cycle of about 70 minutes, then polishing by hand; a
- * hand check after machine sanding and after machine polishing.
+ * hand check after machine sanding and after machine polishing. Sanding and flatting record the
+ * abrasive's P-grade (FEPA / ISO 6344 P-scale; which grit where is common practice, see below);
+ * every coat records its lacquer lot, its wet film thickness, and (stoved coats) the oven
+ * temperature, and carries the wait before the next coat (see `coat`).
  */
 export function defaultRoute(): StepSpec[] {
   const steps: Omit<StepSpec, "seq">[] = [
@@ -39,11 +42,23 @@ export function defaultRoute(): StepSpec[] {
       holdAfter: { minutes: 4 * HOUR, from: "start", label: "clamp 2 h and rest 2 h" },
       note: "Held under clamp pressure 2 hours, then 2 more hours at rest to cure, before the next step (common practice).",
     },
-    { key: "sanding", name: "Machine sanding", station: "sanding", readings: [] },
+    {
+      key: "sanding",
+      name: "Machine sanding",
+      station: "sanding",
+      readings: [{ key: "grit", label: "Finishing grit", unit: null, kind: "grit", min: 180, max: 240 }],
+      note: "Veneer is sanded last at P180–P240 before lacquer (common practice): coarser leaves scratches the lacquer shows, finer closes the grain.",
+    },
     { key: "check-sanding", name: "Hand check after sanding", station: "inspection", readings: [{ key: "pass", label: "Inspector's check: surface fit for lacquer", unit: null, kind: "check" }] },
     ...[1, 2, 3, 4].map((n) => coat(n)),
-    { key: "flatting", name: "Flatting back", station: "flatting", readings: [], note: "After the first four coats, before the next four (common practice)." },
-    ...[5, 6, 7, 8].map((n) => coat(n, n === 8 ? { minutes: 14 * DAY, from: "end", label: "curing, 2 weeks after the last coat" } : undefined)),
+    {
+      key: "flatting",
+      name: "Flatting back",
+      station: "flatting",
+      readings: [{ key: "grit", label: "Flatting grit", unit: null, kind: "grit", min: 320, max: 600 }],
+      note: "After the first four coats, before the next four, with P320–P600 (common practice): fine enough to leave no scratch under the next coat.",
+    },
+    ...[5, 6, 7, 8].map((n) => coat(n)),
     {
       key: "machine-polish",
       name: "Machine polishing",
@@ -57,14 +72,40 @@ export function defaultRoute(): StepSpec[] {
   return steps.map((s, i) => ({ ...s, seq: i + 1 }));
 }
 
-function coat(n: number, holdAfter?: StepSpec["holdAfter"]): Omit<StepSpec, "seq"> {
+/**
+ * Coats 1–4 (the build coats, flatted back afterwards) are stoved: the oven's temperature is read,
+ * and the next coat waits for the stoving and for the cabinet to cool. Coats 5–7 (the top coats)
+ * dry in the air: the next coat waits for the solvent to flash off. Coat 8's wait is the cure.
+ * Figures from memory of a two-pack polyurethane lacquer maker's typical data sheet (not a source
+ * to cite): flash-off 15–30 min between coats at 20 °C; forced drying 30 min at 50–60 °C, then
+ * cooling to room temperature before the next coat; about 100 µm wet film a coat (80–120 µm).
+ * The 45–60 °C window and the hour's wait after stoving are the demo workshop's (common practice).
+ */
+export function coat(n: number): Omit<StepSpec, "seq"> {
+  const stoved = n <= 4;
+  const last = n === 8;
+  const readings: ReadingSpec[] = [
+    { key: "coat", label: "Coat number", unit: null, kind: "number", equals: n },
+    { key: "lacquerLot", label: "Lacquer lot", unit: null, kind: "text", maxLength: 40, lot: true },
+    ...(stoved ? [{ key: "ovenC", label: "Oven temperature", unit: "°C", kind: "number", min: 45, max: 60 } satisfies ReadingSpec] : []),
+    { key: "wetFilmUm", label: "Wet film thickness", unit: "µm", kind: "number", min: 80, max: 120 },
+  ];
+  const holdAfter: HoldSpec = last
+    ? { minutes: 14 * DAY, from: "end", label: "curing, 2 weeks after the last coat" }
+    : stoved
+      ? { minutes: HOUR, from: "end", label: "stoving 30 min, then cool-down" }
+      : { minutes: 30 * MIN, from: "end", label: "flash-off" };
   return {
     key: `coat-${n}`,
-    name: `Lacquer coat ${n}, stoved`,
+    name: `Lacquer coat ${n}, ${stoved ? "stoved" : "air-dried"}`,
     station: "lacquer",
-    readings: [{ key: "coat", label: "Coat number", unit: null, kind: "number", equals: n }],
-    ...(holdAfter ? { holdAfter } : {}),
-    note: n === 8 ? "The last of 8 coats: curing starts when it is recorded (common practice)." : "Each coat is stoved in the oven (common practice).",
+    readings,
+    holdAfter,
+    note: last
+      ? "The last of 8 coats, air-dried: curing starts when it is recorded (common practice)."
+      : stoved
+        ? "Stoved in the oven at 45–60 °C for 30 minutes, then left to cool; the next coat waits an hour from when this one is recorded."
+        : "Left to flash off in the air: the next coat waits 30 minutes from when this one is recorded.",
   };
 }
 

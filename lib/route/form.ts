@@ -4,8 +4,9 @@ export function formDataValues(input: Record<string, unknown>, prefix: string): 
   for (const [k, v] of Object.entries(input)) {
     if (!k.startsWith(prefix)) continue;
     const key = k.slice(prefix.length);
-    // A check is answered "pass" or "fail" (a select, so it is never left out by accident).
-    if (typeof v === "string") out[key] = v === "pass" ? true : v === "fail" ? false : v;
+    // Kept as text: a check's "pass"/"fail" is read by checkReadings, and a text reading (a lot
+    // written "PASS-…") must not turn into a check's answer here.
+    if (typeof v === "string") out[key] = v;
   }
   return out;
 }

@@ -12,12 +12,17 @@ import type { Actor } from "@/lib/vocabulary/actor";
 import { PAIR_CABINET_POSITION as CAB_POSITION, sideOfCabinetPosition } from "@/lib/vocabulary/positions";
 import type { Side } from "./types";
 import { routeOf } from "./pair-route";
-import { DISPOSITION_WORDS, dispositionSentence } from "./words";
+import { DISPOSITION_WORDS, dispositionSentence, type Disposition } from "./words";
+import { entryErrorRefusal, entryErrorsReady } from "./corrections";
 
-/** Quality's decision on a nonconformance, once: rework to a named step, use as is, or scrap one cabinet. */
+/**
+ * Quality's decision on a nonconformance, once: rework to a named step, use as is, scrap one
+ * cabinet, or close it as an entry error, which only a nonconformance whose record a correction
+ * has brought back inside every window may take (lib/route/corrections.ts).
+ */
 export async function dispositionNc(
   db: DbOrTx,
-  input: { ncId: string; disposition: "rework" | "use_as_is" | "scrap"; reworkToSeq?: number | null; scrapSide?: Side | null; reason: string },
+  input: { ncId: string; disposition: Disposition; reworkToSeq?: number | null; scrapSide?: Side | null; reason: string },
   actor: Actor,
 ): Promise<{ code: string }> {
   return db.transaction(async (tx) => {
@@ -32,6 +37,10 @@ export async function dispositionNc(
     // Seq 0 is the final pair test: rework means adjust and test again; use as is accepts the deviation.
     const finalTest = nc.seq === 0;
     if (finalTest && input.disposition === "scrap") throw new AppError(400, "A final-test nonconformance is reworked (adjusted and tested again) or used as is.", { disposition: ["Choose rework or use as is."] });
+    if (input.disposition === "entry_error") {
+      const refusal = await entryErrorRefusal(tx, nc);
+      if (refusal) throw new AppError(409, refusal, { disposition: ["Correct the reading first, or choose another disposition."] });
+    }
     if (finalTest && input.disposition === "rework") reworkToSeq = 0;
     else if (input.disposition === "rework") {
       const step = route.spec.steps.find((s) => s.seq === input.reworkToSeq);
@@ -152,12 +161,15 @@ export interface NcToDisposition {
   steps: { seq: number; name: string }[];
   /** The cabinets the pair holds now, by side (a lone lacquer cabinet is its own left side). */
   sides: { side: Side; identity: string }[];
+  /** Set when a correction has brought its record back inside every window: it may close as an entry error. */
+  entryError: { words: string; reason: string } | null;
 }
 
 /**
- * Quality's worklist: every open nonconformance with what its disposition form offers. Four
+ * Quality's worklist: every open nonconformance with what its disposition form offers. Five
  * queries whatever the number of nonconformances: the open ones, the route version each pair
- * started under, the newest version per model for pairs not yet started, and the cabinets held.
+ * started under, the newest version per model for pairs not yet started, the cabinets held, and the corrections
+ * that make some of them entry errors.
  */
 export async function ncsToDisposition(db: DbOrTx): Promise<NcToDisposition[]> {
   const open = await db
@@ -185,6 +197,7 @@ export async function ncsToDisposition(db: DbOrTx): Promise<NcToDisposition[]> {
     .from(links)
     .innerJoin(items, eq(items.id, links.childId))
     .where(and(inArray(links.parentId, pairIds), isNull(links.endedAt), inArray(links.position, [CAB_POSITION.L, CAB_POSITION.R])));
+  const ready = await entryErrorsReady(db, open.map((o) => o.nc));
   return open.map(({ nc, pair }) => {
     const steps = started.find((s) => s.pairId === pair.id)?.steps ?? newest.find((n) => n.modelId === pair.modelId)?.steps ?? [];
     const sides =
@@ -194,7 +207,7 @@ export async function ncsToDisposition(db: DbOrTx): Promise<NcToDisposition[]> {
             .filter((h) => h.pairId === pair.id)
             .map((h) => ({ side: sideOfCabinetPosition(h.position)!, identity: h.identity }))
             .sort((a, b) => a.side.localeCompare(b.side));
-    return { nc, pair: pair.identity, steps: steps.filter((s) => s.seq <= nc.seq).map((s) => ({ seq: s.seq, name: s.name })), sides };
+    return { nc, pair: pair.identity, steps: steps.filter((s) => s.seq <= nc.seq).map((s) => ({ seq: s.seq, name: s.name })), sides, entryError: ready.get(nc.id) ?? null };
   });
 }
 

@@ -23,6 +23,8 @@ import { routeState } from "./route-state";
 import { groupWords, isLoneLacquerCabinet, routedGroup, routedItemOf, type RoutedGroup } from "./routed-group";
 import type { PairPosition, RouteEntry, Side, StepSpec } from "./types";
 import { currentSpec } from "./specs";
+import { correctedRecords } from "./corrected";
+import { checkLots, fitLots } from "./lacquer-lots";
 
 export { isLoneLacquerCabinet, routedItemOf };
 
@@ -58,7 +60,8 @@ export async function routeOf(db: DbOrTx, routed: Item, at: Date = clockNow()): 
   const [start] = await db.select().from(routeStarts).where(eq(routeStarts.pairId, routed.id)).limit(1);
   const spec = start ? (await db.select().from(processSpecs).where(eq(processSpecs.id, start.specId)).limit(1))[0]! : await currentSpec(db, modelId, group.routeKind);
   if (!spec) throw new AppError(409, `Model ${model!.code} has no ${ROUTE_KIND_LABEL[group.routeKind].toLowerCase()} yet: an administrator sets one under Administration → Routes.`);
-  const records = await db.select().from(routeRecords).where(eq(routeRecords.pairId, routed.id)).orderBy(asc(routeRecords.id));
+  // Each record as its newest correction says (lib/route/corrections.ts): holds and position follow the corrected values and start.
+  const records = await correctedRecords(db, routed.id, await db.select().from(routeRecords).where(eq(routeRecords.pairId, routed.id)).orderBy(asc(routeRecords.id)));
   const ncs = await db.select().from(nonconformances).where(eq(nonconformances.pairId, routed.id)).orderBy(asc(nonconformances.openedAt));
   const cabinets = group.members;
   const { history, position: pos } = routeState(spec.steps, records, ncs, cabinets, at);
@@ -116,6 +119,7 @@ export async function recordStep(
     if (!readings.ok) throw new AppError(400, "Some readings need attention.", readings.fieldErrors);
     const confirmation = outOfWindowConfirmation(readings.outOfWindow);
     if (readings.outOfWindow.length && input.confirmOutOfWindow !== confirmation) throw new OutOfWindowUnconfirmed(readings.outOfWindow, confirmation);
+    await checkLots(tx, step, readings.values);
     if (!route.started) {
       const eventId = await appendEvent(tx, { actorId: actor.id, station, type: "route.started", subjectKind: "item", subjectId: pair.id, data: { identity: pair.identity, specVersion: route.spec.version } });
       await tx.insert(routeStarts).values({ pairId: pair.id, specId: route.spec.id, eventId });
@@ -138,6 +142,8 @@ export async function recordStep(
       .insert(routeRecords)
       .values({ pairId: pair.id, specId: route.spec.id, seq: step.seq, cabinets: cabinets.map((c) => ({ id: c.item.id, side: c.side })), startedAt, recordedAt: at, readings: readings.values, outOfWindow: out.length > 0, eventId: firstEvent })
       .returning({ id: routeRecords.id });
+    // A lot reading (the coat's lacquer lot) goes into the cabinets as a traceable supplier lot.
+    await fitLots(tx, step, readings.values, cabinets.map((c) => c.item), { actorId: actor.id, station });
     let nc: string | null = null;
     if (out.length) {
       nc = await nextNcCode(tx, at);

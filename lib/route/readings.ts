@@ -3,6 +3,7 @@ import { sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { AppError } from "@/lib/auth/errors";
 import { isRouteStation, ROUTE_STATIONS, STATION_NAME, type RouteStation } from "@/lib/vocabulary/stations";
+import type { ReadingValue } from "./types";
 import { readWindow } from "./window";
 
 export interface StationReading {
@@ -12,7 +13,7 @@ export interface StationReading {
   step: string;
   startedAt: Date;
   recordedAt: Date;
-  readings: Record<string, number | boolean>;
+  readings: Record<string, ReadingValue>;
   outOfWindow: boolean;
   pair: { id: string; identity: string; state: string };
   cabinets: { id: string; identity: string; side: "L" | "R"; state: string }[];
@@ -22,7 +23,8 @@ export interface StationReading {
  * Every route step recorded at `station` between `from` and `to` (both ends included; a day means
  * the whole workshop day), with the cabinets that did it and their pair: "every press cycle at the
  * forming press between these two dates". A step belongs to a station through the process spec it
- * was recorded under, so a later spec that moves a step does not rewrite the past. Refuses an
+ * was recorded under, so a later spec that moves a step does not rewrite the past. A corrected
+ * record gives its newest correction's readings and start. Refuses an
  * unknown station, a date that is not a date, and a window that ends before it starts.
  */
 export async function readingsAtStation(db: DbOrTx, input: { station: unknown; from: unknown; to: unknown }): Promise<StationReading[]> {
@@ -39,7 +41,12 @@ export async function readingsAtStation(db: DbOrTx, input: { station: unknown; f
     id: number; seq: number; step: string; started_at: number; recorded_at: number; readings: string; out_of_window: number;
     pair_id: string; pair_identity: string; pair_state: string; cabinets: string;
   }>(sql`
-    SELECT r.id, r.seq, json_extract(st.value, '$.name') AS step, r.started_at, r.recorded_at, r.readings, r.out_of_window,
+    SELECT r.id, r.seq, json_extract(st.value, '$.name') AS step,
+           -- A corrected record reads as its newest correction says (lib/route/corrections.ts).
+           coalesce((SELECT c.started_at FROM route_corrections c WHERE c.record_id = r.id ORDER BY c.id DESC LIMIT 1), r.started_at) AS started_at,
+           r.recorded_at,
+           coalesce((SELECT c.readings FROM route_corrections c WHERE c.record_id = r.id ORDER BY c.id DESC LIMIT 1), r.readings) AS readings,
+           coalesce((SELECT c.out_of_window FROM route_corrections c WHERE c.record_id = r.id ORDER BY c.id DESC LIMIT 1), r.out_of_window) AS out_of_window,
            p.id AS pair_id, p.identity AS pair_identity, p.state AS pair_state,
            (SELECT json_group_array(json_array(c.id, c.identity, json_extract(rc.value, '$.side'), c.state))
               FROM json_each(r.cabinets) rc JOIN items c ON c.id = json_extract(rc.value, '$.id')) AS cabinets
@@ -57,7 +64,7 @@ export async function readingsAtStation(db: DbOrTx, input: { station: unknown; f
     step: r.step,
     startedAt: new Date(Number(r.started_at)),
     recordedAt: new Date(Number(r.recorded_at)),
-    readings: JSON.parse(r.readings) as Record<string, number | boolean>,
+    readings: JSON.parse(r.readings) as Record<string, ReadingValue>,
     outOfWindow: Boolean(r.out_of_window),
     pair: { id: r.pair_id, identity: r.pair_identity, state: r.pair_state },
     cabinets: (JSON.parse(r.cabinets) as [string, string, "L" | "R", string][])

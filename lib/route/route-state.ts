@@ -5,7 +5,7 @@
  * a pair, a lone lacquer cabinet and a trim part.
  */
 import { position } from "./rules";
-import type { PairPosition, RouteEntry, Side, StepSpec } from "./types";
+import type { PairPosition, ReadingValue, RouteEntry, Side, StepSpec } from "./types";
 
 /** A route record as stored (route_records): the members it was done on, by id and side. */
 export interface RecordRow {
@@ -14,7 +14,7 @@ export interface RecordRow {
   cabinets: { id: string; side: Side }[];
   startedAt: Date;
   recordedAt: Date;
-  readings: Record<string, number | boolean>;
+  readings: Record<string, ReadingValue>;
   outOfWindow: boolean;
 }
 

@@ -10,7 +10,7 @@
  */
 import { formatShopTime } from "@/lib/format";
 import { allowedFromMinute } from "@/lib/workshop-time";
-import type { CabinetPosition, PairPosition, ReadingSpec, RouteEntry, RouteSpec, Side, StepSpec } from "./types";
+import type { CabinetPosition, PairPosition, ReadingSpec, ReadingValue, RouteEntry, RouteSpec, Side, StepSpec } from "./types";
 
 /** Readings are compared with their windows with this tolerance, so "0.20" typed for 0.2 is in. */
 export const READING_EPSILON = 1e-9;
@@ -32,15 +32,17 @@ export interface OutOfWindow {
   key: string;
   label: string;
   value: number | boolean;
-  /** "°C", "mm"…; null for a check. */
+  /** "°C", "mm"…; null for a check or a grit. */
   unit: string | null;
   window: string;
+  /** How the value reads when not as a number and unit: "P400" for a grit. */
+  shown?: string;
   /** Which side of the window the value fell: "outside 135–140 °C", "below the minimum of 120 min", "not passed". */
   miss: string;
 }
 
 export type ReadingsCheck =
-  | { ok: true; values: Record<string, number | boolean>; outOfWindow: OutOfWindow[] }
+  | { ok: true; values: Record<string, ReadingValue>; outOfWindow: OutOfWindow[] }
   | { ok: false; fieldErrors: Record<string, string[]> };
 
 /** The hold a cabinet is in because of its last done step, whether or not it has ended by now. */
@@ -303,6 +305,13 @@ function groupBy<T, K>(items: T[], key: (t: T) => K): [K, T[]][] {
 /** The window of a reading for people: "135–140 °C", "±0.2 mm", "at least 120 min", "pass". */
 export function windowText(r: ReadingSpec): string {
   if (r.kind === "check") return "pass";
+  if (r.kind === "text") return "as written";
+  if (r.kind === "grit") {
+    if (r.min !== undefined && r.max !== undefined) return r.min === r.max ? gritText(r.min) : `${gritText(r.min)}–${gritText(r.max)}`;
+    if (r.min !== undefined) return `${gritText(r.min)} or finer`;
+    if (r.max !== undefined) return `${gritText(r.max)} or coarser`;
+    return "any P-grade";
+  }
   const unit = r.unit ? ` ${r.unit}` : "";
   const parts: string[] = [];
   if (r.equals !== undefined) parts.push(`exactly ${formatNumber(r.equals)}${unit}`);
@@ -315,6 +324,7 @@ export function windowText(r: ReadingSpec): string {
 
 /** How a number misses its window, for the question asked before it is recorded. */
 function missText(r: ReadingSpec, v: number): string {
+  if (r.kind === "grit") return r.min !== undefined && v < r.min ? `coarser than ${windowText(r)}` : `finer than ${windowText(r)}`;
   const unit = r.unit ? ` ${r.unit}` : "";
   if (r.absMax !== undefined && Math.abs(v) > r.absMax + READING_EPSILON) return `outside ±${formatNumber(r.absMax)}${unit}`;
   if (r.min !== undefined && r.max !== undefined) return `outside ${formatNumber(r.min)}–${formatNumber(r.max)}${unit}`;
@@ -336,6 +346,29 @@ export function parseReadingNumber(raw: string): number | null {
   return Number.isFinite(n) ? n : null;
 }
 
+/**
+ * The P-grades of coated abrasives, coarse to fine: FEPA 43-1 / ISO 6344-2 (P12–P220, macrogrits)
+ * and FEPA 43-2 / ISO 6344-3 (P240–P2500, microgrits). The list is the standards' series as
+ * remembered (from memory; the FEPA P-scale is widely reprinted by abrasive makers).
+ */
+export const P_GRADES = [12, 16, 20, 24, 30, 36, 40, 50, 60, 80, 100, 120, 150, 180, 220, 240, 280, 320, 360, 400, 500, 600, 800, 1000, 1200, 1500, 2000, 2500] as const;
+
+/** 240 → "P240". */
+export function gritText(grade: number): string {
+  return `P${formatNumber(grade)}`;
+}
+
+/** A grit as typed on the shop floor: "P240", "p 240", "240". Null when it is not a P-grade of the series. */
+export function parseGrit(raw: string): number | null {
+  const m = /^\s*[pP]?\s*(\d{2,4})\s*$/.exec(raw);
+  if (!m) return null;
+  const n = Number(m[1]);
+  return (P_GRADES as readonly number[]).includes(n) ? n : null;
+}
+
+/** The most characters a text reading (a lacquer lot) takes when its spec does not say. */
+export const TEXT_READING_MAX = 40;
+
 const TRUE_WORDS = new Set(["true", "pass", "passed", "yes", "y", "on", "1", "ok"]);
 const FALSE_WORDS = new Set(["false", "fail", "failed", "no", "n", "off", "0"]);
 
@@ -354,12 +387,15 @@ function inWindow(r: ReadingSpec, v: number): boolean {
 /**
  * Checks the readings typed for a step. Every reading is required. Numbers are parsed from text
  * (a decimal comma is allowed); a reading that is not a number, a missing reading and a number that
- * must equal a value (the coat number) but does not are field errors. A number outside its window,
- * or a check the inspector failed, is not an error: it is returned in `outOfWindow` (it is recorded
- * and opens a nonconformance). Window edges are in.
+ * must equal a value (the coat number) but does not are field errors. A text (a lacquer lot) is
+ * trimmed, its inner spaces made single, and kept as written up to its length: it has no window.
+ * A grit is a P-grade of the FEPA / ISO 6344 series ("P240" or "240"); one off the series is a
+ * slip (a field error). A number or grit outside its window, or a check the inspector failed, is
+ * not an error: it is returned in `outOfWindow` (it is recorded and opens a nonconformance).
+ * Window edges are in.
  */
 export function checkReadings(step: StepSpec, raw: Record<string, string | boolean | undefined>): ReadingsCheck {
-  const values: Record<string, number | boolean> = {};
+  const values: Record<string, ReadingValue> = {};
   const outOfWindow: OutOfWindow[] = [];
   const fieldErrors: Record<string, string[]> = {};
   const fail = (key: string, msg: string) => (fieldErrors[key] ??= []).push(msg);
@@ -384,9 +420,30 @@ export function checkReadings(step: StepSpec, raw: Record<string, string | boole
       continue;
     }
 
+    if (r.kind === "text") {
+      // Recorded as given (trimmed): a lot code is looked up later exactly as it was written.
+      const text = typeof v === "string" ? v.trim().replace(/\s+/g, " ") : "";
+      const max = r.maxLength ?? TEXT_READING_MAX;
+      if (!text) fail(r.key, `Enter the ${what}.`);
+      else if (text.length > max) fail(r.key, `The ${what} is at most ${max} characters; you entered ${text.length}.`);
+      else if (/[\u0000-\u001f\u007f]/.test(text)) fail(r.key, `The ${what} holds a character that cannot be printed. Type it again.`);
+      else values[r.key] = text;
+      continue;
+    }
+
     const unit = r.unit ? ` in ${r.unit}` : "";
     if (v === undefined || (typeof v === "string" && v.trim() === "")) {
-      fail(r.key, `Enter the ${what}${unit}.`);
+      fail(r.key, r.kind === "grit" ? `Enter the ${what}, like P240.` : `Enter the ${what}${unit}.`);
+      continue;
+    }
+    if (r.kind === "grit") {
+      const g = typeof v === "string" ? parseGrit(v) : null;
+      if (g === null) {
+        fail(r.key, `“${String(v)}” is not a P-grade of coated abrasives. Enter the grit printed on the back of the paper, like P180, P240 or P320.`);
+        continue;
+      }
+      values[r.key] = g;
+      if (!inWindow(r, g)) outOfWindow.push({ key: r.key, label: r.label, value: g, unit: null, window: windowText(r), shown: gritText(g), miss: missText(r, g) });
       continue;
     }
     const n = typeof v === "string" ? parseReadingNumber(v) : null;
@@ -411,11 +468,20 @@ export function checkReadings(step: StepSpec, raw: Record<string, string | boole
   return { ok: true, values, outOfWindow };
 }
 
+/** A recorded reading for people: "137 °C", "P240", "passed", a lot as written. */
+export function readingValueText(spec: ReadingSpec | undefined, value: ReadingValue): string {
+  if (typeof value === "boolean") return value ? "passed" : "not passed";
+  if (typeof value === "string") return value;
+  if (spec?.kind === "grit") return gritText(value);
+  return `${formatNumber(value)}${spec?.unit ? ` ${spec.unit}` : ""}`;
+}
+
 // ——— asking before an out-of-window reading is recorded ———
 
 /** "Platen temperature 141 °C is outside 135–140 °C", "Inspector's check: surface fit for lacquer not passed". */
 export function outOfWindowText(o: OutOfWindow): string {
   if (typeof o.value === "boolean") return `${o.label}: ${o.miss}`;
+  if (o.shown) return `${o.label} ${o.shown} is ${o.miss}`;
   return `${o.label} ${formatNumber(o.value)}${o.unit ? ` ${o.unit}` : ""} is ${o.miss}`;
 }
 

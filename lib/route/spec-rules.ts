@@ -7,7 +7,8 @@
  */
 import { z } from "zod";
 import { ROUTE_STATIONS } from "@/lib/vocabulary/stations";
-import type { HoldSpec, ReadingSpec, StepSpec } from "./types";
+import { P_GRADES } from "./rules";
+import { READING_KINDS, type HoldSpec, type ReadingSpec, type StepSpec } from "./types";
 
 const DAY_MINUTES = 24 * 60;
 /** The longest hold after a step: 60 days. */
@@ -40,15 +41,38 @@ const readingSchema = z
         .nullable()
         .optional()
         .transform((u) => (u ? u : null)),
-      kind: z.enum(["number", "check"], { error: "A reading is a number or an inspector's check." }),
+      kind: z.enum(READING_KINDS, { error: "A reading is a number, an inspector's check, a text (such as a lot) or a grit." }),
       min: optionalNumber,
       max: optionalNumber,
       absMax: optionalNumber,
       equals: optionalNumber,
+      lot: z.boolean({ error: "Say whether the text names a supplier's lot." }).optional(),
+      maxLength: z.number({ error: "Enter the longest text as a whole number, or leave it empty." }).int("Enter the longest text as a whole number.").min(1, "A text takes at least 1 character.").max(200, "A text reading takes at most 200 characters.").optional(),
     },
     { error: (issue) => (issue.code === "unrecognized_keys" ? `A reading has no field ${issue.keys.join(", ")}.` : undefined) },
   )
   .superRefine((r, ctx) => {
+    if (r.kind !== "text" && r.lot) ctx.addIssue({ code: "custom", path: ["lot"], message: "Only a text reading names a lot. Make the reading a text." });
+    if (r.kind !== "text" && r.maxLength !== undefined) ctx.addIssue({ code: "custom", path: ["maxLength"], message: "Only a text reading has a longest length. Clear it, or make the reading a text." });
+    if (r.kind === "text") {
+      for (const k of ["min", "max", "absMax", "equals"] as const) {
+        if (r[k] !== undefined) ctx.addIssue({ code: "custom", path: [k], message: "A text is recorded as written: it takes no window. Clear this, or make the reading a number." });
+      }
+      if (r.unit) ctx.addIssue({ code: "custom", path: ["unit"], message: "A text has no unit. Clear it, or make the reading a number." });
+      return;
+    }
+    if (r.kind === "grit") {
+      for (const k of ["absMax", "equals"] as const) {
+        if (r[k] !== undefined) ctx.addIssue({ code: "custom", path: [k], message: "A grit takes a coarsest and a finest P-grade only. Clear this." });
+      }
+      for (const k of ["min", "max"] as const) {
+        const v = r[k];
+        if (v !== undefined && !(P_GRADES as readonly number[]).includes(v)) ctx.addIssue({ code: "custom", path: [k], message: `${v} is not a P-grade (FEPA / ISO 6344): use one of P${P_GRADES.join(", P")}.` });
+      }
+      if (r.unit) ctx.addIssue({ code: "custom", path: ["unit"], message: "A grit has no unit: it reads P180, P240…. Clear it." });
+      if (r.min !== undefined && r.max !== undefined && r.min > r.max) ctx.addIssue({ code: "custom", path: ["max"], message: `The finest grit (P${r.max}) is coarser than the coarsest (P${r.min}). Swap them.` });
+      return;
+    }
     if (r.kind === "check") {
       for (const k of ["min", "max", "absMax", "equals"] as const) {
         if (r[k] !== undefined) ctx.addIssue({ code: "custom", path: [k], message: "A check is passed or not: it takes no numbers. Clear this, or make the reading a number." });
@@ -144,6 +168,12 @@ export function duplicateKeyIssues(steps: unknown): { path: (string | number)[];
 
 function canonicalReading(r: ReadingSpec): ReadingSpec {
   const out: ReadingSpec = { key: r.key, label: r.label, unit: r.unit ?? null, kind: r.kind };
+  if (r.kind === "text" && r.maxLength !== undefined) out.maxLength = r.maxLength;
+  if (r.kind === "text" && r.lot) out.lot = true;
+  if (r.kind === "grit") {
+    if (r.min !== undefined) out.min = r.min;
+    if (r.max !== undefined) out.max = r.max;
+  }
   if (r.kind === "number") {
     if (r.min !== undefined) out.min = r.min;
     if (r.max !== undefined) out.max = r.max;

@@ -9,17 +9,31 @@ import type { RouteStation } from "@/lib/vocabulary/stations";
 export interface ReadingSpec {
   key: string;
   label: string;
-  /** "°C", "min", "mm"…; null for a check. */
+  /** "°C", "min", "mm"…; null for a check, a text or a grit. */
   unit: string | null;
-  /** A number within [min, max] (either may be absent), |value| ≤ absMax, or an inspector's pass/fail check. */
-  kind: "number" | "check";
+  /**
+   * A number within [min, max] (either may be absent), |value| ≤ absMax; an inspector's pass/fail
+   * check; a text recorded as given (a lacquer lot: no window); or an abrasive's P-grade (FEPA /
+   * ISO 6344), recorded as its number (240 for P240) with min/max as grades.
+   */
+  kind: ReadingKind;
   min?: number;
   max?: number;
+  /** For a text: the most characters it may have (TEXT_READING_MAX when absent). */
+  maxLength?: number;
+  /** For a text: it names a supplier's lot (a lacquer lot), which the register traces into the cabinets (lib/route/lacquer-lots.ts). */
+  lot?: boolean;
   /** For deviations: the window is −absMax…+absMax. */
   absMax?: number;
   /** A number that must equal this exactly (e.g. the coat number of a coat step): a mismatch is refused as a slip, not recorded. */
   equals?: number;
 }
+
+export const READING_KINDS = ["number", "check", "text", "grit"] as const;
+export type ReadingKind = (typeof READING_KINDS)[number];
+
+/** What a recorded reading holds: a number (a grit as its P number), pass/fail, or a text as typed. */
+export type ReadingValue = number | boolean | string;
 
 export interface HoldSpec {
   /** Minutes the next step must wait. */
@@ -55,7 +69,7 @@ export type { Side };
 
 /** What has happened to a pair on its route, oldest first. Every entry comes from an appended record. */
 export type RouteEntry =
-  | { kind: "step"; id: number; seq: number; cabinets: Side[]; startedAt: Date; recordedAt: Date; readings: Record<string, number | boolean>; outOfWindow: boolean }
+  | { kind: "step"; id: number; seq: number; cabinets: Side[]; startedAt: Date; recordedAt: Date; readings: Record<string, ReadingValue>; outOfWindow: boolean }
   /** Quality sent the cabinets back: `toSeq` is the step to do again, and every step after it. */
   | { kind: "rework"; id: number; cabinets: Side[]; toSeq: number; at: Date }
   /** A nonconformance opened: the pair is on hold until it is dispositioned. */

@@ -5,7 +5,7 @@
  */
 import type { Side } from "@/lib/vocabulary/sides";
 
-export type Disposition = "rework" | "use_as_is" | "scrap";
+export type Disposition = "rework" | "use_as_is" | "scrap" | "entry_error";
 
 /** The seq the final pair test's nonconformances carry. */
 export const FINAL_TEST_SEQ = 0;
@@ -19,7 +19,7 @@ export function ncStepName(seq: number, name?: string | null): string {
 /** "at step 4, Sanding", "at the final pair test". */
 export const ncWhere = (seq: number, name?: string | null) => `at ${ncStepName(seq, name)}`;
 
-export const DISPOSITION_WORDS: Record<Disposition, string> = { rework: "rework", use_as_is: "use as is", scrap: "scrap" };
+export const DISPOSITION_WORDS: Record<Disposition, string> = { rework: "rework", use_as_is: "use as is", scrap: "scrap", entry_error: "entry error" };
 
 export interface DispositionFacts {
   disposition: Disposition;
@@ -39,6 +39,8 @@ export function dispositionPhrase(f: DispositionFacts): string {
       return f.reworkToSeq != null ? `rework back to ${ncStepName(f.reworkToSeq, f.reworkToName)}` : "rework";
     case "use_as_is":
       return "use as is (deviation approved)";
+    case "entry_error":
+      return "closed as an entry error (the reading was mistyped and has been corrected)";
     case "scrap": {
       if (!f.scrapped) return "scrap";
       const which = f.scrapped.side === "L" ? "the left cabinet" : f.scrapped.side === "R" ? "the right cabinet" : "the cabinet";

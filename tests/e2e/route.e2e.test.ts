@@ -90,7 +90,7 @@ describe("the cabinet route, walked by a cabinet user", () => {
     expect(blocked).toMatch(/^Not before \d\d:\d\d on \d+ \w+ \(UTC\): the left and right cabinets are on hold \(clamp 2 h and rest 2 h\) until then\.$/);
     await expect(cabinet.getByTestId("step-form").count()).resolves.toBe(0);
     const minute = minuteIn(blocked)!;
-    await expect(cabinet.getByTestId("route-cabinets").textContent()).resolves.toContain(`On hold (clamp 2 h and rest 2 h) until ${minute}`);
+    await expect(cabinet.getByTestId("route-cabinets").textContent()).resolves.toContain(`Next step not before ${minute} (clamp 2 h and rest 2 h)`);
     await expect(cabinet.getByTestId("times-note").textContent()).resolves.toMatch(/^Times in UTC\./);
     await visit(cabinet, url("/cabinet"));
     // The home names the zone once for the page, not on every line.
@@ -98,16 +98,33 @@ describe("the cabinet route, walked by a cabinet user", () => {
     await expect(cabinet.getByTestId("times-note").textContent()).resolves.toBe("Times in UTC.");
     await visit(cabinet, url(`/cabinet/pairs/${pair}`));
 
-    moveClock(4 * HOUR + 60_000);
+    let offset = 4 * HOUR + 60_000;
+    moveClock(offset);
     await cabinet.reload();
     await expect(cabinet.getByTestId("step-blocked").count()).resolves.toBe(0);
-    await record(cabinet, {});
+    await record(cabinet, { "Finishing grit": "P240" });
     await record(cabinet, { "Inspector's check": "pass" });
-    for (const n of [1, 2, 3, 4]) await record(cabinet, { "Coat number": String(n) });
-    await record(cabinet, {});
-    for (const n of [5, 6, 7, 8]) await record(cabinet, { "Coat number": String(n) });
+    // Each coat waits for the one before: an hour after a stoved coat, 30 minutes after an air-dried one (default-spec.ts).
+    const coat = { "Lacquer lot": "GL-E2E-B", "Wet film thickness": "100" };
+    for (const n of [1, 2, 3, 4]) {
+      await record(cabinet, { "Coat number": String(n), ...coat, "Oven temperature": "52" });
+      moveClock((offset += HOUR + 60_000));
+      await cabinet.reload();
+    }
+    await record(cabinet, { "Flatting grit": "P400" });
+    for (const n of [5, 6, 7, 8]) {
+      await record(cabinet, { "Coat number": String(n), ...coat });
+      if (n === 5) {
+        // Straight after an air-dried coat the next waits for the flash-off, said on the cabinets' cards.
+        await expect(cabinet.getByTestId("route-cabinets").textContent()).resolves.toMatch(/Next coat not before \d\d:\d\d on \d+ \w+ \(UTC\) \(flash-off\)/);
+      }
+      if (n < 8) {
+        moveClock((offset += 30 * 60_000 + 60_000));
+        await cabinet.reload();
+      }
+    }
 
-    moveClock(4 * HOUR + 14 * DAY + 5 * 60_000);
+    moveClock(offset + 14 * DAY + 5 * 60_000);
     await cabinet.reload();
     await record(cabinet, { "Polishing cycle": "70" });
     await record(cabinet, { "Inspector's check": "pass" });

@@ -96,9 +96,9 @@ describe("the readings the register records, as EPCIS sensor reports", () => {
     const check = steps.find((e) => (e["tw:details"] as { seq?: number }).seq === 5)!;
     expect(check.bizStep).toBe("inspecting");
     expect(check.sensorElementList![0]!.sensorReport).toEqual([{ type: `${BASE}/readings/pass`, booleanValue: true, "tw:name": "pass", "tw:label": "Inspector's check: surface fit for lacquer" }]);
-    // A step with no readings (machine sanding) carries no sensor element.
+    // Machine sanding now records its grit, a P-grade number (FEPA / ISO 6344 P-scale).
     const sanding = steps.find((e) => (e["tw:details"] as { seq?: number }).seq === 4)!;
-    expect(sanding.sensorElementList).toBeUndefined();
+    expect(sanding.sensorElementList![0]!.sensorReport).toEqual([expect.objectContaining({ value: 240, "tw:name": "grit", "tw:label": "Finishing grit" })]);
   });
 
   test("the Thiele–Small set reports Fs in hertz, the Q figures as dimensionless, Re in ohms and Vas in litres", () => {

@@ -405,8 +405,9 @@ describe("the demo when it opens", () => {
     const open = await ncsToDisposition(db());
     expect(open).toHaveLength(1);
     expect(open[0]!.nc.finding).toMatch(/^Trim deviation 0.24 mm/);
-    // Two decided in the history: a long polishing cycle accepted as it was, a failed final test reworked.
-    expect((await dispositionedNonconformances(db())).map((n) => [n.seq, n.disposition]).sort()).toEqual([[0, "rework"], [15, "use_as_is"]]);
+    // Three decided in the history: a long polishing cycle accepted as it was, a failed final test
+    // reworked, and coat 3's mistyped film reading (step 8) corrected and closed as an entry error.
+    expect((await dispositionedNonconformances(db())).map((n) => [n.seq, n.disposition]).sort()).toEqual([[0, "rework"], [15, "use_as_is"], [8, "entry_error"]].sort());
     const stations = new Set((await shopPairs(db())).map((p) => p.next?.station).filter(Boolean));
     expect(stations.size).toBeGreaterThanOrEqual(3);
     expect((await unpairedLacquerCabinets(db())).flatMap((g) => g.cabinets).length).toBeGreaterThanOrEqual(2);

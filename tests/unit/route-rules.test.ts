@@ -218,7 +218,7 @@ describe("checkStep: order of steps", () => {
     if (!r.ok) {
       expect(r.reason).toContain("Flatting back");
       expect(r.reason).toBe(
-        "Step 14 (Lacquer coat 8, stoved) is not next for the left and right cabinets: their next step is 10, Flatting back.",
+        "Step 14 (Lacquer coat 8, air-dried) is not next for the left and right cabinets: their next step is 10, Flatting back.",
       );
     }
     // Coat 5 is not next either: flatting comes first.
@@ -607,9 +607,10 @@ describe("checkReadings", () => {
   });
 
   test("a coat number that does not match the step is a field error, not a reading", () => {
-    const r = checkReadings(coat5, { coat: "4" });
+    const rest = { lacquerLot: "LQ-2611-04", wetFilmUm: "100" };
+    const r = checkReadings(coat5, { coat: "4", ...rest });
     expect(r).toEqual({ ok: false, fieldErrors: { coat: ["This step is coat 5; you entered 4."] } });
-    expect(checkReadings(coat5, { coat: "5" })).toEqual({ ok: true, values: { coat: 5 }, outOfWindow: [] });
+    expect(checkReadings(coat5, { coat: "5", ...rest })).toEqual({ ok: true, values: { coat: 5, lacquerLot: "LQ-2611-04", wetFilmUm: 100 }, outOfWindow: [] });
   });
 
   test("an inspector's check: pass is in, fail is out of window (window 'pass'), no answer is an error", () => {
@@ -627,7 +628,7 @@ describe("checkReadings", () => {
   });
 
   test("a step with no readings has nothing to check; extra fields are ignored", () => {
-    expect(checkReadings(stepOf("sanding"), { stray: "x" })).toEqual({ ok: true, values: {}, outOfWindow: [] });
+    expect(checkReadings(stepOf("hand-finish"), { stray: "x" })).toEqual({ ok: true, values: {}, outOfWindow: [] });
   });
 });
 

@@ -23,3 +23,15 @@ export const repartnerSchema = z.object({
   cabinet: z.string().trim().min(3, "Scan or type the new cabinet's serial.").max(60),
   reason: z.string().trim().min(5, "Give the reason for the new partner.").max(500),
 });
+
+export const correctionSchema = z.object({
+  pair: z.string().min(1),
+  pairId: z.string().min(1),
+  recordId: wholeNumber(z.number({ error: "Choose the recorded step to correct." }).int().min(1, "Choose the recorded step to correct.")),
+  /** When the step really started, as minutes before it was recorded; empty keeps the start. */
+  startedMinutesBefore: wholeNumber(z.number({ error: "Give minutes as a whole number, such as 20." }).int("Whole minutes.").min(0, "A step starts before it is recorded, not after.").max(24 * 60, "At most 24 hours before it was recorded.").nullable(), { empty: null }),
+  /** Checked (at least a few words) by lib/route/corrections.ts, which says why beside the field. */
+  reason: z.string().max(2000).default(""),
+  /** Sent only by the button that answers "record it and open a nonconformance?". */
+  confirmOutOfWindow: z.string().max(2000).optional(),
+});

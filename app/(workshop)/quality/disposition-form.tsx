@@ -7,7 +7,7 @@ import { initialFormState } from "@/lib/forms";
 import { dispositionAction } from "./actions";
 
 /** Quality's one decision on a nonconformance. `back` is the page to return to (a path of this site). */
-export function DispositionForm({ nc, steps, sides, back }: { nc: { id: string; code: string; seq: number }; steps: { seq: number; name: string }[]; sides: { side: "L" | "R"; identity: string }[]; back: string }) {
+export function DispositionForm({ nc, steps, sides, back }: { nc: { id: string; code: string; seq: number; entryError?: { words: string; reason: string } | null }; steps: { seq: number; name: string }[]; sides: { side: "L" | "R"; identity: string }[]; back: string }) {
   const [state, action] = useActionState(dispositionAction, initialFormState);
   const [kind, setKind] = useState("");
   return (
@@ -17,6 +17,11 @@ export function DispositionForm({ nc, steps, sides, back }: { nc: { id: string; 
         <Notice tone="danger" testId={`disposition-refused-${nc.code}`}>
           {state.message}
           {state.fieldErrors?.back?.[0] ? ` ${state.fieldErrors.back[0]}` : ""}
+        </Notice>
+      ) : null}
+      {nc.entryError ? (
+        <Notice tone="info" testId={`entry-error-${nc.code}`}>
+          The reading was corrected: {nc.entryError.words} ({nc.entryError.reason}). Every reading of the step is now inside its window: if it was only a typing slip, close it as an entry error.
         </Notice>
       ) : null}
       <input type="hidden" name="ncId" value={nc.id} />
@@ -36,6 +41,7 @@ export function DispositionForm({ nc, steps, sides, back }: { nc: { id: string; 
                 ]
               : [
                   { value: "", label: "Choose…" },
+                  ...(nc.entryError ? [{ value: "entry_error", label: "Entry error: mistyped, now corrected" }] : []),
                   { value: "rework", label: "Rework: back to a step" },
                   { value: "use_as_is", label: "Use as is (deviation)" },
                   { value: "scrap", label: "Scrap one cabinet" },
@@ -50,7 +56,7 @@ export function DispositionForm({ nc, steps, sides, back }: { nc: { id: string; 
           <SelectField label={sides.length === 1 ? "To scrap" : "Cabinet to scrap"} name="scrapSide" options={[{ value: "", label: "Choose…" }, ...sides.map((s) => ({ value: s.side, label: sides.length === 1 ? s.identity : `${s.side === "L" ? "Left" : "Right"} ${s.identity}` }))]} errors={state.fieldErrors?.scrapSide} />
         ) : null}
       </div>
-      <TextField label={kind === "use_as_is" ? "Reason for the deviation (you approve it)" : "Reason"} name="reason" errors={state.fieldErrors?.reason} />
+      <TextField label={kind === "use_as_is" ? "Reason for the deviation (you approve it)" : kind === "entry_error" ? "Why it was only a typing slip (you approve it)" : "Reason"} name="reason" errors={state.fieldErrors?.reason} />
       <div>
         <SubmitButton pendingLabel="Recording…" variant={kind === "scrap" ? "danger" : "primary"}>
           Record the disposition of {nc.code}

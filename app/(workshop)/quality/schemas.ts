@@ -13,7 +13,7 @@ export const dispositionSchema = z.object({
     .max(500)
     .default("")
     .refine((b) => b === "" || isLocalPath(b), "The page to return to must be a page of Twinleaf."),
-  disposition: z.enum(["rework", "use_as_is", "scrap"], { error: "Choose rework, use as is, or scrap." }),
+  disposition: z.enum(["rework", "use_as_is", "scrap", "entry_error"], { error: "Choose rework, use as is, scrap, or entry error." }),
   reworkToSeq: wholeNumber(z.number({ error: "Choose the step to rework back to." }).int().min(1, "Choose the step to rework back to.").max(999).nullable(), { empty: null }),
   scrapSide: z.preprocess((v) => (v === "" || v === undefined ? null : v), z.enum(["L", "R"]).nullable()),
   reason: z.string().trim().min(5, "Give the reason (at least a few words).").max(500),

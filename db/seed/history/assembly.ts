@@ -30,7 +30,7 @@ function planLacquerCabinets(plan: Plan, rng: Rng, key: string, model: RefModel,
 /** The cabinets' route and, for lacquer, their making and pairing. */
 export function planCabinets(plan: Plan, rng: Rng, p: PairPlan): void {
   if (p.finish.kind === "veneer") {
-    planRoute(plan, rng, { key: p.key, sides: ["L", "R"], press: p.t.press, openTrimNc: p.story.openTrimNc, polishUsedAsIs: p.story.polishUsedAsIs });
+    planRoute(plan, rng, { key: p.key, sides: ["L", "R"], press: p.t.press, openTrimNc: p.story.openTrimNc, polishUsedAsIs: p.story.polishUsedAsIs, filmSlipCorrected: p.story.filmSlipCorrected });
     return;
   }
   planLacquerCabinets(plan, rng, p.key, p.model, p.finish, p.t.press);

@@ -76,6 +76,8 @@ export interface PairPlan {
     openTrimNc?: boolean;
     /** A polishing cycle over its window, accepted by quality as it is. */
     polishUsedAsIs?: boolean;
+    /** A coat's wet film mistyped (1100 µm for 110): corrected with its reason, closed by quality as an entry error. */
+    filmSlipCorrected?: boolean;
     /** Failed its first final test; quality sent it back, and it passed the second. */
     failedFirstTest?: boolean;
   };

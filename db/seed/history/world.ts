@@ -108,6 +108,8 @@ export function planWorld(rng: Rng, ref: Reference, now: Date, months: number): 
   const old = pairs.filter((p) => p.shippedAt && p.window >= 2);
   const polished = old.find((p) => p.finish.kind === "veneer");
   if (polished) polished.story.polishUsedAsIs = true;
+  const slipped = old.find((p) => p !== polished && p.finish.kind === "veneer");
+  if (slipped) slipped.story.filmSlipCorrected = true;
   const retested = old.find((p) => p !== polished && p.t.packed.getTime() - p.t.tested.getTime() > 20 * HOUR);
   if (retested) retested.story.failedFirstTest = true;
 

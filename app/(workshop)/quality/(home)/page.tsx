@@ -75,12 +75,12 @@ export default async function Page({ searchParams }: { searchParams: Promise<Rec
       <Panel title="Open nonconformances">
         {forms.length ? (
           <div className="flex flex-col gap-6" data-testid="open-ncs">
-            {forms.map(({ nc, pair, steps, sides }) => (
+            {forms.map(({ nc, pair, steps, sides, entryError }) => (
               <div key={nc.id}>
                 <p className="mb-2">
                   <span className="font-bold">{nc.code}</span> on <SerialLink identity={pair} href={paths.cabinetPair(pair)} />, opened {formatWhen(nc.openedAt, at)} {ncWhere(nc.seq, steps.find((s) => s.seq === nc.seq)?.name)}: {nc.finding}
                 </p>
-                <DispositionForm nc={{ id: nc.id, code: nc.code, seq: nc.seq }} steps={steps} sides={sides} back={paths.quality} />
+                <DispositionForm nc={{ id: nc.id, code: nc.code, seq: nc.seq, entryError }} steps={steps} sides={sides} back={paths.quality} />
               </div>
             ))}
           </div>

@@ -17,20 +17,25 @@ import { itemByIdentity } from "@/lib/genealogy/graph";
 import { holdsOn } from "@/lib/containments";
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { STATION_CAUTIONS } from "@/lib/route/cautions";
-import { nextStepNow, windowText } from "@/lib/route/rules";
+import { nextStepNow, readingValueText, windowText } from "@/lib/route/rules";
 import { recordedNotice, routeOf } from "@/lib/route/pair-route";
 import { routedKindOf } from "@/lib/route/routed-group";
 import { groupWords, HOLDER_WORD } from "@/lib/route/group-words";
 import { ROUTE_KIND_LABEL } from "@/lib/vocabulary/route-kinds";
 import { dispositionSummary } from "@/lib/route/nonconformances";
+import { correctionsOf, entryErrorsReady, recordAuthors } from "@/lib/route/corrections";
 import { ncWhere } from "@/lib/route/words";
 import { DispositionForm } from "@/app/(workshop)/quality/disposition-form";
 import { RepartnerForm } from "./repartner-form";
 import { StepForm } from "./step-form";
+import { CorrectionForm, type CorrectableRecord } from "./correction-form";
 
 export async function generateMetadata({ params }: { params: Promise<{ identity: string }> }): Promise<Metadata> {
   return { title: `Route of ${pageParam((await params).identity)}` };
 }
+
+/** "Wet film thickness" → "wet film thickness" inside a sentence. */
+const lcFirstWord = (s: string) => s.charAt(0).toLowerCase() + s.slice(1);
 
 type Search = Promise<Record<string, string | string[] | undefined>>;
 const one = (v: string | string[] | undefined) => (typeof v === "string" ? v : undefined);
@@ -68,6 +73,27 @@ export default async function PairRoutePage({ params, searchParams }: { params: 
   const recorded = Number.isInteger(recordedId) && recordedId > 0 ? recordedNotice(route, recordedId) : null;
   const dispositioned = one(search.dispositioned);
   const disposedText = dispositioned ? await dispositionSummary(db, dispositioned, { pairId: pair.id }) : null;
+  // Corrections of mistyped readings: shown beside the record they correct, the original struck through.
+  const [corrections, authors, entryErrors] = await Promise.all([correctionsOf(db, pair.id), recordAuthors(db, route.records.map((r) => r.eventId)), entryErrorsReady(db, openNcs)]);
+  const correctedId = Number(one(search.corrected));
+  const justCorrected = Number.isInteger(correctedId) ? corrections.find((c) => c.id === correctedId) : undefined;
+  const justCorrectedNc = justCorrected ? route.ncs.find((n) => n.recordId === justCorrected.recordId && !n.disposition) : undefined;
+  const justCorrectedStep = justCorrected ? steps.find((s) => s.seq === route.records.find((r) => r.id === justCorrected.recordId)?.seq) : undefined;
+  const justCorrectedWhat = justCorrected ? justCorrected.changed.map((k) => (k === "startedAt" ? "the start time" : lcFirstWord(justCorrectedStep?.readings.find((x) => x.key === k)?.label ?? k))).join(", ") : "";
+  const asQuality = user.permissions.has("quality.work");
+  const correctable: CorrectableRecord[] = route.records
+    .filter((r) => asQuality || (canWork && authors.get(r.eventId) === user.id))
+    .filter((r) => (steps.find((s) => s.seq === r.seq)?.readings.length ?? 0) > 0)
+    .sort((a, b) => b.id - a.id)
+    .map((r) => {
+      const step = steps.find((s) => s.seq === r.seq)!;
+      return {
+        id: r.id,
+        startedMinutesBefore: Math.max(0, Math.round((r.recordedAt.getTime() - r.startedAt.getTime()) / 60_000)),
+        label: `Step ${r.seq}, ${step.name} · recorded ${formatWhen(r.recordedAt, at)}${r.cabinets.length === 1 && !lone ? ` (${r.cabinets[0]!.side === "L" ? "left" : "right"})` : ""}`,
+        readings: step.readings.map((x) => ({ key: x.key, label: x.label, kind: x.kind, unit: x.unit, window: windowText(x), current: r.readings[x.key] === undefined ? "none" : readingValueText(x, r.readings[x.key]!) })),
+      };
+    });
   return (
     <div className="flex flex-col gap-6" data-testid="route-page">
       <BackLink href={paths.cabinet}>Cabinet shop</BackLink>
@@ -80,6 +106,16 @@ export default async function PairRoutePage({ params, searchParams }: { params: 
       {recorded ? (
         <Notice tone={recorded.nc ? "caution" : "leaf"} testId="step-done">
           {recorded.text}
+        </Notice>
+      ) : null}
+      {justCorrected ? (
+        <Notice tone={justCorrectedNc ? "caution" : "leaf"} testId="correction-done">
+          Corrected {justCorrectedWhat}.{" "}
+          {justCorrectedNc
+            ? entryErrors.has(justCorrectedNc.id)
+              ? `Every reading of the step is inside its window now: quality may close ${justCorrectedNc.code} as an entry error.`
+              : `${justCorrectedNc.code} holds ${lone ? "the cabinet" : "the pair"} until quality dispositions it.`
+            : ""}
         </Notice>
       ) : null}
       {disposedText ? (
@@ -102,8 +138,8 @@ export default async function PairRoutePage({ params, searchParams }: { params: 
                   <SerialLink identity={c.item.identity} />
                   <p className="mt-1">{p?.next ? `Next: ${p.next.seq}. ${p.next.name}` : "Route finished."}</p>
                   {p?.holdUntil ? (
-                    <p className="text-caution">
-                      On hold ({p.holdLabel}) until {formatAllowedFrom(p.holdUntil, at)}
+                    <p className="text-caution" data-testid={`hold-${side}`}>
+                      {p.next?.station === "lacquer" ? "Next coat" : "Next step"} not before {formatAllowedFrom(p.holdUntil, at)} ({p.holdLabel})
                     </p>
                   ) : null}
                   <p className="text-sm text-ink-soft">{p?.done.length ?? 0} of {steps.length} steps done</p>
@@ -169,7 +205,7 @@ export default async function PairRoutePage({ params, searchParams }: { params: 
               <p className="mb-2 font-bold">
                 {n.code}: {n.finding}
               </p>
-              <DispositionForm nc={{ id: n.id, code: n.code, seq: n.seq }} steps={steps.filter((s) => s.seq <= n.seq).map((s) => ({ seq: s.seq, name: s.name }))} sides={route.cabinets.map((c) => ({ side: c.side, identity: c.item.identity }))} back={paths.cabinetPair(pair.identity)} />
+              <DispositionForm nc={{ id: n.id, code: n.code, seq: n.seq, entryError: entryErrors.get(n.id) ?? null }} steps={steps.filter((s) => s.seq <= n.seq).map((s) => ({ seq: s.seq, name: s.name }))} sides={route.cabinets.map((c) => ({ side: c.side, identity: c.item.identity }))} back={paths.cabinetPair(pair.identity)} />
             </div>
           ))}
         </Panel>
@@ -194,6 +230,13 @@ export default async function PairRoutePage({ params, searchParams }: { params: 
           })}
         </ol>
       </Panel>
+
+      {correctable.length ? (
+        <Panel title="Correct a mistyped reading">
+          <p className="mb-3 text-ink-soft">{asQuality ? "Quality may correct any recorded reading." : "You may correct readings you recorded yourself."} The record stays as it was written: the correction is added beside it with your reason, and the windows are checked again.</p>
+          <CorrectionForm key={`${corrections.length}:${route.records.length}`} pair={pair.identity} pairId={pair.id} records={correctable} asQuality={asQuality} />
+        </Panel>
+      ) : null}
 
       <Panel title="Recorded steps">
         <DataTable
@@ -222,10 +265,29 @@ export default async function PairRoutePage({ params, searchParams }: { params: 
                       {Object.entries(r.readings)
                         .map(([k, v]) => {
                           const spec = step?.readings.find((x) => x.key === k);
-                          return `${spec?.label ?? k}: ${typeof v === "boolean" ? (v ? "passed" : "not passed") : `${v}${spec?.unit ? ` ${spec.unit}` : ""}`}`;
+                          return `${spec?.label ?? k}: ${readingValueText(spec, v)}`;
                         })
                         .join(" · ") || "none"}
                       {r.outOfWindow ? " (out of window)" : ""}
+                      {corrections
+                        .filter((c) => c.recordId === r.id)
+                        .map((c) => (
+                          <span key={c.id} className="mt-1 block text-sm text-ink-soft" data-testid={`correction-${c.id}`}>
+                            Corrected {formatWhen(c.at, at)} by {c.by}:{" "}
+                            {c.changed.map((k, i) => {
+                              const spec = step?.readings.find((x) => x.key === k);
+                              const was = k === "startedAt" ? formatWhen(c.beforeStartedAt, at) : c.before[k] === undefined ? "none" : readingValueText(spec, c.before[k]!);
+                              const is = k === "startedAt" ? formatWhen(c.startedAt, at) : readingValueText(spec, c.readings[k]!);
+                              return (
+                                <span key={k}>
+                                  {i ? "; " : ""}
+                                  {k === "startedAt" ? "started" : (spec?.label ?? k)} <del>{was}</del> → {is}
+                                </span>
+                              );
+                            })}
+                            . Why: {c.reason}
+                          </span>
+                        ))}
                     </span>
                   ),
                 },

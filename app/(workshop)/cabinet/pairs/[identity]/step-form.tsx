@@ -79,6 +79,28 @@ export function StepForm({
               ]}
               errors={state.fieldErrors?.[r.key]}
             />
+          ) : r.kind === "text" ? (
+            <TextField
+              key={r.key}
+              label={r.label}
+              name={`reading.${r.key}`}
+              autoComplete="off"
+              spellCheck={false}
+              defaultValue={v(`reading.${r.key}`)}
+              hint="As printed on the tin or drum."
+              errors={state.fieldErrors?.[r.key]}
+            />
+          ) : r.kind === "grit" ? (
+            <TextField
+              key={r.key}
+              label={r.label}
+              name={`reading.${r.key}`}
+              autoComplete="off"
+              placeholder="P240"
+              defaultValue={v(`reading.${r.key}`)}
+              hint={window[r.key] ? `P-grade on the back of the paper; window: ${window[r.key]}` : "P-grade on the back of the paper."}
+              errors={state.fieldErrors?.[r.key]}
+            />
           ) : (
             <TextField
               key={r.key}

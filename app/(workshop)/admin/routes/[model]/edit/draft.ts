@@ -8,7 +8,7 @@
 import type { FormState } from "@/lib/forms";
 import { windowText } from "@/lib/route/rules";
 import { holdText } from "@/lib/route/spec-rules";
-import type { ReadingSpec, StepSpec } from "@/lib/route/types";
+import type { ReadingKind, ReadingSpec, StepSpec } from "@/lib/route/types";
 
 export type HoldUnit = "min" | "h" | "d";
 export const UNIT_MINUTES: Record<HoldUnit, number> = { min: 1, h: 60, d: 24 * 60 };
@@ -21,11 +21,15 @@ export interface ReadingDraft {
   key: string;
   label: string;
   unit: string;
-  kind: "number" | "check";
+  kind: ReadingKind;
   min: string;
   max: string;
   absMax: string;
   equals: string;
+  /** A text reading's longest length, as typed. */
+  maxLength: string;
+  /** A text reading that names a supplier's lot, traced into the cabinets. */
+  lot: boolean;
 }
 
 export interface StepDraft {
@@ -57,10 +61,12 @@ export function readingDraft(r?: ReadingSpec, uid: string = newUid()): ReadingDr
     label: r?.label ?? "",
     unit: r?.unit ?? "",
     kind: r?.kind ?? "number",
-    min: numText(r?.min),
-    max: numText(r?.max),
+    min: r?.kind === "grit" && r.min !== undefined ? `P${r.min}` : numText(r?.min),
+    max: r?.kind === "grit" && r.max !== undefined ? `P${r.max}` : numText(r?.max),
     absMax: numText(r?.absMax),
     equals: numText(r?.equals),
+    maxLength: numText(r?.maxLength),
+    lot: r?.lot === true,
   };
 }
 
@@ -177,7 +183,19 @@ export function toSpec(steps: StepDraft[]): Record<string, unknown>[] {
       name: s.name,
       station: s.station,
       readings: s.readings.map((r) => {
-        const o: Record<string, unknown> = { key: r.key.trim() || readingKeyFrom(r.label), label: r.label, unit: r.kind === "check" ? null : r.unit.trim() || null, kind: r.kind };
+        const o: Record<string, unknown> = { key: r.key.trim() || readingKeyFrom(r.label), label: r.label, unit: r.kind === "number" ? r.unit.trim() || null : null, kind: r.kind };
+        if (r.kind === "text") {
+          const v = numberOrText(r.maxLength);
+          if (v !== undefined) o.maxLength = v;
+          if (r.lot) o.lot = true;
+        }
+        if (r.kind === "grit") {
+          // "P240" or "240": the grade's number; anything else goes as typed, for the server to refuse.
+          for (const k of ["min", "max"] as const) {
+            const v = numberOrText(r[k].trim().replace(/^[pP]\s*/, ""));
+            if (v !== undefined) o[k] = typeof v === "string" ? r[k] : v;
+          }
+        }
         if (r.kind === "number") {
           for (const k of LIMITS) {
             const v = numberOrText(r[k]);
@@ -203,6 +221,16 @@ export function toSpec(steps: StepDraft[]): Record<string, unknown>[] {
 /** The window of a reading as typed ("135–140 °C"), or null while a limit is not a number yet. */
 export function previewWindow(r: ReadingDraft): string | null {
   if (r.kind === "check") return "pass";
+  if (r.kind === "text") return "as written";
+  if (r.kind === "grit") {
+    const spec: ReadingSpec = { key: "x", label: r.label, unit: null, kind: "grit" };
+    for (const k of ["min", "max"] as const) {
+      const v = numberOrText(r[k].trim().replace(/^[pP]\s*/, ""));
+      if (typeof v === "string") return null;
+      if (v !== undefined) spec[k] = v;
+    }
+    return windowText(spec);
+  }
   const spec: ReadingSpec = { key: "x", label: r.label, unit: r.unit.trim() || null, kind: "number" };
   for (const k of LIMITS) {
     const v = numberOrText(r[k]);
@@ -277,7 +305,7 @@ export function placeErrors(fieldErrors: FormState["fieldErrors"], layout: Layou
 
 /** The fields the form shows beside their own inputs; anything else is listed above the step or reading. */
 export const STEP_FIELDS: ReadonlySet<string> = new Set(["key", "name", "station", "note", "readings", "holdAfter", "holdAfter.minutes", "holdAfter.from", "holdAfter.label"]);
-export const READING_FIELDS: ReadonlySet<string> = new Set(["key", "label", "unit", "kind", ...LIMITS]);
+export const READING_FIELDS: ReadonlySet<string> = new Set(["key", "label", "unit", "kind", "maxLength", "lot", ...LIMITS]);
 
 /** The errors of a step or reading that no input of the form shows. */
 export function otherErrors(rec: Record<string, string[]> | undefined, shown: ReadonlySet<string>): string[] {

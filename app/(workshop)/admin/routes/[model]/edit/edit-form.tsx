@@ -5,7 +5,7 @@ import { SelectField, TextAreaField, TextField } from "@/components/ui/field";
 import { submitKeepingFields } from "@/components/ui/kept-form";
 import { Notice } from "@/components/ui/notice";
 import { initialFormState, type FormState } from "@/lib/forms";
-import type { StepSpec } from "@/lib/route/types";
+import { READING_KINDS, type ReadingKind, type StepSpec } from "@/lib/route/types";
 import { ROUTE_STATIONS, STATION_NAME } from "@/lib/vocabulary/stations";
 import type { RouteKind } from "@/lib/vocabulary/route-kinds";
 import { saveRouteVersionAction } from "../../actions";
@@ -16,7 +16,10 @@ const STATION_OPTIONS = [{ value: "", label: "Choose a station…" }, ...ROUTE_S
 const KIND_OPTIONS = [
   { value: "number", label: "A number" },
   { value: "check", label: "Inspector's check (pass or fail)" },
+  { value: "text", label: "A text, such as a lot (no window)" },
+  { value: "grit", label: "An abrasive grit (P-grade)" },
 ];
+const asKind = (v: string): ReadingKind => (READING_KINDS as readonly string[]).includes(v) ? (v as ReadingKind) : "number";
 const UNIT_OPTIONS: { value: HoldUnit; label: string }[] = [
   { value: "min", label: "minutes" },
   { value: "h", label: "hours" },
@@ -299,7 +302,7 @@ function ReadingFields({ step: s, stepIndex: i, reading: r, index: j, errors, ed
           spellCheck={false}
           autoComplete="off"
         />
-        <SelectField label="Kind" name={`reading-${r.uid}-kind`} value={r.kind} options={KIND_OPTIONS} onChange={(e) => set({ kind: e.target.value === "check" ? "check" : "number" }, "kind")} errors={errors.of(r.uid, "kind")} />
+        <SelectField label="Kind" name={`reading-${r.uid}-kind`} value={r.kind} options={KIND_OPTIONS} onChange={(e) => set({ kind: asKind(e.target.value) }, "kind")} errors={errors.of(r.uid, "kind")} />
         {r.kind === "number" ? (
           <>
             <TextField label="Unit" name={`reading-${r.uid}-unit`} value={r.unit} placeholder="°C, min, mm" onChange={(e) => set({ unit: e.target.value }, "unit")} errors={errors.of(r.uid, "unit")} />
@@ -307,6 +310,19 @@ function ReadingFields({ step: s, stepIndex: i, reading: r, index: j, errors, ed
             {limit("max", "Highest (max)")}
             {limit("absMax", "± limit", "For a deviation from zero.")}
             {limit("equals", "Must equal", "E.g. the coat number.")}
+          </>
+        ) : r.kind === "grit" ? (
+          <>
+            <TextField label="Coarsest grit" name={`reading-${r.uid}-min`} value={r.min} placeholder="P180" hint="FEPA / ISO 6344 P-grade." onChange={(e) => set({ min: e.target.value }, "min")} errors={errors.of(r.uid, "min")} />
+            <TextField label="Finest grit" name={`reading-${r.uid}-max`} value={r.max} placeholder="P240" onChange={(e) => set({ max: e.target.value }, "max")} errors={errors.of(r.uid, "max")} />
+          </>
+        ) : r.kind === "text" ? (
+          <>
+            <TextField label="Longest text (characters)" name={`reading-${r.uid}-maxLength`} inputMode="numeric" value={r.maxLength} placeholder="40" hint="Recorded as written; no window." onChange={(e) => set({ maxLength: e.target.value }, "maxLength")} errors={errors.of(r.uid, "maxLength")} />
+            <label className="flex min-h-12 cursor-pointer items-center gap-3 self-end sm:col-span-2">
+              <input type="checkbox" name={`reading-${r.uid}-lot`} checked={r.lot} onChange={(e) => set({ lot: e.target.checked }, "lot")} className="size-5 accent-leaf" />
+              <span>It names a supplier&apos;s lot (such as the lacquer lot): the register traces the lot into the cabinets.</span>
+            </label>
           </>
         ) : (
           <p className="self-end pb-3 text-ink-soft sm:col-span-2 lg:col-span-4">The inspector answers pass or fail; a fail opens a nonconformance.</p>
