@@ -24,6 +24,31 @@ export async function packingList(db: DbOrTx, modelId: string): Promise<string[]
   return [...FIXED_PACKING_ITEMS, ...own];
 }
 
+/**
+ * How a line goes into the carton: the two speakers by their serials, an accessory with a code by
+ * scanning that code, everything else (the certificate, a manual) by a tick.
+ */
+export type PackingLineMode = "left" | "right" | "scan" | "tick";
+
+export interface PackingLine {
+  label: string;
+  /** The accessory's GTIN or own code, for a "scan" line; null otherwise. */
+  code: string | null;
+  mode: PackingLineMode;
+}
+
+/** The model's packing list with how each line is checked in, in packing order (as packingList orders it). */
+export async function packingLines(db: DbOrTx, modelId: string): Promise<PackingLine[]> {
+  const rows = await db.select({ label: packingItems.label, code: packingItems.code }).from(packingItems).where(eq(packingItems.modelId, modelId)).orderBy(asc(packingItems.position));
+  const codes = new Map(rows.filter((r) => r.code?.trim()).map((r) => [r.label.trim().toLowerCase(), r.code!.trim()]));
+  return (await packingList(db, modelId)).map((label) => {
+    if (sameLabel(label, FIXED_PACKING_ITEMS[0])) return { label, code: null, mode: "left" };
+    if (sameLabel(label, FIXED_PACKING_ITEMS[1])) return { label, code: null, mode: "right" };
+    const code = FIXED_PACKING_ITEMS.some((f) => sameLabel(f, label)) ? undefined : codes.get(label.trim().toLowerCase());
+    return code ? { label, code, mode: "scan" } : { label, code: null, mode: "tick" };
+  });
+}
+
 /** Writes the default packing list for every model that has none yet; returns how many models got one. */
 export async function ensurePackingLists(tx: DbOrTx): Promise<number> {
   const bare = await tx

@@ -44,14 +44,17 @@ export interface WaitingCarton {
   finish: string | null;
   location: string | null;
   packedOn: string;
+  /** Its SSCC (18 digits), or null for a carton from before SSCCs. */
+  sscc: string | null;
   /** The open containment holding its pair (it cannot ship), or null. */
   heldBy: string | null;
 }
 
 /** Packed cartons not yet in a shipment, with where they are stored, oldest first. */
 export async function waitingToShip(db: DbOrTx): Promise<WaitingCarton[]> {
-  const rows = await db.all<{ id: string; carton: string; pair: string | null; model: string | null; model_code: string | null; finish: string | null; location: string | null; packed_on: string | null; created_at: number }>(sql`
+  const rows = await db.all<{ id: string; carton: string; pair: string | null; model: string | null; model_code: string | null; finish: string | null; location: string | null; packed_on: string | null; created_at: number; sscc: string | null }>(sql`
     SELECT c.id, c.identity AS carton, p.identity AS pair, m.name AS model, m.code AS model_code, f.name AS finish,
+           (SELECT cs.sscc FROM carton_ssccs cs WHERE cs.carton_id = c.id) AS sscc,
            (SELECT cl.location FROM carton_locations cl WHERE cl.carton_id = c.id ORDER BY cl.id DESC LIMIT 1) AS location,
            json_extract(c.attrs, '$.packedOn') AS packed_on, c.created_at
     FROM items c
@@ -72,6 +75,7 @@ export async function waitingToShip(db: DbOrTx): Promise<WaitingCarton[]> {
     finish: r.finish,
     location: r.location,
     packedOn: r.packed_on ?? isoDay(new Date(Number(r.created_at))),
+    sscc: r.sscc,
     heldBy: held.get(r.id)?.code ?? null,
   }));
 }

@@ -10,7 +10,7 @@ import { simpleParser } from "mailparser";
 import { beforeAll, describe, expect, test } from "vitest";
 import { prepareZXingModule, readBarcodes, type ReaderOptions } from "zxing-wasm/reader";
 import { getDb } from "@/db";
-import { cartonLocations, certificates, dealers, events, items, links, models, outbox, packingItems, shipmentDetails, users, type Item } from "@/db/schema";
+import { cartonLocations, cartonSsccs, certificates, dealers, events, items, links, models, outbox, packingItems, shipmentDetails, users, type Item } from "@/db/schema";
 import { seedDemo } from "@/db/seed/seed";
 import { AppError } from "@/lib/auth/errors";
 import {
@@ -19,8 +19,10 @@ import {
   DEFAULT_PACKING_LIST,
   ensurePackingLists,
   moveCarton,
+  packingLines,
   packingList,
   packPair,
+  type PackInput,
   readyToPack,
   shipCartons,
   shippedOn,
@@ -35,6 +37,8 @@ import { deliverDue } from "@/lib/mail/sender";
 import { createMailTransport } from "@/lib/mail/transport";
 import { parseSerial } from "@/lib/serials";
 import { gs1CheckDigit } from "@/lib/serials/gs1";
+import { scannedContents } from "../fixtures/packing";
+import { failureText } from "./helpers";
 
 const db = () => getDb();
 let packer: { id: string };
@@ -124,15 +128,35 @@ describe("packing lists", () => {
   });
 });
 
-describe("packing a tested pair", () => {
+describe("packing a tested pair by scan", () => {
   let pair: Item;
-  let list: string[];
+  let other: Item;
+  let good: PackInput;
+  /** An invented GTIN-14 for the grilles' box, in the demo's prefix (check digit by gs1CheckDigit and cdigit below). */
+  const GRILLES = "09527730009017";
 
   beforeAll(async () => {
     const tested = await pairsIn("ready_to_pack");
-    expect(tested.length).toBeGreaterThan(0);
+    expect(tested.length).toBeGreaterThan(1);
     pair = tested[0]!;
-    list = await packingList(db(), pair.modelId!);
+    other = (await pairsIn("shipped"))[0]!;
+    // The grilles come boxed with a code: that line is scanned, the manual and certificate ticked.
+    await db().update(packingItems).set({ code: GRILLES }).where(and(eq(packingItems.modelId, pair.modelId!), eq(packingItems.label, "Grilles (2)")));
+    expect(cdigit.gtin.validate(GRILLES)).toBe(true);
+    good = await scannedContents(db(), pair.identity, "Rack B, shelf 2");
+  });
+
+  test("the packing lines: both speakers by serial, the coded grilles by scan, the rest ticked", async () => {
+    const lines = await packingLines(db(), pair.modelId!);
+    expect(lines.map((l) => [l.label, l.mode])).toEqual([
+      ["Left speaker", "left"],
+      ["Right speaker", "right"],
+      ["Certificate", "tick"],
+      ["Grilles (2)", "scan"],
+      ["Owner's manual", "tick"],
+    ]);
+    expect(good.scans).toEqual([GRILLES]);
+    expect(good.checked).toEqual(["Certificate", "Owner's manual"]);
   });
 
   test("the packers' home lists it as ready to pack", async () => {
@@ -142,45 +166,87 @@ describe("packing a tested pair", () => {
     expect(mine!.testedAt).toBeInstanceOf(Date);
   });
 
-  test("an unticked item, a stray label or an empty location is refused and writes nothing", async () => {
+  test("each wrong or missing scan is refused beside its own field, and nothing is written", async () => {
     const before = await counts();
-    const partial = list.filter((l) => l !== "Grilles (2)");
-    const e1 = await refusal(packPair(db(), { pairIdentity: pair.identity, checked: partial, location: "Rack B" }, packer));
-    expect(e1.status).toBe(400);
-    expect(e1.message).toBe("Tick every item: Grilles (2) is not ticked.");
-    expect(e1.fieldErrors?.checked).toEqual([e1.message]);
-
-    const e2 = await refusal(packPair(db(), { pairIdentity: pair.identity, checked: ["Left speaker"], location: "Rack B" }, packer));
-    const rest = list.slice(1);
-    expect(e2.message).toBe(`Tick every item: ${rest.slice(0, -1).join(", ")} and ${rest.at(-1)} are not ticked.`);
-    expect(e2.message).toMatch(/^Tick every item: Right speaker, Certificate, Grilles \(2\)(,| and) Owner's manual/);
-
-    const e3 = await refusal(packPair(db(), { pairIdentity: pair.identity, checked: [...list, "A spare tweeter"], location: "Rack B" }, packer));
-    expect(e3.message).toMatch(/"A spare tweeter" is not on the packing list/);
-
-    const e4 = await refusal(packPair(db(), { pairIdentity: pair.identity, checked: list, location: "   " }, packer));
-    expect(e4.status).toBe(400);
-    expect(e4.fieldErrors?.location?.[0]).toMatch(/Say where the carton is stored/);
-
+    const [left, right] = [good.left, good.right];
+    const [otherLeft] = await speakerRows(other.id);
+    // A slipped check character: the last character of the left serial changed.
+    const last = left.at(-1)!;
+    const slipped = `${left.slice(0, -1)}${last === "A" ? "B" : "A"}`;
+    const esc = (t: string) => t.replace(/[.*+?^${}()|[\]\\]/g, "\\$&");
+    const cases: [string, Partial<PackInput>, string, RegExp][] = [
+      ["a missing left serial", { left: "" }, "left", /^Scan the left speaker's serial\.$/],
+      ["the left speaker scanned as right", { right: left }, "right", new RegExp(`^${esc(left)} is this pair's left speaker: scan it into the left speaker's box\\.$`)],
+      ["another pair's speaker", { left: otherLeft!.identity }, "left", new RegExp(`belongs to pair ${other.identity}, not to ${pair.identity}`)],
+      ["an unknown serial", { right: "S-XX-26-00001-Z" }, "right", /is not a serial in the register/],
+      ["a slipped check character", { left: slipped }, "left", new RegExp(`check character is wrong\\. Did you mean ${esc(left)}\\?`)],
+      ["the pair's own serial in a speaker's box", { left: pair.identity }, "left", /is a pair, not a speaker/],
+      ["the wrong accessory code", { scans: ["09527730009000"] }, "scan-0", /^09527730009000 is not the code of Grilles \(2\)/],
+      ["a missing accessory scan", { scans: [] }, "scan-0", /^Scan the code of Grilles \(2\)\.$/],
+      ["an unticked manual", { checked: ["Certificate"] }, "checked", /^Tick every item: Owner's manual is not ticked\.$/],
+      ["a stray tick", { checked: [...good.checked, "A spare tweeter"] }, "checked", /"A spare tweeter" is not on the packing list/],
+      ["an empty location", { location: "  " }, "location", /Say where the carton is stored/],
+    ];
+    for (const [what, change, field, message] of cases) {
+      const e = await refusal(packPair(db(), { ...good, ...change }, packer));
+      expect(e.status, what).toBe(400);
+      expect(Object.keys(e.fieldErrors ?? {}), what).toEqual([field]);
+      expect(e.fieldErrors![field]![0], what).toMatch(message);
+    }
+    // Both sides swapped: each box is answered for itself.
+    const swapped = await refusal(packPair(db(), { ...good, left: right, right: left }, packer));
+    expect(Object.keys(swapped.fieldErrors ?? {}).sort()).toEqual(["left", "right"]);
+    expect(swapped.message).toBe("Nothing was packed: some fields need attention.");
     expect(await counts()).toEqual(before);
+  });
+
+  test("the GTIN on the grilles' box may come as printed or as a scanner sends it", async () => {
+    for (const scan of [`(01)${GRILLES}`, `01${GRILLES}`, `]C101${GRILLES}`, GRILLES.slice(1)]) {
+      // Refused for the missing location only: the scan itself was accepted.
+      const e = await refusal(packPair(db(), { ...good, scans: [scan], location: "" }, packer));
+      expect(Object.keys(e.fieldErrors ?? {}), scan).toEqual(["location"]);
+    }
   });
 
   test("a pair that has not passed its final test is refused with a plain reason", async () => {
     const [building] = await pairsIn("awaiting_test");
-    const e = await refusal(packPair(db(), { pairIdentity: building!.identity, checked: list, location: "Rack B" }, packer));
+    const e = await refusal(packPair(db(), { ...good, pairIdentity: building!.identity }, packer));
     expect(e.status).toBe(409);
     expect(e.message).toBe(`${building!.identity} is awaiting test: only a pair that has passed its final test can be packed.`);
-    const e2 = await refusal(packPair(db(), { pairIdentity: "P-XX-26-00001-Z", checked: list, location: "Rack B" }, packer));
+    const e2 = await refusal(packPair(db(), { ...good, pairIdentity: "P-XX-26-00001-Z" }, packer));
     expect(e2.status).toBe(404);
   });
 
-  test("packed: a carton holds the pair at PAIR, the location is recorded, the certificate issued", async () => {
-    const r = await packPair(db(), { pairIdentity: pair.identity.toLowerCase(), checked: [...list].reverse(), location: "  Rack B,   shelf 2 " }, packer);
+  test("a malformed GS1 company prefix setting stops packing with a clear message", async () => {
+    const before = await counts();
+    process.env.TWINLEAF_GS1_COMPANY_PREFIX = "95277";
+    try {
+      const e = await refusal(packPair(db(), good, packer));
+      expect(e.status).toBe(409);
+      expect(e.message).toMatch(/TWINLEAF_GS1_COMPANY_PREFIX is "95277": a GS1 company prefix is 7 to 10 digits/);
+    } finally {
+      delete process.env.TWINLEAF_GS1_COMPANY_PREFIX;
+    }
+    expect(await counts()).toEqual(before);
+  });
+
+  test("packed: a carton with its SSCC holds the pair at PAIR, the location is recorded, the certificate issued", async () => {
+    const r = await packPair(db(), { ...good, pairIdentity: pair.identity.toLowerCase(), left: good.left.toLowerCase(), location: "  Rack B,   shelf 2 " }, packer);
     const [model] = await db().select().from(models).where(eq(models.id, pair.modelId!));
 
     expect(parseSerial(r.carton.identity)).toMatchObject({ kind: "carton", code: model!.code, valid: true });
     expect(r.carton).toMatchObject({ kind: "carton", state: "packed", modelId: model!.id });
     expect(r.carton.attrs).toMatchObject({ gtin: model!.pairGtin, packedOn: expect.stringMatching(/^\d{4}-\d{2}-\d{2}$/) });
+    // SSCC: extension 0, the demo prefix, the next serial reference, and a check digit two independent implementations agree on.
+    expect(r.sscc).toMatch(/^09527730\d{9}\d$/);
+    expect(cdigit.gtin.validate(r.sscc)).toBe(true); // cdigit's GTIN algorithm is the GS1 mod-10 of any length
+    const [stored] = await db().select().from(cartonSsccs).where(eq(cartonSsccs.cartonId, r.carton.id));
+    expect(stored).toMatchObject({ sscc: r.sscc, extension: 0, companyPrefix: "9527730" });
+    const [top] = await db().all<{ max: number }>(sql`SELECT max(serial_reference) AS max FROM carton_ssccs`);
+    expect(stored!.serialReference).toBe(Number(top!.max));
+    // Append-only: the row neither changes nor goes.
+    expect(await failureText(() => db().run(sql`UPDATE carton_ssccs SET sscc = '000000000000000000' WHERE carton_id = ${r.carton.id}`))).toMatch(/never changes/);
+    expect(await failureText(() => db().run(sql`DELETE FROM carton_ssccs WHERE carton_id = ${r.carton.id}`))).toMatch(/never deleted/);
 
     const held = await db().select().from(links).where(and(eq(links.parentId, r.carton.id), isNull(links.endedAt)));
     expect(held.map((l) => [l.childId, l.position])).toEqual([[pair.id, "PAIR"]]);
@@ -197,17 +263,17 @@ describe("packing a tested pair", () => {
       expect(moved!.data).toMatchObject({ from: "built", to: "packed", pair: pair.identity, carton: r.carton.identity });
     }
     const [packed] = await db().select().from(events).where(and(eq(events.type, "pair.packed"), eq(events.subjectId, pair.id)));
-    expect(packed!.data).toMatchObject({ carton: r.carton.identity, checklist: list, location: "Rack B, shelf 2" });
+    expect(packed!.data).toMatchObject({ carton: r.carton.identity, sscc: r.sscc, location: "Rack B, shelf 2", accessories: { "Grilles (2)": GRILLES } });
     expect(packed!.actorId).toBe(packer.id);
 
     const [cert] = await db().select().from(certificates).where(eq(certificates.pairId, pair.id));
     expect(cert!.id).toBe(r.certificateId);
 
-    expect((await waitingToShip(db())).find((w) => w.carton === r.carton.identity)).toMatchObject({ pair: pair.identity, location: "Rack B, shelf 2" });
+    expect((await waitingToShip(db())).find((w) => w.carton === r.carton.identity)).toMatchObject({ pair: pair.identity, location: "Rack B, shelf 2", sscc: r.sscc });
   });
 
   test("packing it again is refused", async () => {
-    const e = await refusal(packPair(db(), { pairIdentity: pair.identity, checked: list, location: "Rack B" }, packer));
+    const e = await refusal(packPair(db(), good, packer));
     expect(e.status).toBe(409);
     expect(e.message).toMatch(/is already packed, in carton K-/);
   });

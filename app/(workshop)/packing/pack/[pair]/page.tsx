@@ -13,7 +13,7 @@ import { getDb } from "@/db";
 import { areaByKey } from "@/lib/areas";
 import { holdsOn } from "@/lib/containments";
 import { pageParam, requirePage } from "@/lib/auth/guard";
-import { knownLocations, packingList, pairForPacking, PACKABLE_STATES } from "@/lib/dispatch";
+import { knownLocations, packingLines, pairForPacking, PACKABLE_STATES } from "@/lib/dispatch";
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { PackForm } from "./pack-form";
 
@@ -29,7 +29,7 @@ export default async function Page({ params, searchParams }: { params: Promise<{
   const pair = await pairForPacking(db, serial);
   if (!pair) notFound();
   const packable = (PACKABLE_STATES as readonly string[]).includes(pair.state);
-  const [items, locations, holds] = await Promise.all([pair.modelId ? packingList(db, pair.modelId) : Promise.resolve([]), knownLocations(db), holdsOn(db, [pair.id])]);
+  const [lines, locations, holds] = await Promise.all([pair.modelId ? packingLines(db, pair.modelId) : Promise.resolve([]), knownLocations(db), holdsOn(db, [pair.id])]);
   // A pair tested before final tests were recorded gets its certificate when it is packed.
   const certificateReady = pair.hasCertificate || pair.finalTestPassed;
 
@@ -101,7 +101,7 @@ export default async function Page({ params, searchParams }: { params: Promise<{
                 : "This pair was tested before final tests were recorded: its certificate is issued when it is packed. Pack it, then print the certificate and put it in before the carton is closed."}
             </p>
           </div>
-          <PackForm pair={pair.identity} items={items} locations={locations} />
+          <PackForm pair={pair.identity} lines={lines} locations={locations} />
         </Panel>
       ) : holds.length ? null : (
         <Notice tone="caution" testId="not-packable">
