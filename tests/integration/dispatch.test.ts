@@ -8,6 +8,7 @@ import * as cdigit from "cdigit";
 import { and, eq, isNull, sql } from "drizzle-orm";
 import { simpleParser } from "mailparser";
 import { beforeAll, describe, expect, test } from "vitest";
+import { extractText, getDocumentProxy } from "unpdf";
 import { prepareZXingModule, readBarcodes, type ReaderOptions } from "zxing-wasm/reader";
 import { getDb } from "@/db";
 import { cartonLocations, cartonSsccs, certificates, dealers, events, items, links, models, outbox, packingItems, shipmentDetails, users, type Item } from "@/db/schema";
@@ -35,7 +36,7 @@ import { PUBLIC_CERTIFICATE_FIELDS } from "@/lib/dispatch/verify";
 import { startFakeSmtp } from "@/lib/mail/fake-smtp";
 import { deliverDue } from "@/lib/mail/sender";
 import { createMailTransport } from "@/lib/mail/transport";
-import { parseSerial } from "@/lib/serials";
+import { formatSerial, parseSerial } from "@/lib/serials";
 import { gs1CheckDigit } from "@/lib/serials/gs1";
 import { scannedContents } from "../fixtures/packing";
 import { failureText } from "./helpers";
@@ -178,7 +179,7 @@ describe("packing a tested pair by scan", () => {
       ["a missing left serial", { left: "" }, "left", /^Scan the left speaker's serial\.$/],
       ["the left speaker scanned as right", { right: left }, "right", new RegExp(`^${esc(left)} is this pair's left speaker: scan it into the left speaker's box\\.$`)],
       ["another pair's speaker", { left: otherLeft!.identity }, "left", new RegExp(`belongs to pair ${other.identity}, not to ${pair.identity}`)],
-      ["an unknown serial", { right: "S-XX-26-00001-Z" }, "right", /is not a serial in the register/],
+      ["an unknown serial", { right: formatSerial({ kind: "speaker", code: "XX", year: 2026, seq: 99_999 }) }, "right", /is not a serial in the register/],
       ["a slipped check character", { left: slipped }, "left", new RegExp(`check character is wrong\\. Did you mean ${esc(left)}\\?`)],
       ["the pair's own serial in a speaker's box", { left: pair.identity }, "left", /is a pair, not a speaker/],
       ["the wrong accessory code", { scans: ["09527730009000"] }, "scan-0", /^09527730009000 is not the code of Grilles \(2\)/],
@@ -315,23 +316,29 @@ function pageBoxes(pdf: Buffer): number[][] {
     .map((o) => /\/MediaBox\s*\[\s*([-\d.\s]+)\]/.exec(o)![1]!.trim().split(/\s+/).map(Number));
 }
 
-describe.skipIf(!hasPdftoppm)("the carton label decodes to the GS1 element string (poppler + zxing-wasm)", () => {
+/** The page text as unpdf (pdf.js) extracts it, whitespace runs collapsed (docs/REFERENCES.md, § Independent libraries). */
+async function pdfText(pdf: Buffer): Promise<string> {
+  const { text } = await extractText(await getDocumentProxy(new Uint8Array(pdf)), { mergePages: true });
+  return text.replace(/\s+/g, " ");
+}
+
+describe.skipIf(!hasPdftoppm)("the carton label decodes to its SSCC and contents (poppler + zxing-wasm)", () => {
   let carton: string;
   let pair: string;
   let gtin: string;
-  let yymmdd: string;
+  let sscc: string;
 
   beforeAll(async () => {
     const packed = await db().select().from(events).where(eq(events.type, "pair.packed")).orderBy(events.id);
-    const data = packed.at(-1)!.data as { identity: string; carton: string };
+    const data = packed.at(-1)!.data as { identity: string; carton: string; sscc: string };
     carton = data.carton;
     pair = data.identity;
+    sscc = data.sscc;
     const c = await fresh(carton);
     gtin = c.attrs.gtin as string;
-    yymmdd = (c.attrs.packedOn as string).replace(/-/g, "").slice(2);
   });
 
-  test.each([203, 300, 600])("at %i dpi: one 100 × 150 mm page whose GS1-128 reads (01)GTIN(11)date(21)pair", async (printerDpi) => {
+  test.each([203, 300, 600])("at %i dpi: one 100 × 150 mm page with the contents' (01)(21) and the SSCC's (00) in GS1-128, read as printed", async (printerDpi) => {
     const pdf = await cartonLabelPdf(db(), carton, { printerDpi });
     const boxes = pageBoxes(pdf);
     expect(boxes).toHaveLength(1);
@@ -339,25 +346,37 @@ describe.skipIf(!hasPdftoppm)("the carton label decodes to the GS1 element strin
     expect(boxes[0]![3]).toBeCloseTo((150 * 72) / 25.4, 1);
 
     const [hri] = await decodePdf(pdf, { textMode: "HRI" });
-    expect(hri).toHaveLength(1);
     // ZXing's HRI text mode gives the AI form; ]C1 is GS1-128 (FNC1 first), ISO/IEC 15424.
-    expect(hri![0]!.text).toBe(`(01)${gtin}(11)${yymmdd}(21)${pair}`);
-    expect(hri![0]!.symbologyIdentifier).toBe("]C1");
-    expect(hri![0]!.contentType).toBe("GS1");
-    // Plain mode: the element string as transmitted. (01) and (11) are fixed length and (21) is last,
-    // so no group separator at all (GS1 General Specifications, concatenation).
+    expect(hri!.map((b) => b.text).sort()).toEqual([`(00)${sscc}`, `(01)${gtin}(21)${pair}`]);
+    for (const b of hri!) {
+      expect(b.symbologyIdentifier).toBe("]C1");
+      expect(b.contentType).toBe("GS1");
+    }
+    // The SSCC is the bottom barcode (GS1 logistic label).
+    const bottom = [...hri!].sort((a, b) => b.position.topLeft.y - a.position.topLeft.y)[0]!;
+    expect(bottom.text).toBe(`(00)${sscc}`);
+    // Plain mode: the element strings as transmitted, no group separator ((21) is last).
     const [plain] = await decodePdf(pdf, { textMode: "Plain" });
-    expect(plain![0]!.text).toBe(`01${gtin}11${yymmdd}21${pair}`);
+    expect(plain!.map((b) => b.text).sort()).toEqual([`00${sscc}`, `01${gtin}21${pair}`]);
+
+    // Exactly as printed: the human-readable lines under the bars say the same.
+    const text = await pdfText(pdf);
+    expect(text).toContain(`(01)${gtin}(21)${pair}`);
+    expect(text).toContain(`(00) ${sscc[0]} 9527730 ${sscc.slice(8, 17)} ${sscc[17]}`);
+    expect(text).toMatch(/FROM Twinleaf Demonstration Workshop/);
+    expect(text).toMatch(/HEAVY/);
   });
 
-  test("the decoded GTIN's check digit is right by the project's gs1CheckDigit and by cdigit, and bwip-js accepts the string", async () => {
+  test("the decoded keys' check digits are right by the project's gs1CheckDigit and by cdigit, and bwip-js accepts the string", async () => {
     const [page] = await decodePdf(await cartonLabelPdf(db(), carton), { textMode: "HRI" });
-    const hit = page![0]!;
-    const decodedGtin = /^\(01\)(\d{14})\(11\)/.exec(hit.text)![1]!;
+    const hit = page!.find((b) => b.text.startsWith("(01)"))!;
+    const decodedGtin = /^\(01\)(\d{14})\(21\)/.exec(hit.text)![1]!;
     // GS1 mod-10 (docs/REFERENCES.md, § GS1): the project's implementation and an independent one agree.
     expect(gs1CheckDigit(decodedGtin.slice(0, 13))).toBe(Number(decodedGtin[13]));
     expect(cdigit.gtin.validate(decodedGtin)).toBe(true);
     expect(cdigit.gtin.compute("629104150021")).toBe("3"); // GS1's own worked example pins the oracle
+    const decodedSscc = page!.find((b) => b.text.startsWith("(00)"))!.text.slice(4);
+    expect(cdigit.gtin.validate(decodedSscc)).toBe(true);
     // bwip-js lints GS1 data and throws on a bad (01) check digit (docs/REFERENCES.md, § Independent libraries): it takes ours…
     await expect(toBuffer({ bcid: "gs1-128", text: hit.text })).resolves.toBeInstanceOf(Buffer);
     // …and refuses the same string with the check digit off by one, so the check is not vacuous.
@@ -365,12 +384,14 @@ describe.skipIf(!hasPdftoppm)("the carton label decodes to the GS1 element strin
     await expect(toBuffer({ bcid: "gs1-128", text: wrong })).rejects.toThrow(/checksum/i);
   });
 
-  test("the label's data names the model, finish and both speakers; an unknown carton is a 404", async () => {
+  test("the label's data names the model, finish, both speakers and the SSCC; an unknown carton is a 404", async () => {
     const data = await cartonLabelData(db(), carton);
     expect(data.pair).toBe(pair);
     expect(data.left).toMatch(/^S-/);
     expect(data.right).toMatch(/^S-/);
-    expect(data.element.hri).toBe(`(01)${gtin}(11)${yymmdd}(21)${pair}`);
+    expect(data.element.hri).toBe(`(01)${gtin}(21)${pair}`);
+    expect(data.sscc).toEqual({ value: sscc, prefixLength: 7 });
+    expect(data.customer).toBeNull(); // not shipped yet
     const e = await refusal(cartonLabelPdf(db(), "K-XX-26-00001-Z"));
     expect(e.status).toBe(404);
   });
