@@ -28,6 +28,7 @@ import { assignSscc, packingGs1Settings } from "./sscc";
 
 export { cartonLabelPdf, cartonLabelData, renderCartonLabel, CARTON_LABEL_LAYOUT, type CartonLabelData } from "./carton-label";
 export { verifyCertificate, type VerifiedCertificate } from "./verify";
+export { deliveryNoteData, deliveryNotePdf, renderDeliveryNote, type DeliveryNoteData, type DeliveryNoteCarton } from "./delivery-note";
 export { DEFAULT_PACKING_LIST, ensurePackingLists, FIXED_PACKING_ITEMS, packingLines, packingList, type PackingLine, type PackingLineMode } from "./packing-list";
 export { assignSscc, packingGs1Settings, ssccsOf, type CartonSsccFacts } from "./sscc";
 export { readyToPack, waitingToShip, shippedOn, pairForPacking, knownLocations, shipmentFacts, type ReadyPair, type WaitingCarton, type ShippedCarton, type PairForPacking, type ShipmentFacts } from "./queries";
@@ -496,7 +497,10 @@ export async function shipCartons(db: Db, input: ShipInput, actor: Actor, option
       subject: mail.subject,
       text: mail.text,
       eventId,
-      attachments: pairs.map((p) => ({ kind: "certificate" as const, certificateId: p.certificateId, filename: `certificate-${p.pair}.pdf` })),
+      attachments: [
+        { kind: "delivery_note" as const, shipmentId: shipment.id, filename: `delivery-note-${identity}.pdf` },
+        ...pairs.map((p) => ({ kind: "certificate" as const, certificateId: p.certificateId, filename: `certificate-${p.pair}.pdf` })),
+      ],
     });
     return { shipment, mailId, pairs };
   });
@@ -520,7 +524,7 @@ export function shipmentMail(input: {
     "",
     ...input.lines.map((l, i) => `${i + 1}. ${[l.modelCode, l.model].filter(Boolean).join(" ")}, ${l.finish || "no finish recorded"}: pair ${l.pair} (carton ${l.carton})`),
     "",
-    `The certificate of each pair is attached as a PDF copy; the original travels in its carton. Each certificate carries a code the owner can check online.`,
+    `The delivery note is attached, with each carton's SSCC to check against its label on arrival. The certificate of each pair is attached as a PDF copy; the original travels in its carton. Each certificate carries a code the owner can check online.`,
     "",
     "Packed pairs are heavy: lift each carton with two people or a lifting aid.",
     "",

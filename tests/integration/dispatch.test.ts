@@ -461,11 +461,12 @@ describe("shipping two cartons to a dealer", () => {
     expect(mail.text).toContain("ABC123");
     expect(mail.eventId).toBe(details!.eventId);
     const certs = await db().select().from(certificates);
-    expect(mail.attachments).toHaveLength(2);
+    expect(mail.attachments).toHaveLength(3);
+    expect(mail.attachments[0]).toEqual({ kind: "delivery_note", shipmentId: r.shipment.id, filename: `delivery-note-${r.shipment.identity}.pdf` });
     for (const [i, c] of chosen.entries()) {
       const pairRow = await fresh(c.pair!);
       const cert = certs.find((x) => x.pairId === pairRow.id)!;
-      expect(mail.attachments[i]).toEqual({ kind: "certificate", certificateId: cert.id, filename: `certificate-${c.pair}.pdf` });
+      expect(mail.attachments[i + 1]).toEqual({ kind: "certificate", certificateId: cert.id, filename: `certificate-${c.pair}.pdf` });
     }
     // Exactly one message for this shipment.
     expect(await db().select().from(outbox).where(eq(outbox.eventId, details!.eventId))).toHaveLength(1);
@@ -492,9 +493,31 @@ describe("shipping two cartons to a dealer", () => {
       const ours = parsed.filter((m) => m.subject === "Shipped: 2 matched pairs, tracking ABC123");
       expect(ours).toHaveLength(1);
       const mail = ours[0]!;
-      expect(mail.attachments.map((a) => [a.filename, a.contentType])).toEqual(chosen.map((c) => [`certificate-${c.pair}.pdf`, "application/pdf"]));
+      expect(mail.attachments.map((a) => [a.filename, a.contentType])).toEqual([
+        [`delivery-note-${shipment.identity}.pdf`, "application/pdf"],
+        ...chosen.map((c) => [`certificate-${c.pair}.pdf`, "application/pdf"]),
+      ]);
       for (const a of mail.attachments) expect(a.content.subarray(0, 5).toString()).toBe("%PDF-");
       expect(mail.text).toContain("tracking number ABC123");
+
+      // The delivery note read back with unpdf (docs/REFERENCES.md, § Independent libraries): the
+      // dealer's address, each carton's SSCC, pair and speakers, the carrier and the totals.
+      const note = await pdfText(mail.attachments[0]!.content);
+      expect(note).toContain("Delivery note");
+      expect(note).toContain(dealer.name);
+      for (const line of dealer.address.split("\n")) expect(note).toContain(line.trim());
+      expect(note).toContain(`${dealer.postcode} ${dealer.city}`);
+      expect(note).toContain("Fernway Freight");
+      expect(note).toContain("ABC123");
+      const ssccs = await db().select().from(cartonSsccs);
+      for (const c of chosen) {
+        const cartonRow = await fresh(c.carton);
+        const sscc = ssccs.find((x) => x.cartonId === cartonRow.id)!.sscc;
+        expect(note).toContain(sscc);
+        expect(note).toContain(c.pair!);
+        for (const s of await speakerRows((await fresh(c.pair!)).id)) expect(note).toContain(s.identity);
+      }
+      expect(note).toContain("Total: 2 cartons, 2 matched pairs, 4 speakers");
     } finally {
       await smtp.close();
     }
