@@ -121,6 +121,8 @@ export interface PairForPacking {
   left: string | null;
   right: string | null;
   carton: string | null;
+  /** The carton's SSCC, 18 digits, when packed. */
+  sscc: string | null;
   location: string | null;
   hasCertificate: boolean;
   /** How many times its certificate has been printed: after the first, a print is a copy. */
@@ -136,12 +138,12 @@ export async function pairForPacking(db: DbOrTx, text: string): Promise<PairForP
   const identity = parsed?.valid ? parsed.canonical : t;
   const [row] = await db.all<{
     id: string; identity: string; state: string; model_id: string | null; model: string | null; model_code: string | null; finish: string | null;
-    left: string | null; right: string | null; carton_id: string | null; carton: string | null; certificate: string | null; passed: number | null; prints: number;
+    left: string | null; right: string | null; carton_id: string | null; carton: string | null; sscc: string | null; certificate: string | null; passed: number | null; prints: number;
   }>(sql`
     SELECT p.id, p.identity, p.state, p.model_id, m.name AS model, m.code AS model_code, f.name AS finish,
            (SELECT s.identity FROM links l JOIN items s ON s.id = l.child_id WHERE l.parent_id = p.id AND l.position = 'L' AND l.ended_at IS NULL) AS "left",
            (SELECT s.identity FROM links l JOIN items s ON s.id = l.child_id WHERE l.parent_id = p.id AND l.position = 'R' AND l.ended_at IS NULL) AS "right",
-           c.id AS carton_id, c.identity AS carton,
+           c.id AS carton_id, c.identity AS carton, (SELECT cs.sscc FROM carton_ssccs cs WHERE cs.carton_id = c.id) AS sscc,
            (SELECT id FROM certificates WHERE pair_id = p.id) AS certificate,
            (SELECT pass FROM final_tests WHERE pair_id = p.id ORDER BY id DESC LIMIT 1) AS passed,
            (SELECT count(*) FROM events e WHERE e.subject_kind = 'item' AND e.subject_id = p.id AND e.type = 'certificate.printed') AS prints
@@ -166,6 +168,7 @@ export async function pairForPacking(db: DbOrTx, text: string): Promise<PairForP
     left: row.left,
     right: row.right,
     carton: row.carton,
+    sscc: row.sscc,
     location: loc?.location ?? null,
     hasCertificate: row.certificate !== null,
     certificatePrints: Number(row.prints),

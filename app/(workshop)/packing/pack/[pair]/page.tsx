@@ -46,14 +46,22 @@ export default async function Page({ params, searchParams }: { params: Promise<{
       <Panel title="The pair">
         <dl className="grid gap-x-6 gap-y-2 sm:grid-cols-[auto_1fr]">
           <dt className="text-ink-soft">Left speaker</dt>
-          <dd className="serial font-bold">{pair.left ?? "—"}</dd>
+          <dd className="serial font-bold" data-testid="pair-left">
+            {pair.left ?? "—"}
+          </dd>
           <dt className="text-ink-soft">Right speaker</dt>
-          <dd className="serial font-bold">{pair.right ?? "—"}</dd>
+          <dd className="serial font-bold" data-testid="pair-right">
+            {pair.right ?? "—"}
+          </dd>
           {pair.carton ? (
             <>
               <dt className="text-ink-soft">Carton</dt>
               <dd className="serial font-bold" data-testid="packed-carton">
                 {pair.carton}
+              </dd>
+              <dt className="text-ink-soft">SSCC</dt>
+              <dd className="serial" data-testid="packed-sscc">
+                {pair.sscc ?? <span className="text-ink-soft">none recorded</span>}
               </dd>
               <dt className="text-ink-soft">Stored at</dt>
               <dd>{pair.location ?? <span className="text-ink-soft">place not recorded</span>}</dd>
