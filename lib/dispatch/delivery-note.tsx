@@ -1,5 +1,5 @@
 import "server-only";
-import { Document, Image, Page, Text, View, renderToBuffer } from "@react-pdf/renderer";
+import { Document, Image as PdfImage, Page, Text, View, renderToBuffer } from "@react-pdf/renderer";
 import { sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { AppError } from "@/lib/auth/errors";
@@ -119,7 +119,7 @@ export async function renderDeliveryNote(data: DeliveryNoteData): Promise<Buffer
             <Text style={{ fontSize: 20, fontWeight: 700 }}>Delivery note</Text>
             <Text style={{ fontFamily: MONO_FONT, fontSize: 11 }}>{data.shipment}</Text>
           </View>
-          <Image src={{ data: qr, format: "png" }} style={{ width: 70, height: 70 }} />
+          <PdfImage src={{ data: qr, format: "png" }} style={{ width: 70, height: 70 }} />
         </View>
         <View style={{ flexDirection: "row", marginTop: 16 }}>
           {party("From", data.supplier)}

@@ -25,10 +25,12 @@ let dealerCode: string;
 
 beforeAll(async () => {
   await seedDemo(db(), { months: 6 });
-  [pair] = await db().select().from(items).where(and(eq(items.kind, "pair"), eq(items.state, "shipped"))).orderBy(items.identity).limit(1);
+  const [first] = await db().select().from(items).where(and(eq(items.kind, "pair"), eq(items.state, "shipped"))).orderBy(items.identity).limit(1);
+  pair = first!;
   // Its carton (holding it at PAIR), that carton's SSCC, and the dealer of the shipment holding the carton.
-  const [packed] = await db().select({ cartonId: links.parentId }).from(links).where(and(eq(links.childId, pair!.id), eq(links.parentKind, "carton")));
-  [{ sscc }] = await db().select({ sscc: cartonSsccs.sscc }).from(cartonSsccs).where(eq(cartonSsccs.cartonId, packed!.cartonId));
+  const [packed] = await db().select({ cartonId: links.parentId }).from(links).where(and(eq(links.childId, pair.id), eq(links.parentKind, "carton")));
+  const [row] = await db().select({ sscc: cartonSsccs.sscc }).from(cartonSsccs).where(eq(cartonSsccs.cartonId, packed!.cartonId));
+  sscc = row!.sscc;
   const [shipped] = await db()
     .select({ code: dealers.code })
     .from(links)
@@ -36,7 +38,7 @@ beforeAll(async () => {
     .innerJoin(dealers, eq(dealers.id, shipmentDetails.dealerId))
     .where(and(eq(links.childId, packed!.cartonId), eq(links.parentKind, "shipment")));
   dealerCode = shipped!.code;
-  doc = await epcisDocumentForItem(db(), pair!.id, { baseUri: BASE, now: new Date("2026-12-05T12:00:00Z") });
+  doc = await epcisDocumentForItem(db(), pair.id, { baseUri: BASE, now: new Date("2026-12-05T12:00:00Z") });
   list = doc.epcisBody.eventList;
 }, 180_000);
 
