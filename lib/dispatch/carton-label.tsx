@@ -233,9 +233,13 @@ export async function renderCartonLabel(data: CartonLabelData, opts: { printerDp
             {data.modelCode} {data.modelName}
           </Text>
           <Text style={{ fontSize: 8, color: SOFT_INK }}>
-            {data.finish ?? "Finish not recorded"} · packed {formatPacked(data.packedOn)} · carton {data.carton}
+            {data.finish ?? "Finish not recorded"} · packed {formatPacked(data.packedOn)}
           </Text>
           <View style={{ flexDirection: "row", marginTop: 2 }}>
+            <Text style={{ fontSize: 7, color: SOFT_INK, width: 34 }}>Carton</Text>
+            <Text style={{ fontFamily: MONO_FONT, fontSize: 8 }}>{data.carton}</Text>
+          </View>
+          <View style={{ flexDirection: "row" }}>
             <Text style={{ fontSize: 7, color: SOFT_INK, width: 34 }}>Pair</Text>
             <Text style={{ fontFamily: MONO_FONT, fontWeight: 600, fontSize: fitMono(data.pair, widthPt - 34, 10) }}>{data.pair}</Text>
           </View>
