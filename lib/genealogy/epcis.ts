@@ -392,8 +392,8 @@ function toEpcisEvent(e: EpcisSourceEvent, itemsById: ReadonlyMap<string, EpcisI
 }
 
 /**
- * The CBV 2.0 bizStep of an event that carries readings (CBV 2.0 §7.1, docs/REFERENCES.md,
- * § EPCIS and CBV): measuring in the lab or a check at inspection is "inspecting"; a route step
+ * The CBV 2.0 bizStep of an event that carries readings (CBV 2.0 §7.1;
+ * docs/REFERENCES.md, § EPCIS and CBV): measuring in the lab or a check at inspection is "inspecting"; a route step
  * at a work station (pressing, sanding, lacquering) has no bizStep of its own in the CBV, so the
  * nearest is "sensor_reporting", the readings being what the event reports (our choice, from
  * memory of the CBV's list); the step itself stays in tw:details.

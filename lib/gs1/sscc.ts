@@ -1,6 +1,6 @@
 /**
- * The Serial Shipping Container Code, AI (00): GS1 General Specifications §2.2.1 (docs/REFERENCES.md,
- * § GS1). 18 digits: the extension digit, the GS1 company prefix (7–10 digits), the serial
+ * The Serial Shipping Container Code, AI (00): GS1 General Specifications §2.2.1
+ * (docs/REFERENCES.md, § GS1). 18 digits: the extension digit, the GS1 company prefix (7–10 digits), the serial
  * reference (filling the rest up to 17 digits) and the mod-10 check digit.
  */
 import { gs1CheckDigit } from "@/lib/serials/gs1";
