@@ -77,6 +77,8 @@ export const printPaths = {
   cartonLabelPrint: (carton: string, printId: number | string, opts: { printerDpi?: number } = {}) =>
     `/api/v1/cartons/${seg(carton)}/label/prints/${seg(String(printId))}${opts.printerDpi ? `?printerDpi=${opts.printerDpi}` : ""}`,
   labels: "/api/v1/labels",
+  /** A shipment's delivery note: a GET that only reads (it is the record, not a print). */
+  deliveryNote: (shipment: string) => `/api/v1/shipments/${seg(shipment)}/delivery-note`,
 } as const;
 
 /**

@@ -87,6 +87,11 @@ export const packingItems = sqliteTable(
       .references(() => models.id),
     position: integer("position").notNull(),
     label: text("label").notNull(),
+    /**
+     * The accessory's code (its GTIN, or a code of the workshop's own) when it carries one: the
+     * packer then scans it in. Without one the line is ticked (a manual, a cloth).
+     */
+    code: text("code"),
   },
   (t) => [uniqueIndex("packing_items_pk").on(t.modelId, t.position)],
 );
@@ -108,6 +113,29 @@ export const cartonLocations = sqliteTable(
       .default(sql`(unixepoch('subsec') * 1000)`),
   },
   (t) => [index("carton_locations_carton_idx").on(t.cartonId, t.id)],
+);
+
+/**
+ * A carton's SSCC (GS1 AI 00), allocated in the transaction that makes the carton: extension
+ * digit, company prefix and serial reference as they were set then, and the 18 digits. Appended
+ * once per carton, never changed (triggers of its migration).
+ */
+export const cartonSsccs = sqliteTable(
+  "carton_ssccs",
+  {
+    cartonId: text("carton_id")
+      .primaryKey()
+      .references(() => items.id),
+    sscc: text("sscc").notNull().unique(),
+    extension: integer("extension").notNull(),
+    companyPrefix: text("company_prefix").notNull(),
+    serialReference: integer("serial_reference").notNull(),
+    assignedAt: integer("assigned_at", { mode: "timestamp_ms" }).notNull(),
+  },
+  (t) => [
+    uniqueIndex("carton_ssccs_reference").on(t.extension, t.companyPrefix, t.serialReference),
+    check("carton_ssccs_digits", sql`length(${t.sscc}) = 18 AND ${t.sscc} NOT GLOB '*[^0-9]*'`),
+  ],
 );
 
 /** A shipment's particulars (the shipment itself is an item holding its cartons). */
@@ -132,4 +160,6 @@ export const shipmentDetails = sqliteTable(
 
 export type FinalTest = typeof finalTests.$inferSelect;
 export type Certificate = typeof certificates.$inferSelect;
+export type CartonSscc = typeof cartonSsccs.$inferSelect;
+export type PackingItem = typeof packingItems.$inferSelect;
 export type CertificatePrint = typeof certificatePrints.$inferSelect;

@@ -19,7 +19,7 @@ export const outbox = sqliteTable(
      * Files to attach, made when the mail is sent: e.g. { kind: "certificate", certificateId, filename }
      * renders that certificate's PDF (marked as a copy). Nothing bulky is kept in the outbox.
      */
-    attachments: text("attachments", { mode: "json" }).$type<{ kind: "certificate"; certificateId: string; filename: string }[]>().notNull().default([]),
+    attachments: text("attachments", { mode: "json" }).$type<({ kind: "certificate"; certificateId: string; filename: string } | { kind: "delivery_note"; shipmentId: string; filename: string })[]>().notNull().default([]),
     createdAt: integer("created_at", { mode: "timestamp_ms" })
       .notNull()
       .default(sql`(unixepoch('subsec') * 1000)`),

@@ -100,13 +100,14 @@ export async function seedDemo(db: Db, options: { history?: boolean; months?: nu
       });
     }
     // Every model gets the workshop's usual cabinet route as its first version, and a packing list;
-    // the floor-stander also ships with its spikes.
+    // the floor-stander also ships with its spikes, a boxed accessory with its own (invented) GTIN
+    // that the packer scans in.
     await ensureDefaultSpecs(tx);
     if ((await ensurePackingLists(tx)) > 0) {
       const [tower] = await tx.select({ id: models.id }).from(models).where(eq(models.code, "TB3"));
       if (tower) {
         const [last] = await tx.select({ n: sql<number>`max(position)` }).from(packingItems).where(eq(packingItems.modelId, tower.id));
-        await tx.insert(packingItems).values({ modelId: tower.id, position: Number(last?.n ?? 0) + 1, label: "Floor spikes and cups (8 each)" }).onConflictDoNothing();
+        await tx.insert(packingItems).values({ modelId: tower.id, position: Number(last?.n ?? 0) + 1, label: "Floor spikes and cups (8 each)", code: "09527730009000" }).onConflictDoNothing();
       }
     }
     // Each model's one crossover board, and its spec as version 1, which the history's pairs are made under.

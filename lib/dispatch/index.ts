@@ -15,17 +15,23 @@ import { holdRefusal } from "@/lib/containments/holds";
 import { appendEvent } from "@/lib/events/queries";
 import { queueMail } from "@/lib/mail/outbox";
 import { changeState, createItem, fit, itemByIdentity, type Recorder } from "@/lib/genealogy/graph";
-import { stateLabel } from "@/lib/vocabulary/item-kinds";
+import { KIND_WORD, stateLabel } from "@/lib/vocabulary/item-kinds";
 import { allocateSerial } from "@/lib/serials/allocator";
 import { normaliseScan, parseSerial } from "@/lib/serials/format";
 import { isValidGtin } from "@/lib/serials/gs1";
+import { nearMisses } from "@/lib/serials/suggest";
+import { sameScannedCode } from "@/lib/gs1";
+import { pairOfSpeaker } from "@/lib/genealogy/pair-speakers";
 import { isCalendarDay, isoDay, noonUtc } from "./dates";
-import { sameLabel } from "./packing-list";
-import { modelSpecOf, packingListOf } from "@/lib/workshop/model-spec-of";
+import { packingLines, sameLabel, type PackingLine } from "./packing-list";
+import { assignSscc, packingGs1Settings } from "./sscc";
+import { modelSpecOf } from "@/lib/workshop/model-spec-of";
 
 export { cartonLabelPdf, cartonLabelData, renderCartonLabel, CARTON_LABEL_LAYOUT, type CartonLabelData } from "./carton-label";
 export { verifyCertificate, type VerifiedCertificate } from "./verify";
-export { DEFAULT_PACKING_LIST, ensurePackingLists, FIXED_PACKING_ITEMS, packingList } from "./packing-list";
+export { deliveryNoteData, deliveryNotePdf, renderDeliveryNote, type DeliveryNoteData, type DeliveryNoteCarton } from "./delivery-note";
+export { DEFAULT_PACKING_LIST, ensurePackingLists, FIXED_PACKING_ITEMS, packingLines, packingList, type PackingLine, type PackingLineMode } from "./packing-list";
+export { assignSscc, packingGs1Settings, ssccsOf, type CartonSsccFacts } from "./sscc";
 export { readyToPack, waitingToShip, shippedOn, pairForPacking, knownLocations, shipmentFacts, type ReadyPair, type WaitingCarton, type ShippedCarton, type PairForPacking, type ShipmentFacts } from "./queries";
 
 export const STATION = "packing";
@@ -114,15 +120,60 @@ export interface PackResult {
   carton: Item;
   certificateId: string;
   location: string;
+  /** The carton's SSCC, 18 digits. */
+  sscc: string;
+}
+
+export interface PackInput {
+  pairIdentity: string;
+  /** The serials scanned into the left and right speakers' boxes. */
+  left: string;
+  right: string;
+  /** The codes scanned for the accessories that carry one, in the order of packingLines' "scan" lines. */
+  scans?: string[];
+  /** The ticked lines without a code (the certificate, a manual). */
+  checked: string[];
+  location: string;
+}
+
+/** The field a scan line's answer and error go under: "scan-0", "scan-1"… */
+export const scanField = (i: number) => `scan-${i}`;
+
+/**
+ * Why the serial scanned into one side's box is not that side's speaker of this pair, in words
+ * for the packer; null when it is. A slipped check character is answered with the serial it
+ * most likely was, when that one exists.
+ */
+async function speakerScanProblem(db: DbOrTx, pair: Item, side: "L" | "R", text: string): Promise<string | null> {
+  const sideWord = side === "L" ? "left" : "right";
+  const t = normaliseScan(text);
+  if (!t) return `Scan the ${sideWord} speaker's serial.`;
+  const parsed = parseSerial(t);
+  if (parsed && !parsed.valid) {
+    const near: string[] = [];
+    for (const candidate of nearMisses(parsed.canonical)) if (await itemByIdentity(db, candidate)) near.push(candidate);
+    return `${t} does not add up: its check character is wrong.${near.length ? ` Did you mean ${listing(near)}? Scan the label again.` : " Scan the label again."}`;
+  }
+  const item = await itemByIdentity(db, parsed?.canonical ?? t);
+  if (!item) return `${parsed?.canonical ?? t} is not a serial in the register.`;
+  if (item.kind !== "speaker") return `${item.identity} is ${/^[aeiou]/.test(KIND_WORD[item.kind]) ? "an" : "a"} ${KIND_WORD[item.kind]}, not a speaker: scan the ${sideWord} speaker's own label.`;
+  const place = await pairOfSpeaker(db, item.id);
+  if (!place || place.pair.id !== pair.id) {
+    return `${item.identity} belongs to ${place ? `pair ${place.pair.identity}` : "no pair"}, not to ${pair.identity}: this speaker goes in another carton.`;
+  }
+  if (place.side !== side) return `${item.identity} is this pair's ${place.side === "L" ? "left" : "right"} speaker: scan it into the ${place.side === "L" ? "left" : "right"} speaker's box.`;
+  return null;
 }
 
 /**
- * Packs a pair that passed its final test: checks the ticked list and the location, then in one
- * transaction issues the certificate (if the pair has none yet), registers the carton holding the
- * pair at PAIR, records where it is stored, and marks the pair and its two speakers packed (each
- * with its state-change event). Bad input writes nothing.
+ * Packs a pair that passed its final test. The server checks everything the packer scanned: each
+ * side's serial is that side's speaker of this pair, each accessory with a code was scanned with
+ * that code, every other line is ticked, and the location is given; any problem is answered under
+ * its own field and nothing is written. Then, in one transaction: the certificate (if the pair
+ * has none yet), the carton with its SSCC holding the pair at PAIR, where it is stored, and the
+ * pair and its two speakers marked packed (each with its state-change event).
  */
-export async function packPair(db: Db, input: { pairIdentity: string; checked: string[]; location: string }, actor: Actor): Promise<PackResult> {
+export async function packPair(db: Db, input: PackInput, actor: Actor): Promise<PackResult> {
   const pair = await findItem(db, input.pairIdentity);
   if (!pair || pair.kind !== "pair") throw new AppError(404, `${input.pairIdentity.trim() || "That"} is not a pair in the register.`);
   const refusal = await packRefusal(db, pair);
@@ -131,24 +182,45 @@ export async function packPair(db: Db, input: { pairIdentity: string; checked: s
   // The packing list and GTIN of the model version the pair was started under.
   const model = await modelSpecOf(db, pair);
   if (!model) throw new AppError(409, `${pair.identity} has no model, so it has no packing list or GTIN.`);
-
-  const list = packingListOf(model);
-  const checked = input.checked.map((c) => c.trim()).filter(Boolean);
-  const stray = checked.filter((c) => !list.some((l) => sameLabel(l, c)));
-  if (stray.length) {
-    const message = `${listing(stray.map((s) => `"${s}"`))} ${stray.length === 1 ? "is" : "are"} not on the packing list of ${model.code}; reload the page and tick again.`;
-    throw new AppError(400, message, { checked: [message] });
-  }
-  const missing = list.filter((l) => !checked.some((c) => sameLabel(l, c)));
-  if (missing.length) {
-    const message = `Tick every item: ${listing(missing)} ${missing.length === 1 ? "is" : "are"} not ticked.`;
-    throw new AppError(400, message, { checked: [message] });
-  }
-  const location = cleanLocation(input.location);
   // A carton label carries the GTIN; a wrong one must be put right before a carton is made.
   if (!isValidGtin(model.pairGtin) || model.pairGtin.length !== 14) {
     throw new AppError(409, `The pair GTIN of ${model.code} (${model.pairGtin}) is not a valid GTIN-14. Ask an administrator to correct the model before packing.`);
   }
+  const gs1 = packingGs1Settings();
+
+  const errors: Record<string, string[]> = {};
+  const add = (field: string, message: string) => (errors[field] ??= []).push(message);
+  const lines = await packingLines(db, pair);
+  for (const [field, side] of [["left", "L"], ["right", "R"]] as const) {
+    const problem = await speakerScanProblem(db, pair, side, input[field]);
+    if (problem) add(field, problem);
+  }
+  const scanLines = lines.filter((l) => l.mode === "scan");
+  const scans = input.scans ?? [];
+  scanLines.forEach((line, i) => {
+    const got = (scans[i] ?? "").trim();
+    if (!got) add(scanField(i), `Scan the code of ${line.label}.`);
+    else if (!sameScannedCode(line.code!, got)) add(scanField(i), `${got} is not the code of ${line.label} (${line.code}): scan the right item.`);
+  });
+  if (scans.length > scanLines.length) add("checked", "More codes were scanned than the packing list has lines with a code; reload the page and scan again.");
+  const tickLines = lines.filter((l) => l.mode === "tick").map((l) => l.label);
+  const checked = input.checked.map((c) => c.trim()).filter(Boolean);
+  const stray = checked.filter((c) => !lines.some((l) => sameLabel(l.label, c)));
+  if (stray.length) add("checked", `${listing(stray.map((s) => `"${s}"`))} ${stray.length === 1 ? "is" : "are"} not on the packing list of ${model.code}; reload the page and tick again.`);
+  const missing = tickLines.filter((l) => !checked.some((c) => sameLabel(l, c)));
+  if (missing.length) add("checked", `Tick every item: ${listing(missing)} ${missing.length === 1 ? "is" : "are"} not ticked.`);
+  try {
+    cleanLocation(input.location);
+  } catch (e) {
+    if (!(e instanceof AppError)) throw e;
+    add("location", e.message);
+  }
+  if (Object.keys(errors).length) {
+    const all = Object.values(errors).flat();
+    throw new AppError(400, all.length === 1 ? `Nothing was packed: ${all[0]}` : "Nothing was packed: some fields need attention.", errors);
+  }
+  const location = cleanLocation(input.location);
+  const list = lines.map((l) => l.label);
 
   const by = recorder(actor);
   const packedOn = isoDay(clockNow());
@@ -157,6 +229,7 @@ export async function packPair(db: Db, input: { pairIdentity: string; checked: s
     const current = (await itemByIdentity(tx, pair.identity))!;
     const again = await packRefusal(tx, current);
     if (again) throw new AppError(409, again);
+    const speakers = await speakersOf(tx, current.id);
 
     const identity = await allocateSerial(tx, { kind: "carton", code: model.code, year: Number(packedOn.slice(0, 4)) });
     const carton = await createItem(
@@ -164,22 +237,38 @@ export async function packPair(db: Db, input: { pairIdentity: string; checked: s
       { kind: "carton", identity, state: "packed", modelId: model.id, finishId: current.finishId, attrs: { gtin: model.pairGtin, packedOn } },
       by,
     );
-    await fit(tx, { parent: carton, child: current, position: "PAIR" }, by);
+    const sscc = await assignSscc(tx, carton, gs1);
+    await fit(tx, { parent: carton, child: current, position: "PAIR", data: { sscc, speakers: speakers.map((s) => s.identity) } }, by);
     await storeAt(tx, carton, location, actor, "carton.stored");
     await changeState(tx, current, "packed", by, { carton: identity });
-    for (const speaker of await speakersOf(tx, current.id)) await changeState(tx, speaker, "packed", by, { pair: current.identity, carton: identity });
+    for (const speaker of speakers) await changeState(tx, speaker, "packed", by, { pair: current.identity, carton: identity });
     await appendEvent(tx, {
       ...by,
       type: "pair.packed",
       subjectKind: "item",
       subjectId: current.id,
-      data: { identity: current.identity, carton: identity, location, checklist: list },
+      data: {
+        identity: current.identity,
+        carton: identity,
+        sscc,
+        location,
+        checklist: list,
+        speakers: Object.fromEntries(speakers.map((s) => [s.identity, "scanned"])),
+        accessories: scannedRecord(lines, input),
+      },
     });
     // Last, once the pair is packed: a pair the demo history tested has no final-test record, and
     // issueCertificate accepts such a pair only once it has left the line (packed or shipped).
     const certificateId = await certificateFor(tx, current, actor);
-    return { pair: current, carton, certificateId, location };
+    return { pair: current, carton, certificateId, location, sscc };
   });
+}
+
+/** What was scanned in, for the packing event: each accessory's code as read. */
+function scannedRecord(lines: PackingLine[], input: PackInput): Record<string, string> {
+  const out: Record<string, string> = {};
+  lines.filter((l) => l.mode === "scan").forEach((l, i) => (out[l.label] = (input.scans?.[i] ?? "").trim()));
+  return out;
 }
 
 /** The pair's certificate id, issuing it first when it has none (demo pairs packed in the history have none). */
@@ -410,7 +499,10 @@ export async function shipCartons(db: Db, input: ShipInput, actor: Actor, option
       subject: mail.subject,
       text: mail.text,
       eventId,
-      attachments: pairs.map((p) => ({ kind: "certificate" as const, certificateId: p.certificateId, filename: `certificate-${p.pair}.pdf` })),
+      attachments: [
+        { kind: "delivery_note" as const, shipmentId: shipment.id, filename: `delivery-note-${identity}.pdf` },
+        ...pairs.map((p) => ({ kind: "certificate" as const, certificateId: p.certificateId, filename: `certificate-${p.pair}.pdf` })),
+      ],
     });
     return { shipment, mailId, pairs };
   });
@@ -434,7 +526,7 @@ export function shipmentMail(input: {
     "",
     ...input.lines.map((l, i) => `${i + 1}. ${[l.modelCode, l.model].filter(Boolean).join(" ")}, ${l.finish || "no finish recorded"}: pair ${l.pair} (carton ${l.carton})`),
     "",
-    `The certificate of each pair is attached as a PDF copy; the original travels in its carton. Each certificate carries a code the owner can check online.`,
+    `The delivery note is attached, with each carton's SSCC to check against its label on arrival. The certificate of each pair is attached as a PDF copy; the original travels in its carton. Each certificate carries a code the owner can check online.`,
     "",
     "Packed pairs are heavy: lift each carton with two people or a lifting aid.",
     "",

@@ -2,6 +2,7 @@ import "server-only";
 import { asc, eq, notExists, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { models, packingItems } from "@/db/schema";
+import { packingListOfItem } from "@/lib/workshop/model-spec-of";
 
 // Kept apart from the rest of lib/dispatch (labels, certificates, mail) so the seed can import it lightly.
 
@@ -22,6 +23,36 @@ export async function packingList(db: DbOrTx, modelId: string): Promise<string[]
   if (rows.length === 0) return [...DEFAULT_PACKING_LIST];
   const own = rows.map((r) => r.label.trim()).filter((l) => l !== "" && !FIXED_PACKING_ITEMS.some((f) => sameLabel(f, l)));
   return [...FIXED_PACKING_ITEMS, ...own];
+}
+
+/**
+ * How a line goes into the carton: the two speakers by their serials, an accessory with a code by
+ * scanning that code, everything else (the certificate, a manual) by a tick.
+ */
+export type PackingLineMode = "left" | "right" | "scan" | "tick";
+
+export interface PackingLine {
+  label: string;
+  /** The accessory's GTIN or own code, for a "scan" line; null otherwise. */
+  code: string | null;
+  mode: PackingLineMode;
+}
+
+/**
+ * A pair's packing list with how each line is checked in, in packing order: the lines of the model
+ * version the pair was made under (lib/workshop/model-spec-of.ts), each accessory with the code the
+ * model's current list gives it (a code names the accessory, not the version).
+ */
+export async function packingLines(db: DbOrTx, pair: { id: string; modelId: string | null }): Promise<PackingLine[]> {
+  if (!pair.modelId) return [];
+  const rows = await db.select({ label: packingItems.label, code: packingItems.code }).from(packingItems).where(eq(packingItems.modelId, pair.modelId)).orderBy(asc(packingItems.position));
+  const codes = new Map(rows.filter((r) => r.code?.trim()).map((r) => [r.label.trim().toLowerCase(), r.code!.trim()]));
+  return (await packingListOfItem(db, pair)).map((label) => {
+    if (sameLabel(label, FIXED_PACKING_ITEMS[0])) return { label, code: null, mode: "left" };
+    if (sameLabel(label, FIXED_PACKING_ITEMS[1])) return { label, code: null, mode: "right" };
+    const code = FIXED_PACKING_ITEMS.some((f) => sameLabel(f, label)) ? undefined : codes.get(label.trim().toLowerCase());
+    return code ? { label, code, mode: "scan" } : { label, code: null, mode: "tick" };
+  });
 }
 
 /** Writes the default packing list for every model that has none yet; returns how many models got one. */

@@ -44,14 +44,17 @@ export interface WaitingCarton {
   finish: string | null;
   location: string | null;
   packedOn: string;
+  /** Its SSCC (18 digits), or null for a carton from before SSCCs. */
+  sscc: string | null;
   /** The open containment holding its pair (it cannot ship), or null. */
   heldBy: string | null;
 }
 
 /** Packed cartons not yet in a shipment, with where they are stored, oldest first. */
 export async function waitingToShip(db: DbOrTx): Promise<WaitingCarton[]> {
-  const rows = await db.all<{ id: string; carton: string; pair: string | null; model: string | null; model_code: string | null; finish: string | null; location: string | null; packed_on: string | null; created_at: number }>(sql`
+  const rows = await db.all<{ id: string; carton: string; pair: string | null; model: string | null; model_code: string | null; finish: string | null; location: string | null; packed_on: string | null; created_at: number; sscc: string | null }>(sql`
     SELECT c.id, c.identity AS carton, p.identity AS pair, m.name AS model, m.code AS model_code, f.name AS finish,
+           (SELECT cs.sscc FROM carton_ssccs cs WHERE cs.carton_id = c.id) AS sscc,
            (SELECT cl.location FROM carton_locations cl WHERE cl.carton_id = c.id ORDER BY cl.id DESC LIMIT 1) AS location,
            json_extract(c.attrs, '$.packedOn') AS packed_on, c.created_at
     FROM items c
@@ -72,6 +75,7 @@ export async function waitingToShip(db: DbOrTx): Promise<WaitingCarton[]> {
     finish: r.finish,
     location: r.location,
     packedOn: r.packed_on ?? isoDay(new Date(Number(r.created_at))),
+    sscc: r.sscc,
     heldBy: held.get(r.id)?.code ?? null,
   }));
 }
@@ -117,6 +121,8 @@ export interface PairForPacking {
   left: string | null;
   right: string | null;
   carton: string | null;
+  /** The carton's SSCC, 18 digits, when packed. */
+  sscc: string | null;
   location: string | null;
   hasCertificate: boolean;
   /** How many times its certificate has been printed: after the first, a print is a copy. */
@@ -132,12 +138,12 @@ export async function pairForPacking(db: DbOrTx, text: string): Promise<PairForP
   const identity = parsed?.valid ? parsed.canonical : t;
   const [row] = await db.all<{
     id: string; identity: string; state: string; model_id: string | null; model: string | null; model_code: string | null; finish: string | null;
-    left: string | null; right: string | null; carton_id: string | null; carton: string | null; certificate: string | null; passed: number | null; prints: number;
+    left: string | null; right: string | null; carton_id: string | null; carton: string | null; sscc: string | null; certificate: string | null; passed: number | null; prints: number;
   }>(sql`
     SELECT p.id, p.identity, p.state, p.model_id, m.name AS model, m.code AS model_code, f.name AS finish,
            (SELECT s.identity FROM links l JOIN items s ON s.id = l.child_id WHERE l.parent_id = p.id AND l.position = 'L' AND l.ended_at IS NULL) AS "left",
            (SELECT s.identity FROM links l JOIN items s ON s.id = l.child_id WHERE l.parent_id = p.id AND l.position = 'R' AND l.ended_at IS NULL) AS "right",
-           c.id AS carton_id, c.identity AS carton,
+           c.id AS carton_id, c.identity AS carton, (SELECT cs.sscc FROM carton_ssccs cs WHERE cs.carton_id = c.id) AS sscc,
            (SELECT id FROM certificates WHERE pair_id = p.id) AS certificate,
            (SELECT pass FROM final_tests WHERE pair_id = p.id ORDER BY id DESC LIMIT 1) AS passed,
            (SELECT count(*) FROM events e WHERE e.subject_kind = 'item' AND e.subject_id = p.id AND e.type = 'certificate.printed') AS prints
@@ -162,6 +168,7 @@ export async function pairForPacking(db: DbOrTx, text: string): Promise<PairForP
     left: row.left,
     right: row.right,
     carton: row.carton,
+    sscc: row.sscc,
     location: loc?.location ?? null,
     hasCertificate: row.certificate !== null,
     certificatePrints: Number(row.prints),

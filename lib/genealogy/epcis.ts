@@ -1,9 +1,10 @@
 import "server-only";
-import { and, asc, eq, inArray } from "drizzle-orm";
+import { and, asc, eq, inArray, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
-import { crossoverParts, events, items, models, processSpecs, routeStarts, type ItemKind } from "@/db/schema";
+import { cartonSsccs, crossoverParts, events, items, links, models, processSpecs, routeStarts, type ItemKind } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
 import type { StepSpec } from "@/lib/route/types";
+import { checkGs1Settings, digitalLink, isValidSscc } from "@/lib/gs1";
 import { traceBackward } from "./trace";
 
 /**
@@ -36,6 +37,10 @@ export interface EpcisItem {
   kind: ItemKind;
   identity: string;
   pairGtin: string | null;
+  /** A carton's SSCC (18 digits): it is then named by it, `/00/{sscc}`. */
+  sscc?: string | null;
+  /** The item's own facts: a lot's GTIN and lot number, when its supplier gave them. */
+  attrs?: Record<string, unknown>;
 }
 
 type Ext = { [key: `tw:${string}`]: unknown };
@@ -69,6 +74,10 @@ export type EpcisEvent = {
   readPoint?: { id: string };
   bizLocation?: { id: string };
   sensorElementList?: { sensorReport: EpcisSensorReport[] }[];
+  quantityList?: { epcClass: string; quantity?: number; uom?: string }[];
+  sourceList?: { type: string; source: string }[];
+  destinationList?: { type: string; destination: string }[];
+  bizTransactionList?: { type?: string; bizTransaction: string }[];
   errorDeclaration?: EpcisErrorDeclaration;
 } & Ext;
 
@@ -90,7 +99,8 @@ const trimBase = (baseUri: string) => baseUri.replace(/\/+$/, "");
  * A pair or carton with its model's GTIN is named by a GS1 Digital Link URI (GTIN + serial, the
  * same key its carton label carries); everything else by a URI under our own address.
  */
-export function itemUri(item: Pick<EpcisItem, "kind" | "identity" | "pairGtin">, baseUri: string): string {
+export function itemUri(item: Pick<EpcisItem, "kind" | "identity" | "pairGtin"> & { sscc?: string | null }, baseUri: string): string {
+  if (item.kind === "carton" && item.sscc && isValidSscc(item.sscc)) return digitalLink({ sscc: item.sscc });
   if ((item.kind === "pair" || item.kind === "carton") && item.pairGtin && /^\d{14}$/.test(item.pairGtin)) {
     return `https://id.gs1.org/01/${item.pairGtin}/21/${encodeURIComponent(item.identity)}`;
   }
@@ -188,6 +198,12 @@ export interface ReadingContext {
   routeSteps?: ReadonlyMap<string, readonly StepSpec[]>;
   /** A board's part readings by the id of the "crossover.built" event that recorded them. */
   crossoverParts?: ReadonlyMap<number, readonly CrossoverPartReading[]>;
+  /** Items events name by serial rather than id (the carton a pair.shipped event names). */
+  itemsByIdentity?: ReadonlyMap<string, EpcisItem>;
+  /** How many things a lot or batch went into, ever, by its item id: its quantity at receiving. */
+  lotQuantities?: ReadonlyMap<string, number>;
+  /** The workshop's own URI as a party (a GLN Digital Link when TWINLEAF_GLN is set). */
+  workshopUri?: string;
 }
 
 /** Thiele–Small fields as unit.ts_measured carries them, with their units (docs/REFERENCES.md, § Loudspeaker parameters). */
@@ -279,6 +295,9 @@ function toEpcisEvent(e: EpcisSourceEvent, itemsById: ReadonlyMap<string, EpcisI
   if (e.reason) tail["tw:reason"] = e.reason;
   if (e.correctsId !== null) tail["tw:corrects"] = eventUri(e.correctsId, baseUri);
 
+  const supplyChain = supplyChainEvent(e, itemsById, baseUri, ctx, { base, where, subject, tail, uriOf });
+  if (supplyChain) return supplyChain;
+
   const readings = readingsOf(e, ctx);
   if (readings.length) {
     const details = rest(d, ["identity", "readings", ...TS_FIELDS.map((f) => f.key)]);
@@ -287,7 +306,7 @@ function toEpcisEvent(e: EpcisSourceEvent, itemsById: ReadonlyMap<string, EpcisI
       ...base,
       action: "OBSERVE",
       epcList: [subject],
-      ...(INSPECTING.has(e.type) || e.station === "inspection" ? { bizStep: "inspecting" } : {}),
+      bizStep: readingBizStep(e),
       readPoint: where,
       bizLocation: where,
       sensorElementList: [{ sensorReport: readings.map((r) => sensorReport(r, baseUri)) }],
@@ -372,6 +391,122 @@ function toEpcisEvent(e: EpcisSourceEvent, itemsById: ReadonlyMap<string, EpcisI
         ...tail,
       };
   }
+}
+
+/**
+ * The CBV 2.0 bizStep of an event that carries readings (CBV 2.0 §7.1;
+ * docs/REFERENCES.md, § EPCIS and CBV): measuring in the lab or a check at inspection is "inspecting"; a route step
+ * at a work station (pressing, sanding, lacquering) has no bizStep of its own in the CBV, so the
+ * nearest is "sensor_reporting", the readings being what the event reports (our choice, from
+ * memory of the CBV's list); the step itself stays in tw:details.
+ */
+function readingBizStep(e: Pick<EpcisSourceEvent, "type" | "station">): string {
+  return INSPECTING.has(e.type) || e.station === "inspection" ? "inspecting" : "sensor_reporting";
+}
+
+/** Kinds that arrive from a supplier: their creation is CBV "receiving". */
+const RECEIVED_KINDS = new Set<ItemKind>(["unit_batch", "maker_lot", "supplier_lot", "component_lot", "flitch"]);
+/** Of those, the ones that are a class of things (a lot), named in quantityList rather than epcList. */
+const CLASS_KINDS = new Set<ItemKind>(["unit_batch", "maker_lot", "supplier_lot", "component_lot"]);
+
+/** A dealer as a party: there is no GLN on record for dealers, so a URI under our own address. */
+export const dealerUri = (code: string, baseUri: string) => `${trimBase(baseUri)}/id/dealer/${encodeURIComponent(code)}`;
+
+/** The workshop as a party: its GLN as a GS1 Digital Link when TWINLEAF_GLN is set, else a URI under our own address. */
+export function workshopUri(baseUri: string, env: Record<string, string | undefined> = process.env): string {
+  const r = checkGs1Settings(env);
+  return r.ok && r.settings.gln ? digitalLink({ gln: r.settings.gln }) : `${trimBase(baseUri)}/id/workshop`;
+}
+
+/**
+ * A lot's class-level identifier: an LGTIN-style Digital Link `/01/{gtin}/10/{lot}` when its
+ * supplier's GTIN is on record, otherwise a class URI under our own address.
+ */
+export function lotClassUri(item: Pick<EpcisItem, "identity" | "attrs">, baseUri: string): string {
+  const gtin = typeof item.attrs?.gtin === "string" ? item.attrs.gtin : null;
+  const lot = typeof item.attrs?.lot === "string" ? item.attrs.lot : null;
+  if (gtin && lot && /^\d{8,14}$/.test(gtin)) return digitalLink({ gtin, lot });
+  return `${trimBase(baseUri)}/class/${encodeURIComponent(item.identity)}`;
+}
+
+interface Shared {
+  base: { eventID: string; eventTime: string; eventTimeZoneOffset: string };
+  where: { id: string };
+  subject: string;
+  tail: Ext;
+  uriOf: (id: string | null, identity: string | null) => string;
+}
+
+/**
+ * The events a supply-chain partner reads, or null for any other: a pair packed into its carton
+ * (an AggregationEvent, parent the carton's SSCC, children the pair and its speakers), a pair
+ * shipped (ObjectEvent, shipping, in_transit, from the workshop to the dealer as owning parties),
+ * and the receiving of lots, batches and flitches (a lot as a class in quantityList).
+ */
+function supplyChainEvent(e: EpcisSourceEvent, itemsById: ReadonlyMap<string, EpcisItem>, baseUri: string, ctx: ReadingContext, s: Shared): EpcisEvent | null {
+  const d = e.data ?? {};
+  const str = (k: string) => (typeof d[k] === "string" ? (d[k] as string) : null);
+  const parent = typeof d.parentId === "string" ? itemsById.get(d.parentId) : undefined;
+
+  if (e.type === "link.fitted" && parent?.kind === "carton") {
+    const speakers = Array.isArray(d.speakers) ? d.speakers.filter((x): x is string => typeof x === "string") : [];
+    return {
+      type: "AggregationEvent",
+      ...s.base,
+      action: "ADD",
+      parentID: itemUri(parent, baseUri),
+      childEPCs: [s.subject, ...speakers.map((identity) => s.uriOf(ctx.itemsByIdentity?.get(identity)?.id ?? null, identity))],
+      bizStep: "packing",
+      disposition: "in_progress",
+      readPoint: s.where,
+      bizLocation: s.where,
+      ...(str("position") ? { "tw:position": str("position") } : {}),
+      "tw:carton": parent.identity,
+      ...s.tail,
+    };
+  }
+
+  if (e.type === "pair.shipped") {
+    const carton = str("carton") ? ctx.itemsByIdentity?.get(str("carton")!) : undefined;
+    const dealer = str("dealer");
+    return {
+      type: "ObjectEvent",
+      ...s.base,
+      action: "OBSERVE",
+      epcList: [s.subject, ...(carton ? [itemUri(carton, baseUri)] : [])],
+      bizStep: "shipping",
+      disposition: "in_transit",
+      readPoint: s.where,
+      bizLocation: s.where,
+      sourceList: [{ type: "owning_party", source: ctx.workshopUri ?? workshopUri(baseUri) }],
+      ...(dealer ? { destinationList: [{ type: "owning_party", destination: dealerUri(dealer, baseUri) }] } : {}),
+      // The delivery note is the shipment's despatch advice (CBV business transaction type "desadv").
+      ...(str("shipment") ? { bizTransactionList: [{ type: "desadv", bizTransaction: `${trimBase(baseUri)}/api/v1/shipments/${encodeURIComponent(str("shipment")!)}/delivery-note` }] } : {}),
+      ...(str("shipment") ? { "tw:shipment": str("shipment") } : {}),
+      ...(carton ? { "tw:carton": carton.identity } : {}),
+      ...s.tail,
+    };
+  }
+
+  const item = itemsById.get(e.subjectId);
+  if (e.type === "item.created" && item && RECEIVED_KINDS.has(item.kind)) {
+    const isClass = CLASS_KINDS.has(item.kind);
+    const quantity = ctx.lotQuantities?.get(item.id);
+    return {
+      type: "ObjectEvent",
+      ...s.base,
+      action: "ADD",
+      ...(isClass ? { epcList: [], quantityList: [{ epcClass: lotClassUri(item, baseUri), ...(quantity ? { quantity } : {}) }] } : { epcList: [s.subject] }),
+      bizStep: "receiving",
+      disposition: "in_progress",
+      readPoint: s.where,
+      bizLocation: s.where,
+      "tw:kind": item.kind,
+      "tw:identity": item.identity,
+      ...s.tail,
+    };
+  }
+  return null;
 }
 
 /**
@@ -461,19 +596,47 @@ export async function epcisDocumentForItems(db: DbOrTx, itemIds: readonly string
   const wanted = new Set(ids);
   for (const r of rows) if (typeof r.data?.parentId === "string") wanted.add(r.data.parentId);
   const all = [...wanted];
-  const named: EpcisItem[] = [];
-  for (let i = 0; i < all.length; i += ID_CHUNK) {
-    named.push(
+  const named = await namedItems(db, (chunk) => inArray(items.id, chunk), all);
+  // Packing and shipping name the carton and the speakers by serial.
+  const identities = [...new Set(rows.flatMap((r) => [r.data?.carton, ...(Array.isArray(r.data?.speakers) ? r.data.speakers : [])]).filter((v): v is string => typeof v === "string"))];
+  const byIdentity = identities.length ? await namedItems(db, (chunk) => inArray(items.identity, chunk), identities) : [];
+
+  const itemsById = new Map([...named, ...byIdentity].map((i) => [i.id, i]));
+  const ctx = await readingContext(db, rows);
+  ctx.itemsByIdentity = new Map([...named, ...byIdentity].map((i) => [i.identity, i]));
+  ctx.lotQuantities = await lotQuantities(db, named.filter((i) => CLASS_KINDS.has(i.kind)).map((i) => i.id));
+  ctx.workshopUri = workshopUri(opts.baseUri);
+  return epcisDocument(toEpcisEvents(rows, itemsById, opts, ctx), opts);
+}
+
+/** Items with what naming them needs (model GTIN, a carton's SSCC, their attrs), by chunks of ids or serials. */
+async function namedItems(db: DbOrTx, where: (chunk: string[]) => ReturnType<typeof inArray>, keys: string[]): Promise<EpcisItem[]> {
+  const out: EpcisItem[] = [];
+  for (let i = 0; i < keys.length; i += ID_CHUNK) {
+    out.push(
       ...(await db
-        .select({ id: items.id, kind: items.kind, identity: items.identity, pairGtin: models.pairGtin })
+        .select({ id: items.id, kind: items.kind, identity: items.identity, pairGtin: models.pairGtin, sscc: cartonSsccs.sscc, attrs: items.attrs })
         .from(items)
         .leftJoin(models, eq(models.id, items.modelId))
-        .where(inArray(items.id, all.slice(i, i + ID_CHUNK)))),
+        .leftJoin(cartonSsccs, eq(cartonSsccs.cartonId, items.id))
+        .where(where(keys.slice(i, i + ID_CHUNK)))),
     );
   }
+  return out;
+}
 
-  const itemsById = new Map(named.map((i) => [i.id, i]));
-  return epcisDocument(toEpcisEvents(rows, itemsById, opts, await readingContext(db, rows)), opts);
+/** How many things each lot or batch ever went into (a batch sits in each of its units): its quantity at receiving. */
+async function lotQuantities(db: DbOrTx, lotIds: string[]): Promise<Map<string, number>> {
+  const out = new Map<string, number>();
+  for (let i = 0; i < lotIds.length; i += ID_CHUNK) {
+    const rows = await db
+      .select({ id: links.childId, n: sql<number>`count(DISTINCT ${links.parentId})` })
+      .from(links)
+      .where(inArray(links.childId, lotIds.slice(i, i + ID_CHUNK)))
+      .groupBy(links.childId);
+    for (const r of rows) out.set(r.id, Number(r.n));
+  }
+  return out;
 }
 
 /** The route versions and crossover part readings the events' readings need for their labels and units. */

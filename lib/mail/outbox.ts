@@ -57,12 +57,13 @@ const oneLine = (what: string) =>
 /** A file the sender makes when it sends: e.g. a certificate, rendered from the register then. */
 export type MailAttachment = OutboxMessage["attachments"][number];
 
-const attachment = z.object({
-  kind: z.literal("certificate"),
-  certificateId: z.string().min(1, "the certificate is not named"),
-  // A file name, never a path: the mail client saves it under this name.
-  filename: oneLine("the file name").refine((v) => !/[\\/]/.test(v) && v.length <= 120, "the file name must be a plain name of at most 120 characters"),
-});
+// A file name, never a path: the mail client saves it under this name.
+const filename = oneLine("the file name").refine((v) => !/[\\/]/.test(v) && v.length <= 120, "the file name must be a plain name of at most 120 characters");
+
+const attachment = z.discriminatedUnion("kind", [
+  z.object({ kind: z.literal("certificate"), certificateId: z.string().min(1, "the certificate is not named"), filename }),
+  z.object({ kind: z.literal("delivery_note"), shipmentId: z.string().min(1, "the shipment is not named"), filename }),
+]);
 
 // A secret goes back into the HTML unescaped, so only URL-safe tokens are accepted as secrets.
 const secret = z.string().regex(/^[A-Za-z0-9_-]{16,}$/, "a secret must be a URL-safe token of at least 16 characters");

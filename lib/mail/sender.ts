@@ -1,7 +1,7 @@
 import "server-only";
 import { and, eq, isNotNull, isNull, or, sql } from "drizzle-orm";
 import { getDb, withWriteLock, type Db } from "@/db";
-import { certificates, mailAttempts, mailSecrets, outbox, type OutboxMessage } from "@/db/schema";
+import { certificates, items, mailAttempts, mailSecrets, outbox, type OutboxMessage } from "@/db/schema";
 import { attemptStats, DEFAULT_MAX_ATTEMPTS, forgetSecrets, restoreSecrets, retryDelaySql } from "./outbox";
 import { createMailTransport, type MailTransport } from "./transport";
 
@@ -20,7 +20,8 @@ export interface DeliverOptions {
 const defaultBaseUrl = () => (process.env.APP_URL || "http://localhost:3000").replace(/\/$/, "");
 
 /**
- * The files a message names, made now: each certificate is rendered from the register as a copy.
+ * The files a message names, made now: each certificate is rendered from the register as a copy,
+ * a shipment's delivery note from the shipment as it stands.
  * Loaded only when a message has attachments, so plain mail never pulls in the PDF renderer.
  * A failure here fails the try, and the message is tried again later like any other.
  */
@@ -29,7 +30,14 @@ async function attachmentsFor(db: Db, list: OutboxMessage["attachments"], baseUr
   const { certificateData, renderCertificate } = await import("@/lib/certificates");
   const out: { filename: string; content: Buffer; contentType: string }[] = [];
   for (const a of list) {
-    if (a.kind !== "certificate") throw new Error(`attachment ${a.filename}: unknown kind ${String(a.kind)}`);
+    if (a.kind === "delivery_note") {
+      const { deliveryNotePdf } = await import("@/lib/dispatch/delivery-note");
+      const [row] = await db.select({ identity: items.identity }).from(items).where(eq(items.id, a.shipmentId)).limit(1);
+      if (!row) throw new Error(`attachment ${a.filename}: no shipment ${a.shipmentId}`);
+      out.push({ filename: a.filename, content: await deliveryNotePdf(db, row.identity, { baseUrl }), contentType: "application/pdf" });
+      continue;
+    }
+    if (a.kind !== "certificate") throw new Error(`attachment: unknown kind ${String((a as { kind: unknown }).kind)}`);
     const [row] = await db.select({ pairId: certificates.pairId }).from(certificates).where(eq(certificates.id, a.certificateId)).limit(1);
     if (!row) throw new Error(`attachment ${a.filename}: no certificate ${a.certificateId}`);
     const content = await renderCertificate(await certificateData(db, row.pairId, { baseUrl, copy: true }));

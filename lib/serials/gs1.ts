@@ -35,8 +35,8 @@ export interface CartonElementInput {
   gtin: string;
   /** The carton's serial, usually the register's K-… serial. */
   serial: string;
-  /** Printed as YYMMDD: its calendar date in `timeZone`. */
-  productionDate: Date;
+  /** Printed as YYMMDD: its calendar date in `timeZone`. Left out, the string carries no (11). */
+  productionDate?: Date;
   lot?: string;
   /** The calendar the date is read in; defaults to the workshop's (TWINLEAF_TIME_ZONE, lib/workshop-time.ts). */
   timeZone?: string;
@@ -70,7 +70,7 @@ export function cartonElementString(input: CartonElementInput): CartonElementStr
   // Fixed-length elements first, so the only separators are between variable-length ones.
   const elements: Element[] = [
     { ai: "01", value: gtin, fixed: true },
-    { ai: "11", value: yymmdd(productionDate, input.timeZone), fixed: true },
+    ...(productionDate ? [{ ai: "11", value: yymmdd(productionDate, input.timeZone), fixed: true }] : []),
     { ai: "21", value: serial, fixed: false },
     ...(lot !== undefined ? [{ ai: "10", value: lot, fixed: false }] : []),
   ];

@@ -10,7 +10,7 @@ import { dealers, events, models, shipmentDetails, type Item } from "@/db/schema
 import { AppError } from "@/lib/auth/errors";
 import { now } from "@/lib/clock";
 import { isCalendarDay, isoDay } from "@/lib/dispatch/dates";
-import { cartonOf } from "@/lib/dispatch";
+import { assignSscc, cartonOf, packingGs1Settings } from "@/lib/dispatch";
 import { appendEvent } from "@/lib/events/queries";
 import { changeState, createItem, fit, itemById, removeFrom, type Recorder } from "@/lib/genealogy/graph";
 import { allocateSerial } from "@/lib/serials/allocator";
@@ -99,6 +99,7 @@ export async function sendCaseBack(db: Db, input: ReturnInput, actor: Actor): Pr
   const sentToDesk = to === "dealer" ? `${dealer!.name}, ${dealer!.city}` : `${p.owner!.name}, ${p.owner!.town} (${p.owner!.country})`;
   const owner = p.owner;
   const outcome = ownerMailOutcome(owner);
+  const gs1 = packingGs1Settings();
   const by: Recorder = { actorId: actor.id, station: SERVICE_STATION };
 
   return db.transaction(async (tx) => {
@@ -117,6 +118,8 @@ export async function sendCaseBack(db: Db, input: ReturnInput, actor: Actor): Pr
       },
       by,
     );
+    // A carton on its way back is a logistic unit like any other: it gets its SSCC.
+    await assignSscc(tx, carton, gs1);
     if (item.kind === "pair") {
       const old = await cartonOf(tx, item.id);
       if (old) await removeFrom(tx, { parent: old, child: item, data: { case: c.code } }, { ...by, reason: `Came back for service in case ${c.code}` });

@@ -25,13 +25,16 @@ async function writeProjection(tx: DbOrTx, modelId: string, spec: ModelSpec) {
   await tx.delete(modelCrossoverPositions).where(eq(modelCrossoverPositions.modelId, modelId));
   await tx.delete(modelTrimPositions).where(eq(modelTrimPositions.modelId, modelId));
   await tx.delete(modelTolerances).where(eq(modelTolerances.modelId, modelId));
+  // An accessory's scan code (lib/dispatch/packing-list.ts) stays with its line across versions.
+  const coded = await tx.select({ label: packingItems.label, code: packingItems.code }).from(packingItems).where(eq(packingItems.modelId, modelId));
+  const codeOf = new Map(coded.filter((r) => r.code).map((r) => [r.label.trim().toLowerCase(), r.code]));
   await tx.delete(packingItems).where(eq(packingItems.modelId, modelId));
   if (spec.positions.length) await tx.insert(modelPositions).values(spec.positions.map((p) => ({ modelId, ...p })));
   if (spec.crossovers.length) await tx.insert(modelCrossoverPositions).values(spec.crossovers.map((c) => ({ modelId, ...c })));
   if (spec.trimPositions.length) await tx.insert(modelTrimPositions).values(spec.trimPositions.map((t) => ({ modelId, ...t })));
   if (spec.tolerances.length) await tx.insert(modelTolerances).values(spec.tolerances.map((t) => ({ modelId, ...t })));
   const list = packingListOf(spec);
-  await tx.insert(packingItems).values(list.map((label, i) => ({ modelId, position: i + 1, label })));
+  await tx.insert(packingItems).values(list.map((label, i) => ({ modelId, position: i + 1, label, code: codeOf.get(label.trim().toLowerCase()) ?? null })));
 }
 
 const modelColumns = (s: ModelSpec) => ({

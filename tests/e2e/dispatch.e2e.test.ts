@@ -26,9 +26,10 @@ afterAll(async () => {
 describe("dispatch, as a packer does it", () => {
   let pair = "";
   let carton = "";
+  let sscc = "";
   const tracking = `E2E-${Date.now().toString(36).toUpperCase()}`;
 
-  test("packs a tested pair from the packers' home: every item ticked, a storage place", async () => {
+  test("packs a tested pair from the packers' home by scan: a wrong serial refused beside its box, then both speakers, a storage place", async () => {
     await visit(page, url("/packing"));
     await page.getByTestId("area-packing").waitFor();
     await expect(page.getByTestId("safety-cautions").textContent()).resolves.toMatch(/two people or a lifting aid/);
@@ -49,22 +50,39 @@ describe("dispatch, as a packer does it", () => {
     expect(text).toContain("Tested by:");
     expect(text).not.toMatch(/Packed by|not recorded|shipped/);
 
-    // One box left unticked: refused, nothing packed, the ticks kept.
-    const boxes = page.getByTestId("pack-item");
-    const n = await boxes.count();
-    expect(n).toBeGreaterThanOrEqual(3);
-    for (let i = 0; i < n - 1; i++) await boxes.nth(i).check();
+    // Scanning: the right speaker's label scanned into the left box (a scanner ends with Enter,
+    // which moves on to the next box rather than sending the form), and nothing in the right box.
+    const left = (await page.getByTestId("pair-left").textContent())!.trim();
+    const right = (await page.getByTestId("pair-right").textContent())!.trim();
+    await page.getByTestId("scan-left").fill(right);
+    await page.getByTestId("scan-left").press("Enter");
+    await expect(page.getByTestId("scan-right").evaluate((el) => el === document.activeElement)).resolves.toBe(true);
     await page.getByLabel("Storage location").fill("Rack E2E, shelf 1");
+    const ticks = page.getByTestId("pack-item");
+    for (let i = 0; i < (await ticks.count()); i++) await ticks.nth(i).check();
+    // Every coded accessory scanned with its code (the hint under its box shows it).
+    const coded = page.locator('input[data-scan-box][name="scan"]');
+    for (let i = 0; i < (await coded.count()); i++) {
+      const hint = await coded.nth(i).evaluate((el) => document.getElementById(el.getAttribute("aria-describedby")!.split(" ")[0]!)!.textContent!);
+      await coded.nth(i).fill(hint.replace(/^Code /, ""));
+    }
     await page.getByTestId("pack-submit").click();
-    await expect(page.getByTestId("pack-refused").textContent()).resolves.toMatch(/^Tick every item: .+ is not ticked\.$/);
+    await page.getByTestId("pack-refused").waitFor();
+    // Each refusal beside its own box, tied to it for screen readers; the scans are kept.
+    const errorOf = (testId: string) => page.getByTestId(testId).evaluate((el) => el.getAttribute("aria-describedby")!.split(" ").map((id) => document.getElementById(id)?.textContent ?? "").join(" "));
+    await expect(errorOf("scan-left")).resolves.toContain(`${right} is this pair's right speaker: scan it into the right speaker's box.`);
+    await expect(errorOf("scan-right")).resolves.toContain("Scan the right speaker's serial.");
     expect(await axeViolations(page), "pack page with its error").toEqual([]);
-    expect(await boxes.nth(0).isChecked()).toBe(true);
+    expect(await page.getByTestId("scan-left").inputValue()).toBe(right);
 
-    await boxes.nth(n - 1).check();
+    await page.getByTestId("scan-left").fill(left);
+    await page.getByTestId("scan-right").fill(right);
     await page.getByTestId("pack-submit").click();
     await page.getByTestId("packed").waitFor();
     carton = (await page.getByTestId("packed-carton").textContent())!.trim();
     expect(carton).toMatch(/^K-/);
+    sscc = (await page.getByTestId("packed-sscc").textContent())!.trim();
+    expect(sscc).toMatch(/^\d{18}$/);
     await expect(page.getByTestId("print-carton-label").evaluate((b) => (b as HTMLButtonElement).form?.target)).resolves.toBe("_blank");
   });
 
@@ -110,8 +128,26 @@ describe("dispatch, as a packer does it", () => {
     const message = await waitForMail(dealer!.email, new RegExp(`^Shipped: 1 matched pair, tracking ${tracking}$`));
     expect(message.text).toContain(pair);
     const raw = await simpleParser(readFileSync(join(inject("mailboxDir"), message.id)));
-    expect(raw.attachments.map((a) => [a.filename, a.contentType])).toEqual([[`certificate-${pair}.pdf`, "application/pdf"]]);
-    expect(raw.attachments[0]!.content.subarray(0, 5).toString()).toBe("%PDF-");
+    const shipment = /shipment (H-MLR-[^)\s]+)\)/.exec(message.text)![1]!;
+    expect(raw.attachments.map((a) => [a.filename, a.contentType])).toEqual([
+      [`delivery-note-${shipment}.pdf`, "application/pdf"],
+      [`certificate-${pair}.pdf`, "application/pdf"],
+    ]);
+    for (const a of raw.attachments) expect(a.content.subarray(0, 5).toString()).toBe("%PDF-");
+    // The delivery note, read back with unpdf from the stand-in SMTP server's mailbox: the dealer's
+    // address, the carton's SSCC, the pair and both speakers, the carrier and tracking.
+    const { text: note } = await extractText(await getDocumentProxy(new Uint8Array(raw.attachments[0]!.content)), { mergePages: true });
+    expect(note).toContain(dealer!.name);
+    expect(note).toContain(`${dealer!.postcode} ${dealer!.city}`);
+    for (const l of dealer!.address.split("\n")) expect(note).toContain(l.trim());
+    expect(note).toContain(sscc);
+    expect(note).toContain(pair);
+    expect(note).toContain(tracking);
+    expect(note).toContain("Total: 1 carton, 1 matched pair, 2 speakers");
+    // The packer opens it again from the shipment's own address: a GET that only reads.
+    const again = await page.request.get(url(`/api/v1/shipments/${shipment}/delivery-note`));
+    expect(again.status()).toBe(200);
+    expect(again.headers()["content-type"]).toBe("application/pdf");
   });
 
   test("a shipped pair's speakers read shipped in search", async () => {
@@ -155,7 +191,7 @@ describe("dispatch, as a packer does it", () => {
       await signIn(admin, demoEmail("admin"));
       await visit(admin, url("/admin/mail"));
       await admin.getByRole("link", { name: `Shipped: 1 matched pair, tracking ${tracking}` }).click();
-      const attachment = admin.getByTestId("mail-attachment");
+      const attachment = admin.getByTestId("mail-attachment").filter({ hasText: `certificate-${pair}.pdf` });
       await expect(attachment.textContent()).resolves.toMatch(new RegExp(`^certificate-${pair}\\.pdfPDF document · [\\d.]+ KBDownload$`));
       expect(await axeViolations(admin), "caught message").toEqual([]);
       const res = await admin.request.get(url((await attachment.getByRole("link", { name: `Download certificate-${pair}.pdf` }).getAttribute("href"))!));

@@ -110,6 +110,14 @@ describe("a pair from matched parts to a shipped carton, in the browser", () => 
   test("a packer packs it, prints its certificate and carton label, and ships it; the dealer's e-mail carries the certificate", async () => {
     const page = await as("packing");
     await visit(page, url(`/packing/pack/${w.pair}`));
+    // Both speakers scanned in from their labels (read here off the page), the rest ticked.
+    await page.getByTestId("scan-left").fill((await page.getByTestId("pair-left").textContent())!.trim());
+    await page.getByTestId("scan-right").fill((await page.getByTestId("pair-right").textContent())!.trim());
+    const coded = page.locator('input[data-scan-box][name="scan"]');
+    for (let i = 0; i < (await coded.count()); i++) {
+      const hint = await coded.nth(i).evaluate((el) => document.getElementById(el.getAttribute("aria-describedby")!.split(" ")[0]!)!.textContent!);
+      await coded.nth(i).fill(hint.replace(/^Code /, ""));
+    }
     const boxes = page.getByTestId("pack-item");
     for (let i = 0; i < (await boxes.count()); i++) await boxes.nth(i).check();
     await page.getByLabel("Storage location").fill("Rack J, shelf 2");
@@ -139,8 +147,8 @@ describe("a pair from matched parts to a shipped carton, in the browser", () => 
     const message = await waitForMail(dealer!.email, new RegExp(`tracking ${tracking}$`));
     expect(message.text).toContain(w.pair);
     const raw = await simpleParser(readFileSync(join(inject("mailboxDir"), message.id)));
-    expect(raw.attachments.map((a) => a.filename)).toEqual([`certificate-${w.pair}.pdf`]);
-    expect(raw.attachments[0]!.content.subarray(0, 5).toString()).toBe("%PDF-");
+    expect(raw.attachments.map((a) => a.filename)).toEqual([expect.stringMatching(/^delivery-note-H-.+\.pdf$/), `certificate-${w.pair}.pdf`]);
+    for (const a of raw.attachments) expect(a.content.subarray(0, 5).toString()).toBe("%PDF-");
     await page.context().close();
   });
 

@@ -13,7 +13,8 @@ import { dealers, items, links, users, type Item } from "@/db/schema";
 import { seedDemo } from "@/db/seed/seed";
 import { certificateData, issueCertificate, recordCertificatePrint, renderCertificate } from "@/lib/certificates";
 import { now } from "@/lib/clock";
-import { packingList, packPair, shipCartons } from "@/lib/dispatch";
+import { packPair, shipCartons } from "@/lib/dispatch";
+import { scannedContents } from "../fixtures/packing";
 import { isoDay } from "@/lib/dispatch/dates";
 import { createItem, fit, removeFrom } from "@/lib/genealogy/graph";
 
@@ -63,8 +64,7 @@ describe("the certificate at each state of the pair", () => {
 
   let carton = "";
   test("packed: the packer's name and date, and a copy says the original went into the carton", async () => {
-    const list = await packingList(db(), pair.modelId!);
-    const r = await packPair(db(), { pairIdentity: pair.identity, checked: list, location: "Rack C, shelf 1" }, { id: names.get("packing")!.id });
+    const r = await packPair(db(), await scannedContents(db(), pair.identity, "Rack C, shelf 1"), { id: names.get("packing")!.id });
     carton = r.carton.identity;
     const text = await printed(false);
     expect(text).toContain(`Packed by: ${names.get("packing")!.name}, ${longDate(now())}`);

@@ -16,7 +16,8 @@ import { AppError } from "@/lib/auth/errors";
 import { newId } from "@/lib/auth/tokens";
 import { now, setClock } from "@/lib/clock";
 import { moveAffected, raiseContainment, type Raised } from "@/lib/containments";
-import { packingList, packPair, readyToPack, shipCartons, waitingToShip } from "@/lib/dispatch";
+import { packPair, readyToPack, shipCartons, waitingToShip } from "@/lib/dispatch";
+import { scannedContents } from "../fixtures/packing";
 import { isoDay } from "@/lib/dispatch/dates";
 import { appendEvent } from "@/lib/events/queries";
 import { acceptCrossoverPlan, buildCrossover, matchCrossovers, type BoardPartInput } from "@/lib/lab/crossovers";
@@ -164,8 +165,8 @@ describe("packing and shipping", () => {
     const ready = await readyToPack(db());
     const target = ready.find((p) => p.heldBy === null)!;
     const pair = (await db().select().from(items).where(eq(items.identity, target.identity)))[0]!;
-    const list = await packingList(db(), pair.modelId!);
-    const pack = () => packPair(db(), { pairIdentity: pair.identity, checked: list, location: "Rack H" }, { id: ids.packing });
+    const contents = await scannedContents(db(), pair.identity, "Rack H");
+    const pack = () => packPair(db(), contents, { id: ids.packing });
 
     const held = await raise(pair.identity);
     expect((await readyToPack(db())).find((p) => p.identity === pair.identity)?.heldBy).toBe(held.code);

@@ -8,9 +8,10 @@ import * as cdigit from "cdigit";
 import { and, eq, isNull, sql } from "drizzle-orm";
 import { simpleParser } from "mailparser";
 import { beforeAll, describe, expect, test } from "vitest";
+import { extractText, getDocumentProxy } from "unpdf";
 import { prepareZXingModule, readBarcodes, type ReaderOptions } from "zxing-wasm/reader";
 import { getDb } from "@/db";
-import { cartonLocations, certificates, dealers, events, items, links, models, outbox, packingItems, shipmentDetails, users, type Item } from "@/db/schema";
+import { cartonLocations, cartonSsccs, certificates, dealers, events, items, links, models, outbox, packingItems, shipmentDetails, users, type Item } from "@/db/schema";
 import { seedDemo } from "@/db/seed/seed";
 import { AppError } from "@/lib/auth/errors";
 import {
@@ -19,8 +20,10 @@ import {
   DEFAULT_PACKING_LIST,
   ensurePackingLists,
   moveCarton,
+  packingLines,
   packingList,
   packPair,
+  type PackInput,
   readyToPack,
   shipCartons,
   shippedOn,
@@ -33,8 +36,10 @@ import { PUBLIC_CERTIFICATE_FIELDS } from "@/lib/dispatch/verify";
 import { startFakeSmtp } from "@/lib/mail/fake-smtp";
 import { deliverDue } from "@/lib/mail/sender";
 import { createMailTransport } from "@/lib/mail/transport";
-import { parseSerial } from "@/lib/serials";
+import { formatSerial, parseSerial } from "@/lib/serials";
 import { gs1CheckDigit } from "@/lib/serials/gs1";
+import { scannedContents } from "../fixtures/packing";
+import { failureText } from "./helpers";
 
 const db = () => getDb();
 let packer: { id: string };
@@ -124,15 +129,35 @@ describe("packing lists", () => {
   });
 });
 
-describe("packing a tested pair", () => {
+describe("packing a tested pair by scan", () => {
   let pair: Item;
-  let list: string[];
+  let other: Item;
+  let good: PackInput;
+  /** An invented GTIN-14 for the grilles' box, in the demo's prefix (check digit by gs1CheckDigit and cdigit below). */
+  const GRILLES = "09527730009017";
 
   beforeAll(async () => {
     const tested = await pairsIn("ready_to_pack");
-    expect(tested.length).toBeGreaterThan(0);
+    expect(tested.length).toBeGreaterThan(1);
     pair = tested[0]!;
-    list = await packingList(db(), pair.modelId!);
+    other = (await pairsIn("shipped"))[0]!;
+    // The grilles come boxed with a code: that line is scanned, the manual and certificate ticked.
+    await db().update(packingItems).set({ code: GRILLES }).where(and(eq(packingItems.modelId, pair.modelId!), eq(packingItems.label, "Grilles (2)")));
+    expect(cdigit.gtin.validate(GRILLES)).toBe(true);
+    good = await scannedContents(db(), pair.identity, "Rack B, shelf 2");
+  });
+
+  test("the packing lines: both speakers by serial, the coded grilles by scan, the rest ticked", async () => {
+    const lines = await packingLines(db(), pair);
+    expect(lines.map((l) => [l.label, l.mode])).toEqual([
+      ["Left speaker", "left"],
+      ["Right speaker", "right"],
+      ["Certificate", "tick"],
+      ["Grilles (2)", "scan"],
+      ["Owner's manual", "tick"],
+    ]);
+    expect(good.scans).toEqual([GRILLES]);
+    expect(good.checked).toEqual(["Certificate", "Owner's manual"]);
   });
 
   test("the packers' home lists it as ready to pack", async () => {
@@ -142,45 +167,87 @@ describe("packing a tested pair", () => {
     expect(mine!.testedAt).toBeInstanceOf(Date);
   });
 
-  test("an unticked item, a stray label or an empty location is refused and writes nothing", async () => {
+  test("each wrong or missing scan is refused beside its own field, and nothing is written", async () => {
     const before = await counts();
-    const partial = list.filter((l) => l !== "Grilles (2)");
-    const e1 = await refusal(packPair(db(), { pairIdentity: pair.identity, checked: partial, location: "Rack B" }, packer));
-    expect(e1.status).toBe(400);
-    expect(e1.message).toBe("Tick every item: Grilles (2) is not ticked.");
-    expect(e1.fieldErrors?.checked).toEqual([e1.message]);
-
-    const e2 = await refusal(packPair(db(), { pairIdentity: pair.identity, checked: ["Left speaker"], location: "Rack B" }, packer));
-    const rest = list.slice(1);
-    expect(e2.message).toBe(`Tick every item: ${rest.slice(0, -1).join(", ")} and ${rest.at(-1)} are not ticked.`);
-    expect(e2.message).toMatch(/^Tick every item: Right speaker, Certificate, Grilles \(2\)(,| and) Owner's manual/);
-
-    const e3 = await refusal(packPair(db(), { pairIdentity: pair.identity, checked: [...list, "A spare tweeter"], location: "Rack B" }, packer));
-    expect(e3.message).toMatch(/"A spare tweeter" is not on the packing list/);
-
-    const e4 = await refusal(packPair(db(), { pairIdentity: pair.identity, checked: list, location: "   " }, packer));
-    expect(e4.status).toBe(400);
-    expect(e4.fieldErrors?.location?.[0]).toMatch(/Say where the carton is stored/);
-
+    const [left, right] = [good.left, good.right];
+    const [otherLeft] = await speakerRows(other.id);
+    // A slipped check character: the last character of the left serial changed.
+    const last = left.at(-1)!;
+    const slipped = `${left.slice(0, -1)}${last === "A" ? "B" : "A"}`;
+    const esc = (t: string) => t.replace(/[.*+?^${}()|[\]\\]/g, "\\$&");
+    const cases: [string, Partial<PackInput>, string, RegExp][] = [
+      ["a missing left serial", { left: "" }, "left", /^Scan the left speaker's serial\.$/],
+      ["the left speaker scanned as right", { right: left }, "right", new RegExp(`^${esc(left)} is this pair's left speaker: scan it into the left speaker's box\\.$`)],
+      ["another pair's speaker", { left: otherLeft!.identity }, "left", new RegExp(`belongs to pair ${other.identity}, not to ${pair.identity}`)],
+      ["an unknown serial", { right: formatSerial({ kind: "speaker", code: "XX", year: 2026, seq: 99_999 }) }, "right", /is not a serial in the register/],
+      ["a slipped check character", { left: slipped }, "left", new RegExp(`check character is wrong\\. Did you mean ${esc(left)}\\?`)],
+      ["the pair's own serial in a speaker's box", { left: pair.identity }, "left", /is a pair, not a speaker/],
+      ["the wrong accessory code", { scans: ["09527730009000"] }, "scan-0", /^09527730009000 is not the code of Grilles \(2\)/],
+      ["a missing accessory scan", { scans: [] }, "scan-0", /^Scan the code of Grilles \(2\)\.$/],
+      ["an unticked manual", { checked: ["Certificate"] }, "checked", /^Tick every item: Owner's manual is not ticked\.$/],
+      ["a stray tick", { checked: [...good.checked, "A spare tweeter"] }, "checked", /"A spare tweeter" is not on the packing list/],
+      ["an empty location", { location: "  " }, "location", /Say where the carton is stored/],
+    ];
+    for (const [what, change, field, message] of cases) {
+      const e = await refusal(packPair(db(), { ...good, ...change }, packer));
+      expect(e.status, what).toBe(400);
+      expect(Object.keys(e.fieldErrors ?? {}), what).toEqual([field]);
+      expect(e.fieldErrors![field]![0], what).toMatch(message);
+    }
+    // Both sides swapped: each box is answered for itself.
+    const swapped = await refusal(packPair(db(), { ...good, left: right, right: left }, packer));
+    expect(Object.keys(swapped.fieldErrors ?? {}).sort()).toEqual(["left", "right"]);
+    expect(swapped.message).toBe("Nothing was packed: some fields need attention.");
     expect(await counts()).toEqual(before);
+  });
+
+  test("the GTIN on the grilles' box may come as printed or as a scanner sends it", async () => {
+    for (const scan of [`(01)${GRILLES}`, `01${GRILLES}`, `]C101${GRILLES}`, GRILLES.slice(1)]) {
+      // Refused for the missing location only: the scan itself was accepted.
+      const e = await refusal(packPair(db(), { ...good, scans: [scan], location: "" }, packer));
+      expect(Object.keys(e.fieldErrors ?? {}), scan).toEqual(["location"]);
+    }
   });
 
   test("a pair that has not passed its final test is refused with a plain reason", async () => {
     const [building] = await pairsIn("awaiting_test");
-    const e = await refusal(packPair(db(), { pairIdentity: building!.identity, checked: list, location: "Rack B" }, packer));
+    const e = await refusal(packPair(db(), { ...good, pairIdentity: building!.identity }, packer));
     expect(e.status).toBe(409);
     expect(e.message).toBe(`${building!.identity} is awaiting test: only a pair that has passed its final test can be packed.`);
-    const e2 = await refusal(packPair(db(), { pairIdentity: "P-XX-26-00001-Z", checked: list, location: "Rack B" }, packer));
+    const e2 = await refusal(packPair(db(), { ...good, pairIdentity: "P-XX-26-00001-Z" }, packer));
     expect(e2.status).toBe(404);
   });
 
-  test("packed: a carton holds the pair at PAIR, the location is recorded, the certificate issued", async () => {
-    const r = await packPair(db(), { pairIdentity: pair.identity.toLowerCase(), checked: [...list].reverse(), location: "  Rack B,   shelf 2 " }, packer);
+  test("a malformed GS1 company prefix setting stops packing with a clear message", async () => {
+    const before = await counts();
+    process.env.TWINLEAF_GS1_COMPANY_PREFIX = "95277";
+    try {
+      const e = await refusal(packPair(db(), good, packer));
+      expect(e.status).toBe(409);
+      expect(e.message).toMatch(/TWINLEAF_GS1_COMPANY_PREFIX is "95277": a GS1 company prefix is 7 to 10 digits/);
+    } finally {
+      delete process.env.TWINLEAF_GS1_COMPANY_PREFIX;
+    }
+    expect(await counts()).toEqual(before);
+  });
+
+  test("packed: a carton with its SSCC holds the pair at PAIR, the location is recorded, the certificate issued", async () => {
+    const r = await packPair(db(), { ...good, pairIdentity: pair.identity.toLowerCase(), left: good.left.toLowerCase(), location: "  Rack B,   shelf 2 " }, packer);
     const [model] = await db().select().from(models).where(eq(models.id, pair.modelId!));
 
     expect(parseSerial(r.carton.identity)).toMatchObject({ kind: "carton", code: model!.code, valid: true });
     expect(r.carton).toMatchObject({ kind: "carton", state: "packed", modelId: model!.id });
     expect(r.carton.attrs).toMatchObject({ gtin: model!.pairGtin, packedOn: expect.stringMatching(/^\d{4}-\d{2}-\d{2}$/) });
+    // SSCC: extension 0, the demo prefix, the next serial reference, and a check digit two independent implementations agree on.
+    expect(r.sscc).toMatch(/^09527730\d{9}\d$/);
+    expect(cdigit.gtin.validate(r.sscc)).toBe(true); // cdigit's GTIN algorithm is the GS1 mod-10 of any length
+    const [stored] = await db().select().from(cartonSsccs).where(eq(cartonSsccs.cartonId, r.carton.id));
+    expect(stored).toMatchObject({ sscc: r.sscc, extension: 0, companyPrefix: "9527730" });
+    const [top] = await db().all<{ max: number }>(sql`SELECT max(serial_reference) AS max FROM carton_ssccs`);
+    expect(stored!.serialReference).toBe(Number(top!.max));
+    // Append-only: the row neither changes nor goes.
+    expect(await failureText(() => db().run(sql`UPDATE carton_ssccs SET sscc = '000000000000000000' WHERE carton_id = ${r.carton.id}`))).toMatch(/never changes/);
+    expect(await failureText(() => db().run(sql`DELETE FROM carton_ssccs WHERE carton_id = ${r.carton.id}`))).toMatch(/never deleted/);
 
     const held = await db().select().from(links).where(and(eq(links.parentId, r.carton.id), isNull(links.endedAt)));
     expect(held.map((l) => [l.childId, l.position])).toEqual([[pair.id, "PAIR"]]);
@@ -197,17 +264,17 @@ describe("packing a tested pair", () => {
       expect(moved!.data).toMatchObject({ from: "built", to: "packed", pair: pair.identity, carton: r.carton.identity });
     }
     const [packed] = await db().select().from(events).where(and(eq(events.type, "pair.packed"), eq(events.subjectId, pair.id)));
-    expect(packed!.data).toMatchObject({ carton: r.carton.identity, checklist: list, location: "Rack B, shelf 2" });
+    expect(packed!.data).toMatchObject({ carton: r.carton.identity, sscc: r.sscc, location: "Rack B, shelf 2", accessories: { "Grilles (2)": GRILLES } });
     expect(packed!.actorId).toBe(packer.id);
 
     const [cert] = await db().select().from(certificates).where(eq(certificates.pairId, pair.id));
     expect(cert!.id).toBe(r.certificateId);
 
-    expect((await waitingToShip(db())).find((w) => w.carton === r.carton.identity)).toMatchObject({ pair: pair.identity, location: "Rack B, shelf 2" });
+    expect((await waitingToShip(db())).find((w) => w.carton === r.carton.identity)).toMatchObject({ pair: pair.identity, location: "Rack B, shelf 2", sscc: r.sscc });
   });
 
   test("packing it again is refused", async () => {
-    const e = await refusal(packPair(db(), { pairIdentity: pair.identity, checked: list, location: "Rack B" }, packer));
+    const e = await refusal(packPair(db(), good, packer));
     expect(e.status).toBe(409);
     expect(e.message).toMatch(/is already packed, in carton K-/);
   });
@@ -249,23 +316,29 @@ function pageBoxes(pdf: Buffer): number[][] {
     .map((o) => /\/MediaBox\s*\[\s*([-\d.\s]+)\]/.exec(o)![1]!.trim().split(/\s+/).map(Number));
 }
 
-describe.skipIf(!hasPdftoppm)("the carton label decodes to the GS1 element string (poppler + zxing-wasm)", () => {
+/** The page text as unpdf (pdf.js) extracts it, whitespace runs collapsed (docs/REFERENCES.md, § Independent libraries). */
+async function pdfText(pdf: Buffer): Promise<string> {
+  const { text } = await extractText(await getDocumentProxy(new Uint8Array(pdf)), { mergePages: true });
+  return text.replace(/\s+/g, " ");
+}
+
+describe.skipIf(!hasPdftoppm)("the carton label decodes to its SSCC and contents (poppler + zxing-wasm)", () => {
   let carton: string;
   let pair: string;
   let gtin: string;
-  let yymmdd: string;
+  let sscc: string;
 
   beforeAll(async () => {
     const packed = await db().select().from(events).where(eq(events.type, "pair.packed")).orderBy(events.id);
-    const data = packed.at(-1)!.data as { identity: string; carton: string };
+    const data = packed.at(-1)!.data as { identity: string; carton: string; sscc: string };
     carton = data.carton;
     pair = data.identity;
+    sscc = data.sscc;
     const c = await fresh(carton);
     gtin = c.attrs.gtin as string;
-    yymmdd = (c.attrs.packedOn as string).replace(/-/g, "").slice(2);
   });
 
-  test.each([203, 300, 600])("at %i dpi: one 100 × 150 mm page whose GS1-128 reads (01)GTIN(11)date(21)pair", async (printerDpi) => {
+  test.each([203, 300, 600])("at %i dpi: one 100 × 150 mm page with the contents' (01)(21) and the SSCC's (00) in GS1-128, read as printed", async (printerDpi) => {
     const pdf = await cartonLabelPdf(db(), carton, { printerDpi });
     const boxes = pageBoxes(pdf);
     expect(boxes).toHaveLength(1);
@@ -273,25 +346,37 @@ describe.skipIf(!hasPdftoppm)("the carton label decodes to the GS1 element strin
     expect(boxes[0]![3]).toBeCloseTo((150 * 72) / 25.4, 1);
 
     const [hri] = await decodePdf(pdf, { textMode: "HRI" });
-    expect(hri).toHaveLength(1);
     // ZXing's HRI text mode gives the AI form; ]C1 is GS1-128 (FNC1 first), ISO/IEC 15424.
-    expect(hri![0]!.text).toBe(`(01)${gtin}(11)${yymmdd}(21)${pair}`);
-    expect(hri![0]!.symbologyIdentifier).toBe("]C1");
-    expect(hri![0]!.contentType).toBe("GS1");
-    // Plain mode: the element string as transmitted. (01) and (11) are fixed length and (21) is last,
-    // so no group separator at all (GS1 General Specifications, concatenation).
+    expect(hri!.map((b) => b.text).sort()).toEqual([`(00)${sscc}`, `(01)${gtin}(21)${pair}`]);
+    for (const b of hri!) {
+      expect(b.symbologyIdentifier).toBe("]C1");
+      expect(b.contentType).toBe("GS1");
+    }
+    // The SSCC is the bottom barcode (GS1 logistic label).
+    const bottom = [...hri!].sort((a, b) => b.position.topLeft.y - a.position.topLeft.y)[0]!;
+    expect(bottom.text).toBe(`(00)${sscc}`);
+    // Plain mode: the element strings as transmitted, no group separator ((21) is last).
     const [plain] = await decodePdf(pdf, { textMode: "Plain" });
-    expect(plain![0]!.text).toBe(`01${gtin}11${yymmdd}21${pair}`);
+    expect(plain!.map((b) => b.text).sort()).toEqual([`00${sscc}`, `01${gtin}21${pair}`]);
+
+    // Exactly as printed: the human-readable lines under the bars say the same.
+    const text = await pdfText(pdf);
+    expect(text).toContain(`(01)${gtin}(21)${pair}`);
+    expect(text).toContain(`(00) ${sscc[0]} 9527730 ${sscc.slice(8, 17)} ${sscc[17]}`);
+    expect(text).toMatch(/FROM Twinleaf Demonstration Workshop/);
+    expect(text).toMatch(/HEAVY/);
   });
 
-  test("the decoded GTIN's check digit is right by the project's gs1CheckDigit and by cdigit, and bwip-js accepts the string", async () => {
+  test("the decoded keys' check digits are right by the project's gs1CheckDigit and by cdigit, and bwip-js accepts the string", async () => {
     const [page] = await decodePdf(await cartonLabelPdf(db(), carton), { textMode: "HRI" });
-    const hit = page![0]!;
-    const decodedGtin = /^\(01\)(\d{14})\(11\)/.exec(hit.text)![1]!;
+    const hit = page!.find((b) => b.text.startsWith("(01)"))!;
+    const decodedGtin = /^\(01\)(\d{14})\(21\)/.exec(hit.text)![1]!;
     // GS1 mod-10 (docs/REFERENCES.md, § GS1): the project's implementation and an independent one agree.
     expect(gs1CheckDigit(decodedGtin.slice(0, 13))).toBe(Number(decodedGtin[13]));
     expect(cdigit.gtin.validate(decodedGtin)).toBe(true);
     expect(cdigit.gtin.compute("629104150021")).toBe("3"); // GS1's own worked example pins the oracle
+    const decodedSscc = page!.find((b) => b.text.startsWith("(00)"))!.text.slice(4);
+    expect(cdigit.gtin.validate(decodedSscc)).toBe(true);
     // bwip-js lints GS1 data and throws on a bad (01) check digit (docs/REFERENCES.md, § Independent libraries): it takes ours…
     await expect(toBuffer({ bcid: "gs1-128", text: hit.text })).resolves.toBeInstanceOf(Buffer);
     // …and refuses the same string with the check digit off by one, so the check is not vacuous.
@@ -299,12 +384,14 @@ describe.skipIf(!hasPdftoppm)("the carton label decodes to the GS1 element strin
     await expect(toBuffer({ bcid: "gs1-128", text: wrong })).rejects.toThrow(/checksum/i);
   });
 
-  test("the label's data names the model, finish and both speakers; an unknown carton is a 404", async () => {
+  test("the label's data names the model, finish, both speakers and the SSCC; an unknown carton is a 404", async () => {
     const data = await cartonLabelData(db(), carton);
     expect(data.pair).toBe(pair);
     expect(data.left).toMatch(/^S-/);
     expect(data.right).toMatch(/^S-/);
-    expect(data.element.hri).toBe(`(01)${gtin}(11)${yymmdd}(21)${pair}`);
+    expect(data.element.hri).toBe(`(01)${gtin}(21)${pair}`);
+    expect(data.sscc).toEqual({ value: sscc, prefixLength: 7 });
+    expect(data.customer).toBeNull(); // not shipped yet
     const e = await refusal(cartonLabelPdf(db(), "K-XX-26-00001-Z"));
     expect(e.status).toBe(404);
   });
@@ -374,11 +461,12 @@ describe("shipping two cartons to a dealer", () => {
     expect(mail.text).toContain("ABC123");
     expect(mail.eventId).toBe(details!.eventId);
     const certs = await db().select().from(certificates);
-    expect(mail.attachments).toHaveLength(2);
+    expect(mail.attachments).toHaveLength(3);
+    expect(mail.attachments[0]).toEqual({ kind: "delivery_note", shipmentId: r.shipment.id, filename: `delivery-note-${r.shipment.identity}.pdf` });
     for (const [i, c] of chosen.entries()) {
       const pairRow = await fresh(c.pair!);
       const cert = certs.find((x) => x.pairId === pairRow.id)!;
-      expect(mail.attachments[i]).toEqual({ kind: "certificate", certificateId: cert.id, filename: `certificate-${c.pair}.pdf` });
+      expect(mail.attachments[i + 1]).toEqual({ kind: "certificate", certificateId: cert.id, filename: `certificate-${c.pair}.pdf` });
     }
     // Exactly one message for this shipment.
     expect(await db().select().from(outbox).where(eq(outbox.eventId, details!.eventId))).toHaveLength(1);
@@ -405,9 +493,31 @@ describe("shipping two cartons to a dealer", () => {
       const ours = parsed.filter((m) => m.subject === "Shipped: 2 matched pairs, tracking ABC123");
       expect(ours).toHaveLength(1);
       const mail = ours[0]!;
-      expect(mail.attachments.map((a) => [a.filename, a.contentType])).toEqual(chosen.map((c) => [`certificate-${c.pair}.pdf`, "application/pdf"]));
+      expect(mail.attachments.map((a) => [a.filename, a.contentType])).toEqual([
+        [`delivery-note-${shipment.identity}.pdf`, "application/pdf"],
+        ...chosen.map((c) => [`certificate-${c.pair}.pdf`, "application/pdf"]),
+      ]);
       for (const a of mail.attachments) expect(a.content.subarray(0, 5).toString()).toBe("%PDF-");
       expect(mail.text).toContain("tracking number ABC123");
+
+      // The delivery note read back with unpdf (docs/REFERENCES.md, § Independent libraries): the
+      // dealer's address, each carton's SSCC, pair and speakers, the carrier and the totals.
+      const note = await pdfText(mail.attachments[0]!.content);
+      expect(note).toContain("Delivery note");
+      expect(note).toContain(dealer.name);
+      for (const line of dealer.address.split("\n")) expect(note).toContain(line.trim());
+      expect(note).toContain(`${dealer.postcode} ${dealer.city}`);
+      expect(note).toContain("Fernway Freight");
+      expect(note).toContain("ABC123");
+      const ssccs = await db().select().from(cartonSsccs);
+      for (const c of chosen) {
+        const cartonRow = await fresh(c.carton);
+        const sscc = ssccs.find((x) => x.cartonId === cartonRow.id)!.sscc;
+        expect(note).toContain(sscc);
+        expect(note).toContain(c.pair!);
+        for (const s of await speakerRows((await fresh(c.pair!)).id)) expect(note).toContain(s.identity);
+      }
+      expect(note).toContain("Total: 2 cartons, 2 matched pairs, 4 speakers");
     } finally {
       await smtp.close();
     }

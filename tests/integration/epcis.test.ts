@@ -131,7 +131,8 @@ describe("EPCIS export of a pair", () => {
     expect(created).toContain(uri("FL-31/07"));
     expect(uri("FL-31/07")).toBe(`${BASE}/id/FL-31%2F07`);
     const packed = list.find((e) => e.type === "AggregationEvent" && e.parentID === cartonUri);
-    expect(packed).toMatchObject({ action: "ADD", childEPCs: [pairUri], bizStep: "assembling" });
+    // Into a carton is packing (CBV 2.0 bizStep), not assembling.
+    expect(packed).toMatchObject({ action: "ADD", childEPCs: [pairUri], bizStep: "packing" });
   });
 
   test("creation is an ObjectEvent ADD with bizStep commissioning", () => {
@@ -284,8 +285,9 @@ describe("toEpcisEvents without a database", () => {
       { type: `${BASE}/readings/pass`, booleanValue: true, "tw:name": "pass", "tw:label": "Inspector's check" },
       { type: `${BASE}/readings/coats`, value: 4, "tw:unit": "coats", "tw:name": "coats", "tw:label": "Coats" },
     ]);
-    // A production step is not an inspection; what the step was stays in our own fields.
-    expect(e!.bizStep).toBeUndefined();
+    // A production step is not an inspection: the CBV has no bizStep for pressing, so the nearest,
+    // sensor_reporting (CBV 2.0 §7.1, docs/REFERENCES.md, § EPCIS and CBV); what the step was stays in our own fields.
+    expect(e!.bizStep).toBe("sensor_reporting");
     expect(e!["tw:details"]).toEqual({ pair: "A B/1", seq: 1, step: "Forming press", side: "L", outOfWindow: [] });
   });
 

@@ -61,13 +61,15 @@ beforeAll(async () => {
   const shipped = await first(sql`SELECT identity AS v FROM items WHERE kind = 'pair' AND state = 'shipped' LIMIT 1`);
   const carton = await first(sql`SELECT identity AS v, id FROM items WHERE kind = 'carton' LIMIT 1`);
   const cabinet = await first(sql`SELECT identity AS v FROM items WHERE kind = 'cabinet' LIMIT 1`);
+  // A shipment, for its delivery note.
+  const shipment = await first(sql`SELECT identity AS v FROM items WHERE kind = 'shipment' LIMIT 1`);
   // Prints the packer made a moment ago, which the print routes may show again.
   const [printed] = await db().all<{ id: string; identity: string }>(sql`SELECT id, identity FROM items p WHERE kind = 'pair' AND state = 'ready_to_pack' AND NOT EXISTS (SELECT 1 FROM certificates c WHERE c.pair_id = p.id) LIMIT 1 OFFSET 1`);
   const cert = await issueCertificate(db(), printed!.id, people.get("packing")!);
   const certPrint = await recordCertificatePrint(db(), cert.id, { actorId: people.get("packing")!, copy: false, station: "packing" });
   const [cartonRow] = await db().all<{ id: string }>(sql`SELECT id FROM items WHERE identity = ${carton[0]!}`);
   const [labelPrint] = await recordLabelPrints(db(), { items: [{ id: cartonRow!.id, identity: carton[0]!, symbology: "gs1-128" }], layout: CARTON_LABEL_LAYOUT, actorId: people.get("packing")!, station: "packing" });
-  values.identity = [...unissued, ...shipped, printed!.identity, ...carton, ...cabinet];
+  values.identity = [...unissued, ...shipped, printed!.identity, ...carton, ...cabinet, ...shipment];
   values.printId = [certPrint.id, String(labelPrint)];
   values.id = [...(await first(sql`SELECT id AS v FROM outbox ORDER BY id DESC LIMIT 1`)), ...(await first(sql`SELECT id AS v FROM uploads LIMIT 1`))];
   values.index = ["0"];

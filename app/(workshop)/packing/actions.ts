@@ -9,10 +9,10 @@ const HOME = paths.packing;
 const packPage = paths.pack;
 
 export const packPairAction = guardedAction("packing.work", packSchema, async (input, user) => {
-  const r = await packPair(getDb(), { pairIdentity: input.pair, checked: input.checked, location: input.location }, { id: user.id });
+  const r = await packPair(getDb(), { pairIdentity: input.pair, left: input.left, right: input.right, scans: input.scan, checked: input.checked, location: input.location }, { id: user.id });
   return {
     ok: true,
-    message: `${r.pair.identity} is packed in carton ${r.carton.identity}, stored at ${r.location}.`,
+    message: `${r.pair.identity} is packed in carton ${r.carton.identity} (SSCC ${r.sscc}), stored at ${r.location}.`,
     revalidate: [HOME, packPage(r.pair.identity)],
     redirectTo: `${packPage(r.pair.identity)}?packed=1`,
   };

@@ -17,8 +17,14 @@ const location = z
   .min(1, "Say where the carton is stored, e.g. Rack B, shelf 2.")
   .max(60, "The storage location is at most 60 characters.");
 
+/** A scanned box: empty is allowed here, so lib/dispatch can say beside the field what is missing. */
+const scanned = z.string().trim().max(80, "A scan is at most 80 characters.");
+
 export const packSchema = z.object({
   pair: serial("The pair's serial did not come through; reload the page."),
+  left: scanned.default(""),
+  right: scanned.default(""),
+  scan: stringList(scanned).pipe(z.array(z.string()).max(40, "The packing list did not come through; reload the page.")),
   checked: stringList(z.string().max(100)).pipe(z.array(z.string()).max(40, "The packing list did not come through; reload the page.")),
   location,
 });

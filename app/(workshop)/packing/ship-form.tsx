@@ -65,6 +65,15 @@ export function ShipForm({ cartons, dealers, today }: { cartons: ShipCarton[]; d
       {state.message ? (
         <Notice tone={state.ok ? "leaf" : "danger"} testId={state.ok ? "shipped" : "ship-refused"}>
           {state.message}
+          {state.ok && state.data?.shipment ? (
+            <>
+              {" "}
+              <a href={printPaths.deliveryNote(state.data.shipment)} target="_blank" rel="noopener" className="font-bold underline" data-testid="delivery-note-link">
+                Open the delivery note
+              </a>
+              .
+            </>
+          ) : null}
         </Notice>
       ) : null}
       {cartons.length ? (

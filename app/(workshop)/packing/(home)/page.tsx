@@ -1,4 +1,4 @@
-import { paths } from "@/lib/paths";
+import { paths, printPaths } from "@/lib/paths";
 import type { Metadata } from "next";
 import Link from "next/link";
 import { AreaOverview } from "@/components/shell/area-overview";
@@ -100,10 +100,11 @@ export default async function Page() {
                 <TH>Pair</TH>
                 <TH>Dealer</TH>
                 <TH>Carrier and tracking</TH>
+                <TH>Papers</TH>
               </tr>
             </thead>
             <tbody>
-              {shipped.map((s) => (
+              {shipped.map((s, i) => (
                 <TR key={s.carton}>
                   <TD>
                     <SerialLink identity={s.shipment} bold={false} />
@@ -121,6 +122,14 @@ export default async function Page() {
                     ) : (
                       <span className="text-ink-soft">not recorded</span>
                     )}
+                  </TD>
+                  <TD>
+                    {/* Once per shipment: its first carton's row carries the link. */}
+                    {i === 0 || shipped[i - 1]!.shipment !== s.shipment ? (
+                      <a href={printPaths.deliveryNote(s.shipment)} target="_blank" rel="noopener" className="font-bold text-leaf underline">
+                        Delivery note<span className="sr-only"> of {s.shipment}</span>
+                      </a>
+                    ) : null}
                   </TD>
                 </TR>
               ))}

@@ -13,8 +13,7 @@ import { getDb } from "@/db";
 import { areaByKey } from "@/lib/areas";
 import { holdsOn } from "@/lib/containments";
 import { pageParam, requirePage } from "@/lib/auth/guard";
-import { knownLocations, pairForPacking, PACKABLE_STATES } from "@/lib/dispatch";
-import { packingListOfItem } from "@/lib/workshop/model-spec-of";
+import { knownLocations, packingLines, pairForPacking, PACKABLE_STATES } from "@/lib/dispatch";
 import { stateLabel } from "@/lib/vocabulary/item-kinds";
 import { PackForm } from "./pack-form";
 
@@ -30,7 +29,7 @@ export default async function Page({ params, searchParams }: { params: Promise<{
   const pair = await pairForPacking(db, serial);
   if (!pair) notFound();
   const packable = (PACKABLE_STATES as readonly string[]).includes(pair.state);
-  const [items, locations, holds] = await Promise.all([packingListOfItem(db, pair), knownLocations(db), holdsOn(db, [pair.id])]);
+  const [lines, locations, holds] = await Promise.all([packingLines(db, pair), knownLocations(db), holdsOn(db, [pair.id])]);
   // A pair tested before final tests were recorded gets its certificate when it is packed.
   const certificateReady = pair.hasCertificate || pair.finalTestPassed;
 
@@ -47,14 +46,22 @@ export default async function Page({ params, searchParams }: { params: Promise<{
       <Panel title="The pair">
         <dl className="grid gap-x-6 gap-y-2 sm:grid-cols-[auto_1fr]">
           <dt className="text-ink-soft">Left speaker</dt>
-          <dd className="serial font-bold">{pair.left ?? "—"}</dd>
+          <dd className="serial font-bold" data-testid="pair-left">
+            {pair.left ?? "—"}
+          </dd>
           <dt className="text-ink-soft">Right speaker</dt>
-          <dd className="serial font-bold">{pair.right ?? "—"}</dd>
+          <dd className="serial font-bold" data-testid="pair-right">
+            {pair.right ?? "—"}
+          </dd>
           {pair.carton ? (
             <>
               <dt className="text-ink-soft">Carton</dt>
               <dd className="serial font-bold" data-testid="packed-carton">
                 {pair.carton}
+              </dd>
+              <dt className="text-ink-soft">SSCC</dt>
+              <dd className="serial" data-testid="packed-sscc">
+                {pair.sscc ?? <span className="text-ink-soft">none recorded</span>}
               </dd>
               <dt className="text-ink-soft">Stored at</dt>
               <dd>{pair.location ?? <span className="text-ink-soft">place not recorded</span>}</dd>
@@ -102,7 +109,7 @@ export default async function Page({ params, searchParams }: { params: Promise<{
                 : "This pair was tested before final tests were recorded: its certificate is issued when it is packed. Pack it, then print the certificate and put it in before the carton is closed."}
             </p>
           </div>
-          <PackForm pair={pair.identity} items={items} locations={locations} />
+          <PackForm pair={pair.identity} lines={lines} locations={locations} />
         </Panel>
       ) : holds.length ? null : (
         <Notice tone="caution" testId="not-packable">
