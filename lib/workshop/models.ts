@@ -125,6 +125,8 @@ export async function saveModelVersion(db: Db, input: { modelId: string; spec: M
       await tx.insert(modelVersions).values({ id: newId(), modelId: input.modelId, version, spec: { ...spec }, note: input.note, createdBy: actor.id, createdAt: now(), eventId });
       await tx.update(models).set(modelColumns(spec)).where(eq(models.id, input.modelId));
       await writeProjection(tx, input.modelId, spec);
+      // A model given its first trim position here gets the workshop's usual trim route as version 1.
+      await ensureDefaultSpecs(tx, actor.id, "admin");
       return { code: spec.code, version, changed };
     });
   } catch (e) {

@@ -160,6 +160,18 @@ describe("model versions", () => {
     await expect(saveModelVersion(db(), { modelId: model.id, spec: plain(current), note: "Nothing", baseVersion: current.version }, { id: admin })).rejects.toMatchObject({ status: 400 });
   });
 
+  test("a model given its first trim position gets the usual trim-part route as version 1", async () => {
+    const bare = (await db().select().from(models).orderBy(asc(models.code))).map((m) => m.id);
+    let target: string | null = null;
+    for (const id of bare) if (!(await currentSpec(db(), id, "trim"))) target ??= id;
+    expect(target).not.toBeNull();
+    const current = (await currentModelSpec(db(), target!))!;
+    await saveModelVersion(db(), { modelId: target!, spec: { ...plain(current), trimPositions: [{ position: "BEZ", label: "Bezel", count: 1 }] }, note: "A bezel from now on", baseVersion: current.version }, { id: admin });
+    const trim = await currentSpec(db(), target!, "trim");
+    expect(trim?.version).toBe(1);
+    expect(trim?.routeKind).toBe("trim");
+  });
+
   test("a new model starts at version 1 with the usual route; retiring it stops new route versions, and restoring brings it back", async () => {
     const base = plain(await currentModelSpec(db(), model.id));
     // 09521234543213: a valid GTIN-14 published by GS1 (docs/REFERENCES.md, § GS1).
