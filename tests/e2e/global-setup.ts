@@ -1,5 +1,5 @@
 import { spawn, type ChildProcess } from "node:child_process";
-import { existsSync, mkdirSync, mkdtempSync, readFileSync, writeFileSync } from "node:fs";
+import { mkdtempSync } from "node:fs";
 import { createServer } from "node:net";
 import { tmpdir } from "node:os";
 import { join, resolve } from "node:path";
@@ -48,47 +48,21 @@ async function waitForServer(url: string, server: ChildProcess, timeoutMs = 60_0
   throw new Error(`the app did not answer at ${url} within ${timeoutMs} ms`);
 }
 
-/**
- * Builds Next once for every lane of this run: the first lane to get here makes a lock directory
- * (an atomic step) and builds; the others wait for its verdict file.
- */
-async function buildOnce(root: string): Promise<void> {
-  const lock = join(tmpdir(), `twinleaf-e2e-build-${process.pid}`);
-  const verdict = join(lock, "verdict");
-  try {
-    mkdirSync(lock);
-  } catch {
-    for (;;) {
-      if (existsSync(verdict)) {
-        const said = readFileSync(verdict, "utf8");
-        if (said === "ok") return;
-        throw new Error(said);
-      }
-      await new Promise((r) => setTimeout(r, 500));
-    }
-  }
-  const next = resolve(root, "node_modules/.bin/next");
-  try {
-    await new Promise<void>((ok, fail) => {
-      const build = spawn(next, ["build"], { cwd: root, stdio: ["ignore", "ignore", "inherit"], env: { ...process.env, NODE_ENV: "production", TWINLEAF_BUILD_SKIP_TYPECHECK: "1" } });
-      build.once("error", fail);
-      build.once("exit", (code) => (code === 0 ? ok() : fail(new Error(`next build failed with status ${code}`))));
-    });
-    writeFileSync(verdict, "ok");
-  } catch (e) {
-    writeFileSync(verdict, e instanceof Error ? e.message : String(e));
-    throw e;
-  }
-}
-
 export default async function setup(project: TestProject) {
   const dir = mkdtempSync(join(tmpdir(), "twinleaf-e2e-"));
   const databaseUrl = `file:${join(dir, "e2e.db")}`;
   const mailboxDir = join(dir, "mailbox");
 
-  // The build and the demo's seeding run side by side: neither needs the other. Both lanes
-  // (vitest.e2e.config.ts) call this setup; the build is made once and both lanes serve it.
-  const built = process.env.E2E_SKIP_BUILD === "1" ? Promise.resolve() : buildOnce(project.vitest.config.root);
+  // The build and the demo's seeding run side by side: neither needs the other.
+  const next = resolve("node_modules/.bin/next");
+  const built =
+    process.env.E2E_SKIP_BUILD === "1"
+      ? Promise.resolve()
+      : new Promise<void>((ok, fail) => {
+          const build = spawn(next, ["build"], { stdio: ["ignore", "ignore", "inherit"], env: { ...process.env, NODE_ENV: "production", TWINLEAF_BUILD_SKIP_TYPECHECK: "1" } });
+          build.once("error", fail);
+          build.once("exit", (code) => (code === 0 ? ok() : fail(new Error(`next build failed with status ${code}`))));
+        });
   await migrateDatabase(databaseUrl);
   const { client, db } = openDb(databaseUrl);
   await seedDemo(db);
@@ -104,7 +78,7 @@ export default async function setup(project: TestProject) {
     webhookSecret: "whsec_e2e_standin",
     webhookUrl: `${baseUrl}/api/v1/payments/webhook`,
   });
-  const server = spawn(resolve("node_modules/.bin/next"), ["start", "-p", String(port), "-H", "127.0.0.1"], {
+  const server = spawn(next, ["start", "-p", String(port), "-H", "127.0.0.1"], {
     stdio: ["ignore", "ignore", "inherit"],
     env: {
       ...process.env,
