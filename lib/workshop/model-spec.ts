@@ -163,9 +163,8 @@ export function sameSpec(a: ModelSpec, b: ModelSpec): boolean {
   return JSON.stringify(canonical(a)) === JSON.stringify(canonical(b));
 }
 
-/** The spec with its lists in a fixed order, as stored in a version. */
-export function canonical(s: ModelSpec): ModelSpec {
-  const by = <T extends { position: string }>(xs: T[]) => [...xs].sort((x, y) => x.position.localeCompare(y.position));
+/** A spec's single values: what the models row holds of it (its lists live in tables of their own). */
+export function modelColumns(s: ModelSpec) {
   return {
     code: s.code,
     name: s.name,
@@ -177,6 +176,14 @@ export function canonical(s: ModelSpec): ModelSpec {
     responseMaxHz: s.responseMaxHz,
     pairGtin: s.pairGtin,
     warrantyMonths: s.warrantyMonths,
+  };
+}
+
+/** The spec with its lists in a fixed order, as stored in a version. */
+export function canonical(s: ModelSpec): ModelSpec {
+  const by = <T extends { position: string }>(xs: T[]) => [...xs].sort((x, y) => x.position.localeCompare(y.position));
+  return {
+    ...modelColumns(s),
     positions: by(s.positions).map(({ position, partType, count }) => ({ position, partType, count })),
     crossovers: by(s.crossovers).map(({ position, count }) => ({ position, count })),
     trimPositions: by(s.trimPositions).map(({ position, label, count }) => ({ position, label, count })),

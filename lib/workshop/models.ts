@@ -14,7 +14,7 @@ import { now } from "@/lib/clock";
 import { appendEvent } from "@/lib/events/queries";
 import { ensureDefaultSpecs } from "@/lib/route/specs";
 import type { Actor } from "@/lib/vocabulary/actor";
-import { canonical, changedFields, sameSpec, type ModelSpec, type ModelSpecVersion } from "./model-spec";
+import { canonical, changedFields, modelColumns, sameSpec, type ModelSpec, type ModelSpecVersion } from "./model-spec";
 import { currentModelSpec, packingListOf, specFromVersion } from "./model-spec-of";
 
 export { currentModelSpec, modelSpecOf, packingListOf } from "./model-spec-of";
@@ -37,18 +37,6 @@ async function writeProjection(tx: DbOrTx, modelId: string, spec: ModelSpec) {
   await tx.insert(packingItems).values(list.map((label, i) => ({ modelId, position: i + 1, label, code: codeOf.get(label.trim().toLowerCase()) ?? null })));
 }
 
-const modelColumns = (s: ModelSpec) => ({
-  code: s.code,
-  name: s.name,
-  leavesPerFace: s.leavesPerFace,
-  minLeafLengthMm: s.minLeafLengthMm,
-  minLeafWidthMm: s.minLeafWidthMm,
-  pairResponseLimitDb: s.pairResponseLimitDb,
-  responseMinHz: s.responseMinHz,
-  responseMaxHz: s.responseMaxHz,
-  pairGtin: s.pairGtin,
-  warrantyMonths: s.warrantyMonths,
-});
 
 const codeTaken = (code: string) => new AppError(409, `There is already a model with the code ${code}.`, { code: [`${code} is taken by another model: choose another code.`] });
 
