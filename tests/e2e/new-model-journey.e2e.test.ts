@@ -28,7 +28,8 @@ import { goodReadings } from "../fixtures/route";
 
 const DAY = 86_400_000;
 const HOUR = 3_600_000;
-const CODE = "NM2";
+// After the demo's codes in the pickers' order, so other files that take the first model still get a demo one.
+const CODE = "RN2";
 /** A GTIN-14 in the demo's invented company prefix, its check digit worked by the GS1 mod-10 rule (docs/REFERENCES.md, § GS1). */
 const GTIN = "09527730004203";
 
@@ -68,7 +69,7 @@ describe("a model the admin adds, from flitch to shipment", () => {
     const form = page.getByTestId("model-form");
     await form.waitFor();
     await page.getByTestId("model-code").fill(CODE);
-    await page.getByTestId("model-name").fill("Northmere Two");
+    await page.getByTestId("model-name").fill("Rookmere Two");
     await form.getByLabel("Smallest leaf length (mm)").fill("600");
     await form.getByLabel("Smallest leaf width (mm)").fill("200");
     await page.getByTestId("model-gtin").fill(GTIN);
@@ -104,7 +105,7 @@ describe("a model the admin adds, from flitch to shipment", () => {
     }
 
     // Two top housings in one supplier's lot, each along the model's own trim route.
-    const received = await receiveTrimParts(db, { modelId: model.id, position: "TOP", supplier: "Invented Metalworks", lotCode: "IMW-NM2-01", count: 2 }, { id: cabinet });
+    const received = await receiveTrimParts(db, { modelId: model.id, position: "TOP", supplier: "Invented Metalworks", lotCode: "IMW-RN2-01", count: 2 }, { id: cabinet });
     w.top = received.parts.map((p) => p.identity);
     for (const identity of w.top) {
       const part = (await db.select().from(items).where(eq(items.identity, identity)))[0] as Item;
@@ -121,12 +122,12 @@ describe("a model the admin adds, from flitch to shipment", () => {
 
     // The model's drive units (a tweeter and a bass unit a side) and its boards, matched in pairs.
     for (const [partType, key] of [["tweeter", "T"], ["bass", "B"]] as const) {
-      const b = await registerBatch(db, { partType, partNumber: `${partType}-NM2`, maker: "Invented maker", lot: "L-NM2", receivedOn: today, makerSerials: [], count: 2 }, { id: lab });
+      const b = await registerBatch(db, { partType, partNumber: `${partType}-RN2`, maker: "Invented maker", lot: "L-RN2", receivedOn: today, makerSerials: [], count: 2 }, { id: lab });
       await importResponseFiles(db, b.units.map((u) => ({ name: `${u.identity}.txt`, text: flat(u.identity) })), { batchId: b.id, source: "upload" }, { id: lab });
       await acceptPlan(db, { batchId: b.id, modelId: model.id, pairs: [{ a: b.units[0]!.identity, b: b.units[1]!.identity }] }, { id: lab });
       w[key] = b.units.map((u) => u.identity);
     }
-    const parts = [{ position: "C1", lot: "LOT-NM2-C47", partNumber: "PP-475", nominal: "4.7µF", tolerance: "J", reading: "4.71µF" }];
+    const parts = [{ position: "C1", lot: "LOT-RN2-C47", partNumber: "PP-475", nominal: "4.7µF", tolerance: "J", reading: "4.71µF" }];
     for (let i = 0; i < 2; i++) w.xo.push((await buildCrossover(db, { modelId: model.id, parts, response: { name: `xo-nm${i}.txt`, text: flat(`xo-nm${i}`) } }, { id: lab })).crossover.identity);
     await acceptCrossoverPlan(db, { modelId: model.id, limitDb: 0.5, pairs: [{ a: w.xo[0]!, b: w.xo[1]! }] }, { id: lab });
     client.close();
