@@ -5,7 +5,7 @@ import type { DbOrTx } from "@/db";
 import { AppError } from "@/lib/auth/errors";
 import { itemByIdentity } from "@/lib/genealogy/graph";
 import { renderBarcode } from "@/lib/labels/barcodes";
-import { MONO_FONT, TEXT_FONT, registerPdfFonts } from "@/lib/labels/fonts";
+import { MONO_FONT, monoSafe, TEXT_FONT, registerPdfFonts } from "@/lib/labels/fonts";
 import { paths } from "@/lib/paths";
 import { normaliseScan, parseSerial } from "@/lib/serials/format";
 import { isCalendarDay, noonUtc } from "./dates";
@@ -108,7 +108,7 @@ export async function renderDeliveryNote(data: DeliveryNoteData): Promise<Buffer
     </View>
   );
   const cell = (w: string, children: string, mono = false, head = false) => (
-    <Text style={{ width: w, fontSize: head ? 8 : 9, color: head ? SOFT_INK : INK, ...(mono ? { fontFamily: MONO_FONT } : {}), paddingRight: 4 }}>{children}</Text>
+    <Text style={{ width: w, fontSize: head ? 8 : 9, color: head ? SOFT_INK : INK, ...(mono ? { fontFamily: MONO_FONT } : {}), paddingRight: 4 }}>{mono ? monoSafe(children) : children}</Text>
   );
   const doc = (
     <Document title={`Delivery note ${data.shipment}`} creator="Twinleaf" producer="Twinleaf">
@@ -136,7 +136,7 @@ export async function renderDeliveryNote(data: DeliveryNoteData): Promise<Buffer
           </View>
           <View style={{ width: "34%" }}>
             <Text style={{ fontSize: 8, color: SOFT_INK }}>Tracking number</Text>
-            <Text style={{ fontFamily: MONO_FONT }}>{data.tracking}</Text>
+            <Text style={{ fontFamily: MONO_FONT }}>{monoSafe(data.tracking)}</Text>
           </View>
         </View>
         <View style={{ marginTop: 16, flexDirection: "row", borderBottomWidth: 0.8, borderBottomColor: INK, paddingBottom: 3 }}>

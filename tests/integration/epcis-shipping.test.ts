@@ -12,6 +12,7 @@ import { getDb } from "@/db";
 import { cartonSsccs, dealers, items, links, shipmentDetails } from "@/db/schema";
 import { seedDemo } from "@/db/seed/seed";
 import { epcisDocumentForItem, type EpcisDocument, type EpcisEvent } from "@/lib/genealogy/epcis";
+import { deliveryNotePdf } from "@/lib/dispatch";
 import { isValidSscc } from "@/lib/gs1";
 import { validate } from "../fixtures/epcis-validate";
 
@@ -105,6 +106,15 @@ describe("the EPCIS export of a shipped demo pair", () => {
       expect(s.sourceList).toEqual([{ type: "owning_party", source: "https://id.gs1.org/414/0614141000012" }]);
     } finally {
       delete process.env.TWINLEAF_GLN;
+    }
+  });
+
+  test("every demo shipment's delivery note renders, tracking numbers with spaces included", async () => {
+    const shipments = await db().select({ identity: items.identity, tracking: shipmentDetails.tracking }).from(shipmentDetails).innerJoin(items, eq(items.id, shipmentDetails.itemId));
+    expect(shipments.some((s) => s.tracking.includes(" "))).toBe(true);
+    for (const s of shipments) {
+      const pdf = await deliveryNotePdf(db(), s.identity, { baseUrl: "http://twinleaf.test" });
+      expect(pdf.subarray(0, 5).toString()).toBe("%PDF-");
     }
   });
 });
