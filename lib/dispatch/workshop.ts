@@ -3,6 +3,8 @@
  * and the delivery note print. From TWINLEAF_WORKSHOP_NAME and TWINLEAF_WORKSHOP_ADDRESS (street
  * lines, then postcode and town, separated by "|" or new lines); unset, the demo's invented workshop.
  */
+import { countryName } from "@/lib/workshop/countries";
+
 export interface Party {
   name: string;
   lines: string[];
@@ -21,7 +23,12 @@ export function workshopParty(env: Record<string, string | undefined> = process.
   return { name, lines: (address ?? "").split(/\s*(?:\||\r?\n)\s*/).filter(Boolean) };
 }
 
-/** A dealer's delivery address as lines: street lines, then "postcode town", then the country code. */
+/**
+ * A dealer's delivery address as lines: street lines, then "postcode town", then the country's
+ * name in capitals on a line of its own (the usual way for a parcel crossing a border, from
+ * memory of the UPU's addressing guidance), never its ISO code.
+ */
 export function dealerLines(d: { address: string; postcode: string; city: string; country: string }): string[] {
-  return [...d.address.split(/\r?\n/).map((l) => l.trim()).filter(Boolean), [d.postcode, d.city].map((v) => v.trim()).filter(Boolean).join(" "), d.country.trim()].filter(Boolean);
+  const country = d.country.trim() ? countryName(d.country.trim()).toUpperCase() : "";
+  return [...d.address.split(/\r?\n/).map((l) => l.trim()).filter(Boolean), [d.postcode, d.city].map((v) => v.trim()).filter(Boolean).join(" "), country].filter(Boolean);
 }
