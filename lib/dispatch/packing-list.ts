@@ -21,7 +21,12 @@ export const DEFAULT_PACKING_LIST: readonly string[] = [...FIXED_PACKING_ITEMS, 
 export async function packingList(db: DbOrTx, modelId: string): Promise<string[]> {
   const rows = await db.select({ label: packingItems.label }).from(packingItems).where(eq(packingItems.modelId, modelId)).orderBy(asc(packingItems.position));
   if (rows.length === 0) return [...DEFAULT_PACKING_LIST];
-  const own = rows.map((r) => r.label.trim()).filter((l) => l !== "" && !FIXED_PACKING_ITEMS.some((f) => sameLabel(f, l)));
+  return withFixedItems(rows.map((r) => r.label));
+}
+
+/** A list of a model's own lines as packed: the three fixed items first, then its lines (blank ones and a fixed item written among them left out). */
+export function withFixedItems(lines: readonly string[]): string[] {
+  const own = lines.map((l) => l.trim()).filter((l) => l !== "" && !FIXED_PACKING_ITEMS.some((f) => sameLabel(f, l)));
   return [...FIXED_PACKING_ITEMS, ...own];
 }
 

@@ -7,9 +7,9 @@ import "server-only";
 import { asc, desc, eq } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { itemModelVersions, modelCrossoverPositions, modelPositions, models, modelTolerances, modelTrimPositions, modelVersions, packingItems } from "@/db/schema";
-import { FIXED_PACKING_ITEMS, sameLabel } from "@/lib/dispatch/packing-list";
+import { FIXED_PACKING_ITEMS, sameLabel, withFixedItems } from "@/lib/dispatch/packing-list";
 import { isPartType, type PartType } from "@/lib/vocabulary/part-types";
-import { canonical, type ModelSpec, type ModelSpecVersion } from "./model-spec";
+import { canonical, modelColumns, type ModelSpec, type ModelSpecVersion } from "./model-spec";
 
 /** The current spec of a model from its rows (the projection), with its newest version number. */
 export async function currentModelSpec(db: DbOrTx, modelId: string): Promise<ModelSpecVersion | null> {
@@ -24,16 +24,7 @@ export async function currentModelSpec(db: DbOrTx, modelId: string): Promise<Mod
     db.select({ version: modelVersions.version }).from(modelVersions).where(eq(modelVersions.modelId, modelId)).orderBy(desc(modelVersions.version)).limit(1),
   ]);
   const spec = canonical({
-    code: m.code,
-    name: m.name,
-    leavesPerFace: m.leavesPerFace,
-    minLeafLengthMm: m.minLeafLengthMm,
-    minLeafWidthMm: m.minLeafWidthMm,
-    pairResponseLimitDb: m.pairResponseLimitDb,
-    responseMinHz: m.responseMinHz,
-    responseMaxHz: m.responseMaxHz,
-    pairGtin: m.pairGtin,
-    warrantyMonths: m.warrantyMonths,
+    ...modelColumns(m),
     positions: positions.map((p) => ({ position: p.position, partType: p.partType, count: p.count })),
     // A model from before crossover positions were stored has the one board at XO.
     crossovers: crossovers.length ? crossovers.map((c) => ({ position: c.position, count: c.count })) : [{ position: "XO", count: 1 }],
@@ -86,7 +77,7 @@ export async function modelSpecOf(db: DbOrTx, item: { id: string; modelId: strin
 
 /** The packing list of a spec as the packer ticks it: the fixed three first, then the model's lines. */
 export function packingListOf(spec: Pick<ModelSpec, "packingList">): string[] {
-  return [...FIXED_PACKING_ITEMS, ...spec.packingList.filter((l) => !FIXED_PACKING_ITEMS.some((f) => sameLabel(f, l)))];
+  return withFixedItems(spec.packingList);
 }
 
 

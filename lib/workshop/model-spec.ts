@@ -164,7 +164,7 @@ export function sameSpec(a: ModelSpec, b: ModelSpec): boolean {
 }
 
 /** A spec's single values: what the models row holds of it (its lists live in tables of their own). */
-export function modelColumns(s: ModelSpec) {
+export function modelColumns(s: Omit<ModelSpec, "positions" | "crossovers" | "trimPositions" | "tolerances" | "packingList">) {
   return {
     code: s.code,
     name: s.name,
