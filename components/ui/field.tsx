@@ -122,10 +122,8 @@ export function CheckboxGroup({
   /** Columns on wider screens; two fit a dialog. */
   columns?: 2 | 4;
 }) {
-  const id = useId();
   return (
-    <fieldset className="flex flex-col gap-2" aria-describedby={errors?.length ? `${id}-error` : undefined}>
-      <legend className="mb-1 font-bold">{legend}</legend>
+    <CardGroup legend={legend} errors={errors}>
       <div className={cx("grid grid-cols-2 gap-2", columns === 4 && "sm:grid-cols-4")}>
         {options.map((o) => (
           <label key={o.value} className="flex min-h-12 cursor-pointer items-center gap-3 rounded-lg border border-line bg-surface px-3 has-checked:border-leaf has-checked:bg-leaf-soft">
@@ -134,12 +132,7 @@ export function CheckboxGroup({
           </label>
         ))}
       </div>
-      {errors?.length ? (
-        <p id={`${id}-error`} className="text-sm font-bold text-danger">
-          {errors.join(" ")}
-        </p>
-      ) : null}
-    </fieldset>
+    </CardGroup>
   );
 }
 
@@ -148,10 +141,8 @@ export function CheckboxGroup({
  * the error is tied to the group with aria-describedby.
  */
 export function ChoiceField({ legend, name, value, onChange, options, errors }: { legend: string; name: string; value: string; onChange: (v: string) => void; options: { value: string; label: string }[]; errors?: string[] }) {
-  const id = useId();
   return (
-    <fieldset className="flex flex-col gap-2" aria-describedby={errors?.length ? `${id}-error` : undefined}>
-      <legend className="mb-1 font-bold">{legend}</legend>
+    <CardGroup legend={legend} errors={errors}>
       <div className="grid gap-2 sm:grid-cols-3">
         {options.map((o) => (
           <label key={o.value} className="flex min-h-12 cursor-pointer items-center gap-3 rounded-lg border border-line bg-surface px-3 py-2 has-checked:border-leaf has-checked:bg-leaf-soft">
@@ -160,6 +151,17 @@ export function ChoiceField({ legend, name, value, onChange, options, errors }: 
           </label>
         ))}
       </div>
+    </CardGroup>
+  );
+}
+
+/** The fieldset of a group of choice cards: its legend, the cards, and its error tied to it with aria-describedby. */
+function CardGroup({ legend, errors, children }: { legend: ReactNode; errors?: string[]; children: ReactNode }) {
+  const id = useId();
+  return (
+    <fieldset className="flex flex-col gap-2" aria-describedby={errors?.length ? `${id}-error` : undefined}>
+      <legend className="mb-1 font-bold">{legend}</legend>
+      {children}
       {errors?.length ? (
         <p id={`${id}-error`} className="text-sm font-bold text-danger">
           {errors.join(" ")}
