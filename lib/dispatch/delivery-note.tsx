@@ -5,7 +5,7 @@ import type { DbOrTx } from "@/db";
 import { AppError } from "@/lib/auth/errors";
 import { itemByIdentity } from "@/lib/genealogy/graph";
 import { renderBarcode } from "@/lib/labels/barcodes";
-import { MONO_FONT, monoSafe, TEXT_FONT, registerPdfFonts } from "@/lib/labels/fonts";
+import { MONO_FONT, TEXT_FONT, registerPdfFonts } from "@/lib/labels/fonts";
 import { paths } from "@/lib/paths";
 import { normaliseScan, parseSerial } from "@/lib/serials/format";
 import { isCalendarDay, noonUtc } from "./dates";
@@ -108,7 +108,7 @@ export async function renderDeliveryNote(data: DeliveryNoteData): Promise<Buffer
     </View>
   );
   const cell = (w: string, children: string, mono = false, head = false) => (
-    <Text style={{ width: w, fontSize: head ? 8 : 9, color: head ? SOFT_INK : INK, ...(mono ? { fontFamily: MONO_FONT } : {}), paddingRight: 4 }}>{mono ? monoSafe(children) : children}</Text>
+    <Text style={{ width: w, fontSize: head ? 8 : 9, color: head ? SOFT_INK : INK, ...(mono ? { fontFamily: MONO_FONT } : {}), paddingRight: 4 }}>{children}</Text>
   );
   const doc = (
     <Document title={`Delivery note ${data.shipment}`} creator="Twinleaf" producer="Twinleaf">
@@ -136,7 +136,8 @@ export async function renderDeliveryNote(data: DeliveryNoteData): Promise<Buffer
           </View>
           <View style={{ width: "34%" }}>
             <Text style={{ fontSize: 8, color: SOFT_INK }}>Tracking number</Text>
-            <Text style={{ fontFamily: MONO_FONT }}>{monoSafe(data.tracking)}</Text>
+            {/* The text face: a tracking number is typed and may hold spaces, which react-pdf cannot lay out in the mono face. */}
+            <Text>{data.tracking}</Text>
           </View>
         </View>
         <View style={{ marginTop: 16, flexDirection: "row", borderBottomWidth: 0.8, borderBottomColor: INK, paddingBottom: 3 }}>
@@ -148,7 +149,7 @@ export async function renderDeliveryNote(data: DeliveryNoteData): Promise<Buffer
         {data.cartons.map((c, i) => (
           <View key={c.carton} wrap={false} style={{ flexDirection: "row", borderBottomWidth: 0.4, borderBottomColor: SOFT_INK, paddingVertical: 4 }}>
             {cell("6%", String(i + 1))}
-            {cell("26%", c.sscc ?? "none recorded", true)}
+            {cell("26%", c.sscc ?? "none recorded", Boolean(c.sscc))}
             <View style={{ width: "24%", paddingRight: 4 }}>
               <Text style={{ fontFamily: MONO_FONT, fontSize: 9 }}>{c.carton}</Text>
               <Text style={{ fontSize: 9 }}>{c.model}</Text>

@@ -4,15 +4,6 @@ import { Font } from "@react-pdf/renderer";
 export const TEXT_FONT = "Atkinson Hyperlegible";
 export const MONO_FONT = "IBM Plex Mono";
 
-/**
- * Text set in the mono face, made safe for react-pdf: its fontkit fails on IBM Plex Mono's space
- * glyph (U+0020, and the no-break space that shares it) with "Offset is outside the bounds of the
- * DataView", so each space becomes a figure space (U+2007), which has its own glyph of the same
- * width in a monospaced face. Use it for any mono text that may hold a space, such as a tracking
- * number typed at shipping.
- */
-export const monoSafe = (text: string): string => text.replace(/[ \u00a0]/g, "\u2007");
-
 let registered = false;
 
 /**
