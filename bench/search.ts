@@ -21,7 +21,7 @@ import type { Permission } from "@/lib/auth/permissions";
 import { createItem } from "@/lib/genealogy/graph";
 import { search } from "@/lib/search/search";
 import { compactText, phrase } from "@/lib/search/text";
-import { formatSerial, MOD37_ALPHABET } from "@/lib/serials";
+import { formatSerial } from "@/lib/serials";
 import { buildRegister, prng, type Rng, SEARCH_SHAPE } from "./register";
 
 const TARGET_P95_MS = 20;
