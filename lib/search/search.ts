@@ -8,7 +8,7 @@ import { paths, itemHref } from "@/lib/paths";
 import { nearMisses, normaliseScan, serialReadings } from "@/lib/serials";
 import { normaliseCaseCode } from "@/lib/service/code";
 import type { CaseState } from "@/lib/vocabulary/case-states";
-import { compactText, MIN_FRAGMENT, phrase, trigrams } from "./text";
+import { compactText, MIN_FRAGMENT, phrase, typoPieces } from "./text";
 
 /** What an item was found by when it was not its own identity. */
 export type FoundBy = "maker_serial" | "log_reference" | "tracking";
@@ -55,7 +55,8 @@ function allowed(source: Source, scope: SearchScope): boolean {
 
 /**
  * Drive units whose maker's serial is `query`, and makers' lots whose lot code (or whole name) is
- * `query`, ignoring case: scans are upper-cased, makers print either. Both read indexed columns.
+ * `query`, ignoring case: scans are upper-cased, makers print either. Each part reads its own
+ * NOCASE index (the search_index migration), written exactly as the index's expression.
  */
 async function makerMatches(db: DbOrTx, query: string) {
   return db.all<ItemRow>(sql`
@@ -63,7 +64,10 @@ async function makerMatches(db: DbOrTx, query: string) {
     WHERE bu.maker_serial = ${query} COLLATE NOCASE
     UNION
     SELECT i.id, i.identity, i.kind, i.state FROM items i
-    WHERE i.kind = 'maker_lot' AND (json_extract(i.attrs, '$.lot') = ${query} COLLATE NOCASE OR i.identity = ${query} COLLATE NOCASE)
+    WHERE i.kind = 'maker_lot' AND json_extract(i.attrs, '$.lot') = ${query} COLLATE NOCASE
+    UNION
+    SELECT i.id, i.identity, i.kind, i.state FROM items i
+    WHERE i.kind = 'maker_lot' AND i.identity = ${query} COLLATE NOCASE
     ORDER BY 2 LIMIT 50`);
 }
 
@@ -80,16 +84,17 @@ async function phraseCandidates(db: DbOrTx, table: "search_text" | "search_peopl
 }
 
 /**
- * A name with a typo ("Quilon"): dealers and owners sharing any of the query's trigrams, best
- * first by FTS5's bm25. Only the people table is read, tens of thousands of rows rather than the
- * whole register, and fuse.js then keeps those close enough to what was typed.
+ * A name with a typo ("Quilon"): dealers and owners holding any piece of the query that a single
+ * slip leaves whole (its halves and thirds), best first by FTS5's bm25, so those holding more of
+ * it lead. Only the people table is read, and whole pieces match far fewer rows than single
+ * trigrams would; fuse.js then keeps those close enough to what was typed.
  */
 async function typoCandidates(db: DbOrTx, text: string): Promise<Candidate[]> {
-  const grams = trigrams(text);
-  if (grams.length < 2) return [];
+  const pieces = typoPieces(text);
+  if (pieces.length < 2) return [];
   const rows = await db.all<Candidate>(sql`
     SELECT k.source, k.ref, t.text FROM search_people t CROSS JOIN search_keys k ON k.id = t.rowid
-    WHERE search_people MATCH ${grams.join(" OR ")} ORDER BY rank LIMIT ${TYPO_CANDIDATES}`);
+    WHERE search_people MATCH ${pieces.join(" OR ")} ORDER BY rank LIMIT ${TYPO_CANDIDATES}`);
   const fuse = new Fuse(rows, { keys: ["text"], threshold: 0.35, ignoreLocation: true, includeScore: true });
   return fuse.search(text).map((r) => r.item);
 }
@@ -217,14 +222,15 @@ export async function search(db: DbOrTx, raw: string, limit = 10, scope: SearchS
 
   const text = compactText(query);
   let chosen: Candidate[] = [];
-  // A caller asking for the exact answer only (limit 0) reads no index.
-  if (limit > 0 && [...text].length >= MIN_FRAGMENT) {
+  // A caller asking for the exact answer only (limit 0) reads no index, nor does a whole serial
+  // with a slipped check character once its suggestions are found: no other text holds it, and
+  // a phrase of a dozen digit-heavy trigrams is the dearest match there is.
+  if (limit > 0 && answer.didYouMean.length === 0 && [...text].length >= MIN_FRAGMENT) {
     const [things, people] = await Promise.all([phraseCandidates(db, "search_text", text), phraseCandidates(db, "search_people", text)]);
     chosen = rank(text, [...things, ...people]);
-    if (chosen.length < limit) {
-      const seen = new Set(chosen.map((c) => `${c.source}:${c.ref}`));
-      chosen.push(...(await typoCandidates(db, text)).filter((c) => !seen.has(`${c.source}:${c.ref}`)));
-    }
+    // Only when nothing holds the text as typed: an OR of trigrams is the one read here whose cost
+    // grows with the number of people, so a name typed right never pays for it.
+    if (chosen.length === 0) chosen = await typoCandidates(db, text);
   }
   const taken = new Set([...answer.didYouMean, ...byMaker.map((r) => itemHit(r))].map((h) => `${h.type}:${h.id}`));
   const itemKey = (c: Candidate) => (c.source === "dealer" || c.source === "owner" || c.source === "case" || c.source === "containment" ? `${c.source}:${c.ref}` : `item:${c.ref}`);
