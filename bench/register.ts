@@ -10,6 +10,10 @@ import type { InStatement, InValue } from "@libsql/client";
 import { openClient } from "@/db";
 import { eventHash, GENESIS_HASH } from "@/lib/audit/chain";
 import { SEED_DEALERS, SEED_FINISHES, SEED_MODELS } from "@/db/seed/data";
+import { batchCode, formatSerial, leafIdentity, makerLotIdentity, PART_TYPE_CODES, type SerialKind } from "@/lib/serials";
+import { caseCode } from "@/lib/service/code";
+import { containmentCode } from "@/lib/containments/code";
+import { inventedDealers, inventedOwners, s10Tracking } from "./people";
 
 // ---------------------------------------------------------------------------------------------
 // Shape of the synthetic register
@@ -21,6 +25,12 @@ export interface RegisterShape {
   pairsPerYear: number;
 }
 export const TRACE_SHAPE: RegisterShape = { years: 20, pairsPerYear: 1250 };
+/** The search benchmark's register: 42,500 pairs, just over 1,000,000 items (serials print two-digit years, so ≤ 25 years back from 2025). */
+export const SEARCH_SHAPE: RegisterShape = { years: 25, pairsPerYear: 1700 };
+/** Dealers and owners beside the demo's: a few hundred dealers, tens of thousands of owners. */
+const EXTRA_DEALERS = 300;
+const OWNERS = 30_000;
+const CONTAINMENTS_PER_YEAR = 3;
 const MIN_LINKS = 1_000_000;
 const CARTONS_PER_SHIPMENT = 20;
 const LEAVES_PER_FLITCH = 32; // one flitch faces the 8 cabinets of 4 pairs
@@ -33,6 +43,12 @@ const END = Date.UTC(END_YEAR, 0, 1);
 const DAY = 86_400_000;
 
 const SPEAKER_POSITIONS = ["CAB", "T", "M", "B1", "B2", "XO"] as const;
+/** Invented drive-unit makers, one per part type, each with its own lot and serial style. */
+const MAKERS = {
+  tweeter: { name: "Orvelle Transducers", partNumber: "OT-25D", lotPrefix: "OT", serial: (rng: Rng, _n: number) => `T${pad(rng.int(1e9), 9)}` },
+  midrange: { name: "Brannock Cone Works", partNumber: "BC-150P", lotPrefix: "BC", serial: (rng: Rng, _n: number) => `${pad(rng.int(1e6), 6)}-${pad(rng.int(1e4), 4)}` },
+  bass: { name: "Halvard Elements", partNumber: "HE-260W", lotPrefix: "L", serial: (rng: Rng, _n: number) => `HE${rng.u32().toString(36).toUpperCase().padStart(7, "0")}` },
+} as const;
 const DRIVE_UNITS = [
   { position: "T", partType: "tweeter", code: "T" },
   { position: "M", partType: "midrange", code: "M" },
@@ -105,6 +121,12 @@ export function multiRowInserts(table: string, cols: string[], rows: InValue[][]
 export interface Built {
   links: number;
   items: number;
+  /** Rows of the other searchable tables. */
+  dealers: number;
+  owners: number;
+  makerSerials: number;
+  serviceCases: number;
+  containments: number;
   pairIds: string[];
   bigLotId: string;
   bigLotIdentity: string;
@@ -118,6 +140,7 @@ export async function buildRegister(url: string, shape: RegisterShape = TRACE_SH
   const PAIRS = YEARS * PAIRS_PER_YEAR;
   const BIG_LOT_FIRST_PAIR = 7 * PAIRS_PER_YEAR + 300;
   const START_YEAR = END_YEAR - YEARS;
+  if (START_YEAR < 2000) throw new Error(`bench: serials print two-digit years from 2000; ${YEARS} years back from ${END_YEAR} starts in ${START_YEAR}`);
   const START = Date.UTC(START_YEAR, 0, 1);
   const rng = prng(20_050_101);
   const client = openClient(url);
@@ -135,7 +158,11 @@ export async function buildRegister(url: string, shape: RegisterShape = TRACE_SH
   const { positions: _p, tolerances: _t, ...modelRow } = model;
   const modelId = randomId(rng);
   const veneers = SEED_FINISHES.filter((f) => f.kind === "veneer").map((f) => ({ ...f, id: randomId(rng) }));
-  const dealerIds = SEED_DEALERS.map(() => randomId(rng));
+  const allDealers = [...SEED_DEALERS, ...inventedDealers(rng, EXTRA_DEALERS, new Set(SEED_DEALERS.map((d) => d.code)))].map((d) => ({ ...d, id: randomId(rng) }));
+  const dealerIds = allDealers.map((d) => d.id);
+  const dealerCode = new Map(allDealers.map((d) => [d.id, d.code]));
+  const owners = inventedOwners(rng, OWNERS).map((o) => ({ ...o, id: randomId(rng) }));
+  const benchUser = randomId(rng);
 
   // Every link's fit_event_id (and every repair's remove_event_id) points at this one event:
   // a million real events would only slow the build, and the traces never read events.
@@ -149,10 +176,10 @@ export async function buildRegister(url: string, shape: RegisterShape = TRACE_SH
           modelRow.pairResponseLimitDb, modelRow.responseMinHz, modelRow.responseMaxHz, modelRow.pairGtin],
       },
       ...veneers.map((f) => ({ sql: "INSERT INTO finishes (id, code, name, kind, detail) VALUES (?, ?, ?, ?, ?)", args: [f.id, f.code, f.name, f.kind, f.detail ?? ""] })),
-      ...SEED_DEALERS.map((d, i) => ({
-        sql: "INSERT INTO dealers (id, code, name, city, country, email) VALUES (?, ?, ?, ?, ?, ?)",
-        args: [dealerIds[i]!, d.code, d.name, d.city, d.country, d.email],
-      })),
+      ...multiRowInserts("dealers", ["id", "code", "name", "city", "country", "email"], allDealers.map((d) => [d.id, d.code, d.name, d.city, d.country, d.email])),
+      ...multiRowInserts("owners", ["id", "name", "email", "town", "country"], owners.map((o) => [o.id, o.name, o.email, o.town, o.country])),
+      // Who raised the containments (raised_by names a user).
+      { sql: "INSERT INTO users (id, email, name) VALUES (?, 'quality@bench.test', 'Bench quality')", args: [benchUser] },
       // The first event of a fresh log, chained as appendEvent would (a trigger refuses it otherwise).
       {
         sql: "INSERT INTO events (id, at, station, type, subject_kind, subject_id, data, prev_hash, hash) VALUES (1, ?, 'bench', 'bench.synthetic', 'bench', 'trace', '{}', ?, ?)",
@@ -162,6 +189,24 @@ export async function buildRegister(url: string, shape: RegisterShape = TRACE_SH
     "write",
   );
   const benchEvent = Number(setup.at(-1)!.lastInsertRowid);
+
+  // Serials as lib/serials/allocator.ts issues them: one sequence per kind, code and year.
+  const sequences = new Map<string, number>();
+  const serial = (kind: SerialKind, code: string, madeIn: number) => {
+    // Parts made just before the first pair of the first year are numbered in that year.
+    const year = Math.max(START_YEAR, madeIn);
+    const key = `${kind}:${code}:${year}`;
+    const seq = (sequences.get(key) ?? 0) + 1;
+    sequences.set(key, seq);
+    return formatSerial({ kind, code, year, seq });
+  };
+  const monthly = new Map<string, number>();
+  const nextInMonth = (prefix: string) => {
+    const n = (monthly.get(prefix) ?? 0) + 1;
+    monthly.set(prefix, n);
+    return n;
+  };
+  const day = (ms: number) => new Date(ms).toISOString().slice(0, 10);
 
   // Production dates first: pair p is finished at pairTime[p]; a shipment leaves two days after
   // its last carton is packed.
@@ -173,11 +218,15 @@ export async function buildRegister(url: string, shape: RegisterShape = TRACE_SH
   let bigLotId = "";
   let bigLotIdentity = "";
   let driveUnitSeq = 0;
-  let flitchSeq = 0;
   let repairs = 0;
   let itemCount = 0;
   let linkCount = 0;
   let flitch = { code: "", finishId: "", nextLeaf: LEAVES_PER_FLITCH };
+  let makerSerials = 0;
+  let serviceCases = 0;
+  let containments = 0;
+  // Drive-unit batches, one a month per part type, each from a maker's lot: batch code → batch id.
+  const batches = new Map<string, string>();
   let shipmentId = "";
   // Each link carries its parent's kind and identity (lib/genealogy/graph.ts copies them at fitting).
   const parentCopy = new Map<string, [string, string]>();
@@ -186,6 +235,29 @@ export async function buildRegister(url: string, shape: RegisterShape = TRACE_SH
     const ty = performance.now();
     const items: InValue[][] = [];
     const links: InValue[][] = [];
+    const unitBatchRows: InValue[][] = [];
+    const batchUnitRows: InValue[][] = [];
+    const flitchRows: InValue[][] = [];
+    const shipmentRows: InValue[][] = [];
+    const caseRows: InValue[][] = [];
+    const containmentRows: InValue[][] = [];
+    // The batch a unit received at `at` came in, made (with its maker's lot item) the first time it is needed.
+    const batchFor = (partType: "tweeter" | "midrange" | "bass", at: number) => {
+      const received = `${day(Math.max(at, START)).slice(0, 7)}-01`;
+      const code = batchCode(partType, received, 1);
+      let id = batches.get(code);
+      if (!id) {
+        const maker = MAKERS[partType];
+        const lot = `${maker.lotPrefix}${received.slice(2, 4)}${received.slice(5, 7)}-${pad(1 + rng.int(99), 2)}`;
+        id = randomId(rng);
+        batches.set(code, id);
+        const at0 = Date.parse(received);
+        item(randomId(rng), "maker_lot", makerLotIdentity(maker.name, lot), "received", at0, { part: partType, attrs: { maker: maker.name, lot } });
+        item(randomId(rng), "unit_batch", code, "received", at0, { part: partType, attrs: { maker: maker.name, partNumber: maker.partNumber, lot, receivedOn: received } });
+        unitBatchRows.push([id, code, partType, maker.partNumber, maker.name, lot, received, benchEvent, Math.round(at0)]);
+      }
+      return id;
+    };
     const item = (id: string, kind: string, identity: string, state: string, at: number, o: { model?: string | null; finish?: string | null; part?: string | null; dealer?: string | null; attrs?: object } = {}) => {
       items.push([id, kind, identity, o.model ?? null, o.finish ?? null, o.part ?? null, state, o.dealer ?? null, JSON.stringify(o.attrs ?? {}), Math.round(at)]);
       parentCopy.set(id, [kind, identity]);
@@ -203,7 +275,7 @@ export async function buildRegister(url: string, shape: RegisterShape = TRACE_SH
       Array.from({ length: LOTS_PER_POSITION_PER_YEAR }, (_, k) =>
         item(randomId(rng), "component_lot", `LOT-${yyyy}-${lp.position}-${pad(k + 1, 3)}`, "in_stock", yearStart + rng.int(20) * DAY, {
           part: lp.partType,
-          attrs: { supplierCode: `SUP-${pad(1 + rng.int(9), 2)}`, value: rng.pick(lp.values), quantity: 500 + 100 * rng.int(20) },
+          attrs: { supplierCode: `SUP-${pad(1 + rng.int(9), 2)}`, lot: `${String(yyyy).slice(2)}${pad(rng.int(10_000), 4)}${rng.pick(["A", "B", "C"])}`, value: rng.pick(lp.values), quantity: 500 + 100 * rng.int(20) },
         }),
       ),
     );
@@ -221,38 +293,41 @@ export async function buildRegister(url: string, shape: RegisterShape = TRACE_SH
 
       if (p % CARTONS_PER_SHIPMENT === 0) {
         const s = p / CARTONS_PER_SHIPMENT;
-        shipmentId = item(randomId(rng), "shipment", `SHP-${yearOf(shipTime(s))}-${pad(s + 1, 5)}`, "shipped", done, { dealer: rng.pick(dealerIds) });
+        const dealer = rng.pick(dealerIds);
+        const shipped = shipTime(s);
+        shipmentId = item(randomId(rng), "shipment", serial("shipment", dealerCode.get(dealer)!, yearOf(shipped)), "shipped", done, { dealer });
+        shipmentRows.push([shipmentId, dealer, day(shipped), "Parcel carrier", s10Tracking(rng), benchEvent]);
       }
 
       // Both cabinets of a pair are faced from one flitch (bookmatched), so a new flitch starts per pair if needed.
       if (flitch.nextLeaf + 8 > LEAVES_PER_FLITCH) {
-        flitchSeq++;
         const finish = rng.pick(veneers);
-        flitch = { code: `FL-${yyyy}-${pad(flitchSeq, 5)}`, finishId: finish.id, nextLeaf: 0 };
-        item(randomId(rng), "flitch", flitch.code, "cut", done - 40 * DAY, { finish: finish.id, attrs: { leaves: LEAVES_PER_FLITCH, species: finish.detail } });
+        flitch = { code: serial("flitch", finish.code, yearOf(done - 40 * DAY)), finishId: finish.id, nextLeaf: 0 };
+        const flitchId = item(randomId(rng), "flitch", flitch.code, "cut", done - 40 * DAY, { finish: finish.id, attrs: { leaves: LEAVES_PER_FLITCH, species: finish.detail } });
+        // The yard's log number: year felled, log and which flitch of the log.
+        flitchRows.push([flitchId, finish.id, `${String(yyyy - 1).slice(2)}-${pad(1 + rng.int(9999), 4)}-${"ABCDEF"[rng.int(6)]}`, "Timber yard", day(done - 40 * DAY), 0.6, LEAVES_PER_FLITCH, benchEvent]);
       }
 
-      const pairId = item(randomId(rng), "pair", `${modelRow.code}-P-${yyyy}-${pad(p + 1, 6)}`, "shipped", done - 14 * DAY, {
+      const pairId = item(randomId(rng), "pair", serial("pair", modelRow.code, yyyy), "shipped", done - 14 * DAY, {
         model: modelId, finish: flitch.finishId, attrs: { gtin: modelRow.pairGtin },
       });
       pairIds.push(pairId);
 
-      for (const [side, sideNo] of [["L", 0], ["R", 1]] as const) {
-        const serial = pad(2 * p + sideNo + 1, 6);
-        const speaker = item(randomId(rng), "speaker", `${modelRow.code}-S-${yyyy}-${serial}`, "fitted", done - 14 * DAY, { model: modelId, attrs: { side } });
+      for (const side of ["L", "R"] as const) {
+        const speaker = item(randomId(rng), "speaker", serial("speaker", modelRow.code, yyyy), "fitted", done - 14 * DAY, { model: modelId, attrs: { side } });
         link(pairId, speaker, side, done);
 
-        const cabinet = item(randomId(rng), "cabinet", `CAB-${yyyy}-${serial}`, "fitted", done - 30 * DAY, { model: modelId, finish: flitch.finishId });
+        const cabinet = item(randomId(rng), "cabinet", serial("cabinet", modelRow.code, yyyy), "fitted", done - 30 * DAY, { model: modelId, finish: flitch.finishId });
         for (let l = 1; l <= 4; l++) {
           // Leaves are cut from the flitch: the flitch is named in the leaf's identity and attrs.
           const leafNo = ++flitch.nextLeaf;
-          const leaf = item(randomId(rng), "leaf", `${flitch.code}/${pad(leafNo, 2)}`, "fitted", done - 40 * DAY, {
+          const leaf = item(randomId(rng), "leaf", leafIdentity(flitch.code, leafNo), "fitted", done - 40 * DAY, {
             finish: flitch.finishId, attrs: { flitch: flitch.code, leaf: leafNo, lengthMm: 1090 + rng.int(30), widthMm: 118 + rng.int(12), flipped: leafNo % 2 === 0 },
           });
           link(cabinet, leaf, `L${l}`, done - 25 * DAY);
         }
 
-        const crossover = item(randomId(rng), "crossover", `XO-${yyyy}-${serial}`, "fitted", done - 8 * DAY, { model: modelId });
+        const crossover = item(randomId(rng), "crossover", serial("crossover", modelRow.code, yyyy), "fitted", done - 8 * DAY, { model: modelId });
         LOT_POSITIONS.forEach((lp, i) => {
           const lot = inBigLot && lp.position === "C1" ? bigLotId : rng.pick(lotPool[i]!);
           link(crossover, lot, lp.position, done - 6 * DAY, 1);
@@ -262,9 +337,11 @@ export async function buildRegister(url: string, shape: RegisterShape = TRACE_SH
         const rowOf: Record<string, InValue[]> = {};
         for (const du of DRIVE_UNITS) {
           const n = ++driveUnitSeq;
-          fitted[du.position] = item(randomId(rng), "drive_unit", `DU-${du.code}-${yyyy}-${pad(n, 7)}`, "fitted", done - 20 * DAY, {
-            part: du.partType, attrs: { supplierCode: `SUP-${pad(1 + rng.int(9), 2)}`, makerSerial: randomId(rng).slice(0, 10).toUpperCase() },
+          const received = done - 20 * DAY;
+          fitted[du.position] = item(randomId(rng), "drive_unit", serial("drive_unit", PART_TYPE_CODES[du.partType], yearOf(received)), "fitted", received, {
+            part: du.partType, attrs: { supplierCode: `SUP-${pad(1 + rng.int(9), 2)}` },
           });
+          batchUnitRows.push([fitted[du.position]!, batchFor(du.partType, received), MAKERS[du.partType].serial(rng, n)]);
           rowOf[du.position] = items.at(-1)!;
         }
 
@@ -278,9 +355,15 @@ export async function buildRegister(url: string, shape: RegisterShape = TRACE_SH
           rowOf[du.position]![ITEM_COLS.indexOf("state")] = "failed";
           link(speaker, old, du.position, done - 2 * DAY, 0, repaired.at);
           const n = ++driveUnitSeq;
-          fitted[du.position] = item(randomId(rng), "drive_unit", `DU-${du.code}-${yearOf(repaired.at)}-${pad(n, 7)}`, "fitted", repaired.at - 2 * DAY, {
-            part: du.partType, attrs: { supplierCode: `SUP-${pad(1 + rng.int(9), 2)}`, makerSerial: randomId(rng).slice(0, 10).toUpperCase(), replaces: old },
+          const received = repaired.at - 2 * DAY;
+          fitted[du.position] = item(randomId(rng), "drive_unit", serial("drive_unit", PART_TYPE_CODES[du.partType], yearOf(received)), "fitted", received, {
+            part: du.partType, attrs: { supplierCode: `SUP-${pad(1 + rng.int(9), 2)}`, replaces: old },
           });
+          batchUnitRows.push([fitted[du.position]!, batchFor(du.partType, received), MAKERS[du.partType].serial(rng, n)]);
+          // The repair came in as a service case, closed when the speaker went back.
+          const opened = repaired.at - 20 * DAY;
+          const code = caseCode(day(opened), nextInMonth(`RT${day(opened).slice(0, 7)}`));
+          caseRows.push([randomId(rng), code, speaker, pairId, "owner", rng.pick(owners).id, day(opened), "Distortion from one drive unit at moderate level", "closed", Math.round(opened), benchEvent]);
           repairs++;
         }
         for (const position of SPEAKER_POSITIONS) {
@@ -288,13 +371,37 @@ export async function buildRegister(url: string, shape: RegisterShape = TRACE_SH
         }
       }
 
-      const carton = item(randomId(rng), "carton", `CTN-${yyyy}-${pad(p + 1, 6)}`, "shipped", done + DAY);
+      const carton = item(randomId(rng), "carton", serial("carton", modelRow.code, yearOf(done + DAY)), "shipped", done + DAY);
       link(carton, pairId, "P", done + DAY);
       link(shipmentId, carton, pad((p % CARTONS_PER_SHIPMENT) + 1, 2), shipTime(Math.floor(p / CARTONS_PER_SHIPMENT)));
     }
 
-    // One write transaction a year: items first, so the links' foreign keys find them.
-    await client.batch([...multiRowInserts("items", ITEM_COLS, items), ...multiRowInserts("links", LINK_COLS, links)], "write");
+    // A few containments a year, on this year's component lots.
+    for (let c = 0; c < CONTAINMENTS_PER_YEAR; c++) {
+      const lot = rng.pick(rng.pick(lotPool));
+      const raised = yearStart + (60 + rng.int(270)) * DAY;
+      const code = containmentCode(day(raised), nextInMonth(`CN${day(raised).slice(0, 7)}`));
+      containmentRows.push([randomId(rng), code, lot, parentCopy.get(lot)![1], "Capacitance out of tolerance on incoming sample", "major", Math.round(raised), benchUser, benchEvent]);
+    }
+
+    // One write transaction a year: items first, so the other rows' foreign keys find them. The
+    // search index's triggers fill it row by row, as they would for the app's own writes.
+    await client.batch(
+      [
+        ...multiRowInserts("items", ITEM_COLS, items),
+        ...multiRowInserts("links", LINK_COLS, links),
+        ...multiRowInserts("unit_batches", ["id", "code", "part_type", "part_number", "maker", "lot", "received_on", "event_id", "created_at"], unitBatchRows),
+        ...multiRowInserts("batch_units", ["item_id", "batch_id", "maker_serial"], batchUnitRows),
+        ...multiRowInserts("flitches", ["item_id", "finish_id", "log_reference", "supplier", "received_on", "leaf_thickness_mm", "leaf_count", "event_id"], flitchRows),
+        ...multiRowInserts("shipment_details", ["item_id", "dealer_id", "shipped_on", "carrier", "tracking", "event_id"], shipmentRows),
+        ...multiRowInserts("service_cases", ["id", "code", "item_id", "pair_id", "returned_by", "owner_id", "received_on", "symptom", "state", "opened_at", "event_id"], caseRows),
+        ...multiRowInserts("containments", ["id", "code", "target_item_id", "target_label", "reason", "severity", "raised_at", "raised_by", "event_id"], containmentRows),
+      ],
+      "write",
+    );
+    makerSerials += batchUnitRows.length;
+    serviceCases += caseRows.length;
+    containments += containmentRows.length;
     itemCount += items.length;
     linkCount += links.length;
     const elapsed = (performance.now() - t0) / 1000;
@@ -318,6 +425,9 @@ export async function buildRegister(url: string, shape: RegisterShape = TRACE_SH
   // Leave a plain file behind, so the measuring client starts like the app's would.
   await client.execute("PRAGMA wal_checkpoint(TRUNCATE)");
   client.close();
-  return { links, items: itemsInDb, pairIds, bigLotId, bigLotIdentity, repairs, seconds: (performance.now() - t0) / 1000 };
+  return {
+    links, items: itemsInDb, dealers: allDealers.length, owners: owners.length, makerSerials, serviceCases, containments,
+    pairIds, bigLotId, bigLotIdentity, repairs, seconds: (performance.now() - t0) / 1000,
+  };
 }
 

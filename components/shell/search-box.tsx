@@ -4,7 +4,8 @@ import { useEffect, useId, useRef, useState } from "react";
 import useSWR from "swr";
 import { cx } from "@/components/ui/cx";
 import { kindLabel, stateLabel } from "@/lib/vocabulary/item-kinds";
-import type { SearchAnswer, SearchHit } from "@/lib/search/search";
+import type { FoundBy, SearchAnswer, SearchHit } from "@/lib/search/search";
+import { CASE_STATE_WORDS } from "@/lib/vocabulary/case-states";
 
 const fetcher = async (url: string): Promise<SearchAnswer> => {
   const res = await fetch(url, { headers: { accept: "application/json" } });
@@ -15,9 +16,24 @@ const fetcher = async (url: string): Promise<SearchAnswer> => {
 const searchUrl = (q: string) => `/api/v1/search?q=${encodeURIComponent(q)}`;
 
 
+const FOUND_BY: Record<FoundBy, string> = { maker_serial: "maker's serial", log_reference: "log reference", tracking: "tracking number" };
+
+/** Each hit says what kind of thing it is, in the shop's words. */
 function describe(hit: SearchHit): { title: string; detail: string; mono: boolean } {
-  if (hit.type === "item") return { title: hit.identity, detail: `${kindLabel(hit.kind).toLowerCase()} · ${stateLabel(hit.state)}`, mono: true };
-  return { title: hit.name, detail: `${hit.type} · ${hit.detail}`, mono: false };
+  switch (hit.type) {
+    case "item": {
+      const via = hit.via ? ` · ${FOUND_BY[hit.via.by]} ${hit.via.text}` : "";
+      return { title: hit.identity, detail: `${kindLabel(hit.kind)} · ${stateLabel(hit.state)}${via}`, mono: true };
+    }
+    case "dealer":
+      return { title: hit.name, detail: `Dealer · ${hit.detail}`, mono: false };
+    case "owner":
+      return { title: hit.name, detail: `Owner · ${hit.detail}`, mono: false };
+    case "case":
+      return { title: hit.code, detail: `Service case · ${hit.about} · ${CASE_STATE_WORDS[hit.state].toLowerCase()}`, mono: true };
+    case "containment":
+      return { title: hit.code, detail: `Containment · ${hit.about} · ${hit.open ? "open" : "closed"}`, mono: true };
+  }
 }
 
 /**
@@ -68,7 +84,7 @@ export function SearchBox() {
   return (
     <div className="relative w-full" role="search">
       <label htmlFor={`${listId}-input`} className="sr-only">
-        Find a serial, lot, flitch, dealer or owner
+        Find a serial, lot, flitch, tracking number, case, containment, dealer or owner
       </label>
       <input
         ref={input}

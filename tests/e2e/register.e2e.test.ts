@@ -73,6 +73,17 @@ describe("search and trace in the register", () => {
     expect(new URL(page.url()).pathname).toMatch(/^\/register\/dealers\//);
   });
 
+  test("a fragment of a tracking number finds the shipment and says it was found by its tracking number", async () => {
+    const { client, db } = openDb(inject("databaseUrl"));
+    const [shipment] = await db.all<{ identity: string; tracking: string }>(sql`
+      SELECT i.identity, sd.tracking FROM shipment_details sd JOIN items i ON i.id = sd.item_id ORDER BY i.identity LIMIT 1`);
+    client.close();
+    expect(shipment, "the demo history ships at least once").toBeDefined();
+    await typeInSearch(shipment!.tracking.slice(2, 10).toLowerCase());
+    const option = page.getByTestId("search-option").filter({ hasText: shipment!.identity });
+    await expect(option.textContent()).resolves.toContain(`Shipment · shipped · tracking number ${shipment!.tracking}`);
+  });
+
   test("anything else is searched fuzzily, dealers included", async () => {
     await typeInSearch("Merow Lane");
     await expect(page.getByTestId("search-option").first().textContent()).resolves.toContain("Merrow Lane");

@@ -54,7 +54,7 @@ describe("search", () => {
     ["a lot by part of its code", "CAP 2506", "LOT-CAP-2506-A"],
   ])("fuzzy: %s", async (_label, input, expected) => {
     const answer = await search(getDb(), input);
-    const names = answer.fuzzy.map((h) => (h.type === "item" ? h.identity : h.name));
+    const names = answer.fuzzy.map((h) => (h.type === "item" ? h.identity : "name" in h ? h.name : h.code));
     expect(names[0]).toBe(expected);
   });
 

@@ -9,5 +9,8 @@ const query = z.object({
   limit: wholeNumber(z.number({ error: "limit is a whole number from 1 to 50." }).int().min(1, "limit is at least 1.").max(50, "limit is at most 50."), { empty: 10 }),
 });
 
-/** The search box: exact serial, "did you mean" for a mistyped check character, then fuzzy matches. */
-export const GET = guardedRoute("register.read", { query }, async ({ query }) => search(getDb(), query.q, query.limit));
+/**
+ * The search box: exact serial, "did you mean" for a mistyped check character, then everything whose
+ * text holds what was typed. The user's permissions keep out hits whose page they may not open.
+ */
+export const GET = guardedRoute("register.read", { query }, async ({ query, user }) => search(getDb(), query.q, query.limit, { permissions: user.permissions }));
