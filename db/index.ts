@@ -85,7 +85,9 @@ export async function whenFree<T>(op: () => Promise<T>, wait: BusyWait = DEFAULT
 // Statements that need no write transaction of their own (or, like VACUUM, may not run in one).
 const OUTSIDE_TRANSACTION = /^\s*(?:select|pragma|explain|vacuum|values|begin|commit|end|rollback|savepoint|release|attach|detach)\b/i;
 
-const sqlOf = (stmt: Parameters<Client["execute"]>[0]) => (typeof stmt === "string" ? stmt : stmt.sql);
+/** One statement in the object form every entry point accepts. */
+const statementOf = (stmt: InStatement, args?: InArgs): { sql: string; args?: InArgs } =>
+  typeof stmt === "string" ? { sql: stmt, args: args ?? [] } : stmt;
 
 /**
  * The client's entry points that start a write, made to wait with `whenFree`.
@@ -136,11 +138,14 @@ function waitingOnBusy(client: Client, wait: BusyWait): Client {
 
   client.transaction = ((mode?: TransactionMode) =>
     mode === undefined || mode === "write" ? beginWrite() : whenFree(() => transaction(mode), wait)) as Client["transaction"];
-  client.execute = ((stmt: Parameters<Client["execute"]>[0], args?: InArgs) =>
-    OUTSIDE_TRANSACTION.test(sqlOf(stmt))
-      ? whenFree(() => (args === undefined ? execute(stmt as InStatement) : execute(stmt as string, args)), wait)
-      : withWriteLock(() => inOwnTransaction((tx) => (args === undefined ? tx.execute(stmt as InStatement) : tx.execute(stmt as string, args))))) as Client["execute"];
-  client.batch = ((stmts: Parameters<Client["batch"]>[0]) => withWriteLock(() => inOwnTransaction((tx) => tx.batch(stmts)))) as Client["batch"];
+  client.execute = ((stmt: InStatement, args?: InArgs) => {
+    const one = statementOf(stmt, args);
+    return OUTSIDE_TRANSACTION.test(one.sql)
+      ? whenFree(() => execute(one), wait)
+      : withWriteLock(() => inOwnTransaction((tx) => tx.execute(one)));
+  }) as Client["execute"];
+  client.batch = ((stmts: Parameters<Client["batch"]>[0]) =>
+    withWriteLock(() => inOwnTransaction((tx) => tx.batch(stmts.map((s) => (Array.isArray(s) ? statementOf(s[0], s[1]) : s)))))) as Client["batch"];
   return client;
 }
 
