@@ -7,6 +7,7 @@ import { and, eq, inArray, sql } from "drizzle-orm";
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, inject, test } from "vitest";
 import { openDb, type Db } from "@/db";
+import { migrateDatabase } from "@/db/migrate";
 import { limitHits, mailAttempts, mailClaims, outbox, serviceCases, users } from "@/db/schema";
 import { startSession } from "@/lib/auth/sessions";
 import { startFakeSmtp, type FakeSmtp } from "@/lib/mail/fake-smtp";
@@ -78,6 +79,8 @@ beforeAll(async () => {
   const shared = openDb(inject("databaseUrl"));
   await shared.client.execute({ sql: "VACUUM INTO ?", args: [join(dir, "two.db")] });
   shared.client.close();
+  // A copy made by VACUUM INTO is not in WAL mode; migrating it sets WAL, as after a restore.
+  await migrateDatabase(databaseUrl);
   const own = openDb(databaseUrl);
   db = own.db;
   closeDb = () => own.client.close();
