@@ -83,7 +83,11 @@ export async function whenFree<T>(op: () => Promise<T>, wait: BusyWait = DEFAULT
 }
 
 // Statements that need no write transaction of their own (or, like VACUUM, may not run in one).
+// A WITH is a read (the genealogy's recursive queries) unless a write follows its tables.
 const OUTSIDE_TRANSACTION = /^\s*(?:select|pragma|explain|vacuum|values|begin|commit|end|rollback|savepoint|release|attach|detach)\b/i;
+const WRITE_AFTER_WITH = /\b(?:insert\s+(?:or\s+\w+\s+)?into|replace\s+into|delete\s+from|update\s+(?:or\s+\w+\s+)?["`\w.]+\s+set)\b/i;
+/** Whether a lone statement runs in a write transaction of its own (see `waitingOnBusy`). */
+export const runsAsWrite = (sql: string): boolean => !(OUTSIDE_TRANSACTION.test(sql) || (/^\s*with\b/i.test(sql) && !WRITE_AFTER_WITH.test(sql)));
 
 /** One statement in the object form every entry point accepts. */
 const statementOf = (stmt: InStatement, args?: InArgs): { sql: string; args?: InArgs } =>
@@ -140,9 +144,9 @@ function waitingOnBusy(client: Client, wait: BusyWait): Client {
     mode === undefined || mode === "write" ? beginWrite() : whenFree(() => transaction(mode), wait)) as Client["transaction"];
   client.execute = ((stmt: InStatement, args?: InArgs) => {
     const one = statementOf(stmt, args);
-    return OUTSIDE_TRANSACTION.test(one.sql)
-      ? whenFree(() => execute(one), wait)
-      : withWriteLock(() => inOwnTransaction((tx) => tx.execute(one)));
+    return runsAsWrite(one.sql)
+      ? withWriteLock(() => inOwnTransaction((tx) => tx.execute(one)))
+      : whenFree(() => execute(one), wait);
   }) as Client["execute"];
   client.batch = ((stmts: Parameters<Client["batch"]>[0]) =>
     withWriteLock(() => inOwnTransaction((tx) => tx.batch(stmts.map((s) => (Array.isArray(s) ? statementOf(s[0], s[1]) : s)))))) as Client["batch"];

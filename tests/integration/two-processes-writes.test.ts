@@ -2,7 +2,7 @@ import type { Client, Transaction } from "@libsql/client";
 import { eq, sql } from "drizzle-orm";
 import { DrizzleQueryError } from "drizzle-orm/errors";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { openDb, registerBusy, RegisterBusyError, type Db } from "@/db";
+import { openDb, registerBusy, RegisterBusyError, runsAsWrite, type Db } from "@/db";
 import { limitHits } from "@/db/schema";
 
 // Two clients on one database file, each with its own connections, stand for two server
@@ -139,5 +139,22 @@ describe("registerBusy reads the busy answer through the wrappers around it", ()
     ["a plain error", new Error("boom"), false],
   ])("%s", (_what, error, busy) => {
     expect(registerBusy(error) !== null).toBe(busy);
+  });
+});
+
+describe("which lone statements take the write lock in a transaction of their own", () => {
+  // The statements' shapes are Drizzle 0.45's (its SQL as logged) and this code base's raw SQL.
+  test.each([
+    ['insert into "limit_hits" ("attempt") values (?)', true],
+    ['update "sessions" set "expires_at" = ? where "id" = ?', true],
+    ['delete from "limit_hits" where "at" < ?', true],
+    ["WITH old AS (SELECT id FROM limit_hits) DELETE FROM limit_hits WHERE id IN (SELECT id FROM old)", true],
+    ["CREATE TABLE scratch (x)", true],
+    ['select "id" from "items" where "identity" = ?', false],
+    ["WITH RECURSIVE up(id) AS (SELECT ? UNION SELECT parent_id FROM links JOIN up ON child_id = up.id) SELECT id FROM up", false],
+    ["PRAGMA journal_mode", false],
+    ["VACUUM INTO ?", false],
+  ])("%s → %s", (statement, write) => {
+    expect(runsAsWrite(statement)).toBe(write);
   });
 });
