@@ -29,10 +29,16 @@ function tooManyChecks(retryAfterSeconds: number): NextResponse {
 const CERTIFICATE_CHECK = /^\/verify\/[^/]+\/?$/;
 async function verifyRefusal(req: NextRequest): Promise<NextResponse | null> {
   if (!CERTIFICATE_CHECK.test(req.nextUrl.pathname) || req.method !== "GET") return null;
-  const [{ getDb }, { hitVerifyLimit }] = await Promise.all([import("./db"), import("./lib/dispatch/rate-limit")]);
+  const [{ getDb, registerBusy }, { hitVerifyLimit }] = await Promise.all([import("./db"), import("./lib/dispatch/rate-limit")]);
   const address = clientAddressOf({ peer: req.headers.get(PEER_HEADER), forwardedFor: req.headers.get("x-forwarded-for"), hops: trustedProxyHops() });
-  const hit = await hitVerifyLimit(getDb(), address);
-  return hit.ok ? null : tooManyChecks(hit.retryAfterSeconds);
+  try {
+    const hit = await hitVerifyLimit(getDb(), address);
+    return hit.ok ? null : tooManyChecks(hit.retryAfterSeconds);
+  } catch (e) {
+    // Other processes' writes held the register past the wait: say so, never a 500.
+    if (!registerBusy(e)) throw e;
+    return new NextResponse("The register is busy; try again in a moment.", { status: 503, headers: { "content-type": "text/plain; charset=utf-8", "retry-after": "1", "cache-control": "no-store" } });
+  }
 }
 
 /**

@@ -56,3 +56,18 @@ export const mailSecrets = sqliteTable("mail_secrets", {
 });
 
 export type OutboxMessage = typeof outbox.$inferSelect;
+
+/**
+ * Who is sending a message now: a lease taken in a write transaction just before the send (only
+ * while the message is still due and no live lease exists) and deleted in the transaction that
+ * records the try. Every server process runs the sender; this is what makes one of them send.
+ * A lease whose process died ends at `until`, and the message is tried again.
+ */
+export const mailClaims = sqliteTable("mail_claims", {
+  outboxId: integer("outbox_id")
+    .primaryKey()
+    .references(() => outbox.id),
+  /** A random name the sender run took for itself. */
+  holder: text("holder").notNull(),
+  until: integer("until", { mode: "timestamp_ms" }).notNull(),
+});

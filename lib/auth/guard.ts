@@ -12,7 +12,7 @@ import { DEFAULT_BODY_LIMIT, readCapped, readJsonCapped } from "@/lib/input/body
 import { localPath } from "@/lib/input/local-path";
 import { pathParam, pathParams } from "@/lib/input/path-params";
 import { comesFromHere, CROSS_ORIGIN_REFUSED } from "./origin";
-import { getDb } from "@/db";
+import { getDb, registerBusy } from "@/db";
 import { clientAddressOf, PEER_HEADER, trustedProxyHops } from "./client-address";
 import { AppError, forbiddenError, unauthenticated } from "./errors";
 import { SESSION_COOKIE } from "./lucia";
@@ -68,6 +68,9 @@ const REDIRECT_REFUSED = "This was saved, but the page to go to next is not vali
 
 function failure(e: unknown): FormState {
   if (e instanceof AppError) return { ok: false, status: e.status, message: e.message, fieldErrors: e.fieldErrors };
+  // Other processes' writes held the register past the wait (often inside Drizzle's own error).
+  const busy = registerBusy(e);
+  if (busy) return { ok: false, status: busy.status, message: busy.message };
   console.error(e);
   return { ok: false, status: 500, message: FAILED };
 }

@@ -1,8 +1,9 @@
 import "server-only";
-import { and, eq, isNotNull, isNull, or, sql } from "drizzle-orm";
-import { getDb, withWriteLock, type Db } from "@/db";
-import { certificates, items, mailAttempts, mailSecrets, outbox, type OutboxMessage } from "@/db/schema";
-import { attemptStats, DEFAULT_MAX_ATTEMPTS, forgetSecrets, restoreSecrets, retryDelaySql } from "./outbox";
+import { randomUUID } from "node:crypto";
+import { and, eq, gte, isNotNull, isNull, lt, notExists, or, sql } from "drizzle-orm";
+import { getDb, type Db } from "@/db";
+import { certificates, items, mailAttempts, mailClaims, mailSecrets, outbox, type OutboxMessage } from "@/db/schema";
+import { attemptStats, DEFAULT_MAX_ATTEMPTS, forgetSecrets, restoreSecrets, retryDelayMs, retryDelaySql } from "./outbox";
 import { createMailTransport, type MailTransport } from "./transport";
 
 export interface DeliverOptions {
@@ -46,6 +47,39 @@ async function attachmentsFor(db: Db, list: OutboxMessage["attachments"], baseUr
   return out;
 }
 
+/**
+ * How long a claim on a message lasts. Longer than one send can take (nodemailer gives up on a
+ * silent server after its 10-minute socket timeout), so a live sender never loses its claim; a
+ * claim left by a process that died ends after this, and the message is sent then.
+ */
+export const CLAIM_MS = 15 * 60_000;
+
+/**
+ * Claims one message for this run, or returns false: taken in one write transaction with a fresh
+ * look at its tries, so of two processes that both read it as due, one claims it and the other
+ * finds it claimed, or (once the first has recorded its try and let go) no longer due.
+ */
+async function claim(db: Db, id: number, holder: string, now: Date, maxAttempts: number): Promise<{ failures: number } | null> {
+  return db.transaction(async (tx) => {
+    const tries = await tx.select({ ok: mailAttempts.ok, at: mailAttempts.at }).from(mailAttempts).where(eq(mailAttempts.outboxId, id));
+    if (tries.some((t) => t.ok)) return null;
+    const failures = tries.length;
+    if (failures >= maxAttempts) return null;
+    const lastFailedAt = Math.max(0, ...tries.map((t) => t.at.getTime()));
+    if (failures > 0 && lastFailedAt + retryDelayMs(failures) > now.getTime()) return null;
+    const taken = await tx
+      .insert(mailClaims)
+      .values({ outboxId: id, holder, until: new Date(now.getTime() + CLAIM_MS) })
+      .onConflictDoUpdate({
+        target: mailClaims.outboxId,
+        set: { holder, until: new Date(now.getTime() + CLAIM_MS) },
+        setWhere: lt(mailClaims.until, now),
+      })
+      .returning({ holder: mailClaims.holder });
+    return taken.length === 1 ? { failures } : null;
+  });
+}
+
 const DETAIL_MAX = 500;
 
 // What the attempt row keeps of a failure: one line, bounded. nodemailer's messages carry the
@@ -60,8 +94,10 @@ function describeFailure(e: unknown): string {
 /**
  * Sends every message that has no successful try, has tries left and whose backoff has passed.
  * Each try appends one mail_attempts row. No transaction is held while talking to the server:
- * the due list is read first, and each result is written after its send returns. Delivery is
- * therefore at-least-once: if writing the ok row fails, the message is sent again later.
+ * the due list is read first, each message is claimed (mail_claims) just before its send, and
+ * each result is written, and the claim let go, after its send returns. Any number of processes
+ * may run this at once and each message is sent by one of them. Delivery is still at-least-once:
+ * if writing the ok row fails, or the process dies mid-send, the message is sent again later.
  *
  * A message's secrets (its one-time link) are put back only in what goes to the server, and are
  * deleted in the same transaction as the attempt that delivers the message or gives it up. Any
@@ -92,7 +128,6 @@ export async function deliverDue(
       text: outbox.text,
       html: outbox.html,
       attachments: outbox.attachments,
-      failures,
       secrets: mailSecrets.values,
     })
     .from(outbox)
@@ -103,14 +138,20 @@ export async function deliverDue(
         isNull(stats.sentAt),
         sql`${failures} < ${maxAttempts}`,
         or(isNull(stats.lastFailedAt), sql`${stats.lastFailedAt} + ${retryDelaySql(failures)} <= ${now.getTime()}`),
+        // Being sent by another process now: skipped without a write.
+        notExists(db.select({ one: sql`1` }).from(mailClaims).where(and(eq(mailClaims.outboxId, outbox.id), gte(mailClaims.until, now)))),
       ),
     )
     .orderBy(outbox.id)
     .limit(opts.batch ?? 50);
 
+  const holder = randomUUID();
   let sent = 0;
   let failed = 0;
   for (const m of due) {
+    // The tries as they stand now: another process may have tried it since the list was read.
+    const claimed = await claim(db, m.id, holder, now, maxAttempts);
+    if (!claimed) continue;
     let ok: boolean;
     let detail: string;
     try {
@@ -132,15 +173,12 @@ export async function deliverDue(
       detail = describeFailure(e);
     }
     const attempt = { outboxId: m.id, at: opts.now ?? new Date(), ok, detail };
-    const settles = ok || Number(m.failures) + 1 >= maxAttempts;
-    if (m.secrets && settles) {
-      await db.transaction(async (tx) => {
-        await tx.insert(mailAttempts).values(attempt);
-        await forgetSecrets(tx, [m.id]);
-      });
-    } else {
-      await withWriteLock(() => db.insert(mailAttempts).values(attempt));
-    }
+    const settles = ok || claimed.failures + 1 >= maxAttempts;
+    await db.transaction(async (tx) => {
+      await tx.insert(mailAttempts).values(attempt);
+      if (m.secrets && settles) await forgetSecrets(tx, [m.id]);
+      await tx.delete(mailClaims).where(and(eq(mailClaims.outboxId, m.id), eq(mailClaims.holder, holder)));
+    });
     if (ok) sent++;
     else failed++;
   }
