@@ -6,7 +6,7 @@ import { controlClasses } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
 import { readPartValues, TOLERANCE_LETTERS, type Unit } from "@/lib/crossover-parts";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import { buildCrossoverAction } from "./actions";
 import { MAX_ROWS, type PartRow } from "./schemas";
 

@@ -4,7 +4,7 @@ import { submitKeepingFields } from "@/components/ui/kept-form";
 import { TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { Button } from "@/components/ui/button";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import { packPairAction } from "../../actions";
 import { LOCATION_HINT } from "../../schemas";
 

@@ -7,7 +7,7 @@ import { MomentSwitch } from "@/components/register/moment-switch";
 import { PairHalves } from "@/components/register/pair-halves";
 import { SerialLink } from "@/components/register/serial-link";
 import { PrintLabels } from "@/components/register/print-labels";
-import { TraceTreePicture } from "@/components/register/trace-tree";
+import { TraceTreePicture } from "@/components/register/trace-tree-lazy";
 import { Badge } from "@/components/ui/badge";
 import { BackLink } from "@/components/ui/back-link";
 import { DataTable } from "@/components/ui/data-table";
