@@ -6,7 +6,7 @@ import { Notice } from "@/components/ui/notice";
 import { Button } from "@/components/ui/button";
 import { initialFormState } from "@/lib/form-state";
 import { packPairAction } from "../../actions";
-import { LOCATION_HINT } from "../../schemas";
+import { LOCATION_HINT } from "../../words";
 
 /** A line of the packing list as lib/dispatch's packingLines gives it (kept here: that module is server-only). */
 interface PackingLine {
