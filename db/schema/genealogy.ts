@@ -76,6 +76,11 @@ export const links = sqliteTable(
     index("links_child_idx").on(t.childId, t.startedAt),
     // Covers the forward trace "now": child → parent with the parent's kind and identity.
     index("links_open_holders").on(t.childId, t.parentId, t.parentKind, t.parentIdentity).where(sql`${t.endedAt} IS NULL`),
+    // Covers the walk up every link, open or ended (when an item shipped, the first shipment of a
+    // pair): child → parent, its kind and the fitting time, without visiting the table.
+    index("links_up").on(t.childId, t.parentId, t.parentKind, t.startedAt),
+    // The few ended links (parts removed), so a walk up from the holdings index finds them cheaply.
+    index("links_ended").on(t.childId).where(sql`${t.endedAt} IS NOT NULL`),
     check("links_not_self", sql`${t.parentId} <> ${t.childId}`),
     check("links_end_after_start", sql`${t.endedAt} IS NULL OR ${t.endedAt} >= ${t.startedAt}`),
     check("links_end_has_event", sql`(${t.endedAt} IS NULL) = (${t.removeEventId} IS NULL)`),
