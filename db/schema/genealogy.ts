@@ -106,6 +106,9 @@ export const holdings = sqliteTable(
   (t) => [
     primaryKey({ columns: [t.itemId, t.holderId] }),
     index("holdings_holder_idx").on(t.holderId),
+    // An item's holders by kind, read from the index alone: a lot's shipments among its 15,000
+    // holders, or the whole forward trace of a recall, without visiting the table.
+    index("holdings_item_kind").on(t.itemId, t.holderKind, t.holderId, t.holderIdentity),
     // Removal counts a row down to zero, then deletes the zeros through this small index.
     index("holdings_spent_idx").on(t.itemId).where(sql`${t.paths} = 0`),
     check("holdings_paths_not_negative", sql`${t.paths} >= 0`),

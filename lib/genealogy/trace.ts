@@ -135,10 +135,13 @@ export async function shippedAt(db: DbOrTx, itemId: string): Promise<Date | null
     if (seen.has(id) || depth > MAX_DEPTH) return null;
     seen.add(id);
     const rows = await db.all<{ parent_id: string | null; parent_kind: string | null; started_at: number | null; ended: number }>(sql`
-      SELECT NULL AS parent_id, 'shipment' AS parent_kind, min(l.started_at) AS started_at, 0 AS ended
-      FROM holdings h JOIN links l ON l.parent_id = h.holder_id AND l.ended_at IS NULL
-      WHERE h.item_id = ${id} AND h.holder_kind = 'shipment'
-        AND (l.child_id = ${id} OR EXISTS (SELECT 1 FROM holdings c WHERE c.item_id = ${id} AND c.holder_id = l.child_id))
+      SELECT NULL AS parent_id, 'shipment' AS parent_kind, min((
+        -- Each shipment that holds it now: the first open fitting into it of the item or of a holder of it.
+        SELECT l.started_at FROM links l
+        WHERE l.parent_id = h.holder_id AND l.ended_at IS NULL
+          AND (l.child_id = ${id} OR EXISTS (SELECT 1 FROM holdings c WHERE c.item_id = ${id} AND c.holder_id = l.child_id))
+        ORDER BY l.started_at LIMIT 1)) AS started_at, 0 AS ended
+      FROM holdings h WHERE h.item_id = ${id} AND h.holder_kind = 'shipment'
       UNION ALL
       SELECT l.parent_id, l.parent_kind, l.started_at, 1 FROM links l WHERE l.child_id = ${id} AND l.ended_at IS NOT NULL
       UNION ALL

@@ -8,7 +8,7 @@
 import { z } from "zod";
 import { ROUTE_STATIONS } from "@/lib/vocabulary/stations";
 import { P_GRADES } from "./rules";
-import { READING_KINDS, type HoldSpec, type ReadingSpec, type StepSpec } from "./types";
+import { READING_KINDS, type ReadingSpec, type StepSpec } from "./types";
 
 const DAY_MINUTES = 24 * 60;
 /** The longest hold after a step: 60 days. */
