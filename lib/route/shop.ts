@@ -1,7 +1,7 @@
 /** The cabinet shop's home: every pair still on the route, and which are ready, holding or overdue. */
 import "server-only";
 import { ROUTE_STATIONS, type RouteStation } from "@/lib/vocabulary/stations";
-import { and, asc, eq, inArray, sql } from "drizzle-orm";
+import { and, eq, inArray, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { finishes, items } from "@/db/schema";
 import { now as clockNow } from "@/lib/clock";
