@@ -61,14 +61,6 @@ export function echoValues(raw: Record<string, string | string[]>, plan: EchoPla
 export const stringList = <T extends z.ZodType>(item: T) =>
   z.preprocess((v) => (v === undefined || v === "" ? [] : Array.isArray(v) ? v : [v]), z.array(item));
 
-export interface FormState {
-  ok: boolean;
-  status?: number;
-  message?: string;
-  fieldErrors?: Record<string, string[] | undefined>;
-  values?: Record<string, string | string[]>;
-  /** What a successful action hands back to show once, e.g. a new machine token. Never user input. */
-  data?: Record<string, string>;
-}
-
-export const initialFormState: FormState = { ok: false };
+// The form state lives in a module of its own without zod, so client forms that import it do
+// not carry zod into their first load (every page of the shell has the sign-out form).
+export { initialFormState, type FormState } from "./form-state";

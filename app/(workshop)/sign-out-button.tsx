@@ -1,7 +1,7 @@
 "use client";
 import { useActionState } from "react";
 import { SubmitButton } from "@/components/ui/submit-button";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import { signOutAction } from "./sign-out";
 
 export function SignOutButton() {

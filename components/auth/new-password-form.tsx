@@ -4,7 +4,7 @@ import { TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
 import { MIN_PASSWORD_LENGTH } from "@/lib/auth/password-rules";
-import { initialFormState, type FormState } from "@/lib/forms";
+import { initialFormState, type FormState } from "@/lib/form-state";
 
 /** Sets a password from a one-time link; used by both invite acceptance and reset. */
 export function NewPasswordForm({ token, action: serverAction, submitLabel }: {

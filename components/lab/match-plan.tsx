@@ -4,7 +4,7 @@ import { Notice } from "@/components/ui/notice";
 import { bandLabel, formatDb, formatLimitDb } from "@/lib/acoustics/format";
 import { whyNoPairs } from "@/lib/lab/plan-words";
 import type { planPairs } from "@/lib/matching";
-import { PairChart } from "./pair-chart";
+import { PairChart } from "./pair-chart-lazy";
 
 const db2 = (n: number) => n.toFixed(2);
 

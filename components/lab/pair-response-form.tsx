@@ -3,7 +3,7 @@ import { useActionState, useState, type ReactNode } from "react";
 import { controlClasses } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
-import { initialFormState, type FormState } from "@/lib/forms";
+import { initialFormState, type FormState } from "@/lib/form-state";
 
 const fileClasses = `${controlClasses} py-2.5 file:mr-3 file:rounded-md file:border-0 file:bg-leaf-soft file:px-3 file:py-1.5 file:font-bold file:text-leaf-dark`;
 

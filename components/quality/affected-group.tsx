@@ -6,7 +6,7 @@ import { Notice } from "@/components/ui/notice";
 import { Button } from "@/components/ui/button";
 import { TD, TH, TR, Table } from "@/components/ui/table";
 import { submitKeepingFields, useActionStateThen } from "@/components/ui/kept-form";
-import { initialFormState, type FormState } from "@/lib/forms";
+import { initialFormState, type FormState } from "@/lib/form-state";
 import { itemHref } from "@/lib/paths";
 import { AFFECTED_ACTION_WORDS, AFFECTED_ACTIONS, AFFECTED_STATE_WORDS, type AffectedAction, type AffectedGroup, type AffectedState } from "@/lib/vocabulary/containments";
 

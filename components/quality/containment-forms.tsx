@@ -4,7 +4,7 @@ import { Notice } from "@/components/ui/notice";
 import { Button } from "@/components/ui/button";
 import { useState } from "react";
 import { submitKeepingFields, useActionStateThen } from "@/components/ui/kept-form";
-import { initialFormState, type FormState } from "@/lib/forms";
+import { initialFormState, type FormState } from "@/lib/form-state";
 
 type Action = (state: FormState, formData: FormData) => Promise<FormState>;
 

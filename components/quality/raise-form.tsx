@@ -4,7 +4,7 @@ import { ChoiceField, SelectField, TextAreaField, TextField } from "@/components
 import { Notice } from "@/components/ui/notice";
 import { Button } from "@/components/ui/button";
 import { useActionStateThen } from "@/components/ui/kept-form";
-import { initialFormState, type FormState } from "@/lib/forms";
+import { initialFormState, type FormState } from "@/lib/form-state";
 import { AFFECTED_GROUPS, CONTAINMENT_SEVERITIES, GROUP_LABEL, SEVERITY_WORDS, type ContainmentSeverity } from "@/lib/vocabulary/containments";
 
 type Action = (state: FormState, formData: FormData) => Promise<FormState>;

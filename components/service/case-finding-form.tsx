@@ -4,7 +4,7 @@ import { Notice } from "@/components/ui/notice";
 import { SelectField, TextField } from "@/components/ui/field";
 import { SubmitButton } from "@/components/ui/submit-button";
 import { submitKeepingFields, useActionStateThen } from "@/components/ui/kept-form";
-import { initialFormState, type FormState } from "@/lib/forms";
+import { initialFormState, type FormState } from "@/lib/form-state";
 
 /** Marks a failed position of a speaker that came back, with what was found. */
 export function CaseFindingForm({

@@ -3,7 +3,7 @@ import { useActionState, useState } from "react";
 import { Notice } from "@/components/ui/notice";
 import { TextAreaField } from "@/components/ui/field";
 import { SubmitButton } from "@/components/ui/submit-button";
-import { initialFormState, type FormState } from "@/lib/forms";
+import { initialFormState, type FormState } from "@/lib/form-state";
 import { CASE_STATE_WORDS, type CaseState } from "@/lib/vocabulary/case-states";
 
 export interface MoveChoice {

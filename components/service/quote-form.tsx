@@ -4,7 +4,7 @@ import { submitKeepingFields, useActionStateThen } from "@/components/ui/kept-fo
 import { SelectField, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { Button } from "@/components/ui/button";
-import { initialFormState, type FormState } from "@/lib/forms";
+import { initialFormState, type FormState } from "@/lib/form-state";
 
 interface Row {
   kind: "part" | "labour";

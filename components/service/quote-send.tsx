@@ -3,7 +3,7 @@ import type { ReactNode } from "react";
 import { useActionState } from "react";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
-import { initialFormState, type FormState } from "@/lib/forms";
+import { initialFormState, type FormState } from "@/lib/form-state";
 
 type CaseAction = (state: FormState, formData: FormData) => Promise<FormState>;
 

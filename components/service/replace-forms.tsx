@@ -4,7 +4,7 @@ import { DataTable } from "@/components/ui/data-table";
 import { SelectField, TextAreaField, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
-import { initialFormState, type FormState } from "@/lib/forms";
+import { initialFormState, type FormState } from "@/lib/form-state";
 
 type Action = (prev: FormState | undefined, formData: FormData) => Promise<FormState>;
 

@@ -4,7 +4,7 @@ import { SelectField, TextField } from "@/components/ui/field";
 import { submitKeepingFields, useActionStateThen } from "@/components/ui/kept-form";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
-import { initialFormState, type FormState } from "@/lib/forms";
+import { initialFormState, type FormState } from "@/lib/form-state";
 
 /** Where the repaired speaker goes and how; every field is kept when the action answers with a problem. */
 export function ReturnForm({

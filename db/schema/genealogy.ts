@@ -33,7 +33,13 @@ export const items = sqliteTable(
       .default(sql`(unixepoch('subsec') * 1000)`),
     createdEventId: integer("created_event_id").references(() => events.id),
   },
-  (t) => [index("items_kind_idx").on(t.kind, t.createdAt), index("items_model_idx").on(t.modelId)],
+  (t) => [
+    index("items_kind_idx").on(t.kind, t.createdAt),
+    index("items_model_idx").on(t.modelId),
+    // The work in hand (pairs in production, cabinets on the route, cartons waiting) is a few dozen
+    // items among a million of the same kind: the area pages find them by state, in creation order.
+    index("items_kind_state_idx").on(t.kind, t.state, t.createdAt),
+  ],
 );
 
 /**
@@ -76,6 +82,11 @@ export const links = sqliteTable(
     index("links_child_idx").on(t.childId, t.startedAt),
     // Covers the forward trace "now": child → parent with the parent's kind and identity.
     index("links_open_holders").on(t.childId, t.parentId, t.parentKind, t.parentIdentity).where(sql`${t.endedAt} IS NULL`),
+    // Covers the walk up every link, open or ended (when an item shipped, the first shipment of a
+    // pair): child → parent, its kind and the fitting time, without visiting the table.
+    index("links_up").on(t.childId, t.parentId, t.parentKind, t.startedAt),
+    // The few ended links (parts removed), so a walk up from the holdings index finds them cheaply.
+    index("links_ended").on(t.childId).where(sql`${t.endedAt} IS NOT NULL`),
     check("links_not_self", sql`${t.parentId} <> ${t.childId}`),
     check("links_end_after_start", sql`${t.endedAt} IS NULL OR ${t.endedAt} >= ${t.startedAt}`),
     check("links_end_has_event", sql`(${t.endedAt} IS NULL) = (${t.removeEventId} IS NULL)`),
@@ -101,6 +112,9 @@ export const holdings = sqliteTable(
   (t) => [
     primaryKey({ columns: [t.itemId, t.holderId] }),
     index("holdings_holder_idx").on(t.holderId),
+    // An item's holders by kind, read from the index alone: a lot's shipments among its 15,000
+    // holders, or the whole forward trace of a recall, without visiting the table.
+    index("holdings_item_kind").on(t.itemId, t.holderKind, t.holderId, t.holderIdentity),
     // Removal counts a row down to zero, then deletes the zeros through this small index.
     index("holdings_spent_idx").on(t.itemId).where(sql`${t.paths} = 0`),
     check("holdings_paths_not_negative", sql`${t.paths} >= 0`),

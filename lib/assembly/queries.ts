@@ -1,6 +1,6 @@
 /** What the assembly station reads: a pair's view, the pair a scan names, the pairs waiting, the reserved sets. */
 import "server-only";
-import { and, asc, eq, isNull } from "drizzle-orm";
+import { and, asc, eq, isNull, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { finishes, items, links, type Finish, type Item, type Model } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
@@ -114,7 +114,9 @@ export interface WaitingPair {
 
 /** Pairs in production whose cabinets have finished their route, oldest first (those on hold flagged). */
 export async function pairsAwaitingAssembly(db: DbOrTx, at: Date = clockNow()): Promise<WaitingPair[]> {
-  const pairs = await db.select().from(items).where(and(eq(items.kind, "pair"), eq(items.state, "in_production"))).orderBy(asc(items.createdAt));
+  const pairs = await db.select().from(items).where(and(eq(items.kind, "pair"), eq(items.state, "in_production")))
+    // "+": read through items_kind_state_idx, then sorted (lib/route/shop.ts says why).
+    .orderBy(sql`+${items.createdAt}`);
   const out: WaitingPair[] = [];
   for (const pair of pairs) {
     const ctx = await pairContext(db, pair, at);

@@ -99,9 +99,11 @@ export async function shippedOn(db: DbOrTx, day: string): Promise<ShippedCarton[
   const rows = await db.all<{ shipment: string; carton: string; pair: string | null; dealer: string | null; carrier: string | null; tracking: string | null }>(sql`
     SELECT s.identity AS shipment, c.identity AS carton, p.identity AS pair, d.name AS dealer, sd.carrier, sd.tracking
     FROM shipment_details sd
-    JOIN items s ON s.id = sd.item_id
+    -- CROSS JOIN keeps this order (SQLite's rule): from the day's few shipments down to their
+    -- cartons; left to itself the planner began from every carton ever packed (1 s at 40,000).
+    CROSS JOIN items s ON s.id = sd.item_id
     JOIN dealers d ON d.id = sd.dealer_id
-    JOIN links cl ON cl.parent_id = s.id AND cl.ended_at IS NULL
+    CROSS JOIN links cl ON cl.parent_id = s.id AND cl.ended_at IS NULL
     JOIN items c ON c.id = cl.child_id AND c.kind = 'carton'
     LEFT JOIN links pl ON pl.parent_id = c.id AND pl.position = 'PAIR' AND pl.ended_at IS NULL
     LEFT JOIN items p ON p.id = pl.child_id

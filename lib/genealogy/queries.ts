@@ -2,7 +2,7 @@ import "server-only";
 import { eq, inArray, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { dealers, finishes, items, models, owners, ownerships } from "@/db/schema";
-import { currentParent, shippedAt } from "./trace";
+import { currentParent, currentParentCount, shippedAt } from "./trace";
 
 /** Items with what names them (model, finish, dealer), in one query: what a label prints. */
 export function itemsWithNames(db: DbOrTx, identities: string[]) {
@@ -18,11 +18,16 @@ export function itemsWithNames(db: DbOrTx, identities: string[]) {
 export type ItemWithNames = Awaited<ReturnType<typeof itemsWithNames>>[number];
 
 /** An item with what names it, where it sits now and when it shipped. */
-export async function itemDetails(db: DbOrTx, identity: string) {
+export async function itemDetails(db: DbOrTx, identity: string, options: { parents?: number } = {}) {
   const [row] = await itemsWithNames(db, [identity]);
   if (!row) return null;
-  const [parents, shipped] = await Promise.all([currentParent(db, row.item.id), shippedAt(db, row.item.id)]);
-  return { ...row, parents, shippedAt: shipped };
+  // A lot has thousands of holders: a page that shows a few asks for a few, and for the count.
+  const [parents, parentCount, shipped] = await Promise.all([
+    currentParent(db, row.item.id, options.parents),
+    currentParentCount(db, row.item.id),
+    shippedAt(db, row.item.id),
+  ]);
+  return { ...row, parents, parentCount, shippedAt: shipped };
 }
 
 export type ItemDetails = NonNullable<Awaited<ReturnType<typeof itemDetails>>>;

@@ -19,7 +19,8 @@ const VALUE_COLUMNS: readonly ValueColumn[] = ["fsHz", "qts", "qes", "qms", "reO
 const FIELD_OF: Record<ValueColumn, TsField> = { fsHz: "fs", qts: "qts", qes: "qes", qms: "qms", reOhm: "re", vasL: "vas", sensitivityDb: "sensitivity" };
 const labelOf = (c: ValueColumn) => TS_FIELDS.find((f) => f.key === FIELD_OF[c])?.label ?? c;
 
-export const TS_CSV_TEMPLATE = "serial,fs,qts,qes,qms,re,vas,sensitivity\n";
+import { TS_CSV_TEMPLATE } from "./ts-csv-template";
+export { TS_CSV_TEMPLATE };
 /** Rows one file may bring in: a large batch, with room to spare. */
 export const TS_CSV_MAX_ROWS = 1000;
 

@@ -1,7 +1,7 @@
 /** The cabinet shop's home: every pair still on the route, and which are ready, holding or overdue. */
 import "server-only";
 import { ROUTE_STATIONS, type RouteStation } from "@/lib/vocabulary/stations";
-import { and, asc, eq, inArray, sql } from "drizzle-orm";
+import { and, eq, inArray, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { finishes, items } from "@/db/schema";
 import { now as clockNow } from "@/lib/clock";
@@ -31,18 +31,22 @@ export interface ShopPair {
 export const OVERDUE_AFTER_MS = 48 * 3600_000;
 
 /** Every pair still on the cabinet route (and every lone lacquer cabinet and trim part on its route), where it is now. */
+// "+": the few items in these states are read through items_kind_state_idx and then sorted; ordering
+// by the bare column lets the planner walk every item of the kind in creation order instead.
+const byCreation = sql`+${items.createdAt}`;
+
 export async function shopPairs(db: DbOrTx, at: Date = clockNow()): Promise<ShopPair[]> {
-  const pairs = await db.select().from(items).where(and(eq(items.kind, "pair"), inArray(items.state, ["in_production", "unpartnered"]))).orderBy(asc(items.createdAt));
+  const pairs = await db.select().from(items).where(and(eq(items.kind, "pair"), inArray(items.state, ["in_production", "unpartnered"]))).orderBy(byCreation);
   // Lacquer cabinets in no pair, still on the route.
   const lone = await db
     .select({ item: items })
     .from(items)
     .innerJoin(finishes, eq(finishes.id, items.finishId))
     .where(and(eq(items.kind, "cabinet"), eq(finishes.kind, "lacquer"), inArray(items.state, ["in_progress", "in_route"]), sql`NOT EXISTS (SELECT 1 FROM links l WHERE l.child_id = ${items.id} AND l.ended_at IS NULL)`))
-    .orderBy(asc(items.createdAt));
+    .orderBy(byCreation);
   pairs.push(...lone.map((l) => l.item));
   // Trim parts received or on their route: the same engine, the same board.
-  const trim = await db.select().from(items).where(and(eq(items.kind, "trim_part"), inArray(items.state, ["received", "in_route"]))).orderBy(asc(items.createdAt));
+  const trim = await db.select().from(items).where(and(eq(items.kind, "trim_part"), inArray(items.state, ["received", "in_route"]))).orderBy(byCreation);
   pairs.push(...trim);
   const out: ShopPair[] = [];
   for (const pair of pairs) {

@@ -193,3 +193,42 @@ describe("the holdings index", () => {
     expect(now).toEqual(atNow);
   });
 });
+
+describe("shipped at: read from the holdings index and the ended links", () => {
+  // The plain definition: walk every link up, open or ended, and take the first fitting into a shipment.
+  const walked = async (itemId: string) => {
+    const [row] = await db().all<{ at: number | null }>(sql`
+      WITH RECURSIVE up(id) AS (SELECT ${itemId} UNION SELECT l.parent_id FROM links l JOIN up ON l.child_id = up.id)
+      SELECT min(l.started_at) AS at FROM up JOIN links l ON l.child_id = up.id WHERE l.parent_kind = 'shipment'`);
+    return row?.at === null || row?.at === undefined ? null : new Date(Number(row.at)).toISOString();
+  };
+  const items = () => ({ pair, left, right, tweeterL, tweeterR, spare, xoL, xoR, lot, carton, shipment });
+
+  // Expected values: the fittings made in beforeAll (the carton went into the shipment on
+  // 2025-02-11 09:00); the failed tweeter D-T-1 left the left speaker after shipping, so it
+  // shipped with it; the spare was fitted later still, so it shipped then too, inside the pair.
+  test.each([
+    ["pair", "2025-02-11T09:00:00.000Z"],
+    ["left", "2025-02-11T09:00:00.000Z"],
+    ["tweeterL", "2025-02-11T09:00:00.000Z"],
+    ["spare", "2025-02-11T09:00:00.000Z"],
+    ["lot", "2025-02-11T09:00:00.000Z"],
+    ["carton", "2025-02-11T09:00:00.000Z"],
+    ["shipment", null],
+  ] as const)("%s: %s, as the walk over every link finds", async (name, expected) => {
+    const item = items()[name];
+    expect((await shippedAt(db(), item.id))?.toISOString() ?? null).toBe(expected);
+    expect(await walked(item.id)).toBe(expected);
+  });
+
+  test("a part taken out of a shipped pair and fitted into an unshipped speaker keeps its first shipment", async () => {
+    const other = await make("speaker", "S-T-SHIP-OTHER", "fitted");
+    const [row] = await db().all<{ id: string }>(sql`SELECT id FROM items WHERE identity = 'D-T-3'`);
+    await db().transaction(async (tx) => {
+      await removeFrom(tx, { parent: left, child: spare }, { ...by("2026-07-01T12:00:00Z", "service"), reason: "moved for a test" });
+      await fit(tx, { parent: other, child: spare, position: "T" }, by("2026-07-01T12:05:00Z", "service"));
+    });
+    expect((await shippedAt(db(), row!.id))?.toISOString()).toBe(await walked(row!.id));
+    expect(await shippedAt(db(), other.id)).toBeNull();
+  });
+});

@@ -4,7 +4,7 @@ import { useActionState } from "react";
 import { TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import { signInAction } from "./actions";
 
 export function SignInForm({ next }: { next?: string }) {

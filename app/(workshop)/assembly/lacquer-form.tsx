@@ -3,7 +3,7 @@ import { useActionState, useId } from "react";
 import { TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import { pairLacquerAction } from "./actions";
 
 /** Pairs two finished lacquer cabinets of one model and colour; the suggestions are the ones waiting. */

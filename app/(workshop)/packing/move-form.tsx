@@ -4,9 +4,9 @@ import { submitKeepingFields, useActionStateThen } from "@/components/ui/kept-fo
 import { SelectField, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { Button } from "@/components/ui/button";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import { moveCartonAction } from "./actions";
-import { LOCATION_HINT } from "./schemas";
+import { LOCATION_HINT } from "./words";
 
 /** Records that a packed carton was moved to another storage place. */
 export function MoveForm({ cartons, locations }: { cartons: { carton: string; location: string | null }[]; locations: string[] }) {

@@ -9,7 +9,8 @@ import { stringList } from "@/lib/forms";
  */
 const serial = (message: string) => z.string({ error: message }).trim().min(1, message).max(60, "A serial is at most 60 characters.");
 
-export const LOCATION_HINT = "Where the carton is stored, e.g. Rack B, shelf 2.";
+import { LOCATION_HINT } from "./words";
+export { LOCATION_HINT };
 
 const location = z
   .string({ error: LOCATION_HINT })

@@ -4,7 +4,7 @@ import { submitKeepingFields, useActionStateThen } from "@/components/ui/kept-fo
 import { SelectField, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { Button } from "@/components/ui/button";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import { PrintForm } from "@/components/register/print-form";
 import { HeldMark } from "@/components/register/containment-hold";
 import { buttonClasses } from "@/components/ui/button";

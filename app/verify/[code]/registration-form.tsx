@@ -3,7 +3,7 @@ import { useActionState } from "react";
 import { TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import { registerOwnerAction } from "./actions";
 
 /** The owner's registration of the pair on the certificate check; the answer never says more than that mail may be on its way. */

@@ -3,7 +3,7 @@ import { useActionState } from "react";
 import { TextAreaField, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import { retireDealerAction, saveDealerAction } from "./actions";
 
 export interface DealerValues {

@@ -3,7 +3,7 @@ import { useActionState, useState } from "react";
 import { SelectField, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import { VENEER_CUT_WORDS, VENEER_CUTS } from "@/lib/vocabulary/veneer-cuts";
 import { retireFinishAction, saveFinishAction } from "./actions";
 

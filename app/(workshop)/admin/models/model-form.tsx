@@ -4,7 +4,7 @@ import { Button } from "@/components/ui/button";
 import { controlClasses, TextAreaField, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import { PART_TYPE_LABEL, PART_TYPES, type PartType } from "@/lib/vocabulary/part-types";
 import type { ModelSpec } from "@/lib/workshop/model-spec";
 import { saveModelAction } from "./actions";

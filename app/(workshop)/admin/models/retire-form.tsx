@@ -3,7 +3,7 @@ import { useActionState } from "react";
 import { TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import { retireModelAction } from "./actions";
 
 /** Retire a model from new work, or bring it back, with the reason kept in its history. */

@@ -7,7 +7,7 @@ import { TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
 import { useToast } from "@/components/ui/toast";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import { createTokenAction, revokeTokenAction } from "./actions";
 
 /** The new token, shown in a read-only field until dismissed; it lives only in this page's memory. */

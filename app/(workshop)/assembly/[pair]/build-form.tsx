@@ -7,7 +7,7 @@ import { controlClasses } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
 import { cx } from "@/components/ui/cx";
-import { initialFormState, type FormState } from "@/lib/forms";
+import { initialFormState, type FormState } from "@/lib/form-state";
 import { positionName } from "@/lib/vocabulary/positions";
 import { buildSpeakersAction, checkScanAction } from "../actions";
 

@@ -3,7 +3,7 @@ import { useActionState, useState } from "react";
 import { SelectField, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import { receiveTrimAction } from "./actions";
 
 /** Goods-in of a supplier's delivery: the model and trim position, the supplier, its lot code, how many. */

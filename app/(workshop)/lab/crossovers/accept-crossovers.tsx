@@ -3,7 +3,7 @@ import { useRouter } from "next/navigation";
 import { useActionState, useEffect } from "react";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import { acceptCrossoverPlanAction } from "./actions";
 
 /**

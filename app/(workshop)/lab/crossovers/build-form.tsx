@@ -6,9 +6,10 @@ import { controlClasses } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
 import { readPartValues, TOLERANCE_LETTERS, type Unit } from "@/lib/crossover-parts";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import { buildCrossoverAction } from "./actions";
-import { MAX_ROWS, type PartRow } from "./schemas";
+import { MAX_ROWS } from "./limits";
+import type { PartRow } from "./schemas";
 
 type Row = PartRow & { key: number };
 

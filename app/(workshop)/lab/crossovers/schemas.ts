@@ -9,7 +9,8 @@ import { measure } from "@/lib/input/numbers";
  * here; what the values mean (positions, E24 nominals, tolerance letters, lots) is checked by
  * lib/lab/crossovers `buildCrossover`, which answers each row's problems under `parts.<index>`.
  */
-export const MAX_ROWS = 40;
+import { MAX_ROWS } from "./limits";
+export { MAX_ROWS };
 
 const text = (max: number, label: string) => z.string({ error: `${label} must be text.` }).max(max, `${label}: at most ${max} characters.`).default("");
 

@@ -1,6 +1,6 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { PairChart } from "@/components/lab/pair-chart";
+import { PairChart } from "@/components/lab/pair-chart-lazy";
 import { BackLink } from "@/components/ui/back-link";
 import { DataTable } from "@/components/ui/data-table";
 import { Notice } from "@/components/ui/notice";

@@ -2,7 +2,7 @@
 import { useActionState } from "react";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import { confirmRegistrationAction } from "./actions";
 
 export function ConfirmRegistrationForm({ token }: { token: string }) {

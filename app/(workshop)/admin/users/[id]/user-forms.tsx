@@ -6,7 +6,7 @@ import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
 import { useToast } from "@/components/ui/toast";
 import { ROLE_LABELS, ROLES, type Role } from "@/lib/auth/roles";
-import { initialFormState, type FormState } from "@/lib/forms";
+import { initialFormState, type FormState } from "@/lib/form-state";
 import { deactivateAction } from "../actions/deactivate";
 import { reactivateAction } from "../actions/reactivate";
 import { setRolesAction } from "../actions/set-roles";

@@ -3,7 +3,7 @@ import { useActionState } from "react";
 import { TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import { repartnerAction } from "../../actions/steps";
 
 /** Quality's sign-off for a new partner cabinet of the same model and finish. */

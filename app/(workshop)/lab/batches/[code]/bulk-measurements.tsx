@@ -3,8 +3,8 @@ import { useActionState, useState } from "react";
 import { controlClasses } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
-import { initialFormState } from "@/lib/forms";
-import { TS_CSV_TEMPLATE } from "@/lib/lab/ts-csv";
+import { initialFormState } from "@/lib/form-state";
+import { TS_CSV_TEMPLATE } from "@/lib/lab/ts-csv-template";
 import { tsCsvAction } from "../../actions/batches";
 
 const fileClasses = `${controlClasses} py-2.5 file:mr-3 file:rounded-md file:border-0 file:bg-leaf-soft file:px-3 file:py-1.5 file:font-bold file:text-leaf-dark`;

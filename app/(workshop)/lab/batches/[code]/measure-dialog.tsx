@@ -6,7 +6,7 @@ import { controlClasses, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
 import { useToast } from "@/components/ui/toast";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import { failUnitAction, measurementAction } from "../../actions/batches";
 
 const TS = [

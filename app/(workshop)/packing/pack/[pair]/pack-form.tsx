@@ -4,9 +4,9 @@ import { submitKeepingFields } from "@/components/ui/kept-form";
 import { TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { Button } from "@/components/ui/button";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import { packPairAction } from "../../actions";
-import { LOCATION_HINT } from "../../schemas";
+import { LOCATION_HINT } from "../../words";
 
 /** A line of the packing list as lib/dispatch's packingLines gives it (kept here: that module is server-only). */
 interface PackingLine {

@@ -7,7 +7,7 @@ import { MomentSwitch } from "@/components/register/moment-switch";
 import { PairHalves } from "@/components/register/pair-halves";
 import { SerialLink } from "@/components/register/serial-link";
 import { PrintLabels } from "@/components/register/print-labels";
-import { TraceTreePicture } from "@/components/register/trace-tree";
+import { TraceTreePicture } from "@/components/register/trace-tree-lazy";
 import { Badge } from "@/components/ui/badge";
 import { BackLink } from "@/components/ui/back-link";
 import { DataTable } from "@/components/ui/data-table";
@@ -56,6 +56,9 @@ export async function generateMetadata({ params }: { params: Promise<{ identity:
 
 // Lots are held by thousands: the cards show a few and say how many more.
 const SHOW = 5;
+// …and the table of holders lists this many, with the whole list one link away as JSON: fifteen
+// thousand rows would make the page megabytes long and slow to build, send and draw.
+const HOLDER_ROWS = 200;
 
 function HolderSummary({ holders }: { holders: { kind: string }[] }) {
   if (holders.length === 0) return null;
@@ -79,9 +82,9 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
   const user = await requirePage("register.read");
   const db = getDb();
   const identity = pageParam((await params).identity);
-  const found = await itemDetails(db, identity);
+  const found = await itemDetails(db, identity, { parents: SHOW });
   if (!found) notFound();
-  const { item, model, finish, dealer, parents, shippedAt } = found;
+  const { item, model, finish, dealer, parents, parentCount, shippedAt } = found;
 
   const atParam = momentParam.safeParse((await searchParams).at ?? "now");
   const at = atParam.success ? atParam.data : "now";
@@ -198,7 +201,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
             </p>
           ) : (
             <ul className="flex flex-col gap-1" data-testid="current-parents">
-              {parents.slice(0, SHOW).map((p, i) => {
+              {parents.map((p, i) => {
                 const words = positionWords(p.kind, p.position);
                 // The first holder carries the journey on: "…, shipped to <dealer> on <day> in shipment H-…".
                 const via = i === 0 && shipment && shipment.id !== p.id ? shipment : null;
@@ -219,7 +222,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
                   </li>
                 );
               })}
-              {parents.length > SHOW ? <li className="text-ink-soft">and {parents.length - SHOW} more: see what holds it, below.</li> : null}
+              {parentCount > parents.length ? <li className="text-ink-soft">and {(parentCount - parents.length).toLocaleString("en")} more: see what holds it, below.</li> : null}
             </ul>
           )}
         </Panel>
@@ -300,7 +303,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
           </p>
         ) : null}
         <details open={holders.length <= 41} className="group">
-          <summary className="mb-3 cursor-pointer font-bold text-leaf-dark">Every holder ({holders.length - 1})</summary>
+          <summary className="mb-3 cursor-pointer font-bold text-leaf-dark">Every holder ({(holders.length - 1).toLocaleString("en")})</summary>
         <DataTable
           caption="Everything that holds this item"
           testId="holders-table"
@@ -311,6 +314,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
           ]}
           rows={holders
             .filter((h) => h.id !== item.id)
+            .slice(0, HOLDER_ROWS)
             .map((h) => ({
               id: h.id,
               cells: {
@@ -319,6 +323,12 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
               },
             }))}
         />
+        {holders.length - 1 > HOLDER_ROWS ? (
+          <p className="mt-2 text-sm" data-testid="holders-more">
+            The first {HOLDER_ROWS} of {(holders.length - 1).toLocaleString("en")}, the nearest holders first.{" "}
+            <a className="font-bold text-leaf-dark underline" href={`/api/v1/items/${encodeURIComponent(item.identity)}/trace?direction=forward`}>Every holder as JSON</a>
+          </p>
+        ) : null}
         </details>
       </Panel>
 

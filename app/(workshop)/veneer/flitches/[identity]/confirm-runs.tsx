@@ -4,7 +4,7 @@ import { leafList } from "@/lib/veneer/plan";
 import { useActionState, useEffect } from "react";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import type { PlanRun } from "@/lib/veneer/plan";
 import { confirmRunsAction } from "../../actions/confirm";
 

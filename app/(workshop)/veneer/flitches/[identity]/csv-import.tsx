@@ -1,18 +1,27 @@
 "use client";
-import { useActionState, useMemo, useState } from "react";
+import { useActionState, useEffect, useState } from "react";
 import { controlClasses } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
-import { initialFormState } from "@/lib/forms";
-import { LEAF_CSV_TEMPLATE, parseLeafCsv } from "@/lib/veneer/csv";
+import { initialFormState } from "@/lib/form-state";
+import type { LeafCsvResult } from "@/lib/veneer/csv";
 import { importLeavesAction } from "../../actions/leaves";
+
+// The parser (papaparse) loads only once someone starts on a CSV, not with the flitch page.
+const loadCsv = () => import("@/lib/veneer/csv");
 
 /** Paste or choose a CSV; it is checked as you go, and the server checks it again before writing all of it. */
 export function CsvImport({ flitch, leafCount }: { flitch: string; leafCount: number }) {
   const [text, setText] = useState("");
   const [tooBig, setTooBig] = useState(false);
   const [state, action] = useActionState(importLeavesAction, initialFormState);
-  const preview = useMemo(() => (text.trim() ? parseLeafCsv(text, { leafCount }) : null), [text, leafCount]);
+  // The check of the text now in the box; a check of an older text is not shown.
+  const [checked, setChecked] = useState<{ text: string; leafCount: number; result: LeafCsvResult } | null>(null);
+  useEffect(() => {
+    if (!text.trim()) return;
+    void loadCsv().then(({ parseLeafCsv }) => setChecked({ text, leafCount, result: parseLeafCsv(text, { leafCount }) }));
+  }, [text, leafCount]);
+  const preview = text.trim() && checked?.text === text && checked.leafCount === leafCount ? checked.result : null;
   const serverErrors = state.ok ? [] : (state.fieldErrors?.csv ?? []);
   const onFile = async (file: File | undefined) => {
     if (!file) return;
@@ -42,7 +51,7 @@ export function CsvImport({ flitch, leafCount }: { flitch: string; leafCount: nu
       ) : null}
       <p className="text-ink-soft">
         Columns: <code>seq</code> (required), <code>length_mm</code>, <code>width_mm</code>, <code>usable</code> (yes/no), <code>defect</code>, <code>defect_note</code>, <code>defect_position_mm</code>. Comma, semicolon or tab separated.{" "}
-        <button type="button" className="font-bold text-leaf-dark underline" onClick={() => setText(LEAF_CSV_TEMPLATE(leafCount))}>
+        <button type="button" className="font-bold text-leaf-dark underline" onClick={() => void loadCsv().then(({ LEAF_CSV_TEMPLATE }) => setText(LEAF_CSV_TEMPLATE(leafCount)))}>
           Start from a template
         </button>
       </p>

@@ -7,7 +7,7 @@ import { SelectField, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SubmitButton } from "@/components/ui/submit-button";
 import { useToast } from "@/components/ui/toast";
-import { initialFormState } from "@/lib/forms";
+import { initialFormState } from "@/lib/form-state";
 import { clearDefectAction, measureLeafAction, noteDefectAction } from "../../actions/leaves";
 
 export interface LeafRowData {

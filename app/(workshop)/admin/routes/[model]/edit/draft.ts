@@ -5,9 +5,9 @@
  * server's answer placed back on the fields it is about. Pure: no React, no server; the form
  * only renders it.
  */
-import type { FormState } from "@/lib/forms";
+import type { FormState } from "@/lib/form-state";
+import { holdText } from "@/lib/route/hold-words";
 import { windowText } from "@/lib/route/rules";
-import { holdText } from "@/lib/route/spec-rules";
 import type { ReadingKind, ReadingSpec, StepSpec } from "@/lib/route/types";
 
 export type HoldUnit = "min" | "h" | "d";

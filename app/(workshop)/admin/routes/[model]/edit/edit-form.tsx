@@ -4,7 +4,7 @@ import { Button } from "@/components/ui/button";
 import { SelectField, TextAreaField, TextField } from "@/components/ui/field";
 import { submitKeepingFields } from "@/components/ui/kept-form";
 import { Notice } from "@/components/ui/notice";
-import { initialFormState, type FormState } from "@/lib/forms";
+import { initialFormState, type FormState } from "@/lib/form-state";
 import { READING_KINDS, type ReadingKind, type StepSpec } from "@/lib/route/types";
 import { ROUTE_STATIONS, STATION_NAME } from "@/lib/vocabulary/stations";
 import type { RouteKind } from "@/lib/vocabulary/route-kinds";

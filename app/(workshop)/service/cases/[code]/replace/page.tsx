@@ -4,7 +4,7 @@ import { SafetyCautions } from "@/components/shell/safety-cautions";
 import { BackLink } from "@/components/ui/back-link";
 import { Notice } from "@/components/ui/notice";
 import { PageHeader, Panel } from "@/components/ui/panel";
-import { ReplaceChart } from "@/components/service/replace-chart";
+import { ReplaceChart } from "@/components/service/replace-chart-lazy";
 import { FitReplacement, MarkRepaired, ReleaseReservation, ReplaceCandidates, ReplaceSets, ReserveBySerial } from "@/components/service/replace-forms";
 import { getDb } from "@/db";
 import { formatDb, formatHzRange, formatLimitDb } from "@/lib/acoustics/format";

@@ -1,6 +1,6 @@
 import type { Metadata } from "next";
 import { notFound } from "next/navigation";
-import { PairChart } from "@/components/lab/pair-chart";
+import { PairChart } from "@/components/lab/pair-chart-lazy";
 import { PrintForm } from "@/components/register/print-form";
 import { RetestForm } from "@/components/service/retest-form";
 import { BackLink } from "@/components/ui/back-link";

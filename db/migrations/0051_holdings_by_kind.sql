@@ -1,0 +1,1 @@
+CREATE INDEX `holdings_item_kind` ON `holdings` (`item_id`,`holder_kind`,`holder_id`,`holder_identity`);

@@ -1,0 +1,1 @@
+CREATE INDEX `items_kind_state_idx` ON `items` (`kind`,`state`,`created_at`);
