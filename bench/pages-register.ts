@@ -16,10 +16,10 @@ import type { Client } from "@libsql/client";
 import { openClient, openDb } from "@/db";
 import { migrateDatabase } from "@/db/migrate";
 import { seedDemo } from "@/db/seed/seed";
-import { buildRegister, type Built, type RegisterShape } from "./register";
+import { buildRegister, SEARCH_SHAPE, type Built, type RegisterShape } from "./register";
 
-/** 33 years of 1,250 pairs: about 24.5 items a pair, so just over 1,000,000 items. */
-export const PAGES_SHAPE: RegisterShape = { years: 33, pairsPerYear: 1250 };
+/** The search benchmark's register: over 1,000,000 items. */
+export const PAGES_SHAPE: RegisterShape = SEARCH_SHAPE;
 export const MIN_ITEMS = 1_000_000;
 
 /** What the benchmark keeps of the build (the pair list is long; a sample is enough to time). */
@@ -39,6 +39,11 @@ async function merge(client: Client, rawFile: string): Promise<{ renamed: number
   await client.execute({ sql: "ATTACH DATABASE ? AS b", args: [rawFile] });
   await client.execute("BEGIN IMMEDIATE");
   try {
+    // The synthetic register's own dealers and owners (beside the seed's) come along as they are.
+    await client.execute(
+      "INSERT INTO main.dealers (id, code, name, city, country, email) SELECT id, code, name, city, country, email FROM b.dealers WHERE code NOT IN (SELECT code FROM main.dealers)",
+    );
+    await client.execute("INSERT INTO main.owners (id, name, email, town, country) SELECT id, name, email, town, country FROM b.owners");
     for (const table of ["models", "finishes", "dealers"]) {
       await client.execute(`CREATE TEMP TABLE map_${table} AS SELECT s.id AS bid, m.id AS mid FROM b.${table} s JOIN main.${table} m ON m.code = s.code`);
       const [row] = (await client.execute(`SELECT (SELECT count(*) FROM b.${table}) - (SELECT count(*) FROM map_${table}) AS missing`)).rows;

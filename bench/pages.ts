@@ -98,6 +98,9 @@ function probes(t: Targets): Probe[] {
       listOf("nodes", 3)),
     json("/api/v1/search?q=[serial]", "quality", t.pairs.map((p) => `/api/v1/search?q=${encodeURIComponent(p)}`), (d) =>
       JSON.stringify(d).includes("identity") ? null : "no hit"),
+    // Six characters from the middle of a serial, without its hyphens: a fragment, read from the index.
+    json("/api/v1/search?q=[fragment]", "quality", t.pairs.map((p) => `/api/v1/search?q=${encodeURIComponent(p.replace(/-/g, "").slice(3, 9))}`), (d) =>
+      JSON.stringify(d).includes("identity") ? null : "no hit"),
   ];
 }
 

@@ -536,21 +536,31 @@ export function matchUnitsOf(rows: UnitRow[], bands: ReturnType<typeof thirdOcta
  * type, on one-third-octave bands over the part type's passband.
  */
 export async function matchBatch(db: DbOrTx, batch: { id: string; partType: PartType }, opts: { limitDb: number; fsWeight?: number; qtsWeight?: number }): Promise<MatchView> {
-  const pass = PASSBANDS[batch.partType];
-  const bands = thirdOctaveBands(pass.minHz, pass.maxHz);
   const rows = await batchUnitsView(db, batch.id, { withPoints: true });
-  const notReady: MatchView["notReady"] = [];
+  const { free, quarantined } = await withoutQuarantined(db, readyOf(rows).ready);
+  return matchViewOf(batch.partType, rows, free, quarantined, opts);
+}
+
+/** A batch's units that matching may consider (measured or back in stock, held by no set or case), and the failed ones. */
+function readyOf(rows: UnitRow[]): { ready: UnitRow[]; failed: MatchView["notReady"] } {
+  const failed: MatchView["notReady"] = [];
   const ready: UnitRow[] = [];
   for (const r of rows) {
     if (r.setCode || r.caseCode) continue;
     if (r.state === "failed") {
-      notReady.push({ identity: r.identity, reason: "failed on the bench" });
+      failed.push({ identity: r.identity, reason: "failed on the bench" });
       continue;
     }
     if (r.state !== "measured" && r.state !== "in_stock") continue;
     ready.push(r);
   }
-  const { free, quarantined } = await withoutQuarantined(db, ready);
+  return { ready, failed };
+}
+
+function matchViewOf(partType: PartType, rows: UnitRow[], free: UnitRow[], quarantined: Quarantined[], opts: { limitDb: number; fsWeight?: number; qtsWeight?: number }): MatchView {
+  const pass = PASSBANDS[partType];
+  const bands = thirdOctaveBands(pass.minHz, pass.maxHz);
+  const notReady = readyOf(rows).failed;
   const read = matchUnitsOf(free, bands);
   const units = read.units;
   notReady.push(...read.notReady);
@@ -575,19 +585,53 @@ export interface MatchReadiness {
  * there, none is under a tighter one).
  */
 export async function matchReadiness(db: DbOrTx, batch: { id: string; partType: PartType }): Promise<MatchReadiness> {
-  const limits = await modelsTakingPartType(db, batch.partType);
-  const loosest = limits.sort((a, b) => b.limit - a.limit)[0];
-  if (!loosest) {
-    const free = (await batchUnitsView(db, batch.id)).filter((u) => !u.setCode && !u.caseCode && (u.state === "measured" || u.state === "in_stock") && u.responseId !== null).length;
-    return { free, quarantined: 0, canMatch: false, why: free >= 2 ? `No model in production has a mismatch limit for ${partWord(batch.partType)}s, so there is nothing to match them against.` : null };
+  return (await matchReadinessOf(db, [batch])).get(batch.id)!;
+}
+
+/**
+ * `matchReadiness` of many batches at once (the lab's home lists every batch with free units):
+ * their units, responses, holds and the models' limits are read in a few queries for all of them,
+ * not a few queries a batch.
+ */
+export async function matchReadinessOf(db: DbOrTx, batches: readonly { id: string; partType: PartType }[]): Promise<Map<string, MatchReadiness>> {
+  const out = new Map<string, MatchReadiness>();
+  if (!batches.length) return out;
+  const unitRows = await db
+    .select({ batchId: batchUnits.batchId, id: items.id, identity: items.identity, state: items.state, makerSerial: batchUnits.makerSerial })
+    .from(batchUnits)
+    .innerJoin(items, eq(items.id, batchUnits.itemId))
+    .where(inArray(batchUnits.batchId, batches.map((b) => b.id)))
+    .orderBy(asc(items.identity));
+  const viewed = new Map((await unitRowsOf(db, unitRows, { withPoints: true })).map((u) => [u.id, u]));
+  const rowsOf = new Map<string, UnitRow[]>(batches.map((b) => [b.id, []]));
+  for (const r of unitRows) rowsOf.get(r.batchId)!.push(viewed.get(r.id)!);
+  const ready = new Map([...rowsOf].map(([id, rows]) => [id, readyOf(rows).ready]));
+  const { quarantined } = await withoutQuarantined(db, [...ready.values()].flat());
+  const held = new Set(quarantined.map((q) => q.itemId));
+  const limitsOf = new Map<PartType, Awaited<ReturnType<typeof modelsTakingPartType>>>();
+  for (const partType of new Set(batches.map((b) => b.partType))) limitsOf.set(partType, await modelsTakingPartType(db, partType));
+
+  for (const batch of batches) {
+    const rows = rowsOf.get(batch.id)!;
+    const candidates = ready.get(batch.id)!;
+    const limits = [...limitsOf.get(batch.partType)!];
+    const loosest = limits.sort((a, b) => b.limit - a.limit)[0];
+    if (!loosest) {
+      const free = candidates.filter((u) => u.responseId !== null).length;
+      out.set(batch.id, { free, quarantined: 0, canMatch: false, why: free >= 2 ? `No model in production has a mismatch limit for ${partWord(batch.partType)}s, so there is nothing to match them against.` : null });
+      continue;
+    }
+    const view = matchViewOf(batch.partType, rows, candidates.filter((u) => !held.has(u.id)), quarantined.filter((q) => candidates.some((u) => u.id === q.itemId)), { limitDb: loosest.limit });
+    const free = view.units.length;
+    if (view.plan.pairs.length) {
+      out.set(batch.id, { free, quarantined: view.quarantined.length, canMatch: true, why: null });
+      continue;
+    }
+    const why = free >= 2 ? whyNoPairs(view.plan, { free, limitDb: loosest.limit, noun: "units", bandLabels: view.bands.map((b) => bandLabel(b.nominal)) }) : null;
+    const several = new Set(limits.map((l) => l.limit)).size > 1;
+    out.set(batch.id, { free, quarantined: view.quarantined.length, canMatch: false, why: why && several ? `${why} That is the loosest limit of any model, the ${loosest.code}'s.` : why });
   }
-  const view = await matchBatch(db, batch, { limitDb: loosest.limit });
-  const free = view.units.length;
-  const quarantined = view.quarantined.length;
-  if (view.plan.pairs.length) return { free, quarantined, canMatch: true, why: null };
-  const why = free >= 2 ? whyNoPairs(view.plan, { free, limitDb: loosest.limit, noun: "units", bandLabels: view.bands.map((b) => bandLabel(b.nominal)) }) : null;
-  const several = new Set(limits.map((l) => l.limit)).size > 1;
-  return { free, quarantined, canMatch: false, why: why && several ? `${why} That is the loosest limit of any model, the ${loosest.code}'s.` : why };
+  return out;
 }
 
 /** Thrown when units of a plan were reserved by someone else first. */

@@ -14,7 +14,7 @@ import { formatCalendarDay, formatDay } from "@/lib/format";
 import { failedParts } from "@/lib/lab/queries";
 import { formatDb, formatLimitDb } from "@/lib/acoustics";
 import { UNIT_CLASS_WORDS, UNIT_CLASSES } from "@/lib/lab/unit-counts";
-import { listBatches, matchReadiness, openSets } from "@/lib/lab/units";
+import { listBatches, matchReadinessOf, openSets } from "@/lib/lab/units";
 import { partWord, PART_TYPE_LABEL, isPartType } from "@/lib/vocabulary/part-types";
 
 export const metadata: Metadata = { title: "Lab" };
@@ -31,7 +31,9 @@ export default async function Page() {
   const [models, batches, sets, failedItems] = await Promise.all([listModels(db), listBatches(db), openSets(db), failedParts(db)]);
   const waiting = batches.filter((b) => b.waiting > 0);
   // Matching is offered only where it can pair something; elsewhere the page says why not.
-  const ready = await Promise.all(batches.filter((b) => b.free >= 2).map(async (b) => ({ batch: b, readiness: await matchReadiness(db, b) })));
+  const candidates = batches.filter((b) => b.free >= 2);
+  const readiness = await matchReadinessOf(db, candidates);
+  const ready = candidates.map((b) => ({ batch: b, readiness: readiness.get(b.id)! }));
   // The "Other" column only when some unit is neither waiting, free, reserved, fitted nor failed.
   const classes = UNIT_CLASSES.filter((c) => c !== "other" || batches.some((b) => b.other > 0));
   return (
