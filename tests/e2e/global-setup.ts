@@ -4,7 +4,7 @@ import { createServer } from "node:net";
 import { tmpdir } from "node:os";
 import { join, resolve } from "node:path";
 import type { TestProject } from "vitest/node";
-import { openDb } from "@/db";
+import { openClient, openDb } from "@/db";
 import { migrateDatabase } from "@/db/migrate";
 import { seedDemo } from "@/db/seed/seed";
 import { startFakeSmtp } from "@/lib/mail/fake-smtp";
@@ -63,10 +63,20 @@ export default async function setup(project: TestProject) {
           build.once("error", fail);
           build.once("exit", (code) => (code === 0 ? ok() : fail(new Error(`next build failed with status ${code}`))));
         });
-  await migrateDatabase(databaseUrl);
-  const { client, db } = openDb(databaseUrl);
-  await seedDemo(db);
-  client.close();
+  const seeded = process.env.E2E_SEEDED_DB;
+  if (seeded) {
+    // A demo seeded once for every lane (scripts/e2e-lanes.mjs): this lane takes a consistent copy
+    // of it (VACUUM INTO), which migrating puts back in WAL mode.
+    const source = openClient(`file:${seeded}`);
+    await source.execute({ sql: "VACUUM INTO ?", args: [join(dir, "e2e.db")] });
+    source.close();
+    await migrateDatabase(databaseUrl);
+  } else {
+    await migrateDatabase(databaseUrl);
+    const { client, db } = openDb(databaseUrl);
+    await seedDemo(db);
+    client.close();
+  }
   await built;
 
   const smtp = await startFakeSmtp({ port: 0, dir: mailboxDir });
