@@ -223,9 +223,13 @@ export async function unitRowsOf(
     .from(caseReservations)
     .innerJoin(serviceCases, eq(serviceCases.id, caseReservations.caseId))
     .where(and(inArray(caseReservations.itemId, ids), isNull(caseReservations.endedAt)));
+  const responseOf = new Map(latestResponse.map((x) => [x.itemId, x]));
+  const tsOf = new Map(latestTs.map((x) => [x.itemId, x]));
+  const setOf = new Map(sets.map((x) => [x.itemId, x.code]));
+  const caseOf = new Map(cases.map((x) => [x.itemId, x.code]));
   return rows.map((r) => {
-    const resp = latestResponse.find((x) => x.itemId === r.id);
-    const ts = latestTs.find((x) => x.itemId === r.id);
+    const resp = responseOf.get(r.id);
+    const ts = tsOf.get(r.id);
     return {
       ...r,
       responseId: resp?.id ?? null,
@@ -238,8 +242,8 @@ export async function unitRowsOf(
       reOhm: ts?.reOhm ?? null,
       vasL: ts?.vasL ?? null,
       sensitivityDb: ts?.sensitivityDb ?? null,
-      setCode: sets.find((s) => s.itemId === r.id)?.code ?? null,
-      caseCode: cases.find((c) => c.itemId === r.id)?.code ?? null,
+      setCode: setOf.get(r.id) ?? null,
+      caseCode: caseOf.get(r.id) ?? null,
     };
   });
 }
@@ -600,7 +604,8 @@ export async function matchReadinessOf(db: DbOrTx, batches: readonly { id: strin
     .select({ batchId: batchUnits.batchId, id: items.id, identity: items.identity, state: items.state, makerSerial: batchUnits.makerSerial })
     .from(batchUnits)
     .innerJoin(items, eq(items.id, batchUnits.itemId))
-    .where(inArray(batchUnits.batchId, batches.map((b) => b.id)))
+    // Only units matching could take: their responses (with every point) are the costly part to read.
+    .where(and(inArray(batchUnits.batchId, batches.map((b) => b.id)), inArray(items.state, ["measured", "in_stock"])))
     .orderBy(asc(items.identity));
   const viewed = new Map((await unitRowsOf(db, unitRows, { withPoints: true })).map((u) => [u.id, u]));
   const rowsOf = new Map<string, UnitRow[]>(batches.map((b) => [b.id, []]));
