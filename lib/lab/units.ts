@@ -14,7 +14,7 @@ import { KIND_WORD } from "@/lib/vocabulary/item-kinds";
 import { BATCH_POSITION, MAKER_LOT_POSITION } from "@/lib/vocabulary/positions";
 import { batchCode, makerLotIdentity } from "@/lib/serials/lots";
 import { bandLabel, bandLevels, checkTsParams, formatDb, formatLimitDb, parseResponseFile, thirdOctaveBands, TS_FIELDS } from "@/lib/acoustics";
-import { LIMIT_EPSILON_DB, pairCost, planPairs } from "@/lib/matching";
+import { hasAllowedPair, LIMIT_EPSILON_DB, pairCost, planPairs } from "@/lib/matching";
 import { allocateSerial } from "@/lib/serials/allocator";
 import { batchCountMismatch } from "./batch-count";
 import { whyNoPairs } from "./plan-words";
@@ -626,15 +626,21 @@ export async function matchReadinessOf(db: DbOrTx, batches: readonly { id: strin
       out.set(batch.id, { free, quarantined: 0, canMatch: false, why: free >= 2 ? `No model in production has a mismatch limit for ${partWord(batch.partType)}s, so there is nothing to match them against.` : null });
       continue;
     }
-    const view = matchViewOf(batch.partType, rows, candidates.filter((u) => !held.has(u.id)), quarantined.filter((q) => candidates.some((u) => u.id === q.itemId)), { limitDb: loosest.limit });
-    const free = view.units.length;
-    if (view.plan.pairs.length) {
-      out.set(batch.id, { free, quarantined: view.quarantined.length, canMatch: true, why: null });
+    const free = candidates.filter((u) => !held.has(u.id));
+    const mine = quarantined.filter((q) => candidates.some((u) => u.id === q.itemId));
+    // Whether one pair is allowed is all the answer needs; the plan itself only says why not.
+    const pass = PASSBANDS[batch.partType];
+    const bands = thirdOctaveBands(pass.minHz, pass.maxHz);
+    const read = matchUnitsOf(free, bands);
+    if (hasAllowedPair(read.units, { limitDb: loosest.limit, bandLabels: bands.map((b) => bandLabel(b.nominal)) })) {
+      out.set(batch.id, { free: read.units.length, quarantined: mine.length, canMatch: true, why: null });
       continue;
     }
-    const why = free >= 2 ? whyNoPairs(view.plan, { free, limitDb: loosest.limit, noun: "units", bandLabels: view.bands.map((b) => bandLabel(b.nominal)) }) : null;
+    const view = matchViewOf(batch.partType, rows, free, mine, { limitDb: loosest.limit });
+    const count = view.units.length;
+    const why = count >= 2 ? whyNoPairs(view.plan, { free: count, limitDb: loosest.limit, noun: "units", bandLabels: view.bands.map((b) => bandLabel(b.nominal)) }) : null;
     const several = new Set(limits.map((l) => l.limit)).size > 1;
-    out.set(batch.id, { free, quarantined: view.quarantined.length, canMatch: false, why: why && several ? `${why} That is the loosest limit of any model, the ${loosest.code}'s.` : why });
+    out.set(batch.id, { free: count, quarantined: view.quarantined.length, canMatch: false, why: why && several ? `${why} That is the loosest limit of any model, the ${loosest.code}'s.` : why });
   }
   return out;
 }

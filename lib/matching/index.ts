@@ -206,6 +206,20 @@ function over(x: number, limitDb: number): string {
   return String(x);
 }
 
+/**
+ * Whether any two of the units may be paired under `opts.limitDb`: exactly when `planPairs` would
+ * plan at least one pair (a plan of most pairs has one as soon as one pair is allowed), without
+ * working the plan out. The lab's home asks this of every batch on every visit.
+ */
+export function hasAllowedPair(units: Unit[], opts: MatchOptions): boolean {
+  const w = checkOptions(opts);
+  checkUnits(units);
+  for (let i = 0; i < units.length; i++) {
+    for (let j = i + 1; j < units.length; j++) if (allowed(costOf(units[i]!, units[j]!, w).maxDiffDb, opts.limitDb)) return true;
+  }
+  return false;
+}
+
 // ---- the plan -----------------------------------------------------------------------------------
 
 export interface PlanTuning {
