@@ -5,8 +5,8 @@
  */
 import { spawn, type ChildProcess } from "node:child_process";
 import { mkdirSync } from "node:fs";
-import { createServer } from "node:net";
 import { join, resolve } from "node:path";
+import { freePort, waitForApp } from "../tests/setup/app-server";
 
 const NEXT = resolve("node_modules/.bin/next");
 
@@ -16,17 +16,6 @@ export function nextBuild(): Promise<void> {
     const build = spawn(NEXT, ["build"], { stdio: ["ignore", "inherit", "inherit"], env: { ...process.env, NODE_ENV: "production", TWINLEAF_BUILD_SKIP_TYPECHECK: "1" } });
     build.once("error", fail);
     build.once("exit", (code) => (code === 0 ? ok() : fail(new Error(`next build failed with status ${code}`))));
-  });
-}
-
-function freePort(): Promise<number> {
-  return new Promise((res, rej) => {
-    const srv = createServer();
-    srv.once("error", rej);
-    srv.listen(0, "127.0.0.1", () => {
-      const { port } = srv.address() as { port: number };
-      srv.close(() => res(port));
-    });
   });
 }
 
@@ -62,17 +51,11 @@ export async function startApp(databaseUrl: string, dir: string): Promise<Runnin
       // A server that ignores SIGTERM is ended after 5 s.
       setTimeout(() => server.exitCode === null && server.kill("SIGKILL"), 5000).unref();
     });
-  const until = Date.now() + 60_000;
-  while (Date.now() < until) {
-    if (server.exitCode !== null) throw new Error(`next start exited with ${server.exitCode} before it answered`);
-    try {
-      const res = await fetch(`${baseUrl}/sign-in`, { redirect: "manual" });
-      if (res.status < 500) return { baseUrl, stop };
-    } catch {
-      // not listening yet
-    }
-    await new Promise((r) => setTimeout(r, 250));
+  try {
+    await waitForApp(baseUrl, server);
+  } catch (e) {
+    await stop();
+    throw e;
   }
-  await stop();
-  throw new Error(`the app did not answer at ${baseUrl} within 60 s`);
+  return { baseUrl, stop };
 }

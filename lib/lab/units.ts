@@ -540,9 +540,15 @@ export function matchUnitsOf(rows: UnitRow[], bands: ReturnType<typeof thirdOcta
  * type, on one-third-octave bands over the part type's passband.
  */
 export async function matchBatch(db: DbOrTx, batch: { id: string; partType: PartType }, opts: { limitDb: number; fsWeight?: number; qtsWeight?: number }): Promise<MatchView> {
-  const rows = await batchUnitsView(db, batch.id, { withPoints: true });
-  const { free, quarantined } = await withoutQuarantined(db, readyOf(rows).ready);
-  return matchViewOf(batch.partType, rows, free, quarantined, opts);
+  const { ready, failed } = readyOf(await batchUnitsView(db, batch.id, { withPoints: true }));
+  const { free, quarantined } = await withoutQuarantined(db, ready);
+  return matchViewOf(batch.partType, failed, matchUnitsOf(free, bandsOf(batch.partType)), quarantined, opts);
+}
+
+/** The one-third-octave bands over a part type's passband, on which its units are matched. */
+function bandsOf(partType: PartType) {
+  const pass = PASSBANDS[partType];
+  return thirdOctaveBands(pass.minHz, pass.maxHz);
 }
 
 /** A batch's units that matching may consider (measured or back in stock, held by no set or case), and the failed ones. */
@@ -561,15 +567,16 @@ function readyOf(rows: UnitRow[]): { ready: UnitRow[]; failed: MatchView["notRea
   return { ready, failed };
 }
 
-function matchViewOf(partType: PartType, rows: UnitRow[], free: UnitRow[], quarantined: Quarantined[], opts: { limitDb: number; fsWeight?: number; qtsWeight?: number }): MatchView {
-  const pass = PASSBANDS[partType];
-  const bands = thirdOctaveBands(pass.minHz, pass.maxHz);
-  const notReady = readyOf(rows).failed;
-  const read = matchUnitsOf(free, bands);
-  const units = read.units;
-  notReady.push(...read.notReady);
-  const plan = planPairs(units, { ...opts, bandLabels: bands.map((b) => bandLabel(b.nominal)) });
-  return { bands, units, notReady, quarantined, plan, limitDb: opts.limitDb };
+function matchViewOf(
+  partType: PartType,
+  failed: MatchView["notReady"],
+  read: ReturnType<typeof matchUnitsOf>,
+  quarantined: Quarantined[],
+  opts: { limitDb: number; fsWeight?: number; qtsWeight?: number },
+): MatchView {
+  const bands = bandsOf(partType);
+  const plan = planPairs(read.units, { ...opts, bandLabels: bands.map((b) => bandLabel(b.nominal)) });
+  return { bands, units: read.units, notReady: [...failed, ...read.notReady], quarantined, plan, limitDb: opts.limitDb };
 }
 
 export interface MatchReadiness {
@@ -617,7 +624,6 @@ export async function matchReadinessOf(db: DbOrTx, batches: readonly { id: strin
   for (const partType of new Set(batches.map((b) => b.partType))) limitsOf.set(partType, await modelsTakingPartType(db, partType));
 
   for (const batch of batches) {
-    const rows = rowsOf.get(batch.id)!;
     const candidates = ready.get(batch.id)!;
     const limits = [...limitsOf.get(batch.partType)!];
     const loosest = limits.sort((a, b) => b.limit - a.limit)[0];
@@ -626,17 +632,15 @@ export async function matchReadinessOf(db: DbOrTx, batches: readonly { id: strin
       out.set(batch.id, { free, quarantined: 0, canMatch: false, why: free >= 2 ? `No model in production has a mismatch limit for ${partWord(batch.partType)}s, so there is nothing to match them against.` : null });
       continue;
     }
-    const free = candidates.filter((u) => !held.has(u.id));
-    const mine = quarantined.filter((q) => candidates.some((u) => u.id === q.itemId));
+    const ids = new Set(candidates.map((u) => u.id));
+    const mine = quarantined.filter((q) => ids.has(q.itemId));
+    const read = matchUnitsOf(candidates.filter((u) => !held.has(u.id)), bandsOf(batch.partType));
     // Whether one pair is allowed is all the answer needs; the plan itself only says why not.
-    const pass = PASSBANDS[batch.partType];
-    const bands = thirdOctaveBands(pass.minHz, pass.maxHz);
-    const read = matchUnitsOf(free, bands);
-    if (hasAllowedPair(read.units, { limitDb: loosest.limit, bandLabels: bands.map((b) => bandLabel(b.nominal)) })) {
+    if (hasAllowedPair(read.units, { limitDb: loosest.limit })) {
       out.set(batch.id, { free: read.units.length, quarantined: mine.length, canMatch: true, why: null });
       continue;
     }
-    const view = matchViewOf(batch.partType, rows, free, mine, { limitDb: loosest.limit });
+    const view = matchViewOf(batch.partType, [], read, mine, { limitDb: loosest.limit });
     const count = view.units.length;
     const why = count >= 2 ? whyNoPairs(view.plan, { free: count, limitDb: loosest.limit, noun: "units", bandLabels: view.bands.map((b) => bandLabel(b.nominal)) }) : null;
     const several = new Set(limits.map((l) => l.limit)).size > 1;

@@ -3,7 +3,7 @@ import { randomUUID } from "node:crypto";
 import { and, eq, gte, isNotNull, isNull, lt, notExists, or, sql } from "drizzle-orm";
 import { getDb, type Db } from "@/db";
 import { certificates, items, mailAttempts, mailClaims, mailSecrets, outbox, type OutboxMessage } from "@/db/schema";
-import { attemptStats, DEFAULT_MAX_ATTEMPTS, forgetSecrets, restoreSecrets, retryDelayMs, retryDelaySql } from "./outbox";
+import { attemptStats, DEFAULT_MAX_ATTEMPTS, forgetSecrets, nextAttemptAt, restoreSecrets, retryDelaySql } from "./outbox";
 import { createMailTransport, type MailTransport } from "./transport";
 
 export interface DeliverOptions {
@@ -65,8 +65,8 @@ async function claim(db: Db, id: number, holder: string, now: Date, maxAttempts:
     if (tries.some((t) => t.ok)) return null;
     const failures = tries.length;
     if (failures >= maxAttempts) return null;
-    const lastFailedAt = Math.max(0, ...tries.map((t) => t.at.getTime()));
-    if (failures > 0 && lastFailedAt + retryDelayMs(failures) > now.getTime()) return null;
+    const next = nextAttemptAt(failures, failures ? new Date(Math.max(...tries.map((t) => t.at.getTime()))) : null);
+    if (next && next > now) return null;
     const taken = await tx
       .insert(mailClaims)
       .values({ outboxId: id, holder, until: new Date(now.getTime() + CLAIM_MS) })

@@ -1,6 +1,5 @@
-import { spawn, type ChildProcess } from "node:child_process";
+import { spawn } from "node:child_process";
 import { mkdtempSync } from "node:fs";
-import { createServer } from "node:net";
 import { tmpdir } from "node:os";
 import { join, resolve } from "node:path";
 import type { TestProject } from "vitest/node";
@@ -9,6 +8,7 @@ import { migrateDatabase } from "@/db/migrate";
 import { seedDemo } from "@/db/seed/seed";
 import { startFakeSmtp } from "@/lib/mail/fake-smtp";
 import { startPaymentStandIn } from "@/lib/payments/stand-in";
+import { freePort, waitForApp } from "../setup/app-server";
 
 declare module "vitest" {
   export interface ProvidedContext {
@@ -20,32 +20,6 @@ declare module "vitest" {
     /** The payment provider's stand-in (lib/payments/stand-in.ts) the app is pointed at. */
     paymentsUrl: string;
   }
-}
-
-function freePort(): Promise<number> {
-  return new Promise((res, rej) => {
-    const srv = createServer();
-    srv.once("error", rej);
-    srv.listen(0, "127.0.0.1", () => {
-      const { port } = srv.address() as { port: number };
-      srv.close(() => res(port));
-    });
-  });
-}
-
-async function waitForServer(url: string, server: ChildProcess, timeoutMs = 60_000) {
-  const until = Date.now() + timeoutMs;
-  while (Date.now() < until) {
-    if (server.exitCode !== null) throw new Error(`the app exited with ${server.exitCode} before it answered`);
-    try {
-      const res = await fetch(url, { redirect: "manual" });
-      if (res.status < 500) return;
-    } catch {
-      // not listening yet
-    }
-    await new Promise((r) => setTimeout(r, 250));
-  }
-  throw new Error(`the app did not answer at ${url} within ${timeoutMs} ms`);
 }
 
 export default async function setup(project: TestProject) {
@@ -106,7 +80,7 @@ export default async function setup(project: TestProject) {
       STRIPE_API_BASE: payments.url,
     },
   });
-  await waitForServer(`${baseUrl}/sign-in`, server);
+  await waitForApp(baseUrl, server);
 
   project.provide("baseUrl", baseUrl);
   project.provide("mailboxDir", mailboxDir);

@@ -1,6 +1,5 @@
 import { spawn, type ChildProcess } from "node:child_process";
 import { mkdtempSync } from "node:fs";
-import { createServer } from "node:net";
 import { tmpdir } from "node:os";
 import { join, resolve } from "node:path";
 import { and, eq, inArray, sql } from "drizzle-orm";
@@ -14,6 +13,7 @@ import { startFakeSmtp, type FakeSmtp } from "@/lib/mail/fake-smtp";
 import { readMailbox } from "@/lib/mail/mailbox";
 import { queueMail } from "@/lib/mail/outbox";
 import { paths } from "@/lib/paths";
+import { freePort, waitForApp } from "../setup/app-server";
 import { launchBrowser, newPage } from "./browser-helpers";
 
 // Two `next start` processes of the one production build, on one database file, driven at once.
@@ -29,17 +29,6 @@ let closeDb: () => void;
 const servers: ChildProcess[] = [];
 const bases: string[] = [];
 let browser: Browser;
-
-function freePort(): Promise<number> {
-  return new Promise((res, rej) => {
-    const srv = createServer();
-    srv.once("error", rej);
-    srv.listen(0, "127.0.0.1", () => {
-      const { port } = srv.address() as { port: number };
-      srv.close(() => res(port));
-    });
-  });
-}
 
 async function startApp(): Promise<string> {
   const port = await freePort();
@@ -62,17 +51,8 @@ async function startApp(): Promise<string> {
     },
   });
   servers.push(server);
-  const until = Date.now() + 60_000;
-  while (Date.now() < until) {
-    if (server.exitCode !== null) throw new Error(`a second app process exited with ${server.exitCode}`);
-    try {
-      if ((await fetch(`${base}/sign-in`, { redirect: "manual" })).status < 500) return base;
-    } catch {
-      // not listening yet
-    }
-    await new Promise((r) => setTimeout(r, 200));
-  }
-  throw new Error(`the app at ${base} did not answer`);
+  await waitForApp(base, server);
+  return base;
 }
 
 beforeAll(async () => {
