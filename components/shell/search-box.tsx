@@ -93,7 +93,7 @@ export function SearchBox() {
         type="search"
         autoComplete="off"
         spellCheck={false}
-        placeholder="Scan or type a serial…"
+        placeholder="Scan, or type a serial, code or name…"
         className="block min-h-12 w-full rounded-lg border border-line-strong bg-surface px-3 font-mono text-base"
         role="combobox"
         aria-expanded={open && hits.length > 0}
