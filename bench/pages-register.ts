@@ -12,8 +12,8 @@
  */
 import { existsSync, renameSync, rmSync } from "node:fs";
 import { performance } from "node:perf_hooks";
-import type { Client } from "@libsql/client";
-import { openClient, openDb } from "@/db";
+import { createClient, type Client } from "@libsql/client";
+import { openDb } from "@/db";
 import { migrateDatabase } from "@/db/migrate";
 import { seedDemo } from "@/db/seed/seed";
 import { buildRegister, SEARCH_SHAPE, type Built, type RegisterShape } from "./register";
@@ -37,7 +37,8 @@ async function merge(client: Client, rawFile: string): Promise<{ renamed: number
   await client.execute("PRAGMA synchronous = OFF");
   await client.execute("PRAGMA cache_size = -524288");
   await client.execute({ sql: "ATTACH DATABASE ? AS b", args: [rawFile] });
-  await client.execute("BEGIN IMMEDIATE");
+  // Each statement commits on its own: the file is scratch until seedAndMerge renames it into
+  // place, and an explicit BEGIN here was found already ended by the time COMMIT came.
   try {
     // The synthetic register's own dealers and owners (beside the seed's) come along as they are.
     await client.execute(
@@ -76,12 +77,7 @@ async function merge(client: Client, rawFile: string): Promise<{ renamed: number
       SELECT h.item_id, h.holder_id, h.holder_kind, coalesce(r.identity, h.holder_identity), h.paths
       FROM b.holdings h LEFT JOIN renamed r ON r.id = h.holder_id`);
     const renamed = Number((await client.execute("SELECT count(*) AS n FROM renamed")).rows[0]!.n);
-    await client.execute("COMMIT");
     return { renamed };
-  } catch (e) {
-    // A failed statement may already have ended the transaction; its own error is the one to see.
-    await client.execute("ROLLBACK").catch(() => {});
-    throw e;
   } finally {
     await client.execute("DETACH DATABASE b").catch(() => {});
   }
@@ -122,7 +118,9 @@ export async function seedAndMerge(file: string, rawFile: string): Promise<numbe
 
   console.log("Copying the synthetic register in…");
   const tm = performance.now();
-  const client = openClient(url);
+  // A plain client, not the app's: the copy is one connection's ATTACH and temporary tables, and
+  // the app's client runs each lone write in a transaction (and on a connection) of its own.
+  const client = createClient({ url });
   let items: number;
   try {
     const { renamed } = await merge(client, rawFile);

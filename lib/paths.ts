@@ -24,6 +24,7 @@ export const paths = {
   trimParts: "/cabinet/trim",
 
   lab: "/lab",
+  labBatches: "/lab/batches",
   labBatch: (code: string) => `/lab/batches/${seg(code)}`,
   labNewBatch: "/lab/batches/new",
   labMatch: "/lab/match",

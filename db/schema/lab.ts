@@ -74,6 +74,22 @@ export const responses = sqliteTable(
   (t) => [index("responses_item_idx").on(t.itemId, t.id)],
 );
 
+/**
+ * A drive unit's response as matching reads it: its one-third-octave band levels over the part
+ * type's passband (`min_hz`–`max_hz`), worked out once when the response is recorded, so the lab's
+ * pages need not read and band every point of every free unit. Derived from the response, like an
+ * index: a passband changed in code finds no row of its range, and the levels are worked out from
+ * the points again.
+ */
+export const responseBands = sqliteTable("response_bands", {
+  responseId: integer("response_id")
+    .primaryKey()
+    .references(() => responses.id),
+  minHz: real("min_hz").notNull(),
+  maxHz: real("max_hz").notNull(),
+  levels: text("levels", { mode: "json" }).$type<number[]>().notNull(),
+});
+
 /** Thiele–Small parameters of a drive unit: appended, never changed; the newest set counts. */
 export const tsParams = sqliteTable(
   "ts_params",

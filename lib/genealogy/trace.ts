@@ -120,6 +120,52 @@ export async function traceForward(db: DbOrTx, rootId: string, moment: TraceMome
   return [{ id: rootId, kind: root.kind, identity: root.identity }, ...holders];
 }
 
+/** What a page shows of an item's holders: how many of each kind, the first rows, and the shipments. */
+export interface HolderView {
+  /** Every holder, the item itself not counted. */
+  count: number;
+  /** How many of each kind, nearest kind first. */
+  byKind: { kind: ItemKind; n: number }[];
+  /** The first `rows` holders in the trace's order (nearest kind first, then serial). */
+  first: HolderNode[];
+  /** Every shipment among them, by serial. */
+  shipments: HolderNode[];
+}
+
+const byHolderOrder = (a: { kind: string }, b: { kind: string }) => (HOLDER_ORDER[a.kind] ?? 99) - (HOLDER_ORDER[b.kind] ?? 99);
+
+/**
+ * `traceForward` as a page shows it. "Now" is read from the holdings index without fetching every
+ * holder: the counts per kind, the first `rows` and the shipments, each by one indexed query, so a
+ * lot held by fifteen thousand serials costs a few hundred rows. Another moment walks the links
+ * (`traceForward`) and summarises that.
+ */
+export async function holderView(db: DbOrTx, rootId: string, moment: TraceMoment, rows: number): Promise<HolderView> {
+  if (moment.mode !== "now") {
+    const holders = (await traceForward(db, rootId, moment)).slice(1);
+    const counts = new Map<ItemKind, number>();
+    for (const h of holders) counts.set(h.kind, (counts.get(h.kind) ?? 0) + 1);
+    return {
+      count: holders.length,
+      byKind: [...counts].map(([kind, n]) => ({ kind, n })).sort(byHolderOrder),
+      first: holders.slice(0, rows),
+      shipments: holders.filter((h) => h.kind === "shipment"),
+    };
+  }
+  const order = sql.raw(`CASE holder_kind ${Object.entries(HOLDER_ORDER).map(([k, n]) => `WHEN '${k}' THEN ${n}`).join(" ")} ELSE 99 END`);
+  const [kinds, first, shipments] = await Promise.all([
+    db.all<{ kind: ItemKind; n: number }>(sql`SELECT holder_kind AS kind, count(*) AS n FROM holdings WHERE item_id = ${rootId} GROUP BY holder_kind`),
+    db.all<{ id: string; kind: ItemKind; identity: string }>(sql`
+      SELECT holder_id AS id, holder_kind AS kind, holder_identity AS identity FROM holdings
+      WHERE item_id = ${rootId} ORDER BY ${order}, holder_identity LIMIT ${rows}`),
+    db.all<{ id: string; kind: ItemKind; identity: string }>(sql`
+      SELECT holder_id AS id, holder_kind AS kind, holder_identity AS identity FROM holdings
+      WHERE item_id = ${rootId} AND holder_kind = 'shipment' ORDER BY holder_identity`),
+  ]);
+  const byKind = kinds.map((k) => ({ kind: k.kind, n: Number(k.n) })).sort(byHolderOrder);
+  return { count: byKind.reduce((sum, k) => sum + k.n, 0), byKind, first, shipments };
+}
+
 /**
  * When the item left the workshop as built: the first time it (or anything holding it) was put
  * into a shipment. Null while it has never shipped.

@@ -16,18 +16,20 @@ export interface FailedPart {
   at: Date | null;
 }
 
-/** Drive units and crossover boards set aside as failed, each with the reason of its newest state change. */
+/** Drive units and crossover boards set aside as failed (the newest units first), each with the reason of its newest state change. */
 export async function failedParts(db: DbOrTx, limit = 100): Promise<FailedPart[]> {
   const failed = await db
     .select({ id: items.id, identity: items.identity, partType: items.partType, kind: items.kind })
     .from(items)
     .where(and(inArray(items.kind, ["drive_unit", "crossover"]), eq(items.state, "failed")))
+    .orderBy(desc(items.createdAt))
     .limit(limit);
   if (!failed.length) return [];
   const reasons = await db
     .select({ subjectId: events.subjectId, reason: events.reason, at: events.at })
     .from(events)
-    .where(and(eq(events.type, "item.state_changed"), inArray(events.subjectId, failed.map((f) => f.id))))
+    // By subject kind and id, so the events index answers it instead of a scan of the whole log.
+    .where(and(eq(events.subjectKind, "item"), inArray(events.subjectId, failed.map((f) => f.id)), eq(events.type, "item.state_changed")))
     .orderBy(desc(events.id));
   return failed.map((f) => {
     const r = reasons.find((x) => x.subjectId === f.id);

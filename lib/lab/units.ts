@@ -1,7 +1,7 @@
 import "server-only";
 import { refuseQuarantinedIn, withoutQuarantined, type Quarantined } from "./quarantine";
 import type { LabActor } from "@/lib/vocabulary/actor";
-import { and, asc, desc, eq, inArray, isNull, like, sql } from "drizzle-orm";
+import { and, asc, desc, eq, inArray, isNull, like, sql, type AnyColumn } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
 import { batchUnits, caseReservations, items, matchedSets, modelTolerances, models, responses, serviceCases, setMembers, tsParams, unitBatches, type Item } from "@/db/schema";
 import { partWord, type PartType } from "@/lib/vocabulary/part-types";
@@ -20,6 +20,7 @@ import { batchCountMismatch } from "./batch-count";
 import { whyNoPairs } from "./plan-words";
 import { modelsTakingPartType } from "./queries";
 import { readTsCsv } from "./ts-csv";
+import { bandsOf, keepBandLevels, PASSBANDS, pointsOfResponses } from "./response-bands";
 import { countUnits, type UnitCounts } from "./unit-counts";
 import { PART_TYPE_CODES, parseSerial } from "@/lib/serials/format";
 
@@ -29,16 +30,7 @@ export const LAB_STATION = "lab";
 const recorder = (actor: LabActor): Recorder => ({ actorId: actor.id, station: actor.machine ? "lab-bench" : LAB_STATION });
 const machineData = (actor: LabActor) => (actor.machine ? { machineTokenId: actor.machine.id, machineTokenName: actor.machine.name } : {});
 
-/**
- * The band each part type is matched over: where it plays in a typical two- or three-way design.
- * Common practice (no published source): a tweeter above about 1.6 kHz, a midrange from 200 Hz to
- * 5 kHz, a bass unit from 31.5 Hz to 1 kHz.
- */
-export const PASSBANDS: Record<PartType, { minHz: number; maxHz: number }> = {
-  tweeter: { minHz: 1600, maxHz: 20000 },
-  midrange: { minHz: 200, maxHz: 5000 },
-  bass: { minHz: 31.5, maxHz: 1000 },
-};
+export { PASSBANDS } from "./response-bands";
 
 // ---- batches ------------------------------------------------------------------------------------
 
@@ -205,24 +197,26 @@ export async function unitRowsOf(
 ): Promise<UnitRow[]> {
   const ids = rows.map((r) => r.id);
   if (!ids.length) return [];
+  // One JSON parameter rather than one per unit: a batch can hold hundreds.
+  const among = (column: AnyColumn) => sql`${column} IN (SELECT value FROM json_each(${JSON.stringify(ids)}))`;
   const latestResponse = await db
     .select({ id: responses.id, itemId: responses.itemId, createdAt: responses.createdAt, ...(opts.withPoints ? { points: responses.points } : {}) })
     .from(responses)
-    .where(and(inArray(responses.itemId, ids), eq(responses.purpose, "unit"), sql`${responses.id} = (SELECT max(r2.id) FROM responses r2 WHERE r2.item_id = ${responses.itemId} AND r2.purpose = 'unit')`));
+    .where(and(among(responses.itemId), eq(responses.purpose, "unit"), sql`${responses.id} = (SELECT max(r2.id) FROM responses r2 WHERE r2.item_id = ${responses.itemId} AND r2.purpose = 'unit')`));
   const latestTs = await db
     .select()
     .from(tsParams)
-    .where(and(inArray(tsParams.itemId, ids), sql`${tsParams.id} = (SELECT max(t2.id) FROM ts_params t2 WHERE t2.item_id = ${tsParams.itemId})`));
+    .where(and(among(tsParams.itemId), sql`${tsParams.id} = (SELECT max(t2.id) FROM ts_params t2 WHERE t2.item_id = ${tsParams.itemId})`));
   const sets = await db
     .select({ itemId: setMembers.itemId, code: matchedSets.code })
     .from(setMembers)
     .innerJoin(matchedSets, eq(matchedSets.id, setMembers.setId))
-    .where(and(inArray(setMembers.itemId, ids), isNull(setMembers.endedAt)));
+    .where(and(among(setMembers.itemId), isNull(setMembers.endedAt)));
   const cases = await db
     .select({ itemId: caseReservations.itemId, code: serviceCases.code })
     .from(caseReservations)
     .innerJoin(serviceCases, eq(serviceCases.id, caseReservations.caseId))
-    .where(and(inArray(caseReservations.itemId, ids), isNull(caseReservations.endedAt)));
+    .where(and(among(caseReservations.itemId), isNull(caseReservations.endedAt)));
   const responseOf = new Map(latestResponse.map((x) => [x.itemId, x]));
   const tsOf = new Map(latestTs.map((x) => [x.itemId, x]));
   const setOf = new Map(sets.map((x) => [x.itemId, x.code]));
@@ -304,14 +298,9 @@ async function insertResponse(tx: DbOrTx, input: ResponseInput, actor: LabActor)
     subjectId: unit.id,
     data: { identity: unit.identity, points: input.points.length, fromHz: input.points[0]?.hz, toHz: input.points.at(-1)?.hz, fileName: input.fileName, source: input.source, ...machineData(actor) },
   });
-  await tx.insert(responses).values({
-    itemId: unit.id,
-    points: input.points.map((p) => (p.phaseDeg === undefined ? [p.hz, p.db] : [p.hz, p.db, p.phaseDeg])),
-    fileName: input.fileName,
-    source: input.source,
-    eventId,
-    createdAt: now(),
-  });
+  const points = input.points.map((p) => (p.phaseDeg === undefined ? [p.hz, p.db] : [p.hz, p.db, p.phaseDeg]));
+  const [row] = await tx.insert(responses).values({ itemId: unit.id, points, fileName: input.fileName, source: input.source, eventId, createdAt: now() }).returning({ id: responses.id });
+  if (unit.kind === "drive_unit") await keepBandLevels(tx, row!.id, unit.partType, points);
   if (unit.state === "awaiting_measurement") await changeState(tx, unit, "measured", recorder(actor));
   return unit;
 }
@@ -501,10 +490,20 @@ export async function limitFor(db: DbOrTx, modelId: string, partType: PartType) 
   return row ?? null;
 }
 
+/** A unit as planning takes it: `id` is the unit's serial, so the plan and its reasons name units as people know them. */
+export interface PlanUnit {
+  id: string;
+  itemId: string;
+  identity: string;
+  levels: number[];
+  fs?: number;
+  qts?: number;
+}
+
 export interface MatchView {
   bands: ReturnType<typeof thirdOctaveBands>;
-  /** `id` is the unit's serial, so the plan and its reasons name units as people know them. */
-  units: { id: string; itemId: string; identity: string; levels: number[]; points: number[][]; fs?: number; qts?: number }[];
+  /** With each unit's response, for the pictures. */
+  units: (PlanUnit & { points: number[][] })[];
   notReady: { identity: string; reason: string }[];
   /** Units that would be free but an open containment quarantines: left out of the plan. */
   quarantined: Quarantined[];
@@ -517,7 +516,7 @@ export interface MatchView {
  * and Qts where measured; a unit with no response (or one that does not cover the bands) is not
  * ready, with the reason. Needs rows read `withPoints`.
  */
-export function matchUnitsOf(rows: UnitRow[], bands: ReturnType<typeof thirdOctaveBands>): { units: MatchView["units"]; notReady: MatchView["notReady"] } {
+export function matchUnitsOf(rows: Pick<UnitRow, "id" | "identity" | "points" | "fsHz" | "qts">[], bands: ReturnType<typeof thirdOctaveBands>): { units: MatchView["units"]; notReady: MatchView["notReady"] } {
   const units: MatchView["units"] = [];
   const notReady: MatchView["notReady"] = [];
   for (const r of rows) {
@@ -545,12 +544,6 @@ export async function matchBatch(db: DbOrTx, batch: { id: string; partType: Part
   return matchViewOf(batch.partType, failed, matchUnitsOf(free, bandsOf(batch.partType)), quarantined, opts);
 }
 
-/** The one-third-octave bands over a part type's passband, on which its units are matched. */
-function bandsOf(partType: PartType) {
-  const pass = PASSBANDS[partType];
-  return thirdOctaveBands(pass.minHz, pass.maxHz);
-}
-
 /** A batch's units that matching may consider (measured or back in stock, held by no set or case), and the failed ones. */
 function readyOf(rows: UnitRow[]): { ready: UnitRow[]; failed: MatchView["notReady"] } {
   const failed: MatchView["notReady"] = [];
@@ -567,13 +560,13 @@ function readyOf(rows: UnitRow[]): { ready: UnitRow[]; failed: MatchView["notRea
   return { ready, failed };
 }
 
-function matchViewOf(
+function matchViewOf<U extends PlanUnit>(
   partType: PartType,
   failed: MatchView["notReady"],
-  read: ReturnType<typeof matchUnitsOf>,
+  read: { units: U[]; notReady: MatchView["notReady"] },
   quarantined: Quarantined[],
   opts: { limitDb: number; fsWeight?: number; qtsWeight?: number },
-): MatchView {
+): Omit<MatchView, "units"> & { units: U[] } {
   const bands = bandsOf(partType);
   const plan = planPairs(read.units, { ...opts, bandLabels: bands.map((b) => bandLabel(b.nominal)) });
   return { bands, units: read.units, notReady: [...failed, ...read.notReady], quarantined, plan, limitDb: opts.limitDb };
@@ -607,21 +600,16 @@ export async function matchReadiness(db: DbOrTx, batch: { id: string; partType: 
 export async function matchReadinessOf(db: DbOrTx, batches: readonly { id: string; partType: PartType }[]): Promise<Map<string, MatchReadiness>> {
   const out = new Map<string, MatchReadiness>();
   if (!batches.length) return out;
-  const unitRows = await db
-    .select({ batchId: batchUnits.batchId, id: items.id, identity: items.identity, state: items.state, makerSerial: batchUnits.makerSerial })
-    .from(batchUnits)
-    .innerJoin(items, eq(items.id, batchUnits.itemId))
-    // Only units matching could take: their responses (with every point) are the costly part to read.
-    .where(and(inArray(batchUnits.batchId, batches.map((b) => b.id)), inArray(items.state, ["measured", "in_stock"])))
-    .orderBy(asc(items.identity));
-  const viewed = new Map((await unitRowsOf(db, unitRows, { withPoints: true })).map((u) => [u.id, u]));
-  const rowsOf = new Map<string, UnitRow[]>(batches.map((b) => [b.id, []]));
-  for (const r of unitRows) rowsOf.get(r.batchId)!.push(viewed.get(r.id)!);
-  const ready = new Map([...rowsOf].map(([id, rows]) => [id, readyOf(rows).ready]));
+  const ready = new Map<string, ReadyUnit[]>(batches.map((b) => [b.id, []]));
+  for (const u of await readyUnitsOf(db, batches.map((b) => b.id))) ready.get(u.batchId)!.push(u);
   const { quarantined } = await withoutQuarantined(db, [...ready.values()].flat());
   const held = new Set(quarantined.map((q) => q.itemId));
   const limitsOf = new Map<PartType, Awaited<ReturnType<typeof modelsTakingPartType>>>();
   for (const partType of new Set(batches.map((b) => b.partType))) limitsOf.set(partType, await modelsTakingPartType(db, partType));
+  // Band levels are kept with each response when it is recorded; points are read only where they were not.
+  const levelsOf = (u: ReadyUnit, partType: PartType) => (u.bands && u.bands.minHz === PASSBANDS[partType].minHz && u.bands.maxHz === PASSBANDS[partType].maxHz ? u.bands.levels : null);
+  const unbanded = batches.flatMap((b) => ready.get(b.id)!.filter((u) => u.responseId !== null && !levelsOf(u, b.partType)));
+  const pointsOf = await pointsOfResponses(db, unbanded.map((u) => u.responseId!));
 
   for (const batch of batches) {
     const candidates = ready.get(batch.id)!;
@@ -634,7 +622,7 @@ export async function matchReadinessOf(db: DbOrTx, batches: readonly { id: strin
     }
     const ids = new Set(candidates.map((u) => u.id));
     const mine = quarantined.filter((q) => ids.has(q.itemId));
-    const read = matchUnitsOf(candidates.filter((u) => !held.has(u.id)), bandsOf(batch.partType));
+    const read = plannedUnitsOf(candidates.filter((u) => !held.has(u.id)), (u) => levelsOf(u, batch.partType), pointsOf, batch.partType);
     // Whether one pair is allowed is all the answer needs; the plan itself only says why not.
     if (hasAllowedPair(read.units, { limitDb: loosest.limit })) {
       out.set(batch.id, { free: read.units.length, quarantined: mine.length, canMatch: true, why: null });
@@ -647,6 +635,66 @@ export async function matchReadinessOf(db: DbOrTx, batches: readonly { id: strin
     out.set(batch.id, { free: count, quarantined: view.quarantined.length, canMatch: false, why: why && several ? `${why} That is the loosest limit of any model, the ${loosest.code}'s.` : why });
   }
   return out;
+}
+
+/** A unit matching could take now (measured or back in stock, in no set or case), as readiness reads it. */
+interface ReadyUnit {
+  batchId: string;
+  id: string;
+  identity: string;
+  responseId: number | null;
+  /** The band levels kept with its newest response, and over which passband. */
+  bands: { minHz: number; maxHz: number; levels: number[] } | null;
+  fsHz: number | null;
+  qts: number | null;
+}
+
+/**
+ * The units of these batches that matching could take, each with its newest response's kept band
+ * levels and its newest Fs and Qts. One query, answered as one JSON value: a row per unit through
+ * the driver costs more than the query itself.
+ */
+async function readyUnitsOf(db: DbOrTx, batchIds: string[]): Promise<ReadyUnit[]> {
+  const [row] = await db.all<{ j: string | null }>(sql`
+    SELECT json_group_array(json_array(u.batch_id, u.id, u.identity, u.response_id, u.min_hz, u.max_hz, json(u.levels), u.fs_hz, u.qts)) AS j
+    FROM (
+      SELECT bu.batch_id, i.id, i.identity, r.id AS response_id, b.min_hz, b.max_hz, b.levels, t.fs_hz, t.qts
+      FROM batch_units bu
+      JOIN items i ON i.id = bu.item_id
+      LEFT JOIN responses r ON r.id = (SELECT max(r2.id) FROM responses r2 WHERE r2.item_id = i.id AND r2.purpose = 'unit')
+      LEFT JOIN response_bands b ON b.response_id = r.id
+      LEFT JOIN ts_params t ON t.id = (SELECT max(t2.id) FROM ts_params t2 WHERE t2.item_id = i.id)
+      WHERE bu.batch_id IN (SELECT value FROM json_each(${JSON.stringify(batchIds)}))
+        AND i.state IN ('measured', 'in_stock')
+        AND NOT EXISTS (SELECT 1 FROM set_members sm WHERE sm.item_id = i.id AND sm.ended_at IS NULL)
+        AND NOT EXISTS (SELECT 1 FROM case_reservations cr WHERE cr.item_id = i.id AND cr.ended_at IS NULL)
+    ) u`);
+  type Tuple = [string, string, string, number | null, number | null, number | null, number[] | null, number | null, number | null];
+  const units = (JSON.parse(row?.j ?? "[]") as Tuple[]).map(([batchId, id, identity, responseId, minHz, maxHz, levels, fsHz, qts]) => ({
+    batchId, id, identity, responseId, fsHz, qts,
+    bands: levels && minHz !== null && maxHz !== null ? { minHz, maxHz, levels } : null,
+  }));
+  // By serial, as the batch's table lists them, so plans and reasons name units in the same order (code-unit order, as SQLite's).
+  return units.sort((a, b) => (a.identity < b.identity ? -1 : a.identity > b.identity ? 1 : 0));
+}
+
+/**
+ * Units as planning takes them, from the band levels kept with their newest responses; a unit
+ * whose levels were not kept is banded from its points by `matchUnitsOf`, which also says why one
+ * with no response, or one that misses the bands, is not ready.
+ */
+function plannedUnitsOf(rows: ReadyUnit[], levelsOf: (u: ReadyUnit) => number[] | null, pointsOf: Map<number, number[][]>, partType: PartType): { units: PlanUnit[]; notReady: MatchView["notReady"] } {
+  const units: PlanUnit[] = [];
+  const rest: Parameters<typeof matchUnitsOf>[0] = [];
+  for (const r of rows) {
+    const levels = levelsOf(r);
+    if (levels) units.push({ id: r.identity, itemId: r.id, identity: r.identity, levels, ...(r.fsHz !== null ? { fs: r.fsHz } : {}), ...(r.qts !== null ? { qts: r.qts } : {}) });
+    else rest.push({ ...r, points: r.responseId === null ? null : (pointsOf.get(r.responseId) ?? null) });
+  }
+  const banded = matchUnitsOf(rest, bandsOf(partType));
+  // In the rows' order, as matchUnitsOf alone would give them, so plans and reasons come out the same.
+  const order = new Map(rows.map((r, i) => [r.identity, i]));
+  return { units: [...units, ...banded.units].sort((a, b) => order.get(a.identity)! - order.get(b.identity)!), notReady: banded.notReady };
 }
 
 /** Thrown when units of a plan were reserved by someone else first. */

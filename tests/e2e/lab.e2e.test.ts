@@ -70,6 +70,18 @@ describe("the lab, as a lab user does it", () => {
     await expect(page.getByTestId("units-table").locator("tbody tr").count()).resolves.toBe(4);
   });
 
+  test("the lab's home lists the newest batches, and every batch is one link away", async () => {
+    await visit(page, url("/lab"));
+    await expect(page.getByTestId("lab-batches").textContent()).resolves.toContain(batch);
+    await page.getByTestId("lab-every-batch-link").click();
+    await page.getByTestId("lab-every-batch").waitFor();
+    const rows = page.getByTestId("lab-batches").locator("tbody tr");
+    // The demo's batches (more than the home shows) and this one.
+    await expect(rows.count()).resolves.toBeGreaterThan(30);
+    await rows.filter({ hasText: batch }).getByRole("link", { name: batch }).click();
+    await page.getByTestId("batch-page").waitFor();
+  });
+
   test("brings in four response files at once, matched by the maker's serial in the file name", async () => {
     const upload = page.getByTestId("response-upload");
     await upload.locator('input[type="file"]').setInputFiles(MAKER.map((m, i) => ({ name: `${m}.txt`, mimeType: "text/plain", buffer: Buffer.from(responseFile(LEVELS[i]!)) })));

@@ -5,7 +5,7 @@ import { getDb } from "@/db";
 import { links, type Item } from "@/db/schema";
 import { AppError } from "@/lib/auth/errors";
 import { createItem, fit, removeFrom } from "@/lib/genealogy/graph";
-import { shippedAt, toTree, traceBackward, traceForward } from "@/lib/genealogy/trace";
+import { holderView, shippedAt, toTree, traceBackward, traceForward, type TraceMoment } from "@/lib/genealogy/trace";
 import { failureText } from "./helpers";
 
 const by = (at: string, station: Station = "assembly") => ({ actorId: null, station, at: new Date(at) });
@@ -91,6 +91,38 @@ describe("trace forward", () => {
     expect(ids(await traceForward(db(), tweeterL.id, { mode: "now" }))).toEqual(["D-T-1"]);
     const then = await traceForward(db(), tweeterL.id, { mode: "at", at: new Date("2025-06-01T00:00:00Z") });
     expect(ids(then)).toEqual(["D-T-1", "H-T-1", "K-T-1", "P-T-1", "S-T-L"]);
+  });
+});
+
+describe("what the item page shows of the holders", () => {
+  // The page reads "now" from the holdings index without fetching every holder; it must say what
+  // the whole forward trace says: the counts by kind, the same first rows, the same shipments.
+  const moments: TraceMoment[] = [{ mode: "now" }, { mode: "at", at: new Date("2025-06-01T00:00:00Z") }];
+  test.each(moments)("$mode: the same as the whole forward trace, in its order", async (moment) => {
+    for (const item of [lot, tweeterL, xoL, pair]) {
+      const all = (await traceForward(db(), item.id, moment)).slice(1);
+      for (const rows of [0, 2, 100]) {
+        const view = await holderView(db(), item.id, moment, rows);
+        expect(view.count).toBe(all.length);
+        expect(view.first).toEqual(all.slice(0, rows));
+        expect(view.shipments).toEqual(all.filter((h) => h.kind === "shipment"));
+        const kinds = [...new Set(all.map((h) => h.kind))];
+        expect(view.byKind).toEqual(kinds.map((kind) => ({ kind, n: all.filter((h) => h.kind === kind).length })));
+      }
+    }
+  });
+
+  test("a lot in both crossovers of a shipped pair: counted by kind, nearest first", async () => {
+    const view = await holderView(db(), lot.id, { mode: "now" }, 4);
+    expect(view.byKind).toEqual([
+      { kind: "crossover", n: 2 },
+      { kind: "speaker", n: 2 },
+      { kind: "pair", n: 1 },
+      { kind: "carton", n: 1 },
+      { kind: "shipment", n: 1 },
+    ]);
+    expect(view.first.map((h) => h.identity)).toEqual(["X-T-1", "X-T-2", "S-T-L", "S-T-R"]);
+    expect(view.shipments.map((h) => h.identity)).toEqual(["H-T-1"]);
   });
 });
 

@@ -10,20 +10,18 @@ import { getDb } from "@/db";
 import { listModels } from "@/lib/workshop/queries";
 import { areaByKey } from "@/lib/areas";
 import { requirePage } from "@/lib/auth/guard";
-import { formatCalendarDay, formatDay } from "@/lib/format";
+import { formatDay } from "@/lib/format";
 import { failedParts } from "@/lib/lab/queries";
 import { formatDb, formatLimitDb } from "@/lib/acoustics";
-import { UNIT_CLASS_WORDS, UNIT_CLASSES } from "@/lib/lab/unit-counts";
 import { listBatches, matchReadinessOf, openSets } from "@/lib/lab/units";
+import { BatchCountsNote, BatchTable, batchLink } from "@/components/lab/batch-table";
+import { paths } from "@/lib/paths";
 import { partWord, PART_TYPE_LABEL, isPartType } from "@/lib/vocabulary/part-types";
 
 export const metadata: Metadata = { title: "Lab" };
 
-const batchLink = (code: string) => (
-  <Link className="serial whitespace-nowrap font-bold text-leaf-dark underline" href={`/lab/batches/${encodeURIComponent(code)}`}>
-    {code}
-  </Link>
-);
+// The home lists the newest batches; every batch is one link away (a workshop registers dozens a year).
+const HOME_BATCHES = 30;
 
 export default async function Page() {
   await requirePage("lab.work");
@@ -34,8 +32,6 @@ export default async function Page() {
   const candidates = batches.filter((b) => b.free >= 2);
   const readiness = await matchReadinessOf(db, candidates);
   const ready = candidates.map((b) => ({ batch: b, readiness: readiness.get(b.id)! }));
-  // The "Other" column only when some unit is neither waiting, free, reserved, fitted nor failed.
-  const classes = UNIT_CLASSES.filter((c) => c !== "other" || batches.some((b) => b.other > 0));
   return (
     <AreaOverview area={areaByKey("lab")}>
       <div className="flex flex-wrap gap-3">
@@ -131,43 +127,24 @@ export default async function Page() {
           <p className="text-ink-soft">No failed unit or board.</p>
         )}
       </Panel>
-      <Panel title="Batches">
-        <p className="mb-3 text-sm text-ink-soft">
-          Each batch&apos;s units, counted by where they stand now: {classes.map((c) => UNIT_CLASS_WORDS[c].sentence).join(", ")}. The counts add up to the units.
-        </p>
-        <DataTable
-          caption="Batches of drive units"
-          testId="lab-batches"
-          empty="No batch registered yet."
-          initialSort={{ key: "code", dir: "desc" }}
-          columns={[
-            { key: "code", label: "Batch" },
-            { key: "units", label: "Units", numeric: true },
-            ...classes.map((c) => ({ key: c, label: UNIT_CLASS_WORDS[c].column, numeric: true })),
-          ]}
-          rows={batches.map((b) => ({
-            id: b.id,
-            cells: {
-              // Sorted by when it came in; what and when sit under the code, to leave room for the counts.
-              code: {
-                value: `${b.receivedOn} ${b.code}`,
-                display: (
-                  <span className="text-sm">
-                    {batchLink(b.code)}
-                    <span className="block">
-                      <span className="font-bold">{PART_TYPE_LABEL[b.partType]}</span> <span className="whitespace-nowrap">{b.partNumber}</span>
-                    </span>
-                    <span className="block whitespace-nowrap text-ink-soft">
-                      lot {b.lot} · {formatCalendarDay(b.receivedOn)}
-                    </span>
-                  </span>
-                ),
-              },
-              units: { value: b.units },
-              ...Object.fromEntries(classes.map((c) => [c, { value: b[c] }])),
-            },
-          }))}
-        />
+      <Panel
+        title="Batches"
+        actions={
+          <Link className="font-bold text-leaf-dark underline" href={paths.labBatches} data-testid="lab-every-batch-link">
+            Every batch ({batches.length.toLocaleString("en")})
+          </Link>
+        }
+      >
+        <BatchCountsNote batches={batches.slice(0, HOME_BATCHES)} />
+        <BatchTable batches={batches.slice(0, HOME_BATCHES)} />
+        {batches.length > HOME_BATCHES ? (
+          <p className="mt-2 text-sm text-ink-soft" data-testid="lab-batches-more">
+            The {HOME_BATCHES} newest of {batches.length.toLocaleString("en")}.{" "}
+            <Link className="font-bold text-leaf-dark underline" href={paths.labBatches}>
+              Every batch
+            </Link>
+          </p>
+        ) : null}
       </Panel>
       <Panel title="Matching limits per model">
         <ModelTable models={models} show="tolerances" />

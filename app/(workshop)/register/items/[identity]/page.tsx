@@ -23,7 +23,7 @@ import { positionWords } from "@/lib/events/describe";
 import { momentParam, resolveMoment } from "@/lib/genealogy/moment";
 import { KIND_WORD, kindLabel, stateLabel } from "@/lib/vocabulary/item-kinds";
 import { dealersOf, itemDetails } from "@/lib/genealogy/queries";
-import { toTree, traceBackward, traceForward } from "@/lib/genealogy/trace";
+import { holderView, toTree, traceBackward, type HolderView } from "@/lib/genealogy/trace";
 import { PairVeneer } from "./pair-veneer";
 import { LabOrigin } from "./lab-origin";
 import { parseLeafIdentity } from "@/lib/serials";
@@ -60,14 +60,12 @@ const SHOW = 5;
 // thousand rows would make the page megabytes long and slow to build, send and draw.
 const HOLDER_ROWS = 200;
 
-function HolderSummary({ holders }: { holders: { kind: string }[] }) {
-  if (holders.length === 0) return null;
-  const counts = new Map<string, number>();
-  for (const h of holders) counts.set(h.kind, (counts.get(h.kind) ?? 0) + 1);
-  const max = Math.max(...counts.values());
+function HolderSummary({ byKind }: { byKind: HolderView["byKind"] }) {
+  if (byKind.length === 0) return null;
+  const max = Math.max(...byKind.map((k) => k.n));
   return (
     <div className="mb-4 flex flex-col gap-1" data-testid="holder-summary">
-      {[...counts].map(([kind, n]) => (
+      {byKind.map(({ kind, n }) => (
         <div key={kind} className="flex items-center gap-3">
           <span className="w-32 text-sm font-bold">{kindLabel(kind)}</span>
           <span className="h-4 rounded bg-leaf" style={{ width: `${Math.max(2, (n / max) * 60)}%` }} aria-hidden="true" />
@@ -91,13 +89,13 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
   const { moment, label, note } = resolveMoment(at, shippedAt);
   const [inside, holders, everInside] = await Promise.all([
     traceBackward(db, item.id, moment),
-    traceForward(db, item.id, moment.mode === "ever" ? { mode: "now" } : moment),
+    holderView(db, item.id, moment.mode === "ever" ? { mode: "now" } : moment, HOLDER_ROWS),
     // The history lists events of every part ever fitted directly, whatever the moment shown.
     moment.mode === "ever" ? null : traceBackward(db, item.id, { mode: "ever" }),
   ]);
   const tree = toTree(inside);
   const events = await recentEvents(db, { viewer: user, subjects: { kind: "item", ids: [item.id, ...(everInside ?? inside).filter((n) => n.depth === 1).map((n) => n.id)] }, limit: 200 });
-  const shipments = holders.filter((h) => h.kind === "shipment");
+  const { shipments } = holders;
   const [reachedDealers, facts] = await Promise.all([
     dealersOf(db, shipments.map((s) => s.id)),
     // One shipment (or the item is one): its dealer and day, to say where the item went in words.
@@ -289,7 +287,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
       ) : null}
 
       <Panel title="What holds it">
-        <HolderSummary holders={holders.filter((h) => h.id !== item.id)} />
+        <HolderSummary byKind={holders.byKind} />
         {reachedDealers.length ? (
           <p className="mb-4" data-testid="reached-dealers">
             Shipped to{" "}
@@ -302,8 +300,8 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
             .
           </p>
         ) : null}
-        <details open={holders.length <= 41} className="group">
-          <summary className="mb-3 cursor-pointer font-bold text-leaf-dark">Every holder ({(holders.length - 1).toLocaleString("en")})</summary>
+        <details open={holders.count <= 40} className="group">
+          <summary className="mb-3 cursor-pointer font-bold text-leaf-dark">Every holder ({holders.count.toLocaleString("en")})</summary>
         <DataTable
           caption="Everything that holds this item"
           testId="holders-table"
@@ -312,10 +310,7 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
             { key: "identity", label: "Serial" },
             { key: "kind", label: "Kind" },
           ]}
-          rows={holders
-            .filter((h) => h.id !== item.id)
-            .slice(0, HOLDER_ROWS)
-            .map((h) => ({
+          rows={holders.first.map((h) => ({
               id: h.id,
               cells: {
                 identity: { value: h.identity, display: <SerialLink identity={h.identity} /> },
@@ -323,9 +318,9 @@ export default async function ItemPage({ params, searchParams }: { params: Promi
               },
             }))}
         />
-        {holders.length - 1 > HOLDER_ROWS ? (
+        {holders.count > HOLDER_ROWS ? (
           <p className="mt-2 text-sm" data-testid="holders-more">
-            The first {HOLDER_ROWS} of {(holders.length - 1).toLocaleString("en")}, the nearest holders first.{" "}
+            The first {HOLDER_ROWS} of {holders.count.toLocaleString("en")}, the nearest holders first.{" "}
             <a className="font-bold text-leaf-dark underline" href={`/api/v1/items/${encodeURIComponent(item.identity)}/trace?direction=forward`}>Every holder as JSON</a>
           </p>
         ) : null}
