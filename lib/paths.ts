@@ -9,6 +9,7 @@ export const paths = {
   today: "/",
   register: "/register",
   item: (identity: string) => `/register/items/${seg(identity)}`,
+  dealers: "/register/dealers",
   dealer: (code: string) => `/register/dealers/${seg(code)}`,
   owner: (id: string) => `/register/owners/${seg(id)}`,
 

@@ -1,4 +1,5 @@
 import Link from "next/link";
+import { paths } from "@/lib/paths";
 import { Badge } from "@/components/ui/badge";
 import { DataTable } from "@/components/ui/data-table";
 import type { Dealer, Finish } from "@/db/schema";
@@ -117,12 +118,13 @@ export function FinishTable({ finishes }: { finishes: Finish[] }) {
   );
 }
 
-export function DealerTable({ dealers }: { dealers: Dealer[] }) {
+/** Dealers, by name unless `sorted` says the rows come in an order of their own (the most recent first, say). */
+export function DealerTable({ dealers, sorted = "by name" }: { dealers: Dealer[]; sorted?: "by name" | "as given" }) {
   return (
     <DataTable
       caption="Dealers"
       testId="dealer-table"
-      initialSort={{ key: "name", dir: "asc" }}
+      initialSort={sorted === "by name" ? { key: "name", dir: "asc" } : undefined}
       columns={[
         { key: "code", label: "Code" },
         { key: "name", label: "Dealer" },
@@ -135,7 +137,7 @@ export function DealerTable({ dealers }: { dealers: Dealer[] }) {
         id: d.id,
         cells: {
           code: { value: d.code, display: <span className="serial">{d.code}</span> },
-          name: { value: d.name, display: <Link className="font-bold text-leaf-dark underline underline-offset-4" href={`/register/dealers/${d.code}`}>{d.name}</Link> },
+          name: { value: d.name, display: <Link className="font-bold text-leaf-dark underline underline-offset-4" href={paths.dealer(d.code)}>{d.name}</Link> },
           address: { value: null, display: <span className="whitespace-pre-line text-sm">{[d.address, d.postcode].filter(Boolean).join("\n")}</span> },
           city: { value: d.city },
           country: { value: d.country },

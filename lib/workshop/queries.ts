@@ -1,7 +1,7 @@
 import "server-only";
-import { asc, eq } from "drizzle-orm";
+import { asc, eq, inArray, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db";
-import { dealers, finishes, modelPositions, models, modelTolerances } from "@/db/schema";
+import { dealers, finishes, modelPositions, models, modelTolerances, type Dealer } from "@/db/schema";
 
 export interface ModelSummary {
   id: string;
@@ -45,4 +45,27 @@ export function listFinishes(db: DbOrTx) {
 
 export function listDealers(db: DbOrTx) {
   return db.select().from(dealers).orderBy(asc(dealers.name));
+}
+
+/** How many shipments back `recentDealers` looks: a few weeks of a busy shop's dispatch. */
+const RECENT_SHIPMENTS = 500;
+
+/**
+ * The dealers the newest shipments went to, the most recent first (at most `limit`), and how many
+ * dealers there are in all. Reads the newest shipments through the kind index, not every dealer's
+ * history, so it costs the same after ten years.
+ */
+export async function recentDealers(db: DbOrTx, limit = 20): Promise<{ dealers: (Dealer & { lastShipped: Date })[]; total: number }> {
+  const [row] = await db.all<{ j: string | null; total: number }>(sql`
+    SELECT (SELECT count(*) FROM dealers) AS total,
+           (SELECT json_group_array(json_array(dealer_id, last)) FROM (
+              SELECT dealer_id, max(created_at) AS last FROM (
+                SELECT dealer_id, created_at FROM items WHERE kind = 'shipment' ORDER BY created_at DESC LIMIT ${RECENT_SHIPMENTS})
+              WHERE dealer_id IS NOT NULL GROUP BY dealer_id ORDER BY last DESC LIMIT ${limit})) AS j`);
+  const last = new Map((JSON.parse(row?.j ?? "[]") as [string, number][]).map(([id, at]) => [id, at]));
+  const rows = last.size ? await db.select().from(dealers).where(inArray(dealers.id, [...last.keys()])) : [];
+  return {
+    dealers: rows.map((d) => ({ ...d, lastShipped: new Date(last.get(d.id)!) })).sort((a, b) => b.lastShipped.getTime() - a.lastShipped.getTime()),
+    total: Number(row?.total ?? 0),
+  };
 }

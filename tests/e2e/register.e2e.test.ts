@@ -89,6 +89,20 @@ describe("search and trace in the register", () => {
     await expect(page.getByTestId("search-option").first().textContent()).resolves.toContain("Merrow Lane");
   });
 
+  test("the front page lists the dealers shipped to lately; every dealer is one link away", async () => {
+    await visit(page, url("/register"));
+    const recent = page.getByTestId("dealer-table").locator("tbody tr");
+    await expect(recent.count()).resolves.toBeGreaterThan(0);
+    await expect(recent.count()).resolves.toBeLessThanOrEqual(20);
+    await page.getByTestId("every-dealer-link").click();
+    await page.getByTestId("every-dealer").waitFor();
+    // The demo's dealers, by name; each opens its own page.
+    const names = await page.getByTestId("dealer-table").locator("tbody tr td:nth-child(2)").allTextContents();
+    expect(names).toEqual([...names].sort((a, b) => a.localeCompare(b, undefined, { numeric: true })));
+    await page.getByTestId("dealer-table").getByRole("link", { name: names[0]! }).click();
+    await expect.poll(() => new URL(page.url()).pathname).toMatch(/^\/register\/dealers\/.+/);
+  });
+
   test("the repaired pair shows both halves; now it holds the replacement, as built the failed unit", async () => {
     await visit(page, url(`/register/items/${encodeURIComponent(repair.pair)}`));
     await page.getByTestId("pair-halves").waitFor();

@@ -4,7 +4,9 @@ import { Panel, PageHeader } from "@/components/ui/panel";
 import { getDb } from "@/db";
 import { areaByKey } from "@/lib/areas";
 import { requirePage } from "@/lib/auth/guard";
-import { listDealers, listFinishes, listModels } from "@/lib/workshop/queries";
+import { listFinishes, listModels, recentDealers } from "@/lib/workshop/queries";
+import Link from "next/link";
+import { paths } from "@/lib/paths";
 import { recentPairs } from "@/lib/genealogy/queries";
 import { formatDate } from "@/lib/format";
 import { SerialLink } from "@/components/register/serial-link";
@@ -13,10 +15,14 @@ import { DataTable } from "@/components/ui/data-table";
 
 export const metadata: Metadata = { title: "Register" };
 
+// A workshop sells through hundreds of dealers over the years: the register's front page shows
+// those it shipped to lately, and every dealer is one link away.
+const RECENT_DEALERS = 20;
+
 export default async function RegisterPage() {
   await requirePage("register.read");
   const db = getDb();
-  const [models, finishes, dealers, pairs] = await Promise.all([listModels(db), listFinishes(db), listDealers(db), recentPairs(db)]);
+  const [models, finishes, dealers, pairs] = await Promise.all([listModels(db), listFinishes(db), recentDealers(db, RECENT_DEALERS), recentPairs(db)]);
   const area = areaByKey("register");
   return (
     <div className="flex flex-col gap-6" data-testid="area-register">
@@ -52,8 +58,27 @@ export default async function RegisterPage() {
       <Panel title="Finishes">
         <FinishTable finishes={finishes} />
       </Panel>
-      <Panel title="Dealers">
-        <DealerTable dealers={dealers} />
+      <Panel
+        title="Dealers shipped to lately"
+        actions={
+          <Link className="font-bold text-leaf-dark underline" href={paths.dealers} data-testid="every-dealer-link">
+            Every dealer ({dealers.total.toLocaleString("en")})
+          </Link>
+        }
+      >
+        {dealers.dealers.length ? (
+          <>
+            <p className="mb-3 text-sm text-ink-soft">The dealers of the latest shipments, the most recent first. Find any dealer by name, code or town with the search box, or in the list of every dealer.</p>
+            <DealerTable dealers={dealers.dealers} sorted="as given" />
+          </>
+        ) : (
+          <p className="text-ink-soft">
+            Nothing has shipped yet.{" "}
+            <Link className="font-bold text-leaf-dark underline" href={paths.dealers}>
+              Every dealer
+            </Link>
+          </p>
+        )}
       </Panel>
     </div>
   );
