@@ -1,5 +1,5 @@
 import "server-only";
-import { and, desc, eq, inArray, ne } from "drizzle-orm";
+import { and, desc, eq, inArray, ne, sql } from "drizzle-orm";
 import { alias } from "drizzle-orm/sqlite-core";
 import type { DbOrTx } from "@/db";
 import { batchUnits, events, items, matchedSets, models, modelTolerances, setMembers, unitBatches } from "@/db/schema";
@@ -16,25 +16,34 @@ export interface FailedPart {
   at: Date | null;
 }
 
-/** Drive units and crossover boards set aside as failed (the newest units first), each with the reason of its newest state change. */
-export async function failedParts(db: DbOrTx, limit = 100): Promise<FailedPart[]> {
+/**
+ * Drive units and crossover boards set aside as failed: the newest `limit` units, each with the
+ * reason of its newest state change, and how many there are in all.
+ */
+export async function failedParts(db: DbOrTx, limit = 100): Promise<{ parts: FailedPart[]; total: number }> {
+  const failedWhere = and(inArray(items.kind, ["drive_unit", "crossover"]), eq(items.state, "failed"));
+  const [count] = await db.select({ n: sql<number>`count(*)` }).from(items).where(failedWhere);
+  const total = Number(count?.n ?? 0);
   const failed = await db
     .select({ id: items.id, identity: items.identity, partType: items.partType, kind: items.kind })
     .from(items)
-    .where(and(inArray(items.kind, ["drive_unit", "crossover"]), eq(items.state, "failed")))
+    .where(failedWhere)
     .orderBy(desc(items.createdAt))
     .limit(limit);
-  if (!failed.length) return [];
+  if (!failed.length) return { parts: [], total };
   const reasons = await db
     .select({ subjectId: events.subjectId, reason: events.reason, at: events.at })
     .from(events)
     // By subject kind and id, so the events index answers it instead of a scan of the whole log.
     .where(and(eq(events.subjectKind, "item"), inArray(events.subjectId, failed.map((f) => f.id)), eq(events.type, "item.state_changed")))
     .orderBy(desc(events.id));
-  return failed.map((f) => {
-    const r = reasons.find((x) => x.subjectId === f.id);
+  const newest = new Map<string, (typeof reasons)[number]>();
+  for (const r of reasons) if (!newest.has(r.subjectId)) newest.set(r.subjectId, r);
+  const parts = failed.map((f) => {
+    const r = newest.get(f.id);
     return { ...f, reason: r?.reason ?? null, at: r?.at ?? null };
   });
+  return { parts, total };
 }
 
 /** Active models that take units of this part type, with their mismatch limit for it. */

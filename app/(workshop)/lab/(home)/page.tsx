@@ -20,13 +20,15 @@ import { partWord, PART_TYPE_LABEL, isPartType } from "@/lib/vocabulary/part-typ
 
 export const metadata: Metadata = { title: "Lab" };
 
-// The home lists the newest batches; every batch is one link away (a workshop registers dozens a year).
+// The home lists the newest batches and failures; every batch is one link away (a workshop
+// registers dozens a year, and failed units stay on record).
 const HOME_BATCHES = 30;
+const HOME_FAILURES = 25;
 
 export default async function Page() {
   await requirePage("lab.work");
   const db = getDb();
-  const [models, batches, sets, failedItems] = await Promise.all([listModels(db), listBatches(db), openSets(db), failedParts(db)]);
+  const [models, batches, sets, failures] = await Promise.all([listModels(db), listBatches(db), openSets(db), failedParts(db, HOME_FAILURES)]);
   const waiting = batches.filter((b) => b.waiting > 0);
   // Matching is offered only where it can pair something; elsewhere the page says why not.
   const candidates = batches.filter((b) => b.free >= 2);
@@ -114,9 +116,9 @@ export default async function Page() {
         />
       </Panel>
       <Panel title="Failures">
-        {failedItems.length ? (
+        {failures.parts.length ? (
           <ul className="flex flex-col gap-1" data-testid="lab-failures">
-            {failedItems.map((f) => (
+            {failures.parts.map((f) => (
               <li key={f.id}>
                 <SerialLink identity={f.identity} /> {f.partType ?? f.kind.replace("_", " ")}: {f.reason ?? "failed"}
                 {f.at ? <span className="text-sm text-ink-soft"> ({formatDay(f.at)})</span> : null}
@@ -126,6 +128,11 @@ export default async function Page() {
         ) : (
           <p className="text-ink-soft">No failed unit or board.</p>
         )}
+        {failures.total > failures.parts.length ? (
+          <p className="mt-2 text-sm text-ink-soft" data-testid="lab-failures-more">
+            The {failures.parts.length} newest of {failures.total.toLocaleString("en")} failed units and boards; each batch&apos;s page lists all of its units.
+          </p>
+        ) : null}
       </Panel>
       <Panel
         title="Batches"
