@@ -17,8 +17,8 @@ export interface FailedPart {
 }
 
 /**
- * Drive units and crossover boards set aside as failed: the newest `limit` units, each with the
- * reason of its newest state change, and how many there are in all.
+ * Drive units and crossover boards set aside as failed: the `limit` newest units, each with the
+ * reason and time of its newest state change (latest failure first), and how many there are in all.
  */
 export async function failedParts(db: DbOrTx, limit = 100): Promise<{ parts: FailedPart[]; total: number }> {
   const failedWhere = and(inArray(items.kind, ["drive_unit", "crossover"]), eq(items.state, "failed"));
@@ -39,10 +39,13 @@ export async function failedParts(db: DbOrTx, limit = 100): Promise<{ parts: Fai
     .orderBy(desc(events.id));
   const newest = new Map<string, (typeof reasons)[number]>();
   for (const r of reasons) if (!newest.has(r.subjectId)) newest.set(r.subjectId, r);
-  const parts = failed.map((f) => {
-    const r = newest.get(f.id);
-    return { ...f, reason: r?.reason ?? null, at: r?.at ?? null };
-  });
+  // Chosen as the newest units (a unit or board fails on the bench soon after it is made), shown by when they failed.
+  const parts = failed
+    .map((f) => {
+      const r = newest.get(f.id);
+      return { ...f, reason: r?.reason ?? null, at: r?.at ?? null };
+    })
+    .sort((a, b) => (b.at?.getTime() ?? 0) - (a.at?.getTime() ?? 0));
   return { parts, total };
 }
 

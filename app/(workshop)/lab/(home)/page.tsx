@@ -130,7 +130,7 @@ export default async function Page() {
         )}
         {failures.total > failures.parts.length ? (
           <p className="mt-2 text-sm text-ink-soft" data-testid="lab-failures-more">
-            The {failures.parts.length} newest of {failures.total.toLocaleString("en")} failed units and boards; each batch&apos;s page lists all of its units.
+            The {failures.parts.length} newest of {failures.total.toLocaleString("en")} units and boards that failed; each batch&apos;s page lists all of its units.
           </p>
         ) : null}
       </Panel>
