@@ -36,8 +36,9 @@ async function verifyRefusal(req: NextRequest): Promise<NextResponse | null> {
     return hit.ok ? null : tooManyChecks(hit.retryAfterSeconds);
   } catch (e) {
     // Other processes' writes held the register past the wait: say so, never a 500.
-    if (!registerBusy(e)) throw e;
-    return new NextResponse("The register is busy; try again in a moment.", { status: 503, headers: { "content-type": "text/plain; charset=utf-8", "retry-after": "1", "cache-control": "no-store" } });
+    const busy = registerBusy(e);
+    if (!busy) throw e;
+    return new NextResponse(busy.message, { status: 503, headers: { "content-type": "text/plain; charset=utf-8", "retry-after": "1", "cache-control": "no-store" } });
   }
 }
 

@@ -38,7 +38,7 @@ async function merge(client: Client, rawFile: string): Promise<{ renamed: number
   await client.execute("PRAGMA cache_size = -524288");
   await client.execute({ sql: "ATTACH DATABASE ? AS b", args: [rawFile] });
   // Each statement commits on its own: the file is scratch until seedAndMerge renames it into
-  // place, and an explicit BEGIN here was found already ended by the time COMMIT came.
+  // place. (An explicit BEGIN … COMMIT here was found already ended by the time COMMIT came.)
   try {
     // The synthetic register's own dealers and owners (beside the seed's) come along as they are.
     await client.execute(

@@ -9,9 +9,9 @@
  *   --plans      print the query plans even when every target is met
  */
 import { spawnSync } from "node:child_process";
-import { existsSync, mkdtempSync, rmSync, statSync } from "node:fs";
-import { loadavg, tmpdir } from "node:os";
-import { join, resolve } from "node:path";
+import { existsSync, rmSync, statSync } from "node:fs";
+import { loadavg } from "node:os";
+import { resolve } from "node:path";
 import { fileURLToPath } from "node:url";
 import { performance } from "node:perf_hooks";
 import { sql } from "drizzle-orm";
@@ -23,6 +23,7 @@ import { search } from "@/lib/search/search";
 import { compactText, phrase } from "@/lib/search/text";
 import { formatSerial } from "@/lib/serials";
 import { buildRegister, prng, type Rng, SEARCH_SHAPE } from "./register";
+import { scratchFolder } from "./scratch";
 
 const TARGET_P95_MS = 20;
 const TARGET_WRITE_INDEX_MS = 2;
@@ -154,20 +155,11 @@ async function main() {
   if (argv[0] === "--build-child") return buildChild(argv[1]!);
   const args = new Set(argv);
   const dbArg = argv.indexOf("--db") >= 0 ? argv[argv.indexOf("--db") + 1] : undefined;
-  const dir = dbArg ? null : mkdtempSync(join(tmpdir(), "twinleaf-bench-search-"));
-  const file = dbArg ? resolve(dbArg) : join(dir!, "register.db");
+  // --db names a register to build or reuse, and keep; otherwise it lives in a scratch folder.
+  const scratch = dbArg ? null : scratchFolder("twinleaf-bench-search-", args.has("--keep"));
+  const file = dbArg ? resolve(dbArg) : scratch!.file;
   const url = `file:${file}`;
-  const cleanUp = () => {
-    if (!dir) return;
-    if (args.has("--keep")) console.log(`kept ${file}`);
-    else rmSync(dir, { recursive: true, force: true });
-  };
-  for (const signal of ["SIGINT", "SIGTERM"] as const) {
-    process.once(signal, () => {
-      cleanUp();
-      process.exit(130);
-    });
-  }
+  const cleanUp = () => scratch?.cleanUp();
 
   try {
     if (existsSync(file)) {

@@ -7,9 +7,8 @@
  *   --keep    keep the temporary database (its path is printed) for poking at afterwards
  */
 import { spawn } from "node:child_process";
-import { mkdtempSync, rmSync, statSync } from "node:fs";
-import { loadavg, tmpdir } from "node:os";
-import { join } from "node:path";
+import { statSync } from "node:fs";
+import { loadavg } from "node:os";
 import { performance } from "node:perf_hooks";
 import { createInterface } from "node:readline";
 import { fileURLToPath } from "node:url";
@@ -20,6 +19,7 @@ import { migrateDatabase } from "@/db/migrate";
 import { traceBackward, traceForward } from "@/lib/genealogy/trace";
 import { CONTAINMENT_PAGE_ROWS, containmentPageData, raiseContainment } from "@/lib/containments";
 import { buildRegister, prng, TRACE_SHAPE } from "./register";
+import { scratchFolder } from "./scratch";
 
 // ---------------------------------------------------------------------------------------------
 // The naive trace: one query per parent, the way a loop over an ORM would do it
@@ -251,22 +251,8 @@ async function main() {
   const argv = process.argv.slice(2);
   if (argv[0] === "--forward-child") return forwardChild(argv[1]!, argv[2]!);
   const args = new Set(argv);
-  const dir = mkdtempSync(join(tmpdir(), "twinleaf-bench-"));
-  const file = join(dir, "register.db");
+  const { file, cleanUp } = scratchFolder("twinleaf-bench-", args.has("--keep"));
   const url = `file:${file}`;
-  let cleaned = false;
-  const cleanUp = () => {
-    if (cleaned) return;
-    cleaned = true;
-    if (args.has("--keep")) console.log(`kept ${file}`);
-    else rmSync(dir, { recursive: true, force: true });
-  };
-  for (const signal of ["SIGINT", "SIGTERM"] as const) {
-    process.once(signal, () => {
-      cleanUp();
-      process.exit(130);
-    });
-  }
 
   try {
     console.log(`twinleaf trace benchmark — ${count(TRACE_SHAPE.years * TRACE_SHAPE.pairsPerYear)} pairs over ${TRACE_SHAPE.years} years in ${file}`);

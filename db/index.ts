@@ -89,6 +89,15 @@ const WRITE_AFTER_WITH = /\b(?:insert\s+(?:or\s+\w+\s+)?into|replace\s+into|dele
 /** Whether a lone statement runs in a write transaction of its own (see `waitingOnBusy`). */
 export const runsAsWrite = (sql: string): boolean => !(OUTSIDE_TRANSACTION.test(sql) || (/^\s*with\b/i.test(sql) && !WRITE_AFTER_WITH.test(sql)));
 
+// BEGIN … COMMIT sent through `execute` would start a transaction on one pooled connection that the
+// next statement may not use (and a lone write here takes a transaction of its own anyway).
+const EXPLICIT_TRANSACTION = /^\s*(?:begin|commit|end|rollback|savepoint|release)\b/i;
+const refuseExplicitTransaction = (sql: string): void => {
+  if (EXPLICIT_TRANSACTION.test(sql)) {
+    throw new Error(`"${sql.trim().split(/\s+/)[0]}" through execute() is refused: use client.transaction() or db.transaction(), or a plain libSQL client for one connection's script.`);
+  }
+};
+
 /** One statement in the object form every entry point accepts. */
 const statementOf = (stmt: InStatement, args?: InArgs): { sql: string; args?: InArgs } =>
   typeof stmt === "string" ? { sql: stmt, args: args ?? [] } : stmt;
@@ -112,7 +121,11 @@ function waitingOnBusy(client: Client, wait: BusyWait): Client {
   const batch = client.batch.bind(client);
   const transaction = client.transaction.bind(client);
   if (client.protocol !== "file") {
-    client.execute = ((...args: Parameters<Client["execute"]>) => whenFree(() => execute(...args), wait)) as Client["execute"];
+    client.execute = (async (stmt: InStatement, args?: InArgs) => {
+      const one = statementOf(stmt, args);
+      refuseExplicitTransaction(one.sql);
+      return whenFree(() => execute(one), wait);
+    }) as Client["execute"];
     client.batch = ((...args: Parameters<Client["batch"]>) => whenFree(() => batch(...args), wait)) as Client["batch"];
     return client;
   }
@@ -142,8 +155,9 @@ function waitingOnBusy(client: Client, wait: BusyWait): Client {
 
   client.transaction = ((mode?: TransactionMode) =>
     mode === undefined || mode === "write" ? beginWrite() : whenFree(() => transaction(mode), wait)) as Client["transaction"];
-  client.execute = ((stmt: InStatement, args?: InArgs) => {
+  client.execute = (async (stmt: InStatement, args?: InArgs) => {
     const one = statementOf(stmt, args);
+    refuseExplicitTransaction(one.sql);
     return runsAsWrite(one.sql)
       ? withWriteLock(() => inOwnTransaction((tx) => tx.execute(one)))
       : whenFree(() => execute(one), wait);

@@ -88,6 +88,7 @@ export interface HolderNode {
 const HOLDER_ORDER: Record<string, number> = {
   flitch: 0, leaf: 1, maker_lot: 2, unit_batch: 3, component_lot: 4, drive_unit: 5, crossover: 6, cabinet: 7, speaker: 8, pair: 9, carton: 10, shipment: 11,
 };
+const byHolderOrder = (a: { kind: string }, b: { kind: string }) => (HOLDER_ORDER[a.kind] ?? 99) - (HOLDER_ORDER[b.kind] ?? 99);
 
 /**
  * Everything that holds an item at a moment (its parents, theirs… up to shipments), the item
@@ -116,7 +117,7 @@ export async function traceForward(db: DbOrTx, rootId: string, moment: TraceMome
   const holders = (JSON.parse(row?.j ?? "[]") as [string, ItemKind, string][]).map(([id, kind, identity]) => ({ id, kind, identity }));
   // Plain code-unit order: identities are ASCII, and localeCompare is far slower on a lot recall.
   const cmp = (x: string, y: string) => (x < y ? -1 : x > y ? 1 : 0);
-  holders.sort((a, b) => (HOLDER_ORDER[a.kind] ?? 99) - (HOLDER_ORDER[b.kind] ?? 99) || cmp(a.identity, b.identity));
+  holders.sort((a, b) => byHolderOrder(a, b) || cmp(a.identity, b.identity));
   return [{ id: rootId, kind: root.kind, identity: root.identity }, ...holders];
 }
 
@@ -131,8 +132,6 @@ export interface HolderView {
   /** Every shipment among them, by serial. */
   shipments: HolderNode[];
 }
-
-const byHolderOrder = (a: { kind: string }, b: { kind: string }) => (HOLDER_ORDER[a.kind] ?? 99) - (HOLDER_ORDER[b.kind] ?? 99);
 
 /**
  * `traceForward` as a page shows it. "Now" is read from the holdings index without fetching every

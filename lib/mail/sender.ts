@@ -67,12 +67,13 @@ async function claim(db: Db, id: number, holder: string, now: Date, maxAttempts:
     if (failures >= maxAttempts) return null;
     const next = nextAttemptAt(failures, failures ? new Date(Math.max(...tries.map((t) => t.at.getTime()))) : null);
     if (next && next > now) return null;
+    const until = new Date(now.getTime() + CLAIM_MS);
     const taken = await tx
       .insert(mailClaims)
-      .values({ outboxId: id, holder, until: new Date(now.getTime() + CLAIM_MS) })
+      .values({ outboxId: id, holder, until })
       .onConflictDoUpdate({
         target: mailClaims.outboxId,
-        set: { holder, until: new Date(now.getTime() + CLAIM_MS) },
+        set: { holder, until },
         setWhere: lt(mailClaims.until, now),
       })
       .returning({ holder: mailClaims.holder });

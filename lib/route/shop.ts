@@ -30,11 +30,11 @@ export interface ShopPair {
 /** A pair whose next step has been allowed this long without being done is overdue (the demo workshop's rule). */
 export const OVERDUE_AFTER_MS = 48 * 3600_000;
 
-/** Every pair still on the cabinet route (and every lone lacquer cabinet and trim part on its route), where it is now. */
 // "+": the few items in these states are read through items_kind_state_idx and then sorted; ordering
 // by the bare column lets the planner walk every item of the kind in creation order instead.
 const byCreation = sql`+${items.createdAt}`;
 
+/** Every pair still on the cabinet route (and every lone lacquer cabinet and trim part on its route), where it is now. */
 export async function shopPairs(db: DbOrTx, at: Date = clockNow()): Promise<ShopPair[]> {
   const pairs = await db.select().from(items).where(and(eq(items.kind, "pair"), inArray(items.state, ["in_production", "unpartnered"]))).orderBy(byCreation);
   // Lacquer cabinets in no pair, still on the route.

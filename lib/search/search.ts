@@ -40,6 +40,9 @@ export const CANDIDATES = 200;
 const TYPO_CANDIDATES = 50;
 
 type Source = "item" | FoundBy | "case" | "containment" | "dealer" | "owner";
+/** Sources whose ref is an item: the item itself, or the text it was found by. */
+const ITEM_SOURCES: readonly Source[] = ["item", "maker_serial", "log_reference", "tracking"];
+const isItemSource = (source: Source): source is "item" | FoundBy => ITEM_SOURCES.includes(source);
 type Candidate = { source: Source; ref: string; text: string };
 type ItemRow = { id: string; identity: string; kind: string; state: string };
 
@@ -115,7 +118,7 @@ function rank(query: string, candidates: Candidate[]): Candidate[] {
 /** The chosen candidates as hits, read now (current states and names), in the candidates' order. */
 async function toHits(db: DbOrTx, chosen: Candidate[]): Promise<SearchHit[]> {
   const refs = (s: Source[]) => [...new Set(chosen.filter((c) => s.includes(c.source)).map((c) => c.ref))];
-  const itemIds = refs(["item", "maker_serial", "log_reference", "tracking"]);
+  const itemIds = refs([...ITEM_SOURCES]);
   const list = (ids: string[]) => sql.join(ids.map((id) => sql`${id}`), sql`, `);
   const none = Promise.resolve([]);
   const [itemRows, viaRows, dealerRows, ownerRows, caseRows, containmentRows] = await Promise.all([
@@ -151,7 +154,7 @@ async function toHits(db: DbOrTx, chosen: Candidate[]): Promise<SearchHit[]> {
 
   const out: SearchHit[] = [];
   for (const c of chosen) {
-    if (c.source === "item" || c.source === "maker_serial" || c.source === "log_reference" || c.source === "tracking") {
+    if (isItemSource(c.source)) {
       const r = item.get(c.ref);
       if (r) out.push(c.source === "item" ? itemHit(r) : itemHit(r, { by: c.source, text: via.get(`${c.source}:${c.ref}`) ?? "" }));
     } else if (c.source === "dealer") {
@@ -233,7 +236,7 @@ export async function search(db: DbOrTx, raw: string, limit = 10, scope: SearchS
     if (chosen.length === 0) chosen = await typoCandidates(db, text);
   }
   const taken = new Set([...answer.didYouMean, ...byMaker.map((r) => itemHit(r))].map((h) => `${h.type}:${h.id}`));
-  const itemKey = (c: Candidate) => (c.source === "dealer" || c.source === "owner" || c.source === "case" || c.source === "containment" ? `${c.source}:${c.ref}` : `item:${c.ref}`);
+  const itemKey = (c: Candidate) => (isItemSource(c.source) ? `item:${c.ref}` : `${c.source}:${c.ref}`);
   const picked: Candidate[] = [];
   for (const c of chosen) {
     if (picked.length >= limit) break;

@@ -1,14 +1,13 @@
-import { spawn } from "node:child_process";
 import { mkdtempSync } from "node:fs";
 import { tmpdir } from "node:os";
-import { join, resolve } from "node:path";
+import { join } from "node:path";
 import type { TestProject } from "vitest/node";
 import { openClient, openDb } from "@/db";
 import { migrateDatabase } from "@/db/migrate";
 import { seedDemo } from "@/db/seed/seed";
 import { startFakeSmtp } from "@/lib/mail/fake-smtp";
 import { startPaymentStandIn } from "@/lib/payments/stand-in";
-import { freePort, waitForApp } from "../setup/app-server";
+import { freePort, nextBuild, startNextApp, testAppEnv } from "../setup/app-server";
 
 declare module "vitest" {
   export interface ProvidedContext {
@@ -28,15 +27,7 @@ export default async function setup(project: TestProject) {
   const mailboxDir = join(dir, "mailbox");
 
   // The build and the demo's seeding run side by side: neither needs the other.
-  const next = resolve("node_modules/.bin/next");
-  const built =
-    process.env.E2E_SKIP_BUILD === "1"
-      ? Promise.resolve()
-      : new Promise<void>((ok, fail) => {
-          const build = spawn(next, ["build"], { stdio: ["ignore", "ignore", "inherit"], env: { ...process.env, NODE_ENV: "production", TWINLEAF_BUILD_SKIP_TYPECHECK: "1" } });
-          build.once("error", fail);
-          build.once("exit", (code) => (code === 0 ? ok() : fail(new Error(`next build failed with status ${code}`))));
-        });
+  const built = process.env.E2E_SKIP_BUILD === "1" ? Promise.resolve() : nextBuild();
   const seeded = process.env.E2E_SEEDED_DB;
   if (seeded) {
     // A demo seeded once for every lane (scripts/e2e-lanes.mjs): this lane takes a consistent copy
@@ -62,25 +53,7 @@ export default async function setup(project: TestProject) {
     webhookSecret: "whsec_e2e_standin",
     webhookUrl: `${baseUrl}/api/v1/payments/webhook`,
   });
-  const server = spawn(next, ["start", "-p", String(port), "-H", "127.0.0.1"], {
-    stdio: ["ignore", "ignore", "inherit"],
-    env: {
-      ...process.env,
-      NODE_ENV: "production",
-      DATABASE_URL: databaseUrl,
-      SMTP_HOST: "127.0.0.1",
-      SMTP_PORT: String(smtp.port),
-      MAILBOX_DIR: mailboxDir,
-      UPLOADS_DIR: join(dir, "uploads"),
-      TWINLEAF_CLOCK_FILE: join(dir, "clock"),
-      APP_URL: baseUrl,
-      MAIL_SEND_INTERVAL_MS: "300",
-      STRIPE_SECRET_KEY: "sk_test_e2e_standin",
-      STRIPE_WEBHOOK_SECRET: "whsec_e2e_standin",
-      STRIPE_API_BASE: payments.url,
-    },
-  });
-  await waitForApp(baseUrl, server);
+  const app = await startNextApp(testAppEnv({ dir, databaseUrl, smtpPort: smtp.port, paymentsUrl: payments.url, sendIntervalMs: 300 }), port);
 
   project.provide("baseUrl", baseUrl);
   project.provide("mailboxDir", mailboxDir);
@@ -89,7 +62,7 @@ export default async function setup(project: TestProject) {
   project.provide("paymentsUrl", payments.url);
 
   return async () => {
-    server.kill("SIGTERM");
+    await app.stop();
     await smtp.close();
     await payments.close();
   };

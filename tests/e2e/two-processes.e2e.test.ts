@@ -1,7 +1,6 @@
-import { spawn, type ChildProcess } from "node:child_process";
 import { mkdtempSync } from "node:fs";
 import { tmpdir } from "node:os";
-import { join, resolve } from "node:path";
+import { join } from "node:path";
 import { and, eq, inArray, sql } from "drizzle-orm";
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, inject, test } from "vitest";
@@ -13,7 +12,7 @@ import { startFakeSmtp, type FakeSmtp } from "@/lib/mail/fake-smtp";
 import { readMailbox } from "@/lib/mail/mailbox";
 import { queueMail } from "@/lib/mail/outbox";
 import { paths } from "@/lib/paths";
-import { freePort, waitForApp } from "../setup/app-server";
+import { startNextApp, testAppEnv, type NextApp } from "../setup/app-server";
 import { launchBrowser, newPage } from "./browser-helpers";
 
 // Two `next start` processes of the one production build, on one database file, driven at once.
@@ -26,33 +25,15 @@ const mailboxDir = join(dir, "mailbox");
 let smtp: FakeSmtp;
 let db: Db;
 let closeDb: () => void;
-const servers: ChildProcess[] = [];
+const servers: NextApp[] = [];
 const bases: string[] = [];
 let browser: Browser;
 
+/** One more server of the build on the copy, with its own sender every 100 ms and the shared stand-in payments. */
 async function startApp(): Promise<string> {
-  const port = await freePort();
-  const base = `http://127.0.0.1:${port}`;
-  const server = spawn(resolve("node_modules/.bin/next"), ["start", "-p", String(port), "-H", "127.0.0.1"], {
-    stdio: ["ignore", "ignore", "inherit"],
-    env: {
-      ...process.env,
-      NODE_ENV: "production",
-      DATABASE_URL: databaseUrl,
-      SMTP_HOST: "127.0.0.1",
-      SMTP_PORT: String(smtp.port),
-      MAILBOX_DIR: mailboxDir,
-      UPLOADS_DIR: join(dir, "uploads"),
-      APP_URL: base,
-      MAIL_SEND_INTERVAL_MS: "100",
-      STRIPE_SECRET_KEY: "sk_test_e2e_standin",
-      STRIPE_WEBHOOK_SECRET: "whsec_e2e_standin",
-      STRIPE_API_BASE: inject("paymentsUrl"),
-    },
-  });
-  servers.push(server);
-  await waitForApp(base, server);
-  return base;
+  const app = await startNextApp(testAppEnv({ dir, databaseUrl, smtpPort: smtp.port, paymentsUrl: inject("paymentsUrl"), sendIntervalMs: 100 }));
+  servers.push(app);
+  return app.baseUrl;
 }
 
 beforeAll(async () => {
@@ -73,7 +54,7 @@ beforeAll(async () => {
 
 afterAll(async () => {
   await browser?.close();
-  for (const s of servers) s.kill("SIGTERM");
+  await Promise.all(servers.map((s) => s.stop()));
   await smtp?.close();
   closeDb?.();
 });

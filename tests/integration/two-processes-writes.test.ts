@@ -158,3 +158,18 @@ describe("which lone statements take the write lock in a transaction of their ow
     expect(runsAsWrite(statement)).toBe(write);
   });
 });
+
+describe("an explicit transaction through execute() is refused, and nothing runs", () => {
+  // Sent that way, BEGIN would open a transaction on one pooled connection that the next statement
+  // need not use; a lone write takes a transaction of its own anyway.
+  test.each(["BEGIN IMMEDIATE", "  begin", "COMMIT", "END", "ROLLBACK", "SAVEPOINT s1", "RELEASE s1"])("%s", async (statement) => {
+    await expect(a.client.execute(statement)).rejects.toThrow(/through execute\(\) is refused: use client\.transaction\(\) or db\.transaction\(\)/);
+  });
+
+  test("the client goes on working: a write and a transaction after the refusal", async () => {
+    await expect(a.client.execute("BEGIN")).rejects.toThrow(/refused/);
+    await a.db.insert(limitHits).values(hit("explicit-begin", "one"));
+    await a.db.transaction((tx) => tx.insert(limitHits).values(hit("explicit-begin", "two")));
+    expect((await hitsOf(b.db, "explicit-begin")).map((h) => h.attempt).sort()).toEqual(["one", "two"]);
+  });
+});

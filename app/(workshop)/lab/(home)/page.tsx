@@ -30,6 +30,7 @@ export default async function Page() {
   const db = getDb();
   const [models, batches, sets, failures] = await Promise.all([listModels(db), listBatches(db), openSets(db), failedParts(db, HOME_FAILURES)]);
   const waiting = batches.filter((b) => b.waiting > 0);
+  const newest = batches.slice(0, HOME_BATCHES);
   // Matching is offered only where it can pair something; elsewhere the page says why not.
   const candidates = batches.filter((b) => b.free >= 2);
   const readiness = await matchReadinessOf(db, candidates);
@@ -142,8 +143,8 @@ export default async function Page() {
           </Link>
         }
       >
-        <BatchCountsNote batches={batches.slice(0, HOME_BATCHES)} />
-        <BatchTable batches={batches.slice(0, HOME_BATCHES)} />
+        <BatchCountsNote batches={newest} />
+        <BatchTable batches={newest} />
         {batches.length > HOME_BATCHES ? (
           <p className="mt-2 text-sm text-ink-soft" data-testid="lab-batches-more">
             The {HOME_BATCHES} newest of {batches.length.toLocaleString("en")}.{" "}
